@@ -1,0 +1,98 @@
+// Package display turns values into MIME bundles for Jupyter front ends and
+// reports: text/plain always, HTML tables, LaTeX, SVG/PNG plots and
+// application/json where they help. It renders lsys's own types and plain Go
+// values; it knows no syntax and no protocol.
+//
+// Every renderer must be deterministic: the same value gives the same bytes
+// (no timestamps, random ids or map-order effects).
+package display
+
+import (
+	"fmt"
+	"reflect"
+	"sort"
+	"sync"
+)
+
+// Bundle is a MIME bundle: data keyed by MIME type, plus per-type metadata.
+// Text values are strings; application/json values are any JSON-encodable
+// value. encoding/json writes map keys sorted, so bundles serialise stably.
+type Bundle struct {
+	Data     map[string]any
+	Metadata map[string]any
+}
+
+// MIME types used by the renderers.
+const (
+	Text  = "text/plain"
+	HTML  = "text/html"
+	LaTeX = "text/latex"
+	SVG   = "image/svg+xml"
+	PNG   = "image/png"
+	JSON  = "application/json"
+)
+
+// NewBundle returns a bundle holding the text form only.
+func NewBundle(text string) Bundle {
+	return Bundle{Data: map[string]any{Text: text}, Metadata: map[string]any{}}
+}
+
+// Renderer renders one Go type. Register them with Register from an init
+// function in the file that owns the type's displays.
+type Renderer func(v any, opt Options) Bundle
+
+// Options tune rendering; the zero value is the default.
+type Options struct {
+	PNG bool // add a PNG beside SVG plots
+}
+
+var (
+	mu        sync.RWMutex
+	renderers = map[reflect.Type]Renderer{}
+)
+
+// Register installs the renderer for values of the same dynamic type as
+// sample (pass a typed nil pointer such as (*lsys.System)(nil)).
+func Register(sample any, r Renderer) {
+	mu.Lock()
+	defer mu.Unlock()
+	t := reflect.TypeOf(sample)
+	if _, dup := renderers[t]; dup {
+		panic("display: two renderers for " + t.String())
+	}
+	renderers[t] = r
+}
+
+// Registered lists the type names that have renderers, sorted (for docs/tests).
+func Registered() []string {
+	mu.RLock()
+	defer mu.RUnlock()
+	var out []string
+	for t := range renderers {
+		out = append(out, t.String())
+	}
+	sort.Strings(out)
+	return out
+}
+
+// Render renders v. Types without a renderer fall back to fmt.Stringer or
+// %v in text/plain, so every value can be shown.
+func Render(v any, opt Options) Bundle {
+	if v == nil {
+		return NewBundle("")
+	}
+	mu.RLock()
+	r, ok := renderers[reflect.TypeOf(v)]
+	mu.RUnlock()
+	if ok {
+		b := r(v, opt)
+		if b.Metadata == nil {
+			b.Metadata = map[string]any{}
+		}
+		return b
+	}
+	if s, ok := v.(fmt.Stringer); ok {
+		return NewBundle(s.String())
+	}
+	return NewBundle(fmt.Sprintf("%v", v))
+}
