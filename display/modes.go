@@ -1,0 +1,298 @@
+package display
+
+import (
+	"fmt"
+	"html"
+	"math"
+	"math/cmplx"
+	"strconv"
+	"strings"
+
+	"lsys/lsys"
+)
+
+func init() {
+	Register((*lsys.ModeTable)(nil), renderModes)
+}
+
+func sxBlocks(b []int) string {
+	parts := make([]string, len(b))
+	for i, k := range b {
+		parts[i] = strconv.Itoa(k)
+	}
+	return strings.Join(parts, "+")
+}
+
+func sxVerdict(ok bool, yes, no string) string {
+	if ok {
+		return yes
+	}
+	return no
+}
+
+// sxModeRow is the common columns of a mode, text and HTML alike.
+func sxModeRow(i int, m lsys.Mode) []string {
+	period := ""
+	if m.Period > 0 {
+		period = sxNum(m.Period)
+	}
+	mult := ""
+	if m.Multiplicity > 1 {
+		mult = fmt.Sprintf("%d (%s)", m.Multiplicity, sxBlocks(m.Blocks))
+	}
+	return []string{
+		strconv.Itoa(i + 1),
+		sxComplex(m.Eigenvalue, m.Pair),
+		sxNum(m.NaturalFreq),
+		sxNum(m.FreqHz),
+		sxNum(m.Damping),
+		sxNum(m.TimeConstant),
+		period,
+		mult,
+		sxNum(m.Cond),
+		sxVerdict(m.Reachable, "yes", "NO"),
+		sxVerdict(m.Observable, "yes", "NO"),
+	}
+}
+
+var sxModeHeads = []string{"#", "eigenvalue", "wn rad/s", "f Hz", "damping", "tau s", "period s", "mult (blocks)", "cond", "reached", "seen"}
+
+func sxModesTitle(t *lsys.ModeTable) string {
+	s := t.System
+	kind := "continuous-time"
+	if s != nil && s.Sampled() {
+		kind = "sampled (every " + sxNum(s.Ts) + " s; figures through s = log(z)/Ts)"
+	}
+	n := 0
+	if s != nil {
+		n = s.N()
+	}
+	return fmt.Sprintf("modes of a %s system with %s: %s, by natural frequency then damping", kind,
+		sxCount(n, "state", "states"), sxCount(len(t.Modes), "mode", "modes"))
+}
+
+func renderModes(v any, _ Options) Bundle {
+	t := v.(*lsys.ModeTable)
+	if t == nil {
+		return NewBundle("(no modes)")
+	}
+	s := t.System
+	var b strings.Builder
+	b.WriteString(sxModesTitle(t) + "\n")
+	if len(t.Modes) == 0 {
+		b.WriteString("  (a static gain has no modes)\n")
+		return NewBundle(b.String())
+	}
+	cells := [][]string{sxModeHeads}
+	for i, m := range t.Modes {
+		cells = append(cells, sxModeRow(i, m))
+	}
+	sxWriteColumns(&b, cells, "  ")
+	fmt.Fprintf(&b, "  verdicts: PBH test per mode, margin against %s x the norm of [A B] / [A; C]\n", sxNum(t.RelTol))
+
+	// Reach and visibility per signal.
+	if s != nil && (s.M() > 0 || s.P() > 0) {
+		b.WriteString("\nmodal gains: |input reach| per input, |output visibility| per output\n")
+		head := []string{"#"}
+		for _, u := range s.InputNames {
+			head = append(head, "<- "+u)
+		}
+		for _, y := range s.OutputNames {
+			head = append(head, "-> "+y)
+		}
+		g := [][]string{head}
+		for i, m := range t.Modes {
+			row := []string{strconv.Itoa(i + 1)}
+			for _, r := range m.Reach {
+				row = append(row, sxNum(r))
+			}
+			for _, o := range m.Visibility {
+				row = append(row, sxNum(o))
+			}
+			g = append(g, row)
+		}
+		sxWriteColumns(&b, g, "  ")
+	}
+	// Mode shapes.
+	if s != nil && s.N() <= 12 {
+		b.WriteString("\nmode shapes (largest entry 1; magnitude and phase in degrees)\n")
+		head := []string{"state"}
+		for i := range t.Modes {
+			head = append(head, "mode "+strconv.Itoa(i+1))
+		}
+		g := [][]string{head}
+		for k, name := range s.StateNames {
+			row := []string{name}
+			for _, m := range t.Modes {
+				row = append(row, sxShapeEntry(m.Shape[k], m.Pair || imag(m.Eigenvalue) != 0))
+			}
+			g = append(g, row)
+		}
+		sxWriteColumns(&b, g, "  ")
+	}
+
+	out := NewBundle(b.String())
+	out.Data[HTML] = sxModesHTML(t)
+	out.Data[JSON] = sxModesJSON(t)
+	return out
+}
+
+// sxShapeEntry writes a shape entry: a signed magnitude for real modes,
+// magnitude and phase for oscillatory ones.
+func sxShapeEntry(z complex128, complexMode bool) string {
+	if !complexMode {
+		return sxNum(real(z))
+	}
+	a := cmplx.Abs(z)
+	if a == 0 {
+		return "0"
+	}
+	ph := cmplx.Phase(z) * 180 / math.Pi
+	return sxNum(a) + " ∠" + strconv.FormatFloat(math.Round(ph), 'f', 0, 64)
+}
+
+func sxModesHTML(t *lsys.ModeTable) string {
+	s := t.System
+	var h strings.Builder
+	fmt.Fprintf(&h, "<div class=\"lsys-modes\" %s>", sxCardStyle)
+	fmt.Fprintf(&h, "<div style=\"font-weight:bold;margin-bottom:4px\">%s</div>", html.EscapeString(sxModesTitle(t)))
+	if len(t.Modes) == 0 {
+		h.WriteString("<div style=\"color:#555\">a static gain has no modes</div></div>")
+		return h.String()
+	}
+	th := "<th style=\"padding:2px 6px;border-bottom:1px solid #999;text-align:right;font-weight:normal;color:#333\">"
+	h.WriteString("<table style=\"border-collapse:collapse\"><tr>")
+	for _, c := range sxModeHeads {
+		h.WriteString(th + html.EscapeString(c) + "</th>")
+	}
+	var inputs, outputs []string
+	if s != nil {
+		inputs, outputs = s.InputNames, s.OutputNames
+	}
+	for _, u := range inputs {
+		h.WriteString(th + "reach from " + html.EscapeString(u) + "</th>")
+	}
+	for _, y := range outputs {
+		h.WriteString(th + "seen by " + html.EscapeString(y) + "</th>")
+	}
+	showShape := s != nil && s.N() <= 24
+	if showShape {
+		h.WriteString(th + "shape</th>")
+	}
+	h.WriteString("</tr>")
+	// Bars are scaled per signal column against the largest value in it.
+	maxReach := make([]float64, len(inputs))
+	maxVis := make([]float64, len(outputs))
+	for _, m := range t.Modes {
+		for j, r := range m.Reach {
+			if !math.IsInf(r, 0) {
+				maxReach[j] = math.Max(maxReach[j], r)
+			}
+		}
+		for i, o := range m.Visibility {
+			maxVis[i] = math.Max(maxVis[i], o)
+		}
+	}
+	for i, m := range t.Modes {
+		bg := ""
+		if !m.Stable() {
+			bg = " style=\"background:#fbeee6\""
+		}
+		fmt.Fprintf(&h, "<tr%s>", bg)
+		for k, c := range sxModeRow(i, m) {
+			style := "padding:2px 6px;text-align:right;font-family:monospace"
+			if (k == 9 || k == 10) && c == "NO" {
+				style += ";font-weight:bold"
+			}
+			fmt.Fprintf(&h, "<td style=\"%s\">%s</td>", style, html.EscapeString(c))
+		}
+		for j, r := range m.Reach {
+			h.WriteString(sxBarCell(r, maxReach[j]))
+		}
+		for k, o := range m.Visibility {
+			h.WriteString(sxBarCell(o, maxVis[k]))
+		}
+		if showShape {
+			h.WriteString("<td style=\"padding:2px 6px\">" + sxShapeBars(m, s.StateNames) + "</td>")
+		}
+		h.WriteString("</tr>")
+	}
+	h.WriteString("</table>")
+	fmt.Fprintf(&h, "<div style=\"color:#555;margin-top:4px\">reached / seen: PBH test per mode, margin against %s &times; the norm of [A B] / [A; C]. Shaded rows do not decay. Bars: modal gain relative to the largest in its column. Shape: one bar per state, magnitude relative to the largest; bars below the line are in antiphase (phase beyond &plusmn;90&deg;).</div>", sxNum(t.RelTol))
+	h.WriteString("</div>")
+	return h.String()
+}
+
+// sxBarCell is a number with a horizontal bar scaled to max.
+func sxBarCell(v, max float64) string {
+	w := 0.0
+	if max > 0 && !math.IsInf(v, 0) {
+		w = math.Round(60 * v / max)
+	}
+	if math.IsInf(v, 1) {
+		w = 60
+	}
+	return fmt.Sprintf("<td style=\"padding:2px 6px;font-family:monospace;text-align:right;white-space:nowrap\"><span style=\"display:inline-block;width:%.0fpx;height:8px;background:#0072b2;margin-right:4px\"></span>%s</td>", w, sxNum(v))
+}
+
+// sxShapeBars draws the mode shape as a row of vertical bars, one per
+// state: height by magnitude, above the line when in phase with the largest
+// entry, below when in antiphase. The title of each bar gives the numbers.
+func sxShapeBars(m lsys.Mode, names []string) string {
+	var b strings.Builder
+	b.WriteString("<span style=\"display:inline-flex;align-items:center;gap:2px;height:28px\">")
+	for k, z := range m.Shape {
+		a := cmplx.Abs(z)
+		ph := cmplx.Phase(z) * 180 / math.Pi
+		hgt := math.Round(12 * a)
+		up := math.Abs(ph) <= 90
+		title := fmt.Sprintf("%s: %s at %.0f deg", names[k], sxNum(a), ph)
+		if up {
+			fmt.Fprintf(&b, "<span title=\"%s\" style=\"display:inline-block;width:6px;height:28px;position:relative\"><span style=\"position:absolute;bottom:14px;left:0;width:6px;height:%.0fpx;background:#009e73\"></span></span>", html.EscapeString(title), hgt)
+		} else {
+			fmt.Fprintf(&b, "<span title=\"%s\" style=\"display:inline-block;width:6px;height:28px;position:relative\"><span style=\"position:absolute;top:14px;left:0;width:6px;height:%.0fpx;background:#d55e00\"></span></span>", html.EscapeString(title), hgt)
+		}
+	}
+	b.WriteString("</span>")
+	return b.String()
+}
+
+func sxModesJSON(t *lsys.ModeTable) map[string]any {
+	modes := make([]any, len(t.Modes))
+	for i, m := range t.Modes {
+		shape := make([]any, len(m.Shape))
+		for k, z := range m.Shape {
+			shape[k] = sxJSONComplex(z)
+		}
+		reach := make([]any, len(m.Reach))
+		for j, r := range m.Reach {
+			reach[j] = sxJSONNum(r)
+		}
+		vis := make([]any, len(m.Visibility))
+		for j, r := range m.Visibility {
+			vis[j] = sxJSONNum(r)
+		}
+		modes[i] = map[string]any{
+			"eigenvalue":     sxJSONComplex(m.Eigenvalue),
+			"s":              sxJSONComplex(m.S),
+			"pair":           m.Pair,
+			"natural_freq":   sxJSONNum(m.NaturalFreq),
+			"freq_hz":        sxJSONNum(m.FreqHz),
+			"damping":        sxJSONNum(m.Damping),
+			"time_constant":  sxJSONNum(m.TimeConstant),
+			"period":         sxJSONNum(m.Period),
+			"multiplicity":   m.Multiplicity,
+			"blocks":         m.Blocks,
+			"cond":           sxJSONNum(m.Cond),
+			"reach":          reach,
+			"visibility":     vis,
+			"reachable":      m.Reachable,
+			"observable":     m.Observable,
+			"reach_margin":   sxJSONNum(m.ReachMargin),
+			"observe_margin": sxJSONNum(m.ObserveMargin),
+			"tol":            sxJSONNum(m.Tol),
+			"shape":          shape,
+		}
+	}
+	return map[string]any{"kind": "modes", "rel_tol": t.RelTol, "modes": modes}
+}

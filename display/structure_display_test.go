@@ -1,0 +1,102 @@
+package display
+
+import (
+	"encoding/json"
+	"strings"
+	"testing"
+
+	"lsys/lsys"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+func sxTestSystem(t *testing.T) *lsys.System {
+	t.Helper()
+	// A mass-spring-damper, m = 2, c = 1.6, k = 8 (wn = 2, zeta = 0.2 by
+	// Inman, Engineering Vibration, 2014, ch. 1).
+	A := mat.NewDense(2, 2, []float64{0, 1, -4, -0.8})
+	B := mat.NewDense(2, 1, []float64{0, 0.5})
+	C := mat.NewDense(1, 2, []float64{1, 0})
+	s, err := lsys.FromMatrices(A, B, C, nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err = s.WithNames([]string{"position", "velocity"}, []string{"force"}, []string{"position"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s
+}
+
+func TestSystemCard(t *testing.T) {
+	s := sxTestSystem(t)
+	b := Render(s, Options{})
+	txt := b.Data[Text].(string)
+	for _, want := range []string{"continuous-time system: 2 states, 1 input, 1 output; stable", "velocity", "-0.8", "force"} {
+		if !strings.Contains(txt, want) {
+			t.Errorf("text lacks %q:\n%s", want, txt)
+		}
+	}
+	h := b.Data[HTML].(string)
+	if !strings.Contains(h, "lsys-system") || !strings.Contains(h, `\frac{d}{dt}`) {
+		t.Errorf("html card incomplete: %s", h)
+	}
+	if _, err := json.Marshal(b.Data); err != nil {
+		t.Fatal(err)
+	}
+	again := Render(s, Options{})
+	for k, v := range b.Data {
+		x, _ := json.Marshal(v)
+		y, _ := json.Marshal(again.Data[k])
+		if string(x) != string(y) {
+			t.Errorf("%s differs between two renderings", k)
+		}
+	}
+}
+
+func TestSystemCardUnstableSampled(t *testing.T) {
+	A := mat.NewDense(1, 1, []float64{1.5})
+	s, err := lsys.FromMatrices(A, nil, nil, nil, 0.1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	txt := Render(s, Options{}).Data[Text].(string)
+	if !strings.Contains(txt, "sampled system, every 0.1 s") || !strings.Contains(txt, "unstable: 1 pole with |z| >= 1") {
+		t.Errorf("got:\n%s", txt)
+	}
+}
+
+func TestModeTableDisplay(t *testing.T) {
+	s := sxTestSystem(t)
+	mt, err := lsys.Modes(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b := Render(mt, Options{})
+	txt := b.Data[Text].(string)
+	for _, want := range []string{"1 mode", "-0.4 ± 1.96j", "0.2", "2.5", "yes"} {
+		if !strings.Contains(txt, want) {
+			t.Errorf("text lacks %q:\n%s", want, txt)
+		}
+	}
+	if !strings.Contains(b.Data[HTML].(string), "<table") {
+		t.Error("no html table")
+	}
+	if _, err := json.Marshal(b.Data); err != nil {
+		t.Fatal(err)
+	}
+	x, _ := json.Marshal(b.Data)
+	y, _ := json.Marshal(Render(mt, Options{}).Data)
+	if string(x) != string(y) {
+		t.Error("two renderings differ")
+	}
+}
+
+func TestNumberFormat(t *testing.T) {
+	cases := map[float64]string{0: "0", 1: "1", -0.8: "-0.8", 12345.678: "12346", 99999: "99999", 0.0012345: "0.001234", 2.5e-3: "0.0025", 1e-4: "1e-04", 1.5e-7: "1.5e-07", 1234567: "1.235e+06", 0.5: "0.5"}
+	for v, want := range cases {
+		if got := sxNum(v); got != want {
+			t.Errorf("sxNum(%v) = %q, want %q", v, got, want)
+		}
+	}
+}

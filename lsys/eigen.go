@@ -1,0 +1,191 @@
+package lsys
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/cmplx"
+	"sort"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// EigenStructure holds the eigenvalues of a square real matrix with their
+// right and left eigenvectors and condition numbers.
+type EigenStructure struct {
+	// Values are the eigenvalues; a complex-conjugate pair appears as two
+	// consecutive entries, the one with positive imaginary part first.
+	Values []complex128
+	// Right[k] is a right eigenvector of Values[k] (A v = lambda v), of unit
+	// 2-norm with its largest entry real.
+	Right [][]complex128
+	// Left[k] is a left eigenvector of Values[k] (w^H A = lambda w^H), of unit
+	// 2-norm.
+	Left [][]complex128
+	// Cond[k] = 1/|w^H v| is the condition number of Values[k]: a relative
+	// perturbation eps of A moves the eigenvalue by about eps*||A||*Cond[k]
+	// (Wilkinson 1965, The Algebraic Eigenvalue Problem, ch. 2). It is +Inf
+	// when w and v are orthogonal (a defective eigenvalue).
+	Cond []float64
+}
+
+// Eigen computes the eigen-structure of the square matrix a by balancing,
+// Hessenberg reduction and the shifted QR algorithm, with left and right
+// eigenvectors from the Schur form (gonum's Dgeev: Parlett & Reinsch 1969 for
+// the balancing, Francis 1961 for the QR iteration). Entries must be finite.
+func Eigen(a mat.Matrix) (*EigenStructure, error) {
+	if a == nil || isNilDense(a) {
+		return &EigenStructure{}, nil
+	}
+	r, c := a.Dims()
+	if r != c {
+		return nil, &ShapeError{What: "eigenvalues need a square matrix", Got: Shape(a), Other: fmt.Sprintf("%dx%d", r, r)}
+	}
+	if err := CheckFinite("matrix", a); err != nil {
+		return nil, err
+	}
+	var e mat.Eigen
+	if !e.Factorize(a, mat.EigenBoth) {
+		return nil, errors.New("the eigenvalue iteration did not converge; try balancing or rescaling the states")
+	}
+	vals := e.Values(nil)
+	var vr, vl mat.CDense
+	e.VectorsTo(&vr)
+	e.LeftVectorsTo(&vl)
+	es := &EigenStructure{Values: vals}
+	n := r
+	es.Right = make([][]complex128, n)
+	es.Left = make([][]complex128, n)
+	es.Cond = make([]float64, n)
+	for k := 0; k < n; k++ {
+		v := make([]complex128, n)
+		w := make([]complex128, n)
+		for i := 0; i < n; i++ {
+			v[i] = vr.At(i, k)
+			w[i] = vl.At(i, k)
+		}
+		unitNormalize(v)
+		unitNormalize(w)
+		es.Right[k], es.Left[k] = v, w
+		d := cmplx.Abs(cdot(w, v))
+		if d == 0 {
+			es.Cond[k] = math.Inf(1)
+		} else {
+			es.Cond[k] = 1 / d
+		}
+	}
+	return es, nil
+}
+
+// Poles returns the eigenvalues of the system's A (the poles), in the order
+// of the mode table: by natural frequency, then damping; a conjugate pair as
+// two consecutive entries, positive imaginary part first. A static gain has
+// no poles.
+func Poles(s *System) ([]complex128, error) {
+	if s.N() == 0 {
+		return nil, nil
+	}
+	es, err := Eigen(s.A)
+	if err != nil {
+		return nil, err
+	}
+	idx := orderEigenvalues(es.Values, s.Ts)
+	out := make([]complex128, len(idx))
+	for i, k := range idx {
+		out[i] = es.Values[k]
+	}
+	return out, nil
+}
+
+// orderEigenvalues returns the indices of vals sorted by natural frequency,
+// then damping, then imaginary part descending, then real part, so that
+// equal inputs always give the same order.
+func orderEigenvalues(vals []complex128, ts float64) []int {
+	type key struct{ wn, zeta, im, re float64 }
+	keys := make([]key, len(vals))
+	idx := make([]int, len(vals))
+	for i, v := range vals {
+		s := continuousEquivalent(v, ts)
+		wn, zeta := naturalAndDamping(s)
+		keys[i] = key{wn, zeta, imag(v), real(v)}
+		idx[i] = i
+	}
+	sort.SliceStable(idx, func(a, b int) bool {
+		ka, kb := keys[idx[a]], keys[idx[b]]
+		if ka.wn != kb.wn {
+			return ka.wn < kb.wn
+		}
+		if ka.zeta != kb.zeta {
+			return ka.zeta < kb.zeta
+		}
+		// Positive imaginary first so pairs read (+, -).
+		if ka.im != kb.im {
+			return ka.im > kb.im
+		}
+		return ka.re < kb.re
+	})
+	return idx
+}
+
+// continuousEquivalent maps an eigenvalue to the s-plane: itself for
+// continuous time, log(z)/Ts for sampled systems (principal branch, so a
+// negative real z maps to the Nyquist frequency pi/Ts). z = 0 maps to
+// -Inf (a deadbeat mode).
+func continuousEquivalent(v complex128, ts float64) complex128 {
+	if ts <= 0 {
+		return v
+	}
+	if v == 0 {
+		return complex(math.Inf(-1), 0)
+	}
+	return cmplx.Log(v) / complex(ts, 0)
+}
+
+// naturalAndDamping returns |s| and -Re(s)/|s| with the conventions of the
+// mode table: damping 0 at the origin, 1 for a deadbeat mode.
+func naturalAndDamping(s complex128) (wn, zeta float64) {
+	if math.IsInf(real(s), -1) {
+		return math.Inf(1), 1
+	}
+	wn = cmplx.Abs(s)
+	if wn == 0 {
+		return 0, 0
+	}
+	return wn, -real(s) / wn
+}
+
+func cdot(w, v []complex128) complex128 { // w^H v
+	var s complex128
+	for i := range w {
+		s += cmplx.Conj(w[i]) * v[i]
+	}
+	return s
+}
+
+func cnorm(v []complex128) float64 {
+	var scale, ssq float64 = 0, 1
+	for _, x := range v {
+		for _, f := range [2]float64{real(x), imag(x)} {
+			if f != 0 {
+				a := math.Abs(f)
+				if scale < a {
+					ssq = 1 + ssq*(scale/a)*(scale/a)
+					scale = a
+				} else {
+					ssq += (a / scale) * (a / scale)
+				}
+			}
+		}
+	}
+	return scale * math.Sqrt(ssq)
+}
+
+func unitNormalize(v []complex128) {
+	nv := cnorm(v)
+	if nv == 0 {
+		return
+	}
+	for i := range v {
+		v[i] /= complex(nv, 0)
+	}
+}

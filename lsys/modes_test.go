@@ -1,0 +1,196 @@
+package lsys
+
+import (
+	"math"
+	"math/cmplx"
+	"testing"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+func near(a, b, rel float64) bool {
+	if a == b {
+		return true
+	}
+	return math.Abs(a-b) <= rel*math.Max(1, math.Max(math.Abs(a), math.Abs(b)))
+}
+
+// massSpringDamper is m q” + c q' + k q = f with states (q, q').
+func massSpringDamper(t *testing.T, m, c, k float64) *System {
+	t.Helper()
+	A := mat.NewDense(2, 2, []float64{0, 1, -k / m, -c / m})
+	B := mat.NewDense(2, 1, []float64{0, 1 / m})
+	C := mat.NewDense(1, 2, []float64{1, 0})
+	s, err := FromMatrices(A, B, C, nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s
+}
+
+func TestModesMassSpringDamper(t *testing.T) {
+	// Reference: Inman, Engineering Vibration (4th ed., 2014), ch. 1:
+	// wn = sqrt(k/m), zeta = c / (2 sqrt(k m)), damped frequency
+	// wd = wn sqrt(1 - zeta^2), for m = 2, c = 1.6, k = 8: wn = 2, zeta = 0.2.
+	m, c, k := 2.0, 1.6, 8.0
+	s := massSpringDamper(t, m, c, k)
+	mt, err := Modes(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(mt.Modes) != 1 {
+		t.Fatalf("got %d modes, want one oscillatory pair", len(mt.Modes))
+	}
+	md := mt.Modes[0]
+	wn := math.Sqrt(k / m)
+	zeta := c / (2 * math.Sqrt(k*m))
+	wd := wn * math.Sqrt(1-zeta*zeta)
+	if !md.Pair || !near(md.NaturalFreq, wn, 1e-13) || !near(md.Damping, zeta, 1e-13) {
+		t.Errorf("got pair=%v wn=%v zeta=%v, want pair wn=%v zeta=%v", md.Pair, md.NaturalFreq, md.Damping, wn, zeta)
+	}
+	if !near(md.FreqHz, wn/(2*math.Pi), 1e-13) || !near(md.TimeConstant, 1/(zeta*wn), 1e-13) || !near(md.Period, 2*math.Pi/wd, 1e-13) {
+		t.Errorf("Hz %v tau %v period %v", md.FreqHz, md.TimeConstant, md.Period)
+	}
+	if !near(imag(md.Eigenvalue), wd, 1e-13) || !near(real(md.Eigenvalue), -zeta*wn, 1e-13) {
+		t.Errorf("eigenvalue %v, want %v +- %vj", md.Eigenvalue, -zeta*wn, wd)
+	}
+	if !md.Reachable || !md.Observable || md.Multiplicity != 1 {
+		t.Errorf("verdicts %+v", md)
+	}
+	// Shape of the pair: v = (1, lambda)/norm, so shape = (1, lambda)
+	// when |lambda| = wn > 1 ... the largest entry is the rate here.
+	// Fact of the trade: for x = (q, q'), q' = lambda q on the mode.
+	ratio := md.Shape[1] / md.Shape[0]
+	if cmplx.Abs(ratio-md.Eigenvalue) > 1e-12 {
+		t.Errorf("shape ratio %v, want the eigenvalue %v", ratio, md.Eigenvalue)
+	}
+	if md.Shape[1] != 1 {
+		t.Errorf("largest shape entry %v, want 1", md.Shape[1])
+	}
+}
+
+func TestModesOrderAndRealModes(t *testing.T) {
+	// Closed form: a diagonal A has its diagonal as eigenvalues; real modes
+	// have damping 1 (decaying) or -1 (growing) and tau = -1/lambda.
+	A := mat.NewDense(4, 4, []float64{
+		-10, 0, 0, 0,
+		0, 0.5, 0, 0,
+		0, 0, -2, 0,
+		0, 0, 0, 0,
+	})
+	s, err := FromMatrices(A, nil, nil, nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mt, err := Modes(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []struct{ lam, wn, zeta, tau float64 }{
+		{0, 0, 0, math.Inf(1)},
+		{0.5, 0.5, -1, -2},
+		{-2, 2, 1, 0.5},
+		{-10, 10, 1, 0.1},
+	}
+	if len(mt.Modes) != len(want) {
+		t.Fatalf("%d modes", len(mt.Modes))
+	}
+	for i, w := range want {
+		m := mt.Modes[i]
+		if real(m.Eigenvalue) != w.lam || !near(m.NaturalFreq, w.wn, 1e-15) || m.Damping != w.zeta || m.TimeConstant != w.tau {
+			t.Errorf("mode %d: %+v, want %+v", i, m, w)
+		}
+	}
+}
+
+func TestModesSampled(t *testing.T) {
+	// Reference: z = exp(s Ts) (Franklin, Powell & Workman, Digital Control
+	// of Dynamic Systems, 3rd ed. 1998, ch. 4). A = r [[cos th, sin th],
+	// [-sin th, cos th]] has z = r e^{+-j th}, so s = (ln r +- j th)/Ts.
+	ts := 0.01
+	sigma, omega := -3.0, 40.0
+	r, th := math.Exp(sigma*ts), omega*ts
+	A := mat.NewDense(3, 3, []float64{
+		r * math.Cos(th), r * math.Sin(th), 0,
+		-r * math.Sin(th), r * math.Cos(th), 0,
+		0, 0, -0.5,
+	})
+	s, err := FromMatrices(A, nil, nil, nil, ts)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mt, err := Modes(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(mt.Modes) != 2 {
+		t.Fatalf("%d modes", len(mt.Modes))
+	}
+	p := mt.Modes[0]
+	if !p.Pair || !near(real(p.S), sigma, 1e-12) || !near(imag(p.S), omega, 1e-12) {
+		t.Errorf("pair s = %v, want %v+%vj", p.S, sigma, omega)
+	}
+	if !near(p.NaturalFreq, math.Hypot(sigma, omega), 1e-12) || !near(p.Damping, -sigma/math.Hypot(sigma, omega), 1e-12) {
+		t.Errorf("pair wn %v zeta %v", p.NaturalFreq, p.Damping)
+	}
+	// z = -0.5 alternates sign every step: s = (ln 0.5 + j pi)/Ts, the
+	// Nyquist frequency pi/Ts (same reference).
+	q := mt.Modes[1]
+	if q.Pair || !near(imag(q.S), math.Pi/ts, 1e-12) || !near(real(q.S), math.Log(0.5)/ts, 1e-12) {
+		t.Errorf("alternating mode s = %v", q.S)
+	}
+}
+
+func TestModesUnreachableUnseen(t *testing.T) {
+	// Fact of the trade (Hautus 1969): with A diagonal, a zero row of B is
+	// a mode no input reaches, a zero column of C one no output sees.
+	A := mat.NewDense(3, 3, []float64{-1, 0, 0, 0, -2, 0, 0, 0, -3})
+	B := mat.NewDense(3, 1, []float64{1, 0, 1})
+	C := mat.NewDense(1, 3, []float64{1, 1, 0})
+	s, err := FromMatrices(A, B, C, nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mt, err := Modes(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []struct{ reach, see bool }{{true, true}, {false, true}, {true, false}}
+	for i, w := range want {
+		m := mt.Modes[i]
+		if m.Reachable != w.reach || m.Observable != w.see {
+			t.Errorf("mode %v: reachable %v observable %v, want %v %v", m.Eigenvalue, m.Reachable, m.Observable, w.reach, w.see)
+		}
+	}
+}
+
+func TestStability(t *testing.T) {
+	s := massSpringDamper(t, 1, -0.1, 1) // negative damping grows (fact of the trade)
+	st, err := StabilityOf(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if st.Stable || st.Unstable != 2 {
+		t.Errorf("got %+v, want unstable with 2 poles", st)
+	}
+}
+
+func TestEigenConditionNormal(t *testing.T) {
+	// Wilkinson (1965): a normal matrix has every eigenvalue condition 1.
+	A := mat.NewDense(2, 2, []float64{1, 2, 2, -3})
+	es, err := Eigen(A)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k, c := range es.Cond {
+		if !near(c, 1, 1e-14) {
+			t.Errorf("cond[%d] = %v, want 1", k, c)
+		}
+	}
+}
+
+func TestEigenRefusesNonSquare(t *testing.T) {
+	if _, err := Eigen(mat.NewDense(2, 3, nil)); err == nil {
+		t.Fatal("want an error for a 2x3 matrix")
+	}
+}
