@@ -1,0 +1,286 @@
+// Package kernel speaks the Jupyter messaging protocol (version 5.3) over
+// ZeroMQ for the lsys language. It moves bytes and asks two others: package
+// lang evaluates cells and package display renders their values. The
+// protocol is served by a small mux of handlers per message type, in the
+// manner of net/http.
+package kernel
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"log"
+	"os"
+	"sync"
+
+	"github.com/go-zeromq/zmq4"
+
+	"lsys/kernel/lang"
+)
+
+// Config configures a kernel.
+type Config struct {
+	Conn    *Connection
+	Version string      // implementation version shown in kernel_info
+	HelpURL string      // where the language reference lives, for help_links
+	Dir     string      // working folder for load(); "" means the current one
+	Log     *log.Logger // nil logs to stderr
+}
+
+// Kernel is one running lsys kernel.
+type Kernel struct {
+	cfg     Config
+	signer  *Signer
+	session string // this kernel's session id for message headers
+	log     *log.Logger
+
+	shell, control, stdin, iopub, hb zmq4.Socket
+	iopubMu                          sync.Mutex
+
+	shellMux, controlMux *Mux
+
+	lang      *lang.Session
+	execCount int
+	history   []historyEntry
+
+	runMu  sync.Mutex
+	cancel context.CancelFunc // cancels the running cell, if any
+
+	stop     context.CancelFunc
+	stopOnce sync.Once
+	restart  bool
+}
+
+// New prepares a kernel; Serve binds its sockets and runs it.
+func New(cfg Config) (*Kernel, error) {
+	if cfg.Conn == nil {
+		return nil, errors.New("kernel: no connection information")
+	}
+	s, err := NewSigner(cfg.Conn.SignatureScheme, cfg.Conn.Key)
+	if err != nil {
+		return nil, err
+	}
+	if cfg.Log == nil {
+		cfg.Log = log.New(os.Stderr, "lsys: ", log.LstdFlags)
+	}
+	if cfg.Dir == "" {
+		cfg.Dir, _ = os.Getwd()
+	}
+	k := &Kernel{cfg: cfg, signer: s, session: newID(), log: cfg.Log, lang: lang.NewSession(cfg.Dir)}
+	k.shellMux = NewMux()
+	k.controlMux = NewMux()
+	k.routes()
+	return k, nil
+}
+
+// Serve binds the five sockets on the connection's address and serves until
+// a shutdown request arrives or ctx ends. It reports whether a restart was
+// asked for.
+func (k *Kernel) Serve(ctx context.Context) (restart bool, err error) {
+	ctx, k.stop = context.WithCancel(ctx)
+	defer k.stop()
+	c := k.cfg.Conn
+	k.shell = zmq4.NewRouter(ctx)
+	k.control = zmq4.NewRouter(ctx)
+	k.stdin = zmq4.NewRouter(ctx)
+	k.iopub = zmq4.NewPub(ctx)
+	k.hb = zmq4.NewRep(ctx)
+	socks := []struct {
+		s    zmq4.Socket
+		port int
+		name string
+	}{{k.shell, c.ShellPort, "shell"}, {k.control, c.ControlPort, "control"}, {k.stdin, c.StdinPort, "stdin"},
+		{k.iopub, c.IOPubPort, "iopub"}, {k.hb, c.HBPort, "heartbeat"}}
+	for _, s := range socks {
+		if err := s.s.Listen(c.Endpoint(s.port)); err != nil {
+			k.closeAll()
+			return false, fmt.Errorf("binding %s socket on %s: %w", s.name, c.Endpoint(s.port), err)
+		}
+	}
+	defer k.closeAll()
+
+	var wg sync.WaitGroup
+	wg.Add(3)
+	go func() { defer wg.Done(); k.heartbeat(ctx) }()
+	go func() { defer wg.Done(); k.serveChannel(ctx, k.control, "control", k.controlMux, nil) }()
+	shellQueue := make(chan *Message, 256)
+	go func() { defer wg.Done(); k.serveChannel(ctx, k.shell, "shell", nil, shellQueue) }()
+	k.publishStatus(nil, "starting")
+	k.dispatchShell(ctx, shellQueue)
+	k.closeAll() // unblocks the receivers
+	wg.Wait()
+	return k.restart, nil
+}
+
+func (k *Kernel) closeAll() {
+	for _, s := range []zmq4.Socket{k.shell, k.control, k.stdin, k.iopub, k.hb} {
+		if s != nil {
+			s.Close()
+		}
+	}
+}
+
+// Shutdown ends Serve after the current request.
+func (k *Kernel) Shutdown(restart bool) {
+	k.stopOnce.Do(func() {
+		k.restart = restart
+		if k.stop != nil {
+			k.stop()
+		}
+	})
+}
+
+// Interrupt cancels the running cell, if any. Safe from any goroutine
+// (the SIGINT handler calls it).
+func (k *Kernel) Interrupt() {
+	k.runMu.Lock()
+	defer k.runMu.Unlock()
+	if k.cancel != nil {
+		k.cancel()
+	}
+}
+
+func (k *Kernel) heartbeat(ctx context.Context) {
+	for {
+		msg, err := k.hb.Recv()
+		if err != nil {
+			if ctx.Err() == nil && !errors.Is(err, io.EOF) {
+				k.log.Printf("heartbeat: %v", err)
+			}
+			if ctx.Err() != nil {
+				return
+			}
+			continue
+		}
+		if err := k.hb.Send(msg); err != nil && ctx.Err() == nil {
+			k.log.Printf("heartbeat echo: %v", err)
+		}
+	}
+}
+
+// serveChannel reads messages from a ROUTER socket. Control messages are
+// handled right here (so interrupts reach a busy kernel); shell messages are
+// queued for the single shell dispatcher, which runs cells one at a time.
+func (k *Kernel) serveChannel(ctx context.Context, sock zmq4.Socket, name string, mux *Mux, queue chan<- *Message) {
+	for {
+		raw, err := sock.Recv()
+		if err != nil {
+			if ctx.Err() != nil {
+				if queue != nil {
+					close(queue)
+				}
+				return
+			}
+			k.log.Printf("%s: receive: %v", name, err)
+			continue
+		}
+		msg, err := Decode(raw.Frames, k.signer)
+		if err != nil {
+			// A message that fails verification is never acted on.
+			k.log.Printf("%s: dropped a message: %v", name, err)
+			continue
+		}
+		if queue != nil {
+			select {
+			case queue <- msg:
+			case <-ctx.Done():
+				close(queue)
+				return
+			}
+			continue
+		}
+		k.handle(&Request{k: k, Msg: msg, sock: sock, channel: name}, mux)
+	}
+}
+
+func (k *Kernel) dispatchShell(ctx context.Context, queue <-chan *Message) {
+	for {
+		select {
+		case <-ctx.Done():
+			return
+		case msg, ok := <-queue:
+			if !ok {
+				return
+			}
+			k.handle(&Request{k: k, Msg: msg, sock: k.shell, channel: "shell", queue: queue}, k.shellMux)
+		}
+	}
+}
+
+// handle wraps every request in busy/idle status messages and keeps a
+// handler's panic from taking the kernel down.
+func (k *Kernel) handle(r *Request, mux *Mux) {
+	h := mux.Handler(r.Msg.Header.MsgType)
+	if h == nil {
+		k.log.Printf("%s: no handler for %q; ignored", r.channel, r.Msg.Header.MsgType)
+		return
+	}
+	k.publishStatus(r.Msg, "busy")
+	func() {
+		defer func() {
+			if p := recover(); p != nil {
+				k.log.Printf("%s: %s handler panicked: %v", r.channel, r.Msg.Header.MsgType, p)
+			}
+		}()
+		h.ServeMessage(r)
+	}()
+	k.publishStatus(r.Msg, "idle")
+}
+
+func (k *Kernel) publishStatus(parent *Message, state string) {
+	k.publish(parent, "status", map[string]any{"execution_state": state}, "")
+}
+
+// publish sends a message on iopub with the given parent.
+func (k *Kernel) publish(parent *Message, msgType string, content any, topic string) {
+	m, err := k.newMessage(parent, msgType, content)
+	if err != nil {
+		k.log.Printf("iopub %s: %v", msgType, err)
+		return
+	}
+	if topic == "" {
+		topic = "kernel." + k.session + "." + msgType
+	}
+	m.Identities = [][]byte{[]byte(topic)}
+	k.send(k.iopub, &k.iopubMu, m)
+}
+
+func (k *Kernel) newMessage(parent *Message, msgType string, content any) (*Message, error) {
+	body, err := json.Marshal(content)
+	if err != nil {
+		return nil, err
+	}
+	m := &Message{Header: Header{MsgID: newID(), Session: k.session, Username: "lsys", Date: timestamp(),
+		MsgType: msgType, Version: ProtocolVersion}, Content: body}
+	if parent != nil {
+		m.ParentRaw = parent.headerRaw()
+	}
+	return m, nil
+}
+
+func (k *Kernel) send(sock zmq4.Socket, mu *sync.Mutex, m *Message) {
+	frames, err := Encode(m, k.signer)
+	if err != nil {
+		k.log.Printf("encode %s: %v", m.Header.MsgType, err)
+		return
+	}
+	if mu != nil {
+		mu.Lock()
+		defer mu.Unlock()
+	}
+	if err := sock.Send(zmq4.NewMsgFrom(frames...)); err != nil {
+		k.log.Printf("send %s: %v", m.Header.MsgType, err)
+	}
+}
+
+// headerRaw returns the message's own header, to be a reply's parent header,
+// exactly as it arrived (fields we do not know are kept).
+func (m *Message) headerRaw() json.RawMessage {
+	if len(m.HeaderRaw) > 0 {
+		return m.HeaderRaw
+	}
+	b, _ := json.Marshal(m.Header)
+	return b
+}

@@ -1,0 +1,125 @@
+// Command lsys is a Jupyter kernel for linear dynamic systems.
+//
+//	lsys kernel <connection file>     serve a Jupyter front end
+//	lsys kernelspec [--user|--prefix P|--sys-prefix] [--name N]
+//	                                  register the kernel with Jupyter
+//	lsys run <notebook.ipynb|script.lsys> ...
+//	                                  run headless into a report
+package main
+
+import (
+	"context"
+	"flag"
+	"fmt"
+	"os"
+	"os/signal"
+	"path/filepath"
+	"syscall"
+
+	"lsys/kernel"
+)
+
+// version is set by ./install through -ldflags "-X main.version=...".
+var version = "dev"
+
+// helpURL is set by ./install to the installed language reference.
+var helpURL = ""
+
+func main() {
+	if len(os.Args) < 2 {
+		usage()
+		os.Exit(2)
+	}
+	var err error
+	switch os.Args[1] {
+	case "kernel":
+		err = runKernel(os.Args[2:])
+	case "kernelspec":
+		err = runKernelspec(os.Args[2:])
+	case "version", "--version":
+		fmt.Println("lsys", version)
+	case "help", "-h", "--help":
+		usage()
+	default:
+		fmt.Fprintf(os.Stderr, "lsys: unknown command %q\n", os.Args[1])
+		usage()
+		os.Exit(2)
+	}
+	if err != nil {
+		fmt.Fprintln(os.Stderr, "lsys:", err)
+		os.Exit(1)
+	}
+}
+
+func usage() {
+	fmt.Fprint(os.Stderr, `usage:
+  lsys kernel <connection file>   serve a Jupyter front end (Jupyter starts this)
+  lsys kernelspec [--user | --prefix DIR | --sys-prefix] [--name NAME]
+                                  register the kernel with Jupyter
+  lsys version                    print the version
+`)
+}
+
+func runKernel(args []string) error {
+	if len(args) != 1 {
+		return fmt.Errorf("kernel takes one argument, the connection file Jupyter gives")
+	}
+	conn, err := kernel.ReadConnection(args[0])
+	if err != nil {
+		return err
+	}
+	k, err := kernel.New(kernel.Config{Conn: conn, Version: version, HelpURL: helpURL})
+	if err != nil {
+		return err
+	}
+	// SIGINT interrupts the running cell (Jupyter's signal interrupt mode);
+	// SIGTERM shuts down cleanly.
+	sigs := make(chan os.Signal, 4)
+	signal.Notify(sigs, os.Interrupt, syscall.SIGTERM)
+	go func() {
+		for s := range sigs {
+			if s == os.Interrupt {
+				k.Interrupt()
+			} else {
+				k.Shutdown(false)
+			}
+		}
+	}()
+	_, err = k.Serve(context.Background())
+	return err
+}
+
+func runKernelspec(args []string) error {
+	fs := flag.NewFlagSet("kernelspec", flag.ContinueOnError)
+	user := fs.Bool("user", false, "install for this user (the default)")
+	prefix := fs.String("prefix", "", "install under `DIR`/share/jupyter/kernels")
+	sysPrefix := fs.Bool("sys-prefix", false, "install under the sys.prefix of the Python that runs Jupyter")
+	name := fs.String("name", "lsys", "kernel `NAME` as Jupyter lists it")
+	if err := fs.Parse(args); err != nil {
+		return err
+	}
+	_ = user
+	if *sysPrefix {
+		p, err := kernel.SysPrefix()
+		if err != nil {
+			return err
+		}
+		*prefix = p
+	}
+	exe, err := os.Executable()
+	if err != nil {
+		return err
+	}
+	if exe, err = filepath.EvalSymlinks(exe); err != nil {
+		return err
+	}
+	dir, err := kernel.KernelspecDir(*prefix, *name)
+	if err != nil {
+		return err
+	}
+	if err := kernel.WriteKernelspec(dir, kernel.SpecFor(exe)); err != nil {
+		return err
+	}
+	fmt.Println("lsys kernelspec written to", dir)
+	return nil
+}
