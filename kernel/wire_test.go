@@ -1,0 +1,291 @@
+package kernel_test
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"fmt"
+	"net"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"sync"
+	"testing"
+	"time"
+
+	"github.com/go-zeromq/zmq4"
+
+	"lsys/kernel"
+)
+
+// wireClient speaks the wire protocol to a kernel subprocess directly, so the
+// tests see exactly what goes over the sockets.
+type wireClient struct {
+	t                     *testing.T
+	ctx                   context.Context
+	cancel                context.CancelFunc
+	shell, control, iopub zmq4.Socket
+	hb                    zmq4.Socket
+	signer                *kernel.Signer
+	session               string
+	cmd                   *exec.Cmd
+	stderr                *syncBuffer
+	exited                chan error
+}
+
+type syncBuffer struct {
+	mu sync.Mutex
+	b  bytes.Buffer
+}
+
+func (s *syncBuffer) Write(p []byte) (int, error) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.b.Write(p)
+}
+
+func (s *syncBuffer) String() string {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.b.String()
+}
+
+func freePorts(t *testing.T, n int) []int {
+	var ports []int
+	var ls []net.Listener
+	for i := 0; i < n; i++ {
+		l, err := net.Listen("tcp", "127.0.0.1:0")
+		if err != nil {
+			t.Fatal(err)
+		}
+		ls = append(ls, l)
+		ports = append(ports, l.Addr().(*net.TCPAddr).Port)
+	}
+	for _, l := range ls {
+		l.Close()
+	}
+	return ports
+}
+
+func startWire(t *testing.T) *wireClient {
+	t.Helper()
+	bin, _ := buildKernel(t)
+	p := freePorts(t, 5)
+	key := "a-test-key-that-is-not-secret"
+	conn := kernel.Connection{Transport: "tcp", IP: "127.0.0.1", ShellPort: p[0], ControlPort: p[1],
+		StdinPort: p[2], IOPubPort: p[3], HBPort: p[4], SignatureScheme: "hmac-sha256", Key: key}
+	b, _ := json.Marshal(conn)
+	cf := filepath.Join(t.TempDir(), "connection.json")
+	if err := os.WriteFile(cf, b, 0o600); err != nil {
+		t.Fatal(err)
+	}
+	c := &wireClient{t: t, session: "wire-test", stderr: &syncBuffer{}, exited: make(chan error, 1)}
+	c.signer, _ = kernel.NewSigner("hmac-sha256", key)
+	c.cmd = exec.Command(bin, "kernel", cf)
+	c.cmd.Stderr = c.stderr
+	if err := c.cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	go func() { c.exited <- c.cmd.Wait() }()
+	c.ctx, c.cancel = context.WithCancel(context.Background())
+	c.shell = zmq4.NewDealer(c.ctx, zmq4.WithID(zmq4.SocketIdentity("wire-shell")))
+	c.control = zmq4.NewDealer(c.ctx, zmq4.WithID(zmq4.SocketIdentity("wire-control")))
+	c.iopub = zmq4.NewSub(c.ctx)
+	c.hb = zmq4.NewReq(c.ctx)
+	dial := func(s zmq4.Socket, port int) {
+		deadline := time.Now().Add(10 * time.Second)
+		for {
+			err := s.Dial(conn.Endpoint(port))
+			if err == nil {
+				return
+			}
+			if time.Now().After(deadline) {
+				t.Fatalf("dial %d: %v\nkernel stderr:\n%s", port, err, c.stderr)
+			}
+			time.Sleep(50 * time.Millisecond)
+		}
+	}
+	dial(c.shell, p[0])
+	dial(c.control, p[1])
+	dial(c.iopub, p[3])
+	dial(c.hb, p[4])
+	if err := c.iopub.SetOption(zmq4.OptionSubscribe, ""); err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() {
+		if c.cmd.ProcessState == nil {
+			c.cmd.Process.Kill()
+		}
+		c.cancel()
+		for _, s := range []zmq4.Socket{c.shell, c.control, c.iopub, c.hb} {
+			s.Close()
+		}
+	})
+	// The kernel is up once kernel_info is answered.
+	c.request(c.shell, "kernel_info_request", map[string]any{}, "")
+	c.recvReply(c.shell, "kernel_info_reply", 10*time.Second)
+	return c
+}
+
+// request sends a message; sig overrides the signature ("" signs properly,
+// "-" sends an empty signature).
+func (c *wireClient) request(sock zmq4.Socket, msgType string, content any, sig string) string {
+	body, _ := json.Marshal(content)
+	id := fmt.Sprintf("%s-%d", msgType, time.Now().UnixNano())
+	m := &kernel.Message{Header: kernel.Header{MsgID: id, Session: c.session, Username: "test",
+		Date: time.Now().UTC().Format(time.RFC3339), MsgType: msgType, Version: kernel.ProtocolVersion}, Content: body}
+	frames, err := kernel.Encode(m, c.signer)
+	if err != nil {
+		c.t.Fatal(err)
+	}
+	switch sig {
+	case "":
+	case "-":
+		frames[1] = []byte{}
+	default:
+		frames[1] = []byte(sig)
+	}
+	if err := sock.Send(zmq4.NewMsgFrom(frames...)); err != nil {
+		c.t.Fatal(err)
+	}
+	return id
+}
+
+func (c *wireClient) recv(sock zmq4.Socket, timeout time.Duration) (*kernel.Message, error) {
+	type res struct {
+		m   zmq4.Msg
+		err error
+	}
+	ch := make(chan res, 1)
+	go func() { m, err := sock.Recv(); ch <- res{m, err} }()
+	select {
+	case r := <-ch:
+		if r.err != nil {
+			return nil, r.err
+		}
+		return kernel.Decode(r.m.Frames, c.signer)
+	case <-time.After(timeout):
+		return nil, fmt.Errorf("no message within %v", timeout)
+	}
+}
+
+// recvReply waits for a reply of msgType, skipping others.
+func (c *wireClient) recvReply(sock zmq4.Socket, msgType string, timeout time.Duration) *kernel.Message {
+	c.t.Helper()
+	deadline := time.Now().Add(timeout)
+	for {
+		m, err := c.recv(sock, time.Until(deadline))
+		if err != nil {
+			c.t.Fatalf("waiting for %s: %v\nkernel stderr:\n%s", msgType, err, c.stderr)
+		}
+		if m.Header.MsgType == msgType {
+			return m
+		}
+	}
+}
+
+func (c *wireClient) execute(code string) map[string]any {
+	c.t.Helper()
+	c.request(c.shell, "execute_request", map[string]any{"code": code, "silent": false, "store_history": true,
+		"user_expressions": map[string]any{}, "allow_stdin": false, "stop_on_error": true}, "")
+	m := c.recvReply(c.shell, "execute_reply", 30*time.Second)
+	var content map[string]any
+	json.Unmarshal(m.Content, &content)
+	return content
+}
+
+func TestForgedAndUnsignedAreNotExecuted(t *testing.T) {
+	c := startWire(t)
+	for _, sig := range []string{strings.Repeat("ab", 32), "-"} {
+		c.request(c.shell, "execute_request", map[string]any{"code": "marker = 1", "silent": false}, sig)
+	}
+	// The kernel still answers, and the marker was never bound.
+	r := c.execute("marker + 1")
+	if r["status"] != "error" {
+		t.Fatalf("a forged or unsigned execute_request was executed: %v", r)
+	}
+	if !strings.Contains(c.stderr.String(), "dropped") {
+		t.Errorf("dropped messages were not logged; stderr:\n%s", c.stderr)
+	}
+	if r := c.execute("ok = 2"); r["status"] != "ok" {
+		t.Fatalf("kernel did not answer a properly signed request: %v", r)
+	}
+}
+
+func TestHeartbeatWhileCellRuns(t *testing.T) {
+	c := startWire(t)
+	c.request(c.shell, "execute_request", map[string]any{"code": "pause(5)", "silent": false}, "")
+	time.Sleep(300 * time.Millisecond)
+	start := time.Now()
+	for i := 0; time.Since(start) < 4*time.Second; i++ {
+		ping := []byte(fmt.Sprintf("ping %d", i))
+		if err := c.hb.Send(zmq4.NewMsg(ping)); err != nil {
+			t.Fatal(err)
+		}
+		type res struct {
+			m   zmq4.Msg
+			err error
+		}
+		ch := make(chan res, 1)
+		go func() { m, err := c.hb.Recv(); ch <- res{m, err} }()
+		select {
+		case r := <-ch:
+			if r.err != nil || !bytes.Equal(r.m.Bytes(), ping) {
+				t.Fatalf("heartbeat echo %q, %v; want %q", r.m.Bytes(), r.err, ping)
+			}
+		case <-time.After(time.Second):
+			t.Fatalf("heartbeat not echoed within 1 s while a cell runs")
+		}
+		time.Sleep(250 * time.Millisecond)
+	}
+	m := c.recvReply(c.shell, "execute_reply", 10*time.Second)
+	if !strings.Contains(string(m.Content), `"ok"`) {
+		t.Fatalf("pause(5) did not finish ok: %s", m.Content)
+	}
+}
+
+func TestInterruptKeepsBindings(t *testing.T) {
+	c := startWire(t)
+	if r := c.execute("kept = 41"); r["status"] != "ok" {
+		t.Fatalf("binding failed: %v", r)
+	}
+	c.request(c.shell, "execute_request", map[string]any{"code": "pause(60)", "silent": false}, "")
+	time.Sleep(500 * time.Millisecond)
+	sent := time.Now()
+	c.request(c.control, "interrupt_request", map[string]any{}, "")
+	c.recvReply(c.control, "interrupt_reply", 5*time.Second)
+	m := c.recvReply(c.shell, "execute_reply", 5*time.Second)
+	if d := time.Since(sent); d > time.Second {
+		t.Fatalf("interrupted cell ended %v after the interrupt; want within 1 s", d)
+	}
+	if !strings.Contains(string(m.Content), `"error"`) {
+		t.Fatalf("interrupted cell reply: %s", m.Content)
+	}
+	r := c.execute("kept + 1")
+	if r["status"] != "ok" {
+		t.Fatalf("after the interrupt: %v", r)
+	}
+}
+
+func TestShutdownWithRestart(t *testing.T) {
+	c := startWire(t)
+	c.request(c.control, "shutdown_request", map[string]any{"restart": true}, "")
+	m := c.recvReply(c.control, "shutdown_reply", 5*time.Second)
+	var content struct {
+		Status  string `json:"status"`
+		Restart bool   `json:"restart"`
+	}
+	json.Unmarshal(m.Content, &content)
+	if content.Status != "ok" || !content.Restart {
+		t.Fatalf("shutdown_reply %s", m.Content)
+	}
+	select {
+	case err := <-c.exited:
+		if err != nil {
+			t.Fatalf("kernel exited with %v\n%s", err, c.stderr)
+		}
+	case <-time.After(5 * time.Second):
+		t.Fatal("kernel did not exit within 5 s of shutdown_request")
+	}
+}
