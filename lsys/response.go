@@ -1,0 +1,605 @@
+package lsys
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"math/cmplx"
+	"sort"
+	"strconv"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// Signal is an input signal u(t) for Simulate. Build one with Sine, Ramp,
+// StepSignal, TableSignal or FuncSignal. A signal with one channel feeds
+// every input of the system the same value; a table may have one column per
+// input.
+type Signal struct {
+	Kind  string  // "step", "sine", "ramp", "table", "function"
+	Amp   float64 // step height, sine amplitude, ramp slope (per second)
+	Freq  float64 // sine: rad/s
+	Phase float64 // sine: rad
+	Delay float64 // the signal is zero before this time (s)
+
+	// Table: times (increasing) and values (one row per time, one column
+	// per channel). Between rows the value is interpolated linearly (Hold
+	// "linear", the default) or held (Hold "zoh"); after the last row the
+	// last value is held.
+	T    []float64
+	U    [][]float64
+	Hold string
+
+	Func func(t float64) (float64, error) // "function": a signal built in a cell
+	Name string                           // for displays, e.g. "sine(2)"
+}
+
+// Sine returns amp*sin(w t) with w in rad/s.
+func Sine(w, amp float64) Signal {
+	return Signal{Kind: "sine", Freq: w, Amp: amp, Name: "sine(" + strconv.FormatFloat(w, 'g', 6, 64) + ")"}
+}
+
+// Ramp returns slope*t.
+func Ramp(slope float64) Signal { return Signal{Kind: "ramp", Amp: slope, Name: "ramp"} }
+
+// StepSignal returns a step of the given height at t = 0.
+func StepSignal(height float64) Signal { return Signal{Kind: "step", Amp: height, Name: "step"} }
+
+// TableSignal returns a tabulated signal (times t, one row of values per time).
+func TableSignal(t []float64, u [][]float64, name string) (Signal, error) {
+	if len(t) == 0 || len(t) != len(u) {
+		return Signal{}, fmt.Errorf("table: %d times but %d rows of values; give one row per time", len(t), len(u))
+	}
+	w := len(u[0])
+	for i := range t {
+		if math.IsNaN(t[i]) || math.IsInf(t[i], 0) {
+			return Signal{}, fmt.Errorf("table: time in row %d is %v; every entry must be finite", i+1, t[i])
+		}
+		if i > 0 && !(t[i] > t[i-1]) {
+			return Signal{}, fmt.Errorf("table: times must increase, but row %d has %g after %g", i+1, t[i], t[i-1])
+		}
+		if len(u[i]) != w || w == 0 {
+			return Signal{}, fmt.Errorf("table: row %d has %d values but row 1 has %d", i+1, len(u[i]), w)
+		}
+		for j, v := range u[i] {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return Signal{}, fmt.Errorf("table: row %d, column %d is %v; every entry must be finite", i+1, j+1, v)
+			}
+		}
+	}
+	if name == "" {
+		name = "table"
+	}
+	return Signal{Kind: "table", T: t, U: u, Name: name}, nil
+}
+
+// FuncSignal wraps a function of time.
+func FuncSignal(name string, f func(t float64) (float64, error)) Signal {
+	return Signal{Kind: "function", Func: f, Name: name}
+}
+
+// Channels is the number of channels the signal carries (1 except tables).
+func (s Signal) Channels() int {
+	if s.Kind == "table" && len(s.U) > 0 {
+		return len(s.U[0])
+	}
+	return 1
+}
+
+// At returns channel ch of the signal at time t.
+func (s Signal) At(t float64, ch int) (float64, error) {
+	if t < s.Delay {
+		return 0, nil
+	}
+	tt := t - s.Delay
+	switch s.Kind {
+	case "step":
+		return s.Amp, nil
+	case "sine":
+		return s.Amp * math.Sin(s.Freq*tt+s.Phase), nil
+	case "ramp":
+		return s.Amp * tt, nil
+	case "table":
+		if tt <= s.T[0] {
+			return s.U[0][ch], nil
+		}
+		k := sort.SearchFloat64s(s.T, tt)
+		if k >= len(s.T) {
+			return s.U[len(s.T)-1][ch], nil
+		}
+		if s.T[k] == tt {
+			return s.U[k][ch], nil
+		}
+		if s.Hold == "zoh" {
+			return s.U[k-1][ch], nil
+		}
+		f := (tt - s.T[k-1]) / (s.T[k] - s.T[k-1])
+		return s.U[k-1][ch]*(1-f) + s.U[k][ch]*f, nil
+	case "function":
+		if s.Func == nil {
+			return 0, errors.New("the signal has no function")
+		}
+		v, err := s.Func(tt)
+		if err != nil {
+			return 0, err
+		}
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return 0, fmt.Errorf("the input signal is %v at t = %g; it must be finite", v, t)
+		}
+		return v, nil
+	}
+	return 0, fmt.Errorf("unknown signal kind %q", s.Kind)
+}
+
+// Response is a time response: Y[output][channel][k] at times T[k]. For a
+// step or impulse response each input is one channel (one panel per
+// input/output pair); an initial-state or input response has one channel.
+type Response struct {
+	System   *System
+	Kind     string    // "step", "impulse", "initial", "input"
+	T        []float64 // s
+	Channels []string  // channel names (inputs, or "initial", or the signal name)
+	Outputs  []string
+	Y        [][][]float64
+	U        [][]float64 // input response: U[input][k], the input applied
+	Rule     string      // how the horizon and step were chosen
+	Sampled  bool        // sampled system: values hold between samples
+}
+
+// ResponseOptions set the horizon and step. Zero values choose them from
+// the modes (see AutoHorizon).
+type ResponseOptions struct {
+	Until float64 // horizon in s
+	Step  float64 // step in s (continuous systems; sampled ones use Ts)
+}
+
+// AutoHorizon chooses the horizon and step of a time response from the
+// eigenvalues of A (for sampled systems through s = log(z)/Ts):
+//
+//   - horizon: the slowest mode settles. Each stable mode with decay rate
+//     sigma = -Re(s) asks for 6/sigma (its envelope falls to e^-6 = 0.25 %,
+//     inside the 2 % band with room to show the steady state); an undamped
+//     oscillation of frequency w asks for 5 periods, 10 pi/w; an unstable
+//     mode caps the horizon at 5/Re(s) (growth by e^5 ~ 150) so the
+//     plot stays readable. Poles at the origin ask nothing. Without any
+//     request the horizon is 10 s (sampled: 50 periods). The horizon is
+//     rounded up to 1, 2 or 5 times a power of ten.
+//   - step: the fastest mode is resolved with 20 samples per period
+//     2 pi/|s|, with at least 200 and at most 10,000 steps over the
+//     horizon; when the cap binds the rule says which modes are not
+//     resolved. Sampled systems step by Ts.
+func AutoHorizon(g *System) (until, step float64, rule string) {
+	poles := continuousPoles(g)
+	var horizon, cap float64
+	var fastest float64
+	for _, s := range poles {
+		re, w := real(s), cmplx.Abs(s)
+		if w == 0 || math.IsInf(w, 0) {
+			continue
+		}
+		fastest = math.Max(fastest, w)
+		tiny := 1e-9 * w
+		switch {
+		case re < -tiny:
+			horizon = math.Max(horizon, 6/(-re))
+		case re > tiny:
+			c := 5 / re
+			if cap == 0 || c < cap {
+				cap = c
+			}
+		default:
+			horizon = math.Max(horizon, 10*math.Pi/math.Abs(imag(s)))
+		}
+	}
+	rule = "horizon: 6 time constants of the slowest stable mode (5 periods of an undamped one)"
+	if horizon == 0 {
+		horizon = 10
+		if g.Sampled() {
+			horizon = 50 * g.Ts
+		}
+		rule = "horizon: no settling mode, default"
+	}
+	if cap > 0 && (horizon > cap || horizon == 0) {
+		horizon = cap
+		rule = "horizon: capped at 5 time constants of the fastest growing mode"
+	}
+	horizon = niceCeil(horizon)
+	if g.Sampled() {
+		k := math.Ceil(horizon/g.Ts - 1e-9)
+		return k * g.Ts, g.Ts, rule + "; step: the sample period"
+	}
+	steps := 200.0
+	if fastest > 0 {
+		steps = math.Max(steps, math.Ceil(horizon/(2*math.Pi/fastest/20)))
+	}
+	if steps > 10000 {
+		steps = 10000
+		rule += fmt.Sprintf("; step: 10,000 steps; modes faster than %.3g rad/s are not resolved", 2*math.Pi/(horizon/steps)/20)
+	} else {
+		rule += "; step: 20 samples per period of the fastest mode"
+	}
+	return horizon, horizon / steps, rule
+}
+
+func niceCeil(x float64) float64 {
+	if !(x > 0) || math.IsInf(x, 0) {
+		return 10
+	}
+	e := math.Floor(math.Log10(x))
+	b := math.Pow(10, e)
+	for _, f := range []float64{1, 2, 5, 10} {
+		if f*b >= x*(1-1e-12) {
+			return f * b
+		}
+	}
+	return 10 * b
+}
+
+// continuousPoles returns the eigenvalues of A, mapped to the s-plane
+// through s = log(z)/Ts for sampled systems (z = 0 is skipped: it settles
+// in finite time).
+func continuousPoles(g *System) []complex128 {
+	if g.N() == 0 {
+		return nil
+	}
+	var ev mat.Eigen
+	if !ev.Factorize(g.A, mat.EigenNone) {
+		return nil
+	}
+	vals := ev.Values(nil)
+	if !g.Sampled() {
+		return vals
+	}
+	var out []complex128
+	for _, z := range vals {
+		if z == 0 {
+			continue
+		}
+		out = append(out, cmplx.Log(z)/complex(g.Ts, 0))
+	}
+	return out
+}
+
+func (o ResponseOptions) grid(g *System) ([]float64, float64, string, error) {
+	until, step, rule := AutoHorizon(g)
+	if o.Until != 0 {
+		if !(o.Until > 0) || math.IsInf(o.Until, 0) {
+			return nil, 0, "", fmt.Errorf("the horizon must be a finite number > 0 s, got %v", o.Until)
+		}
+		rule = "horizon given"
+		if g.Sampled() {
+			until = math.Ceil(o.Until/g.Ts-1e-9) * g.Ts
+		} else {
+			until = o.Until
+			step = until / math.Max(200, math.Min(10000, math.Ceil(until/step)))
+			rule += "; step from the fastest mode (20 samples per period, 200 to 10,000 steps)"
+		}
+	}
+	if o.Step != 0 {
+		if g.Sampled() {
+			return nil, 0, "", fmt.Errorf("a sampled system steps by its sample time %g s; leave the step out", g.Ts)
+		}
+		if !(o.Step > 0) || math.IsInf(o.Step, 0) {
+			return nil, 0, "", fmt.Errorf("the step must be a finite number > 0 s, got %v", o.Step)
+		}
+		if until/o.Step > 1e6 {
+			return nil, 0, "", fmt.Errorf("horizon %g s with step %g s gives more than 1,000,000 samples; use a larger step", until, o.Step)
+		}
+		step = o.Step
+		rule += "; step given"
+	}
+	N := int(math.Round(until / step))
+	if N < 1 {
+		N = 1
+	}
+	t := make([]float64, N+1)
+	for k := range t {
+		t[k] = float64(k) * step
+	}
+	return t, step, rule, nil
+}
+
+// Step returns the step response of every output to a unit step on each
+// input in turn, starting from rest. For continuous systems it is exact at
+// the sample times (zero-order hold of a constant input through the block
+// exponential, Van Loan 1978).
+func Step(ctx context.Context, g *System, opt ResponseOptions) (*Response, error) {
+	return freeOrForced(ctx, g, "step", nil, opt)
+}
+
+// Impulse returns the response to a unit impulse on each input in turn:
+// the free response from x(0+) = B (continuous) or the unit-pulse response
+// (sampled). For continuous systems the impulse D*delta(t) of a direct
+// feedthrough is not drawn (it is not a function).
+func Impulse(ctx context.Context, g *System, opt ResponseOptions) (*Response, error) {
+	return freeOrForced(ctx, g, "impulse", nil, opt)
+}
+
+// Initial returns the free response from the initial state x0.
+func Initial(ctx context.Context, g *System, x0 []float64, opt ResponseOptions) (*Response, error) {
+	if len(x0) != g.N() {
+		return nil, fmt.Errorf("response: the initial state has %d entries but the system has %d states (%v)", len(x0), g.N(), g.StateNames)
+	}
+	for i, v := range x0 {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, fmt.Errorf("response: initial state entry %d (%s) is %v; it must be finite", i+1, g.StateNames[i], v)
+		}
+	}
+	return freeOrForced(ctx, g, "initial", x0, opt)
+}
+
+func freeOrForced(ctx context.Context, g *System, kind string, x0 []float64, opt ResponseOptions) (*Response, error) {
+	if g == nil {
+		return nil, errors.New("response: the system is missing")
+	}
+	t, h, rule, err := opt.grid(g)
+	if err != nil {
+		return nil, fmt.Errorf("response: %w", err)
+	}
+	n, m, p := g.N(), g.M(), g.P()
+	r := &Response{System: g, Kind: kind, T: t, Outputs: append([]string(nil), g.OutputNames...), Rule: rule, Sampled: g.Sampled()}
+	nch := m
+	if kind == "initial" {
+		nch = 1
+		r.Channels = []string{"initial"}
+	} else {
+		r.Channels = append([]string(nil), g.InputNames...)
+		if m == 0 {
+			return nil, fmt.Errorf("response: the system has no inputs, so it has no %s response; use initial: x0", kind)
+		}
+	}
+	N := len(t)
+	r.Y = make([][][]float64, p)
+	for i := range r.Y {
+		r.Y[i] = make([][]float64, nch)
+		for c := range r.Y[i] {
+			r.Y[i][c] = make([]float64, N)
+		}
+	}
+	if p == 0 {
+		return r, nil
+	}
+	// X: n x nch states, one column per channel.
+	var Phi, Gam *mat.Dense
+	if n > 0 {
+		if g.Sampled() {
+			Phi, Gam = g.A, g.B
+		} else if m > 0 {
+			Phi, Gam = zohPair(g.A, g.B, h)
+		} else {
+			Phi = expm(scale(h, g.A))
+		}
+	}
+	var X *mat.Dense
+	if n > 0 {
+		X = mat.NewDense(n, nch, nil)
+		switch kind {
+		case "impulse":
+			if g.Sampled() {
+				// pulse response: y[0] = D, x[1] = B
+			} else {
+				X.Copy(g.B)
+			}
+		case "initial":
+			X.SetCol(0, x0)
+		}
+	}
+	var Y, tmp mat.Dense
+	Y.ReuseAs(p, nch)
+	if n > 0 {
+		tmp.ReuseAs(n, nch)
+	}
+	for k := 0; k < N; k++ {
+		if k&255 == 0 {
+			if err := ctx.Err(); err != nil {
+				return nil, fmt.Errorf("response: interrupted: %w", err)
+			}
+		}
+		Y.Zero()
+		if n > 0 {
+			Y.Mul(g.C, X)
+		}
+		switch {
+		case kind == "step":
+			Y.Add(&Y, g.D)
+		case kind == "impulse" && g.Sampled() && k == 0:
+			Y.Add(&Y, g.D)
+		}
+		for i := 0; i < p; i++ {
+			for c := 0; c < nch; c++ {
+				r.Y[i][c][k] = Y.At(i, c)
+			}
+		}
+		if n == 0 || k == N-1 {
+			continue
+		}
+		tmp.Mul(Phi, X)
+		switch {
+		case kind == "step":
+			tmp.Add(&tmp, Gam)
+		case kind == "impulse" && g.Sampled() && k == 0:
+			tmp.Add(&tmp, g.B)
+		}
+		X.Copy(&tmp)
+	}
+	return r, checkFiniteResponse(r)
+}
+
+func checkFiniteResponse(r *Response) error {
+	for i := range r.Y {
+		for c := range r.Y[i] {
+			for k, v := range r.Y[i][c] {
+				if math.IsNaN(v) || math.IsInf(v, 0) {
+					return fmt.Errorf("response: output %s overflows at t = %g s (the system grows too fast for this horizon); shorten it with until:", r.Outputs[i], r.T[k])
+				}
+			}
+		}
+	}
+	return nil
+}
+
+// Simulate returns the response to the input signal u from the initial
+// state x0 (nil for rest). A one-channel signal drives every input; a table
+// with one column per input drives each input by its own column. For
+// continuous systems the input is taken as linear between samples
+// (first-order hold, exact for ramps and linear-interpolated tables) or, for
+// a table with Hold "zoh", constant; both are propagated exactly through one
+// block exponential (Van Loan 1978).
+func Simulate(ctx context.Context, g *System, u Signal, x0 []float64, opt ResponseOptions) (*Response, error) {
+	if g == nil {
+		return nil, errors.New("response: the system is missing")
+	}
+	n, m, p := g.N(), g.M(), g.P()
+	if m == 0 {
+		return nil, errors.New("response: the system has no inputs to drive")
+	}
+	if ch := u.Channels(); ch != 1 && ch != m {
+		return nil, fmt.Errorf("response: the input table has %d columns but the system has %d inputs (%v); give one column, or one per input", ch, m, g.InputNames)
+	}
+	if x0 != nil && len(x0) != n {
+		return nil, fmt.Errorf("response: the initial state has %d entries but the system has %d states", len(x0), n)
+	}
+	if opt.Until == 0 && u.Kind == "table" {
+		opt.Until = u.T[len(u.T)-1] + u.Delay
+	}
+	t, h, rule, err := opt.grid(g)
+	if err != nil {
+		return nil, fmt.Errorf("response: %w", err)
+	}
+	N := len(t)
+	r := &Response{System: g, Kind: "input", T: t, Outputs: append([]string(nil), g.OutputNames...), Rule: rule, Sampled: g.Sampled()}
+	name := u.Name
+	if name == "" {
+		name = u.Kind
+	}
+	r.Channels = []string{name}
+	r.U = make([][]float64, m)
+	for j := range r.U {
+		r.U[j] = make([]float64, N)
+	}
+	for k, tk := range t {
+		for j := 0; j < m; j++ {
+			ch := 0
+			if u.Channels() == m {
+				ch = j
+			}
+			v, err := u.At(tk, ch)
+			if err != nil {
+				return nil, fmt.Errorf("response: input at t = %g s: %w", tk, err)
+			}
+			r.U[j][k] = v
+		}
+	}
+	r.Y = make([][][]float64, p)
+	for i := range r.Y {
+		r.Y[i] = [][]float64{make([]float64, N)}
+	}
+	var Phi, G1, G2 *mat.Dense
+	linear := !g.Sampled() && !(u.Kind == "table" && u.Hold == "zoh") && u.Kind != "step"
+	if n > 0 {
+		switch {
+		case g.Sampled():
+			Phi, G1 = g.A, g.B
+		case linear:
+			Phi, G1, G2 = fohTriple(g.A, g.B, h)
+		default:
+			Phi, G1 = zohPair(g.A, g.B, h)
+		}
+	}
+	x := make([]float64, n)
+	copy(x, x0)
+	xv := mat.NewVecDense(max(n, 1), nil)
+	if n > 0 {
+		xv = mat.NewVecDense(n, x)
+	}
+	var nx, tmpv mat.VecDense
+	uk := mat.NewVecDense(m, nil)
+	du := mat.NewVecDense(m, nil)
+	if p == 0 {
+		return r, nil
+	}
+	yv := mat.NewVecDense(p, nil)
+	for k := 0; k < N; k++ {
+		if k&255 == 0 {
+			if err := ctx.Err(); err != nil {
+				return nil, fmt.Errorf("response: interrupted: %w", err)
+			}
+		}
+		for j := 0; j < m; j++ {
+			uk.SetVec(j, r.U[j][k])
+		}
+		yv.MulVec(g.D, uk)
+		if n > 0 {
+			var cx mat.VecDense
+			cx.MulVec(g.C, xv)
+			yv.AddVec(yv, &cx)
+		}
+		for i := 0; i < p; i++ {
+			r.Y[i][0][k] = yv.AtVec(i)
+		}
+		if n == 0 || k == N-1 {
+			continue
+		}
+		nx.MulVec(Phi, xv)
+		tmpv.MulVec(G1, uk)
+		nx.AddVec(&nx, &tmpv)
+		if G2 != nil {
+			for j := 0; j < m; j++ {
+				du.SetVec(j, r.U[j][k+1]-r.U[j][k])
+			}
+			tmpv.MulVec(G2, du)
+			nx.AddVec(&nx, &tmpv)
+		}
+		xv.CopyVec(&nx)
+	}
+	return r, checkFiniteResponse(r)
+}
+
+// DCGain returns the steady-state gain: D - C A^{-1} B (continuous) or
+// D + C (I - A)^{-1} B (sampled). A pole at s = 0 (z = 1) makes it
+// infinite: ok is false then (reciprocal condition of the matrix below
+// 1e-13).
+func DCGain(g *System) (*mat.Dense, bool) {
+	n, m, p := g.N(), g.M(), g.P()
+	if m == 0 || p == 0 {
+		return nil, true
+	}
+	if n == 0 {
+		return mat.DenseCopyOf(g.D), true
+	}
+	M := mat.DenseCopyOf(g.A)
+	if g.Sampled() {
+		M = add(identity(n), scale(-1, g.A))
+	} else {
+		M.Scale(-1, M)
+	}
+	var lu mat.LU
+	lu.Factorize(M)
+	if lu.Det() == 0 || lu.Cond() > 1e13 {
+		return nil, false
+	}
+	var x mat.Dense
+	if err := lu.SolveTo(&x, false, g.B); err != nil {
+		return nil, false
+	}
+	return add(g.D, mul(g.C, &x)), true
+}
+
+// Stable reports whether every pole lies strictly in the stable region
+// (Re s < 0, or |z| < 1).
+func Stable(g *System) bool {
+	if g.N() == 0 {
+		return true
+	}
+	var ev mat.Eigen
+	if !ev.Factorize(g.A, mat.EigenNone) {
+		return false
+	}
+	for _, l := range ev.Values(nil) {
+		if g.Sampled() && cmplx.Abs(l) >= 1 || !g.Sampled() && real(l) >= 0 {
+			return false
+		}
+	}
+	return true
+}
