@@ -67,7 +67,7 @@ func Eigen(a mat.Matrix) (*EigenStructure, error) {
 		unitNormalize(v)
 		unitNormalize(w)
 		es.Right[k], es.Left[k] = v, w
-		d := cmplx.Abs(cdot(w, v))
+		d := cmplx.Abs(eigDotH(w, v))
 		if d == 0 {
 			es.Cond[k] = math.Inf(1)
 		} else {
@@ -154,7 +154,7 @@ func naturalAndDamping(s complex128) (wn, zeta float64) {
 	return wn, -real(s) / wn
 }
 
-func cdot(w, v []complex128) complex128 { // w^H v
+func eigDotH(w, v []complex128) complex128 { // w^H v
 	var s complex128
 	for i := range w {
 		s += cmplx.Conj(w[i]) * v[i]
@@ -162,7 +162,7 @@ func cdot(w, v []complex128) complex128 { // w^H v
 	return s
 }
 
-func cnorm(v []complex128) float64 {
+func eigNorm2(v []complex128) float64 {
 	var scale, ssq float64 = 0, 1
 	for _, x := range v {
 		for _, f := range [2]float64{real(x), imag(x)} {
@@ -181,7 +181,7 @@ func cnorm(v []complex128) float64 {
 }
 
 func unitNormalize(v []complex128) {
-	nv := cnorm(v)
+	nv := eigNorm2(v)
 	if nv == 0 {
 		return
 	}

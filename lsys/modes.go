@@ -134,7 +134,7 @@ func ModesTol(s *System, relTol float64) (*ModeTable, error) {
 		fillFigures(&m, s.Ts)
 		m.Cond = es.Cond[k]
 		w, v := es.Left[k], es.Right[k]
-		wv := cmplx.Abs(cdot(w, v))
+		wv := cmplx.Abs(eigDotH(w, v))
 		m.Reach = make([]float64, s.M())
 		var wb2 float64
 		for j := 0; j < s.M(); j++ {

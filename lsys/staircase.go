@@ -1,0 +1,164 @@
+package lsys
+
+import (
+	"errors"
+	"math"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// Staircase is the orthogonal controllability staircase form of a pair
+// (A, B): with x = Z xs,
+//
+//	Z^T A Z = [Ar  A12]   Z^T B = [Br]
+//	          [0   Au ]           [0 ]
+//
+// where (Ar, Br) is controllable and in block upper Hessenberg form whose
+// sub-diagonal blocks have full row rank (the staircase), and Au, of order
+// n - Dim, holds the uncontrollable modes.
+type Staircase struct {
+	A, B, Z *mat.Dense // transformed A and B, orthogonal Z
+	Dim     int        // dimension of the reachable subspace
+	Steps   []int      // ranks of the staircase blocks, in order; they sum to Dim
+	// Tol is the absolute rank tolerance used at every step: singular values
+	// at or below it count as zero. Kept is the smallest singular value
+	// kept as nonzero over all steps and Dropped the largest discarded
+	// (0 if none): the gap between them is the margin of the verdict.
+	Tol, Kept, Dropped float64
+}
+
+// ControllabilityStaircase reduces (A, B) to the staircase form by
+// orthogonal transformations, deciding each rank by a singular value
+// decomposition against tol = relTol * ||[A B]||_F (Van Dooren 1981,
+// The generalized eigenstructure problem in linear system theory, IEEE TAC
+// 26(1); Paige 1981, Properties of numerical algorithms related to
+// computing controllability, IEEE TAC 26(1)). The rank of the Krylov matrix
+// [B AB ...] is never used: it is numerically unreliable. relTol <= 0 means
+// DefaultRelTol. B may be nil (no inputs: nothing is reachable).
+func ControllabilityStaircase(A, B *mat.Dense, relTol float64) (*Staircase, error) {
+	if A == nil {
+		return nil, errors.New("staircase: the system has no states")
+	}
+	n, nc := A.Dims()
+	if n != nc {
+		return nil, &ShapeError{What: "A must be square", Got: Shape(A), Other: "nxn"}
+	}
+	if relTol <= 0 || math.IsNaN(relTol) {
+		relTol = DefaultRelTol
+	}
+	m := 0
+	if B != nil {
+		var br int
+		br, m = B.Dims()
+		if br != n {
+			return nil, &ShapeError{What: "B must have as many rows as A", Got: Shape(B), Other: Shape(A)}
+		}
+	}
+	st := &Staircase{A: mat.DenseCopyOf(A), Z: identity(n), Kept: math.Inf(1)}
+	if m > 0 {
+		st.B = mat.DenseCopyOf(B)
+	}
+	st.Tol = relTol * stackedNorm(A, B)
+	if m == 0 {
+		st.Kept = 0
+		return st, nil
+	}
+	start := 0 // first row of the part not yet reduced
+	prev := -1 // first column of the block being reduced (-1: it is B)
+	cols := m
+	for start < n {
+		rows := n - start
+		blk := mat.NewDense(rows, cols, nil)
+		for i := 0; i < rows; i++ {
+			for j := 0; j < cols; j++ {
+				if prev < 0 {
+					blk.Set(i, j, st.B.At(start+i, j))
+				} else {
+					blk.Set(i, j, st.A.At(start+i, prev+j))
+				}
+			}
+		}
+		var svd mat.SVD
+		if !svd.Factorize(blk, mat.SVDFull) {
+			return nil, errors.New("staircase: singular value decomposition did not converge")
+		}
+		sv := svd.Values(nil)
+		r := 0
+		for _, v := range sv {
+			if v > st.Tol {
+				r++
+				st.Kept = math.Min(st.Kept, v)
+			} else {
+				st.Dropped = math.Max(st.Dropped, v)
+			}
+		}
+		var U mat.Dense
+		svd.UTo(&U)
+		// Rotate rows/columns start.. by U: A <- U^T A U on that range, B <- U^T B.
+		stApplyLeftT(st.A, &U, start)
+		stApplyRight(st.A, &U, start)
+		if st.B != nil {
+			stApplyLeftT(st.B, &U, start)
+		}
+		stApplyRight(st.Z, &U, start)
+		// The block is now S V^T on its first r rows; clean the rest to
+		// exact zeros (they are rounding-level by construction).
+		for i := start + r; i < n; i++ {
+			for j := 0; j < cols; j++ {
+				if prev < 0 {
+					st.B.Set(i, j, 0)
+				} else {
+					st.A.Set(i, prev+j, 0)
+				}
+			}
+		}
+		if r == 0 {
+			break
+		}
+		st.Steps = append(st.Steps, r)
+		prev = start
+		cols = r
+		start += r
+	}
+	st.Dim = start
+	if math.IsInf(st.Kept, 1) {
+		st.Kept = 0
+	}
+	return st, nil
+}
+
+// stApplyLeftT replaces rows off.. of X by U^T times them (U square of
+// order rows-off).
+func stApplyLeftT(X, U *mat.Dense, off int) {
+	r, c := X.Dims()
+	sub := X.Slice(off, r, 0, c).(*mat.Dense)
+	var t mat.Dense
+	t.Mul(U.T(), sub)
+	sub.Copy(&t)
+}
+
+// stApplyRight replaces columns off.. of X by them times U.
+func stApplyRight(X, U *mat.Dense, off int) {
+	r, c := X.Dims()
+	sub := X.Slice(0, r, off, c).(*mat.Dense)
+	var t mat.Dense
+	t.Mul(sub, U)
+	sub.Copy(&t)
+}
+
+// stTransposed returns a copy of a^T (nil stays nil).
+func stTransposed(a *mat.Dense) *mat.Dense {
+	if a == nil {
+		return nil
+	}
+	return mat.DenseCopyOf(a.T())
+}
+
+// ObservabilityStaircase is the dual staircase: ControllabilityStaircase of
+// (A^T, C^T). In the returned form the first Dim columns of Z span the
+// orthogonal complement of the unobservable subspace and the remaining
+// columns span the unobservable subspace; A and B fields hold Z^T A^T Z and
+// Z^T C^T.
+func ObservabilityStaircase(A, C *mat.Dense, relTol float64) (*Staircase, error) {
+	return ControllabilityStaircase(stTransposed(A), stTransposed(C), relTol)
+}
