@@ -39,10 +39,12 @@ type Mode struct {
 	// small changes of A. +Inf for a defective eigenvalue.
 	Cond float64
 
-	// Reach[j] = |w^H b_j| / |w^H v| is how strongly input j drives the mode:
-	// the magnitude of the modal input gain when the mode shape has unit
-	// norm. Visibility[i] = |c_i v| is how strongly output i sees it. Their
-	// product is the magnitude of the residue of G_ij at the eigenvalue.
+	// Reach[j] = |w^H b_j| is how strongly input j drives the mode, w the
+	// unit left eigenvector: zero exactly when input j cannot move it.
+	// Visibility[i] = |c_i v|, v the unit right eigenvector, is how strongly
+	// output i sees it. Reach*Visibility*Cond is the magnitude of the
+	// residue of G_ij at a simple eigenvalue. For a cluster the largest over
+	// its members is given.
 	Reach, Visibility []float64
 	// Reachable and Observable are the PBH verdicts (Hautus 1969): the mode
 	// can be moved by the inputs / seen by the outputs. The margins are the
@@ -122,53 +124,125 @@ func ModesTol(s *System, relTol float64) (*ModeTable, error) {
 	if err != nil {
 		return nil, err
 	}
-	order := orderEigenvalues(es.Values, s.Ts)
+	js, err := jordanFrom(s.A, es, 0, relTol, s.Ts)
+	if err != nil {
+		return nil, err
+	}
 	normAB := stackedNorm(s.A, s.B)
 	normAC := stackedNorm(s.A, s.C)
-	for _, k := range order {
-		lam := es.Values[k]
-		if imag(lam) < 0 {
-			continue // the pair is reported once, by its upper member
+	for _, cl := range js.Clusters {
+		lam := cl.Value
+		m := Mode{Eigenvalue: lam, Pair: imag(lam) > 0, Multiplicity: cl.Algebraic, Blocks: cl.Blocks, Cond: cl.Cond}
+		if m.Pair {
+			// Reported once for the pair; multiplicity counts one member.
+			m.Multiplicity = 0
+			for _, v := range cl.Members {
+				if imag(v) > 0 {
+					m.Multiplicity++
+				}
+			}
 		}
-		m := Mode{Eigenvalue: lam, Pair: imag(lam) > 0, Multiplicity: 1, Blocks: []int{1}}
 		fillFigures(&m, s.Ts)
-		m.Cond = es.Cond[k]
-		w, v := es.Left[k], es.Right[k]
-		wv := cmplx.Abs(eigDotH(w, v))
+		// Reach and visibility along the unit left and right eigenvectors
+		// of the members (the largest over a cluster).
 		m.Reach = make([]float64, s.M())
-		var wb2 float64
-		for j := 0; j < s.M(); j++ {
-			var g complex128
-			for i := 0; i < s.N(); i++ {
-				g += cmplx.Conj(w[i]) * complex(s.B.At(i, j), 0)
-			}
-			a := cmplx.Abs(g)
-			wb2 += a * a
-			if wv > 0 {
-				m.Reach[j] = a / wv
-			} else {
-				m.Reach[j] = math.Inf(1)
-			}
-		}
 		m.Visibility = make([]float64, s.P())
-		var cv2 float64
-		for i := 0; i < s.P(); i++ {
-			var g complex128
-			for l := 0; l < s.N(); l++ {
-				g += complex(s.C.At(i, l), 0) * v[l]
+		var wb2, cv2 float64
+		first := -1
+		for _, k := range cl.idx {
+			if imag(es.Values[k]) < 0 {
+				continue
 			}
-			a := cmplx.Abs(g)
-			cv2 += a * a
-			m.Visibility[i] = a
+			if first < 0 {
+				first = k
+			}
+			w, v := es.Left[k], es.Right[k]
+			var wbk, cvk float64
+			for j := 0; j < s.M(); j++ {
+				var g complex128
+				for i := 0; i < s.N(); i++ {
+					g += cmplx.Conj(w[i]) * complex(s.B.At(i, j), 0)
+				}
+				a := cmplx.Abs(g)
+				wbk += a * a
+				m.Reach[j] = math.Max(m.Reach[j], a)
+			}
+			for i := 0; i < s.P(); i++ {
+				var g complex128
+				for l := 0; l < s.N(); l++ {
+					g += complex(s.C.At(i, l), 0) * v[l]
+				}
+				a := cmplx.Abs(g)
+				cvk += a * a
+				m.Visibility[i] = math.Max(m.Visibility[i], a)
+			}
+			wb2, cv2 = math.Max(wb2, wbk), math.Max(cv2, cvk)
 		}
-		m.ReachMargin, m.ObserveMargin = math.Sqrt(wb2), math.Sqrt(cv2)
 		m.Tol = relTol * math.Max(normAB, normAC)
+		if cl.Algebraic == 1 {
+			m.ReachMargin, m.ObserveMargin = math.Sqrt(wb2), math.Sqrt(cv2)
+		} else {
+			// A cluster: the PBH ranks of [A - lambda I, B] and
+			// [A - lambda I; C] by singular values.
+			m.ReachMargin = pbhMargin(s.A, s.B, lam, false)
+			m.ObserveMargin = pbhMargin(s.A, s.C, lam, true)
+		}
 		m.Reachable = m.ReachMargin > relTol*normAB
 		m.Observable = m.ObserveMargin > relTol*normAC
-		m.Shape = modeShape(v)
+		m.Shape = modeShape(es.Right[first])
 		mt.Modes = append(mt.Modes, m)
 	}
 	return mt, nil
+}
+
+// pbhMargin is the n-th singular value of [A - lambda I, B] (dual: of
+// [A - lambda I; C]), the distance from losing rank n at lambda (Hautus
+// 1969; Paige 1981). A complex lambda uses the real 2n x 2(n+m) embedding
+// [[Re, -Im], [Im, Re]], whose singular values are those of the complex
+// matrix, each twice.
+func pbhMargin(A, B *mat.Dense, lam complex128, dual bool) float64 {
+	n, _ := A.Dims()
+	if B == nil {
+		return 0
+	}
+	Ar := mat.DenseCopyOf(A)
+	Bm := B
+	if dual {
+		Ar = mat.DenseCopyOf(A.T())
+		Bm = mat.DenseCopyOf(B.T())
+	}
+	_, m := Bm.Dims()
+	for i := 0; i < n; i++ {
+		Ar.Set(i, i, Ar.At(i, i)-real(lam))
+	}
+	var M *mat.Dense
+	if imag(lam) == 0 {
+		M = stHcat(n, Ar, Bm)
+	} else {
+		w := imag(lam)
+		M = mat.NewDense(2*n, 2*(n+m), nil)
+		for i := 0; i < n; i++ {
+			for j := 0; j < n; j++ {
+				M.Set(i, j, Ar.At(i, j))
+				M.Set(n+i, n+j, Ar.At(i, j))
+			}
+			M.Set(i, n+i, w)
+			M.Set(n+i, i, -w)
+			for j := 0; j < m; j++ {
+				M.Set(i, 2*n+j, Bm.At(i, j))
+				M.Set(n+i, 2*n+m+j, Bm.At(i, j))
+			}
+		}
+	}
+	var svd mat.SVD
+	if !svd.Factorize(M, mat.SVDNone) {
+		return 0
+	}
+	sv := svd.Values(nil)
+	if imag(lam) == 0 {
+		return sv[n-1]
+	}
+	return sv[2*n-1]
 }
 
 // fillFigures sets the s-plane figures of a mode from its eigenvalue.

@@ -1,0 +1,320 @@
+package lsys
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/cmplx"
+	"sort"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// JordanCluster is one eigenvalue of the Jordan structure: a cluster of
+// computed eigenvalues taken as one (a conjugate pair of clusters is listed
+// once, by its upper member).
+type JordanCluster struct {
+	Value     complex128   // mean of the clustered eigenvalues
+	Members   []complex128 // the computed eigenvalues in the cluster
+	Algebraic int          // algebraic multiplicity (cluster size)
+	Geometric int          // geometric multiplicity, n - rank(A - lambda I)
+	Blocks    []int        // Jordan block sizes, largest first
+	// Ranks[j] is the numerical rank of (A - lambda I)^(j+1) (for a complex
+	// cluster, that of the real quadratic factor, halved in deficiency).
+	Ranks []int
+	// Spread is the largest distance of a member from Value; Tol the
+	// clustering tolerance that merged them; RankTol the relative
+	// tolerance of the rank decisions on the powers.
+	Spread, Tol, RankTol float64
+	// Cond is the largest eigenvalue condition number in the cluster.
+	Cond float64
+
+	idx []int // indices of the members in the EigenStructure
+}
+
+// Defective reports whether the eigenvalue has fewer eigenvectors than its
+// multiplicity.
+func (c JordanCluster) Defective() bool { return c.Geometric < c.Algebraic }
+
+// JordanStructure is the result of Jordan.
+type JordanStructure struct {
+	N        int
+	Clusters []JordanCluster
+	// ClusterFactor c: eigenvalues i and j are clustered when
+	// |l_i - l_j| <= c * u * ||A||_F * max(cond_i, cond_j) (u the unit
+	// roundoff), capped at CapTol; or when closer than the caller's
+	// absolute tolerance.
+	ClusterFactor, CapTol, AbsTol float64
+	RankTol                       float64
+}
+
+// Jordan computes the Jordan structure of A: eigenvalues are clustered by
+// their perturbation bounds (an eigenvalue with condition number k moves by
+// about u*||A||*k under rounding), then for each cluster with mean lambda
+// the block sizes follow from the ranks of the powers (A - lambda I)^j
+// decided by singular values (Golub & Wilkinson 1976, Ill-conditioned
+// eigensystems and the computation of the Jordan canonical form, SIAM
+// Review 18(4)). absTol > 0 also clusters eigenvalues closer than absTol;
+// relTol <= 0 means DefaultRelTol for the rank decisions. Whether an
+// eigenvalue is defective is a numerical judgement: the tolerances are
+// reported with every cluster.
+func Jordan(A *mat.Dense, absTol, relTol float64) (*JordanStructure, error) {
+	if A == nil {
+		return &JordanStructure{}, nil
+	}
+	n, c := A.Dims()
+	if n != c {
+		return nil, &ShapeError{What: "the Jordan structure needs a square matrix", Got: Shape(A), Other: fmt.Sprintf("%dx%d", n, n)}
+	}
+	es, err := Eigen(A)
+	if err != nil {
+		return nil, err
+	}
+	return jordanFrom(A, es, absTol, relTol, 0)
+}
+
+const jordanClusterFactor = 1e3
+
+func jordanFrom(A *mat.Dense, es *EigenStructure, absTol, relTol, ts float64) (*JordanStructure, error) {
+	n, _ := A.Dims()
+	if relTol <= 0 || math.IsNaN(relTol) {
+		relTol = DefaultRelTol
+	}
+	if absTol < 0 || math.IsNaN(absTol) {
+		absTol = 0
+	}
+	normA := mat.Norm(A, 2)
+	js := &JordanStructure{N: n, ClusterFactor: jordanClusterFactor, CapTol: 1e-3 * math.Max(normA, dlamchE), AbsTol: absTol, RankTol: relTol}
+	groups := clusterEigenvalues(es.Values, es.Cond, normA, js.CapTol, absTol)
+	var err error
+	for _, g := range groups {
+		var mean complex128
+		maxCond := 0.0
+		members := make([]complex128, len(g.idx))
+		for i, k := range g.idx {
+			mean += es.Values[k]
+			members[i] = es.Values[k]
+			maxCond = math.Max(maxCond, es.Cond[k])
+		}
+		mean /= complex(float64(len(g.idx)), 0)
+		if imag(mean) < 0 {
+			continue // the conjugate cluster carries the information
+		}
+		// A cluster straddling the real axis is real: its members are
+		// pairs of the same cluster.
+		if g.real {
+			mean = complex(real(mean), 0)
+		}
+		spread := 0.0
+		for _, v := range members {
+			spread = math.Max(spread, cmplx.Abs(v-mean))
+		}
+		sort.Slice(members, func(a, b int) bool {
+			if real(members[a]) != real(members[b]) {
+				return real(members[a]) < real(members[b])
+			}
+			return imag(members[a]) > imag(members[b])
+		})
+		jc := JordanCluster{Value: mean, Members: members, Algebraic: len(members), Spread: spread, Tol: g.tol, RankTol: relTol, Cond: maxCond, idx: g.idx}
+		if jc.Algebraic == 1 {
+			jc.Geometric, jc.Blocks = 1, []int{1}
+		} else {
+			jc.Ranks, jc.Blocks, err = jordanBlocks(A, mean, jc.Algebraic, relTol)
+			if err != nil {
+				return nil, err
+			}
+			jc.Geometric = len(jc.Blocks)
+		}
+		js.Clusters = append(js.Clusters, jc)
+	}
+	// Mode-table order.
+	vals := make([]complex128, len(js.Clusters))
+	for i, c := range js.Clusters {
+		vals[i] = c.Value
+	}
+	idx := orderEigenvalues(vals, ts)
+	out := make([]JordanCluster, len(idx))
+	for i, k := range idx {
+		out[i] = js.Clusters[k]
+	}
+	js.Clusters = out
+	return js, nil
+}
+
+type eigGroup struct {
+	idx  []int
+	tol  float64
+	real bool // the cluster contains real eigenvalues or both members of pairs
+}
+
+// clusterEigenvalues groups eigenvalues by single linkage: i and j join when
+// |l_i - l_j| <= min(cap, max(abs, c u ||A|| max(cond_i, cond_j))).
+func clusterEigenvalues(vals []complex128, cond []float64, normA, capTol, absTol float64) []eigGroup {
+	n := len(vals)
+	parent := make([]int, n)
+	for i := range parent {
+		parent[i] = i
+	}
+	var find func(int) int
+	find = func(i int) int {
+		for parent[i] != i {
+			parent[i] = parent[parent[i]]
+			i = parent[i]
+		}
+		return i
+	}
+	pairTol := func(i, j int) float64 {
+		t := jordanClusterFactor * dlamchE * math.Max(normA, dlamchE) * math.Max(cond[i], cond[j])
+		if math.IsNaN(t) || t > capTol {
+			t = capTol
+		}
+		return math.Max(t, absTol)
+	}
+	tols := make([]float64, n)
+	for i := 0; i < n; i++ {
+		for j := i + 1; j < n; j++ {
+			t := pairTol(i, j)
+			if cmplx.Abs(vals[i]-vals[j]) <= t {
+				a, b := find(i), find(j)
+				if a != b {
+					parent[b] = a
+				}
+				tols[i] = math.Max(tols[i], t)
+				tols[j] = math.Max(tols[j], t)
+			}
+		}
+	}
+	byRoot := map[int]*eigGroup{}
+	var roots []int
+	for i := 0; i < n; i++ {
+		r := find(i)
+		g, ok := byRoot[r]
+		if !ok {
+			g = &eigGroup{}
+			byRoot[r] = g
+			roots = append(roots, r)
+		}
+		g.idx = append(g.idx, i)
+		g.tol = math.Max(g.tol, tols[i])
+		if imag(vals[i]) == 0 {
+			g.real = true
+		}
+	}
+	// A group holding both members of a pair is real too.
+	out := make([]eigGroup, 0, len(roots))
+	for _, r := range roots {
+		g := byRoot[r]
+		var pos, neg bool
+		for _, k := range g.idx {
+			if imag(vals[k]) > 0 {
+				pos = true
+			}
+			if imag(vals[k]) < 0 {
+				neg = true
+			}
+		}
+		if pos && neg {
+			g.real = true
+		}
+		if g.tol == 0 {
+			g.tol = pairTol(g.idx[0], g.idx[0])
+		}
+		out = append(out, *g)
+	}
+	return out
+}
+
+// jordanBlocks returns the ranks of the powers of A - lambda I, j = 1..k,
+// and the block sizes they imply: the number of blocks of size >= j is
+// r_{j-1} - r_j (r_0 = n). For complex lambda the real quadratic factor
+// Q = A^2 - 2 Re(lambda) A + |lambda|^2 I is used: its null space holds
+// those of A - lambda I and A - conj(lambda) I, equal in dimension.
+func jordanBlocks(A *mat.Dense, lam complex128, k int, relTol float64) ([]int, []int, error) {
+	n, _ := A.Dims()
+	var M mat.Dense
+	halve := false
+	if imag(lam) == 0 {
+		M.CloneFrom(A)
+		for i := 0; i < n; i++ {
+			M.Set(i, i, M.At(i, i)-real(lam))
+		}
+	} else {
+		M.Mul(A, A)
+		var t mat.Dense
+		t.Scale(2*real(lam), A)
+		M.Sub(&M, &t)
+		a2 := real(lam)*real(lam) + imag(lam)*imag(lam)
+		for i := 0; i < n; i++ {
+			M.Set(i, i, M.At(i, i)+a2)
+		}
+		halve = true
+	}
+	P := mat.DenseCopyOf(&M)
+	ranks := []int{}
+	prev := n
+	atLeast := []int{} // number of blocks of size >= j
+	target := n - k
+	if halve {
+		target = n - 2*k
+	}
+	for j := 1; j <= k; j++ {
+		if j > 1 {
+			P.Mul(P, &M)
+		}
+		var svd mat.SVD
+		if !svd.Factorize(P, mat.SVDNone) {
+			return nil, nil, errors.New("jordan: singular value decomposition did not converge")
+		}
+		sv := svd.Values(nil)
+		tol := relTol * sv[0]
+		if sv[0] == 0 {
+			tol = 0
+		}
+		r := 0
+		for _, v := range sv {
+			if v > tol {
+				r++
+			}
+		}
+		// The null space cannot exceed the cluster's share.
+		if r < target {
+			r = target
+		}
+		d := prev - r
+		if halve {
+			ranks = append(ranks, n-(n-r)/2)
+			d /= 2
+		} else {
+			ranks = append(ranks, r)
+		}
+		if d <= 0 {
+			break
+		}
+		atLeast = append(atLeast, d)
+		prev = r
+		if r == target {
+			break
+		}
+	}
+	// sizes: blocks of size exactly j = atLeast[j-1] - atLeast[j].
+	var blocks []int
+	total := 0
+	for j := len(atLeast); j >= 1; j-- {
+		next := 0
+		if j < len(atLeast) {
+			next = atLeast[j]
+		}
+		for c := 0; c < atLeast[j-1]-next; c++ {
+			blocks = append(blocks, j)
+			total += j
+		}
+	}
+	// If rank decisions fell short of the multiplicity (tolerance too
+	// tight), the remainder is reported as 1x1 blocks, the conservative
+	// reading.
+	for total < k {
+		blocks = append(blocks, 1)
+		total++
+	}
+	return ranks, blocks, nil
+}
