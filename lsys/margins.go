@@ -1,0 +1,177 @@
+package lsys
+
+import (
+	"context"
+	"errors"
+	"math"
+	"math/cmplx"
+	"sort"
+)
+
+// Margins are the stability margins of a SISO loop transfer function L,
+// for negative feedback around it, plus closed-loop figures of
+// T = L/(1 + L).
+type Margins struct {
+	Loop *FrequencyResponse // the frequency response of L the chart shows
+
+	GainMargin     float64 // ratio 1/|L| at the phase crossover that sets it; +Inf if there is none
+	GainMarginDB   float64
+	PhaseCrossover float64 // rad/s; NaN if none
+	PhaseMargin    float64 // degrees, 180 + angle L at the gain crossover that sets it; +Inf if none
+	GainCrossover  float64 // rad/s; NaN if none
+	DelayMargin    float64 // s: the smallest PM_i/w_i over gain crossovers; +Inf if none
+
+	GainCrossovers  []float64 // every w with |L| = 1
+	PhaseCrossovers []float64 // every w with angle L = -180 + k 360
+
+	Bandwidth     float64 // rad/s: first w where |T| falls 3 dB below |T(0)|; NaN if not within the grid
+	ResonantPeak  float64 // max |T| in dB
+	ResonantFreq  float64 // rad/s
+	ClosedStable  bool    // whether T is stable (from its poles)
+	ClosedChecked bool    // whether the closed-loop poles could be computed
+}
+
+// LoopMargins computes the margins of the SISO loop L. Crossovers are
+// bracketed on the adaptive grid of Frequency and refined by bisection
+// (60 steps in log frequency) on exact evaluations. The gain margin is the
+// one of smallest |dB| over the phase crossovers; the phase margin the
+// smallest over the gain crossovers (common practice). The delay margin is
+// PM_i (in rad, taken in [0, 2 pi)) / w_i minimised over gain crossovers.
+// Margins describe the loop only if the closed loop is stable; ClosedStable
+// says whether it is.
+func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins, error) {
+	if L == nil {
+		return nil, errors.New("margins: the loop is missing")
+	}
+	if L.M() != 1 || L.P() != 1 {
+		return nil, errors.New("margins: the loop must have one input and one output; pick one channel of a MIMO loop")
+	}
+	f, err := Frequency(ctx, L, opt)
+	if err != nil {
+		return nil, err
+	}
+	ev := newFreqEval(L)
+	val := func(w float64) complex128 {
+		v, err := ev.at(w)
+		if err != nil {
+			v, _ = ev.at(w * (1 + 1e-9))
+		}
+		if v == nil {
+			return cmplx.NaN()
+		}
+		return v[0]
+	}
+	mg := &Margins{Loop: f, GainMargin: math.Inf(1), GainMarginDB: math.Inf(1), PhaseMargin: math.Inf(1),
+		DelayMargin: math.Inf(1), PhaseCrossover: math.NaN(), GainCrossover: math.NaN()}
+	mag := f.Magnitude(0, 0)
+	ph := f.Phase(0, 0)
+	bisect := func(a, b float64, fa float64, fn func(w float64) float64) float64 {
+		for i := 0; i < 60; i++ {
+			mid := math.Sqrt(a * b)
+			if a == 0 {
+				mid = b / 2
+			}
+			fm := fn(mid)
+			if (fm > 0) == (fa > 0) {
+				a, fa = mid, fm
+			} else {
+				b = mid
+			}
+		}
+		return math.Sqrt(a * b)
+	}
+	logMag := func(w float64) float64 { return math.Log(cabs(val(w))) }
+	for k := 0; k+1 < len(f.W); k++ {
+		a, b := math.Log(mag[k]), math.Log(mag[k+1])
+		if a == 0 {
+			mg.GainCrossovers = append(mg.GainCrossovers, f.W[k])
+			continue
+		}
+		if (a > 0) != (b > 0) && b != 0 {
+			mg.GainCrossovers = append(mg.GainCrossovers, bisect(f.W[k], f.W[k+1], a, logMag))
+		}
+	}
+	if n := len(mag); n > 0 && mag[n-1] == 1 {
+		mg.GainCrossovers = append(mg.GainCrossovers, f.W[n-1])
+	}
+	for k := 0; k+1 < len(f.W); k++ {
+		// which odd multiple of 180 lies between ph[k] and ph[k+1]?
+		c := math.Floor((ph[k] + 180) / 360)
+		d := math.Floor((ph[k+1] + 180) / 360)
+		if c == d {
+			continue
+		}
+		target := 360*math.Max(c, d) - 180
+		ref := ph[k]
+		fn := func(w float64) float64 {
+			p := cmplx.Phase(val(w)) * 180 / math.Pi
+			p += 360 * math.Round((ref-p)/360)
+			return p - target
+		}
+		mg.PhaseCrossovers = append(mg.PhaseCrossovers, bisect(f.W[k], f.W[k+1], ph[k]-target, fn))
+	}
+	for _, w := range mg.PhaseCrossovers {
+		m := cabs(val(w))
+		if m == 0 {
+			continue
+		}
+		gm := 1 / m
+		if db := 20 * math.Log10(gm); math.Abs(db) < math.Abs(mg.GainMarginDB) {
+			mg.GainMargin, mg.GainMarginDB, mg.PhaseCrossover = gm, db, w
+		}
+	}
+	for _, w := range mg.GainCrossovers {
+		p := cmplx.Phase(val(w)) * 180 / math.Pi
+		pm := math.Mod(180+p+540, 360) - 180 // in [-180, 180)
+		if math.Abs(pm) < math.Abs(mg.PhaseMargin) || math.IsInf(mg.PhaseMargin, 1) {
+			mg.PhaseMargin, mg.GainCrossover = pm, w
+		}
+		if w > 0 {
+			pmr := math.Mod(pm+360, 360) * math.Pi / 180
+			if dm := pmr / w; dm < mg.DelayMargin {
+				mg.DelayMargin = dm
+			}
+		}
+	}
+	sort.Float64s(mg.GainCrossovers)
+	sort.Float64s(mg.PhaseCrossovers)
+	// closed loop T = L/(1+L) on the same grid
+	mg.ResonantPeak = math.Inf(-1)
+	t0 := math.NaN()
+	if dc, ok := DCGain(L); ok && dc != nil {
+		l0 := dc.At(0, 0)
+		t0 = math.Abs(l0 / (1 + l0))
+	} else {
+		t0 = 1 // integrator in the loop: T(0) = 1
+	}
+	mg.Bandwidth = math.NaN()
+	var prevW, prevT float64
+	for k, w := range f.W {
+		l := f.G[k][0]
+		T := cabs(l / (1 + l))
+		db := 20 * math.Log10(T)
+		if db > mg.ResonantPeak {
+			mg.ResonantPeak, mg.ResonantFreq = db, w
+		}
+		lim := t0 / math.Sqrt2
+		if math.IsNaN(mg.Bandwidth) && t0 > 0 && T < lim {
+			if k == 0 {
+				mg.Bandwidth = w
+			} else {
+				// interpolate in log-log between the two points
+				a, b := math.Log(prevT/lim), math.Log(T/lim)
+				mg.Bandwidth = math.Exp(math.Log(prevW) + a/(a-b)*(math.Log(w)-math.Log(prevW)))
+			}
+		}
+		prevW, prevT = w, T
+	}
+	one, err := NewSystem(0, 1, 1, nil, nil, nil, nil, L.Ts)
+	if err == nil {
+		one.D.Set(0, 0, 1)
+		if cl, err := Feedback(L, one, -1); err == nil {
+			mg.ClosedChecked = true
+			mg.ClosedStable = Stable(cl)
+		}
+	}
+	return mg, nil
+}
