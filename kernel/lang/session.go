@@ -7,7 +7,10 @@ package lang
 
 import (
 	"context"
-	"errors"
+	"fmt"
+	"runtime/debug"
+	"sort"
+	"sync"
 )
 
 // Output receives what a cell produces besides its final value. The kernel
@@ -24,14 +27,50 @@ type Output interface {
 	ClearOutput(wait bool)
 }
 
-// Session holds the bindings of one notebook session.
+// Session holds the bindings of one notebook session. Its methods may be
+// called from several goroutines (the kernel answers completion requests
+// while a cell runs); Run calls are serialised.
 type Session struct {
 	dir string
+
+	runMu   sync.Mutex // one cell at a time
+	mu      sync.RWMutex
+	globals map[string]any
+	// sources remembers, for systems built from equation blocks, the block
+	// they came from, so parameter sensitivities can be taken later.
+	sources map[any]*blockSource
 }
 
 // NewSession starts an empty session; dir is the folder that load() reads
 // data files from (the notebook's folder).
-func NewSession(dir string) *Session { return &Session{dir: dir} }
+func NewSession(dir string) *Session {
+	return &Session{dir: dir, globals: map[string]any{}, sources: map[any]*blockSource{}}
+}
+
+// Dir is the folder data files are read from.
+func (s *Session) Dir() string { return s.dir }
+
+func (s *Session) bind(name string, v any) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	s.globals[name] = v
+}
+
+// Get returns the value bound to name.
+func (s *Session) Get(name string) (any, bool) {
+	s.mu.RLock()
+	defer s.mu.RUnlock()
+	v, ok := s.globals[name]
+	return v, ok
+}
+
+type nopOutput struct{}
+
+func (nopOutput) Stdout(string)             {}
+func (nopOutput) Stderr(string)             {}
+func (nopOutput) Display(any, string)       {}
+func (nopOutput) UpdateDisplay(any, string) {}
+func (nopOutput) ClearOutput(bool)          {}
 
 // Run evaluates one cell. value is what the cell's last expression evaluated
 // to, or nil when the cell ends in a binding (nothing to show). err, when not
@@ -40,27 +79,47 @@ func NewSession(dir string) *Session { return &Session{dir: dir} }
 // and returns an error wrapping ctx.Err(). Run never panics; bindings made
 // before an error stay.
 func (s *Session) Run(ctx context.Context, src string, out Output) (value any, err error) {
-	return nil, errors.New("not implemented yet")
-}
-
-// IsComplete reports "complete", "incomplete" (open bracket or block; indent
-// is the suggested indent for the next line) or "invalid".
-func (s *Session) IsComplete(src string) (status, indent string) {
-	return "complete", ""
-}
-
-// Complete returns candidates for the word ending at cursor (a rune offset
-// into src) and the rune range [start, end) they replace.
-func (s *Session) Complete(src string, cursor int) (matches []string, start, end int) {
-	return nil, cursor, cursor
-}
-
-// Inspect returns help for the name under or before cursor (rune offset):
-// signature, doc and example for a built-in, a summary for a binding.
-// found is false when there is nothing to say.
-func (s *Session) Inspect(src string, cursor int) (text string, found bool) {
-	return "", false
+	s.runMu.Lock()
+	defer s.runMu.Unlock()
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	if out == nil {
+		out = nopOutput{}
+	}
+	defer func() {
+		if r := recover(); r != nil {
+			value = nil
+			msg := fmt.Sprintf("internal error: %v", r)
+			if debugPanics {
+				msg += "\n" + string(debug.Stack())
+			}
+			err = &Error{Pos: Pos{Line: 1, Column: 1}, Msg: msg,
+				Hint: "This is a bug in lsys, not in your cell; please report it with this cell.", Source: lineAt(src, 1)}
+		}
+	}()
+	stmts, perr := ParseCell(src)
+	if perr != nil {
+		attachSource(perr, src)
+		return nil, perr
+	}
+	ev := &evaluator{s: s, ctx: ctx, out: out, src: src}
+	value, err = ev.run(stmts)
+	if err != nil {
+		attachSource(err, src)
+		return nil, err
+	}
+	return value, nil
 }
 
 // Names lists the bindings of the session, sorted.
-func (s *Session) Names() []string { return nil }
+func (s *Session) Names() []string {
+	s.mu.RLock()
+	defer s.mu.RUnlock()
+	names := make([]string, 0, len(s.globals))
+	for k := range s.globals {
+		names = append(names, k)
+	}
+	sort.Strings(names)
+	return names
+}

@@ -1,0 +1,405 @@
+package lang
+
+import (
+	"fmt"
+	"sort"
+	"strings"
+	"unicode/utf8"
+
+	"lsys/lsys"
+)
+
+// IsComplete reports "complete", "incomplete" (open bracket or block; indent
+// is the suggested indent for the next line) or "invalid".
+func (s *Session) IsComplete(src string) (status, indent string) {
+	var sc Scanner
+	sc.Init(src)
+	var stack []Token
+	lastTok := EOF
+	for {
+		tok, _, _ := sc.Scan()
+		if tok == EOF {
+			break
+		}
+		switch tok {
+		case LPAREN, LBRACK, LBRACE:
+			stack = append(stack, tok)
+		case RPAREN, RBRACK, RBRACE:
+			want := map[Token]Token{RPAREN: LPAREN, RBRACK: LBRACK, RBRACE: LBRACE}[tok]
+			if len(stack) == 0 || stack[len(stack)-1] != want {
+				return "invalid", ""
+			}
+			stack = stack[:len(stack)-1]
+		}
+		lastTok = tok
+	}
+	// A line ending in a backslash continues.
+	if strings.HasSuffix(strings.TrimRight(src, " \t\r"), "\\") {
+		return "incomplete", ""
+	}
+	if len(sc.Errors) > 0 {
+		return "invalid", ""
+	}
+	if len(stack) > 0 {
+		return "incomplete", strings.Repeat("  ", len(stack))
+	}
+	_ = lastTok
+	if _, err := ParseCell(src); err != nil {
+		return "invalid", ""
+	}
+	return "complete", ""
+}
+
+func isIdentRune(r rune) bool { return isLetter(r) || isDigit(r) }
+
+// openContext describes the innermost open bracket before a point.
+type openContext struct {
+	tok      Token  // LPAREN, LBRACK, LBRACE or EOF when none
+	callee   string // name before '(' when it is a call
+	block    bool   // a system block
+	declared []string
+	given    []string // named arguments already written in the call
+}
+
+// contextAt scans src[:off] (byte offset) for the innermost open bracket.
+func contextAt(src string) openContext {
+	var sc Scanner
+	sc.Init(src)
+	type frame struct {
+		tok      Token
+		callee   string
+		block    bool
+		declared []string
+		given    []string
+	}
+	var stack []*frame
+	prev, prevLit := EOF, ""
+	pendingBlock := false // saw "system every": the next '{' opens a block
+	declKind := ""
+	for {
+		tok, _, lit := sc.Scan()
+		if tok == EOF {
+			break
+		}
+		var top *frame
+		if len(stack) > 0 {
+			top = stack[len(stack)-1]
+		}
+		switch tok {
+		case LPAREN, LBRACK, LBRACE:
+			f := &frame{tok: tok}
+			if tok == LPAREN && prev == IDENT {
+				f.callee = prevLit
+			}
+			if tok == LBRACE && ((prev == IDENT && prevLit == "system") || pendingBlock) {
+				f.block = true
+				pendingBlock = false
+			}
+			stack = append(stack, f)
+		case RPAREN, RBRACK, RBRACE:
+			if len(stack) > 0 {
+				stack = stack[:len(stack)-1]
+			}
+		case COLON:
+			if top != nil && top.tok == LPAREN && prev == IDENT {
+				top.given = append(top.given, prevLit)
+			}
+		case IDENT:
+			if lit == "every" && prev == IDENT && prevLit == "system" {
+				pendingBlock = true
+			}
+			if top != nil && top.block {
+				if (lit == "states" || lit == "inputs" || lit == "outputs") && (prev == NEWLINE || prev == LBRACE) {
+					declKind = lit
+				} else if declKind != "" {
+					top.declared = append(top.declared, lit)
+				}
+			}
+		case NEWLINE:
+			declKind = ""
+			pendingBlock = false
+		}
+		prev, prevLit = tok, lit
+	}
+	if len(stack) == 0 {
+		return openContext{tok: EOF}
+	}
+	f := stack[len(stack)-1]
+	oc := openContext{tok: f.tok, callee: f.callee, block: f.block, given: f.given}
+	// Names declared in any enclosing block.
+	for _, fr := range stack {
+		oc.declared = append(oc.declared, fr.declared...)
+	}
+	return oc
+}
+
+// Complete returns candidates for the word ending at cursor (a rune offset
+// into src) and the rune range [start, end) they replace.
+func (s *Session) Complete(src string, cursor int) (matches []string, start, end int) {
+	runes := []rune(src)
+	if cursor < 0 {
+		cursor = 0
+	}
+	if cursor > len(runes) {
+		cursor = len(runes)
+	}
+	start = cursor
+	for start > 0 && isIdentRune(runes[start-1]) {
+		start--
+	}
+	prefix := string(runes[start:cursor])
+	before := string(runes[:start])
+	seen := map[string]bool{}
+	add := func(list []string, suffix string) {
+		var found []string
+		for _, c := range list {
+			if strings.HasPrefix(c, prefix) && !seen[c+suffix] {
+				seen[c+suffix] = true
+				found = append(found, c+suffix)
+			}
+		}
+		sort.Strings(found)
+		matches = append(matches, found...)
+	}
+	// After a dot: fields of the value before it.
+	if start > 0 && runes[start-1] == '.' {
+		if v, ok := s.valueBefore(runes[:start-1]); ok {
+			add(fieldNames(v), "")
+		}
+		return matches, start, cursor
+	}
+	if inString(before) {
+		return nil, cursor, cursor
+	}
+	oc := contextAt(before)
+	if oc.tok == LPAREN && oc.callee != "" {
+		var params []string
+		given := map[string]bool{}
+		for _, g := range oc.given {
+			given[g] = true
+		}
+		if b, ok := Lookup(oc.callee); ok && b.Fn != nil {
+			for _, p := range b.Params {
+				if !p.Variadic && !given[p.Name] {
+					params = append(params, p.Name)
+				}
+			}
+		} else if v, ok := s.Get(oc.callee); ok {
+			if f, ok := v.(*Function); ok {
+				for _, p := range f.Params {
+					if !given[p] {
+						params = append(params, p)
+					}
+				}
+			}
+		}
+		if prefix != "" || len(params) > 0 {
+			add(params, ": ")
+		}
+	}
+	if oc.block {
+		add(oc.declared, "")
+	}
+	if prefix == "" && oc.tok != LPAREN && !oc.block {
+		return matches, start, cursor
+	}
+	add(s.Names(), "")
+	add(builtinNames(), "")
+	var kws []string
+	for k := range keywords {
+		kws = append(kws, k)
+	}
+	if prefix != "" {
+		add(kws, "")
+	}
+	return matches, start, cursor
+}
+
+// inString reports whether the text ends inside an open string literal.
+func inString(text string) bool {
+	line := text
+	if k := strings.LastIndexByte(text, '\n'); k >= 0 {
+		line = text[k+1:]
+	}
+	in := false
+	for i := 0; i < len(line); i++ {
+		switch line[i] {
+		case '\\':
+			if in {
+				i++
+			}
+		case '"':
+			in = !in
+		case '#':
+			if !in {
+				return true // in a comment: no completion either
+			}
+		}
+	}
+	return in
+}
+
+// valueBefore evaluates a chain name.field.field ending just before the
+// dot, without running any code.
+func (s *Session) valueBefore(runes []rune) (any, bool) {
+	end := len(runes)
+	start := end
+	for start > 0 && (isIdentRune(runes[start-1]) || runes[start-1] == '.') {
+		start--
+	}
+	chain := strings.Split(string(runes[start:end]), ".")
+	if len(chain) == 0 || chain[0] == "" {
+		return nil, false
+	}
+	v, ok := s.Get(chain[0])
+	if !ok {
+		return nil, false
+	}
+	for _, f := range chain[1:] {
+		var next any
+		switch t := v.(type) {
+		case *Record:
+			next, ok = t.Get(f)
+		case *lsys.System:
+			var err error
+			next, ok, err = systemField(t, f)
+			ok = ok && err == nil
+		default:
+			if fn, has := valueFields(v); has {
+				next, ok = fn(f)
+			} else if ti, has := typeNames.info(v); has && ti.Field != nil {
+				next, ok = ti.Field(v, f)
+			} else {
+				ok = false
+			}
+		}
+		if !ok {
+			return nil, false
+		}
+		v = next
+	}
+	return v, true
+}
+
+// Inspect returns help for the name under or before cursor (rune offset):
+// signature, doc and example for a built-in, a summary for a binding.
+// found is false when there is nothing to say.
+func (s *Session) Inspect(src string, cursor int) (text string, found bool) {
+	runes := []rune(src)
+	if cursor < 0 {
+		cursor = 0
+	}
+	if cursor > len(runes) {
+		cursor = len(runes)
+	}
+	start, end := cursor, cursor
+	for start > 0 && isIdentRune(runes[start-1]) {
+		start--
+	}
+	for end < len(runes) && isIdentRune(runes[end]) {
+		end++
+	}
+	name := string(runes[start:end])
+	if name != "" && start > 0 && runes[start-1] == '.' {
+		if v, ok := s.valueBefore(runes[:start-1]); ok {
+			var fv any
+			var has bool
+			switch t := v.(type) {
+			case *Record:
+				fv, has = t.Get(name)
+			case *lsys.System:
+				var err error
+				fv, has, err = systemField(t, name)
+				has = has && err == nil
+			}
+			if has {
+				return fmt.Sprintf("%s: %s\n\n%s", name, typeName(fv), FormatValue(fv)), true
+			}
+		}
+	}
+	if name == "" || isDigit(runes[start]) {
+		oc := contextAt(string(runes[:cursor]))
+		if oc.tok != LPAREN || oc.callee == "" {
+			return "", false
+		}
+		name = oc.callee
+	}
+	if v, ok := s.Get(name); ok {
+		return bindingHelp(name, v), true
+	}
+	if b, ok := Lookup(name); ok {
+		return builtinHelp(b), true
+	}
+	if IsKeyword(name) {
+		return keywordHelp[name], keywordHelp[name] != ""
+	}
+	return "", false
+}
+
+var keywordHelp = map[string]string{
+	"if":    "if condition then value else other\n\nChooses between two values; both branches are required.",
+	"then":  "if condition then value else other",
+	"else":  "if condition then value else other",
+	"and":   "a and b: true when both are true (b is not evaluated when a is false).",
+	"or":    "a or b: true when either is true (b is not evaluated when a is true).",
+	"not":   "not a: true when a is false.",
+	"true":  "The boolean true.",
+	"false": "The boolean false.",
+}
+
+func builtinHelp(b *Builtin) string {
+	var sb strings.Builder
+	sb.WriteString(b.Signature())
+	sb.WriteString("\n\n")
+	sb.WriteString(b.Help)
+	if len(b.Params) > 0 {
+		sb.WriteString("\n\nArguments:")
+		for _, p := range b.Params {
+			fmt.Fprintf(&sb, "\n  %s", p.Name)
+			if p.Default != nil {
+				fmt.Fprintf(&sb, " (default %s)", inlineString(p.Default))
+			} else if p.Optional {
+				sb.WriteString(" (optional)")
+			}
+			if p.Doc != "" {
+				sb.WriteString(": " + p.Doc)
+			}
+		}
+	}
+	if b.Doc != "" {
+		sb.WriteString("\n\n")
+		sb.WriteString(b.Doc)
+	}
+	for i, ex := range b.Examples {
+		if i == 0 {
+			sb.WriteString("\n\nExample:")
+		}
+		sb.WriteString("\n  " + strings.ReplaceAll(ex, "\n", "\n  "))
+		if i < len(b.Examples)-1 {
+			sb.WriteString("\n")
+		}
+	}
+	return sb.String()
+}
+
+// bindingHelp summarises a bound value for inspect.
+func bindingHelp(name string, v any) string {
+	var text string
+	switch t := v.(type) {
+	case *lsys.System:
+		text = systemText(t)
+	case *Function:
+		text = "function " + t.String()
+	default:
+		text = FormatValue(v)
+	}
+	const limit = 4000
+	if len(text) > limit {
+		cut := limit
+		for cut > 0 && !utf8.RuneStart(text[cut]) {
+			cut--
+		}
+		text = text[:cut] + "\n..."
+	}
+	return fmt.Sprintf("%s: %s\n\n%s", name, typeName(v), text)
+}

@@ -1,0 +1,911 @@
+package lang
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"runtime/debug"
+	"sort"
+	"strings"
+
+	"gonum.org/v1/gonum/mat"
+
+	"lsys/lsys"
+)
+
+// Limits that keep one cell from taking the session down. Each is reported
+// with a message that names it.
+const (
+	// MaxSteps is the number of evaluation steps one cell may take.
+	MaxSteps = 10_000_000
+	// MaxDepth is how deeply user functions may call each other.
+	MaxDepth = 200
+	// MaxEntries is the largest number of entries of one matrix.
+	MaxEntries = 4_000_000
+)
+
+type evaluator struct {
+	s      *Session
+	ctx    context.Context
+	out    Output
+	src    string // source of the code being evaluated (cell or function)
+	where  string // "in f(k), ..." while inside a user function
+	steps  int64
+	depth  int
+	frames []map[string]any
+}
+
+func (ev *evaluator) errorAt(pos Pos, msg, hint string) error {
+	return &Error{Pos: pos, Msg: msg, Hint: hint, Source: lineAt(ev.src, pos.Line), Where: ev.where}
+}
+
+func (ev *evaluator) interrupted(pos Pos, cause error) error {
+	e := ev.errorAt(pos, "interrupted", "The cell was stopped; bindings made before this line are kept.").(*Error)
+	e.Err = cause
+	return e
+}
+
+// step counts one evaluation step and checks for interrupts every 1024.
+func (ev *evaluator) step(pos Pos) error {
+	ev.steps++
+	if ev.steps&1023 == 0 {
+		if err := ev.ctx.Err(); err != nil {
+			return ev.interrupted(pos, err)
+		}
+	}
+	if ev.steps > MaxSteps {
+		return ev.errorAt(pos, fmt.Sprintf("the cell took more than %d evaluation steps", MaxSteps),
+			"Look for a function that calls itself without end, or split the work over several cells.")
+	}
+	return nil
+}
+
+func (ev *evaluator) run(stmts []Stmt) (any, error) {
+	var last any
+	for i, st := range stmts {
+		if err := ev.ctx.Err(); err != nil {
+			return nil, ev.interrupted(st.Pos(), err)
+		}
+		last = nil
+		switch s := st.(type) {
+		case *AssignStmt:
+			if err := ev.checkBindable(s.Name); err != nil {
+				return nil, err
+			}
+			v, err := ev.eval(s.Value)
+			if err != nil {
+				return nil, err
+			}
+			if v == nil {
+				return nil, ev.errorAt(s.Value.Pos(), "this expression gives no value to bind",
+					"Bind the result of a computation; print, warn and show give nothing back.")
+			}
+			ev.s.bind(s.Name.Name, v)
+		case *FuncDef:
+			if err := ev.checkBindable(s.Name); err != nil {
+				return nil, err
+			}
+			params := make([]string, len(s.Params))
+			for k, p := range s.Params {
+				params[k] = p.Name
+			}
+			ev.s.bind(s.Name.Name, &Function{Name: s.Name.Name, Params: params, Body: s.Body, src: ev.src})
+		case *ExprStmt:
+			v, err := ev.eval(s.X)
+			if err != nil {
+				return nil, err
+			}
+			if i == len(stmts)-1 {
+				last = v
+			}
+		}
+	}
+	return last, nil
+}
+
+func (ev *evaluator) checkBindable(id *Ident) error {
+	if b, ok := Lookup(id.Name); ok && b.Fn != nil {
+		return ev.errorAt(id.NamePos, fmt.Sprintf("'%s' is the name of a built-in function", id.Name),
+			"Choose another name for your value.")
+	}
+	return nil
+}
+
+func (ev *evaluator) lookup(id *Ident) (any, error) {
+	if n := len(ev.frames); n > 0 {
+		if v, ok := ev.frames[n-1][id.Name]; ok {
+			return v, nil
+		}
+	}
+	if v, ok := ev.s.globals[id.Name]; ok {
+		return v, nil
+	}
+	if b, ok := Lookup(id.Name); ok {
+		if b.Fn == nil {
+			return b.Value, nil
+		}
+		return b, nil
+	}
+	cands := append(ev.s.Names(), builtinNames()...)
+	if n := len(ev.frames); n > 0 {
+		for k := range ev.frames[n-1] {
+			cands = append(cands, k)
+		}
+	}
+	return nil, ev.errorAt(id.NamePos, fmt.Sprintf("unknown name '%s'%s", id.Name, didYouMean(id.Name, cands)),
+		"Bind it first (name = value), or check the spelling.")
+}
+
+func (ev *evaluator) eval(e Expr) (v any, err error) {
+	if err := ev.step(e.Pos()); err != nil {
+		return nil, err
+	}
+	switch x := e.(type) {
+	case *Ident:
+		return ev.lookup(x)
+	case *NumberLit:
+		if x.Imag {
+			return complex(0, x.Value), nil
+		}
+		return x.Value, nil
+	case *StringLit:
+		return x.Value, nil
+	case *BoolLit:
+		return x.Value, nil
+	case *ListLit:
+		return ev.evalList(x)
+	case *RecordLit:
+		r := &Record{}
+		for _, f := range x.Fields {
+			v, err := ev.eval(f.Value)
+			if err != nil {
+				return nil, err
+			}
+			if v == nil {
+				return nil, ev.errorAt(f.Value.Pos(), fmt.Sprintf("field '%s' has no value", f.Name.Name), "")
+			}
+			r.Names = append(r.Names, f.Name.Name)
+			r.Values = append(r.Values, v)
+		}
+		return r, nil
+	case *UnaryExpr:
+		v, err := ev.eval(x.X)
+		if err != nil {
+			return nil, err
+		}
+		if x.Op == NOT {
+			b, ok := v.(bool)
+			if !ok {
+				return nil, ev.errorAt(x.OpPos, fmt.Sprintf("'not' needs true or false, not %s", typeName(v)), "")
+			}
+			return !b, nil
+		}
+		return ev.negate(v, x.OpPos)
+	case *BinaryExpr:
+		if x.Op == AND || x.Op == OR {
+			return ev.logic(x)
+		}
+		a, err := ev.eval(x.X)
+		if err != nil {
+			return nil, err
+		}
+		b, err := ev.eval(x.Y)
+		if err != nil {
+			return nil, err
+		}
+		return ev.binary(x.Op, a, b, x.OpPos, x)
+	case *CallExpr:
+		return ev.evalCall(x)
+	case *IndexExpr:
+		return ev.evalIndex(x)
+	case *FieldExpr:
+		v, err := ev.eval(x.X)
+		if err != nil {
+			return nil, err
+		}
+		return ev.field(v, x.Name)
+	case *IfExpr:
+		c, err := ev.eval(x.Cond)
+		if err != nil {
+			return nil, err
+		}
+		b, ok := c.(bool)
+		if !ok {
+			return nil, ev.errorAt(x.Cond.Pos(), fmt.Sprintf("the condition of 'if' must be true or false, not %s", typeName(c)),
+				"Compare with <, <=, ==, != ... to get true or false.")
+		}
+		if b {
+			return ev.eval(x.Then)
+		}
+		return ev.eval(x.Else)
+	case *SystemBlock:
+		return ev.evalSystemBlock(x)
+	}
+	return nil, ev.errorAt(e.Pos(), "cannot evaluate this expression", "")
+}
+
+func (ev *evaluator) logic(x *BinaryExpr) (any, error) {
+	a, err := ev.eval(x.X)
+	if err != nil {
+		return nil, err
+	}
+	ab, ok := a.(bool)
+	if !ok {
+		return nil, ev.errorAt(x.X.Pos(), fmt.Sprintf("'%s' needs true or false on both sides, not %s", x.Op, typeName(a)), "")
+	}
+	if (x.Op == AND && !ab) || (x.Op == OR && ab) {
+		return ab, nil
+	}
+	b, err := ev.eval(x.Y)
+	if err != nil {
+		return nil, err
+	}
+	bb, ok := b.(bool)
+	if !ok {
+		return nil, ev.errorAt(x.Y.Pos(), fmt.Sprintf("'%s' needs true or false on both sides, not %s", x.Op, typeName(b)), "")
+	}
+	return bb, nil
+}
+
+// evalList turns [..] into a column vector (all numbers), a matrix (rows
+// that are vectors of one length), or a List otherwise.
+func (ev *evaluator) evalList(x *ListLit) (any, error) {
+	vals := make([]any, len(x.Elems))
+	for i, el := range x.Elems {
+		v, err := ev.eval(el)
+		if err != nil {
+			return nil, err
+		}
+		if v == nil {
+			return nil, ev.errorAt(el.Pos(), "this item has no value", "")
+		}
+		vals[i] = v
+	}
+	if len(vals) == 0 {
+		return &List{}, nil
+	}
+	allNum, anyComplex, allVec := true, false, true
+	for _, v := range vals {
+		switch t := v.(type) {
+		case float64:
+			allVec = false
+		case complex128:
+			anyComplex = true
+			allVec = false
+		case *mat.Dense:
+			allNum = false
+			if _, c := t.Dims(); c != 1 {
+				allVec = false
+			}
+		case *mat.CDense:
+			allNum = false
+			anyComplex = true
+			if _, c := t.Dims(); c != 1 {
+				allVec = false
+			}
+		default:
+			allNum, allVec = false, false
+		}
+	}
+	if allNum {
+		if len(vals) > MaxEntries {
+			return nil, ev.tooBig(x.Lbrack, len(vals), 1)
+		}
+		for i, v := range vals {
+			if !finite(v) {
+				return nil, ev.errorAt(x.Elems[i].Pos(), fmt.Sprintf("entry %d is %s; matrices hold finite numbers only", i+1, FormatValue(v)), "")
+			}
+		}
+		if anyComplex {
+			m := mat.NewCDense(len(vals), 1, nil)
+			for i, v := range vals {
+				m.Set(i, 0, toComplex(v))
+			}
+			return m, nil
+		}
+		m := mat.NewDense(len(vals), 1, nil)
+		for i, v := range vals {
+			m.Set(i, 0, v.(float64))
+		}
+		return m, nil
+	}
+	if allVec {
+		// Rows of a matrix, each written as a list.
+		n := vecLen(vals[0])
+		for i, v := range vals {
+			if k := vecLen(v); k != n {
+				return nil, ev.errorAt(x.Elems[i].Pos(), fmt.Sprintf("row %d has %s but row 1 has %d", i+1, entries(k), n),
+					"Every row of a matrix needs the same number of entries.")
+			}
+		}
+		if len(vals)*n > MaxEntries {
+			return nil, ev.tooBig(x.Lbrack, len(vals), n)
+		}
+		if anyComplex {
+			m := mat.NewCDense(len(vals), n, nil)
+			for i, v := range vals {
+				for j := 0; j < n; j++ {
+					m.Set(i, j, vecAt(v, j))
+				}
+			}
+			return m, nil
+		}
+		m := mat.NewDense(len(vals), n, nil)
+		for i, v := range vals {
+			for j := 0; j < n; j++ {
+				m.Set(i, j, v.(*mat.Dense).At(j, 0))
+			}
+		}
+		return m, nil
+	}
+	return &List{Items: vals}, nil
+}
+
+func vecLen(v any) int {
+	switch t := v.(type) {
+	case *mat.Dense:
+		r, _ := t.Dims()
+		return r
+	case *mat.CDense:
+		r, _ := t.Dims()
+		return r
+	}
+	return 0
+}
+
+func vecAt(v any, i int) complex128 {
+	switch t := v.(type) {
+	case *mat.Dense:
+		return complex(t.At(i, 0), 0)
+	case *mat.CDense:
+		return t.At(i, 0)
+	}
+	return 0
+}
+
+func (ev *evaluator) tooBig(pos Pos, r, c int) error {
+	return ev.errorAt(pos, fmt.Sprintf("a %dx%d matrix is larger than the limit of %d entries", r, c, MaxEntries),
+		"Work with a smaller model, or reduce it first.")
+}
+
+func (ev *evaluator) evalCall(x *CallExpr) (any, error) {
+	var fn any
+	var err error
+	if id, ok := x.Fun.(*Ident); ok {
+		fn, err = ev.lookup(id)
+	} else {
+		fn, err = ev.eval(x.Fun)
+	}
+	if err != nil {
+		return nil, err
+	}
+	var pos []Pos
+	var vals []any
+	var named []NamedValue
+	for _, a := range x.Args {
+		v, err := ev.eval(a.Value)
+		if err != nil {
+			return nil, err
+		}
+		if v == nil {
+			return nil, ev.errorAt(a.Value.Pos(), "this argument has no value", "print, warn and show give nothing back; pass a value instead.")
+		}
+		if a.Name != nil {
+			for _, n := range named {
+				if n.Name == a.Name.Name {
+					return nil, ev.errorAt(a.Name.NamePos, fmt.Sprintf("argument '%s' is given twice", a.Name.Name), "Give each named argument once.")
+				}
+			}
+			named = append(named, NamedValue{Name: a.Name.Name, Value: v, Pos: a.Name.NamePos})
+		} else {
+			vals = append(vals, v)
+			pos = append(pos, a.Value.Pos())
+		}
+	}
+	switch f := fn.(type) {
+	case *Builtin:
+		return ev.callBuiltin(f, vals, pos, named, x.Fun.Pos())
+	case *Function:
+		return ev.callFunction(f, vals, pos, named, x.Fun.Pos())
+	}
+	return nil, ev.errorAt(x.Lparen, fmt.Sprintf("%s is %s, not a function", ExprString(x.Fun), typeName(fn)),
+		"Only functions can be called; to index a matrix use M[2, 1].")
+}
+
+// apply calls f with values (used by built-ins that take functions).
+func (ev *evaluator) apply(f any, vals []any, named []NamedValue, pos Pos) (any, error) {
+	poss := make([]Pos, len(vals))
+	for i := range poss {
+		poss[i] = pos
+	}
+	switch fn := f.(type) {
+	case *Builtin:
+		return ev.callBuiltin(fn, vals, poss, named, pos)
+	case *Function:
+		return ev.callFunction(fn, vals, poss, named, pos)
+	}
+	return nil, ev.errorAt(pos, fmt.Sprintf("expected a function, got %s", typeName(f)), "Define one first: f(k) = ...")
+}
+
+func (ev *evaluator) callBuiltin(b *Builtin, vals []any, poss []Pos, named []NamedValue, pos Pos) (result any, err error) {
+	c := &Call{Builtin: b, ev: ev, pos: pos}
+	n := len(b.Params)
+	c.vals, c.poss, c.given = make([]any, n), make([]Pos, n), make([]bool, n)
+	for i, v := range vals {
+		switch {
+		case i < n && !b.Params[i].Variadic:
+			c.vals[i], c.poss[i], c.given[i] = v, poss[i], true
+		case n > 0 && b.Params[n-1].Variadic:
+			c.Rest = append(c.Rest, v)
+			c.RestPos = append(c.RestPos, poss[i])
+			c.given[n-1] = true
+		default:
+			return nil, ev.errorAt(poss[i], fmt.Sprintf("%s takes at most %s", b.Name, plural(n, "argument")), "Usage: "+b.Signature())
+		}
+	}
+	for _, nv := range named {
+		i := -1
+		for k, p := range b.Params {
+			if p.Name == nv.Name && !p.Variadic {
+				i = k
+			}
+		}
+		if i < 0 {
+			if b.AnyNamed {
+				c.Extra = append(c.Extra, nv)
+				continue
+			}
+			var names []string
+			for _, p := range b.Params {
+				names = append(names, p.Name)
+			}
+			return nil, ev.errorAt(nv.Pos, fmt.Sprintf("%s has no argument named '%s'%s", b.Name, nv.Name, didYouMean(nv.Name, names)),
+				"Usage: "+b.Signature())
+		}
+		if c.given[i] {
+			return nil, ev.errorAt(nv.Pos, fmt.Sprintf("argument '%s' of %s is given twice (by position and by name)", nv.Name, b.Name), "Usage: "+b.Signature())
+		}
+		c.vals[i], c.poss[i], c.given[i] = nv.Value, nv.Pos, true
+	}
+	for i, p := range b.Params {
+		if !c.given[i] && p.Default == nil && !p.Optional && !p.Variadic {
+			return nil, ev.errorAt(pos, fmt.Sprintf("%s needs the argument '%s'", b.Name, p.Name), "Usage: "+b.Signature())
+		}
+	}
+	defer func() {
+		if r := recover(); r != nil {
+			result = nil
+			err = ev.errorAt(pos, fmt.Sprintf("%s failed inside: %v", b.Name, r),
+				"This is a bug in lsys, not in your cell; please report it with this cell.")
+			if debugPanics {
+				err = fmt.Errorf("%w\n%s", err, debug.Stack())
+			}
+		}
+	}()
+	result, err = b.Fn(c)
+	if err != nil {
+		return nil, c.wrapErr(err)
+	}
+	return result, nil
+}
+
+// debugPanics adds Go stack traces to caught panics (tests set it).
+var debugPanics = false
+
+func (ev *evaluator) callFunction(f *Function, vals []any, poss []Pos, named []NamedValue, pos Pos) (any, error) {
+	if len(vals) > len(f.Params) {
+		return nil, ev.errorAt(poss[len(f.Params)], fmt.Sprintf("%s takes %s", f.Name, plural(len(f.Params), "argument")),
+			fmt.Sprintf("It is defined as %s.", f))
+	}
+	frame := make(map[string]any, len(f.Params))
+	for i, v := range vals {
+		frame[f.Params[i]] = v
+	}
+	for _, nv := range named {
+		found := false
+		for _, p := range f.Params {
+			if p == nv.Name {
+				found = true
+			}
+		}
+		if !found {
+			return nil, ev.errorAt(nv.Pos, fmt.Sprintf("%s has no parameter named '%s'%s", f.Name, nv.Name, didYouMean(nv.Name, f.Params)),
+				fmt.Sprintf("It is defined as %s.", f))
+		}
+		if _, dup := frame[nv.Name]; dup {
+			return nil, ev.errorAt(nv.Pos, fmt.Sprintf("parameter '%s' of %s is given twice", nv.Name, f.Name), "")
+		}
+		frame[nv.Name] = nv.Value
+	}
+	for _, p := range f.Params {
+		if _, ok := frame[p]; !ok {
+			return nil, ev.errorAt(pos, fmt.Sprintf("%s needs the argument '%s'", f.Name, p), fmt.Sprintf("It is defined as %s.", f))
+		}
+	}
+	if ev.depth >= MaxDepth {
+		return nil, ev.errorAt(pos, fmt.Sprintf("functions call each other more than %d levels deep", MaxDepth),
+			"Look for a function that calls itself without reaching its end case.")
+	}
+	ev.depth++
+	ev.frames = append(ev.frames, frame)
+	oldSrc, oldWhere := ev.src, ev.where
+	ev.src = f.src
+	if oldWhere == "" {
+		ev.where = fmt.Sprintf("in %s(%s), called at line %d, column %d", f.Name, strings.Join(f.Params, ", "), pos.Line, pos.Column)
+	}
+	v, err := ev.eval(f.Body)
+	ev.src, ev.where = oldSrc, oldWhere
+	ev.frames = ev.frames[:len(ev.frames)-1]
+	ev.depth--
+	if err != nil {
+		return nil, err
+	}
+	if v == nil {
+		return nil, ev.errorAt(pos, fmt.Sprintf("%s gave no value", f.Name), "")
+	}
+	return v, nil
+}
+
+func (ev *evaluator) index1(e Expr, size int, what string) (int, error) {
+	v, err := ev.eval(e)
+	if err != nil {
+		return 0, err
+	}
+	f, ok := v.(float64)
+	if !ok || f != math.Trunc(f) {
+		return 0, ev.errorAt(e.Pos(), fmt.Sprintf("an index must be a whole number, not %s", FormatValue(v)), "Positions count from 1.")
+	}
+	if f < 1 || f > float64(size) {
+		hint := fmt.Sprintf("Valid positions are 1 to %d.", size)
+		if f == 0 {
+			hint = "Positions count from 1: the first entry is [1]."
+		}
+		if size == 0 {
+			hint = "It is empty."
+		}
+		return 0, ev.errorAt(e.Pos(), fmt.Sprintf("index %s is out of range for %s", FormatNumber(f), what), hint)
+	}
+	return int(f) - 1, nil
+}
+
+func (ev *evaluator) evalIndex(x *IndexExpr) (any, error) {
+	v, err := ev.eval(x.X)
+	if err != nil {
+		return nil, err
+	}
+	switch t := v.(type) {
+	case *List:
+		if len(x.Indices) != 1 {
+			return nil, ev.errorAt(x.Lbrack, "a list takes one index", "Write l[2].")
+		}
+		i, err := ev.index1(x.Indices[0], len(t.Items), typeName(t))
+		if err != nil {
+			return nil, err
+		}
+		return t.Items[i], nil
+	case *mat.Dense, *mat.CDense:
+		r, c := v.(mat.Matrix).Dims()
+		at := func(i, j int) any {
+			if d, ok := v.(*mat.Dense); ok {
+				return d.At(i, j)
+			}
+			return v.(*mat.CDense).At(i, j)
+		}
+		switch len(x.Indices) {
+		case 1:
+			if r != 1 && c != 1 {
+				return nil, ev.errorAt(x.Lbrack, fmt.Sprintf("%s needs a row and a column", typeName(v)), "Write M[2, 1] (row 2, column 1).")
+			}
+			i, err := ev.index1(x.Indices[0], r*c, typeName(v))
+			if err != nil {
+				return nil, err
+			}
+			if c == 1 {
+				return at(i, 0), nil
+			}
+			return at(0, i), nil
+		case 2:
+			i, err := ev.index1(x.Indices[0], r, fmt.Sprintf("the rows of %s", typeName(v)))
+			if err != nil {
+				return nil, err
+			}
+			j, err := ev.index1(x.Indices[1], c, fmt.Sprintf("the columns of %s", typeName(v)))
+			if err != nil {
+				return nil, err
+			}
+			return at(i, j), nil
+		}
+		return nil, ev.errorAt(x.Lbrack, "a matrix takes one or two indices", "Write v[3] or M[2, 1].")
+	}
+	return nil, ev.errorAt(x.Lbrack, fmt.Sprintf("%s cannot be indexed", typeName(v)), "Index vectors, matrices and lists: v[3], M[2, 1].")
+}
+
+// systemFields are the fixed fields of a system; signal names follow.
+var systemFields = []string{"A", "B", "C", "D", "states", "inputs", "outputs", "every"}
+
+func (ev *evaluator) field(v any, name *Ident) (any, error) {
+	var fields []string
+	switch t := v.(type) {
+	case *Record:
+		if f, ok := t.Get(name.Name); ok {
+			return f, nil
+		}
+		fields = t.Names
+	case *lsys.System:
+		if f, ok, err := systemField(t, name.Name); ok {
+			if err != nil {
+				return nil, ev.errorAt(name.NamePos, err.Error(), "")
+			}
+			return f, nil
+		}
+		fields = fieldNames(t)
+	default:
+		if ti, ok := typeNames.info(v); ok && ti.Field != nil {
+			if f, ok := ti.Field(v, name.Name); ok {
+				return f, nil
+			}
+			fields = ti.Fields
+		} else if fn, ok := valueFields(v); ok {
+			if f, ok := fn(name.Name); ok {
+				return f, nil
+			}
+			fields = fieldNames(v)
+		} else {
+			return nil, ev.errorAt(name.NamePos, fmt.Sprintf("%s has no fields", typeName(v)), "")
+		}
+	}
+	hint := ""
+	if len(fields) > 0 {
+		hint = "Its fields are: " + strings.Join(fields, ", ") + "."
+	}
+	return nil, ev.errorAt(name.NamePos, fmt.Sprintf("%s has no field '%s'%s", typeName(v), name.Name, didYouMean(name.Name, fields)), hint)
+}
+
+// fieldNames lists what may follow '.' after v, for completion and hints.
+func fieldNames(v any) []string {
+	switch t := v.(type) {
+	case *Record:
+		return t.Names
+	case *lsys.System:
+		out := append([]string(nil), systemFields...)
+		seen := map[string]bool{}
+		for _, f := range out {
+			seen[f] = true
+		}
+		for _, l := range [][]string{t.StateNames, t.InputNames, t.OutputNames} {
+			for _, n := range l {
+				if !seen[n] {
+					seen[n] = true
+					out = append(out, n)
+				}
+			}
+		}
+		return out
+	}
+	if ti, ok := typeNames.info(v); ok {
+		return ti.Fields
+	}
+	if names, ok := valueFieldNames(v); ok {
+		return names
+	}
+	return nil
+}
+
+func namesList(names []string) *List {
+	l := &List{Items: make([]any, len(names))}
+	for i, n := range names {
+		l.Items[i] = n
+	}
+	return l
+}
+
+// systemField reads G.A ... G.every, or selects a signal by name: an output
+// or state name gives the system seen from that signal alone, an input name
+// the system driven by that input alone.
+func systemField(g *lsys.System, name string) (any, bool, error) {
+	switch name {
+	case "A", "B", "C", "D":
+		m := map[string]*mat.Dense{"A": g.A, "B": g.B, "C": g.C, "D": g.D}[name]
+		if m == nil {
+			return nil, true, fmt.Errorf("%s is empty for this system (%s)", name, systemSummary(g))
+		}
+		return mat.DenseCopyOf(m), true, nil
+	case "states":
+		return namesList(g.StateNames), true, nil
+	case "inputs":
+		return namesList(g.InputNames), true, nil
+	case "outputs":
+		return namesList(g.OutputNames), true, nil
+	case "every":
+		return g.Ts, true, nil
+	}
+	n, m := g.N(), g.M()
+	for i, o := range g.OutputNames {
+		if o == name {
+			var C, D *mat.Dense
+			if n > 0 {
+				C = mat.NewDense(1, n, nil)
+				C.Copy(g.C.Slice(i, i+1, 0, n))
+			}
+			if m > 0 {
+				D = mat.NewDense(1, m, nil)
+				D.Copy(g.D.Slice(i, i+1, 0, m))
+			}
+			s, err := lsys.NewSystem(n, m, 1, g.A, g.B, C, D, g.Ts)
+			if err != nil {
+				return nil, true, err
+			}
+			s, err = s.WithNames(g.StateNames, g.InputNames, []string{o})
+			return s, true, err
+		}
+	}
+	for i, st := range g.StateNames {
+		if st == name {
+			C := mat.NewDense(1, n, nil)
+			C.Set(0, i, 1)
+			s, err := lsys.NewSystem(n, m, 1, g.A, g.B, C, nil, g.Ts)
+			if err != nil {
+				return nil, true, err
+			}
+			s, err = s.WithNames(g.StateNames, g.InputNames, []string{st})
+			return s, true, err
+		}
+	}
+	for j, in := range g.InputNames {
+		if in == name {
+			var B, D *mat.Dense
+			p := g.P()
+			if n > 0 {
+				B = mat.NewDense(n, 1, nil)
+				B.Copy(g.B.Slice(0, n, j, j+1))
+			}
+			if p > 0 {
+				D = mat.NewDense(p, 1, nil)
+				D.Copy(g.D.Slice(0, p, j, j+1))
+			}
+			s, err := lsys.NewSystem(n, 1, p, g.A, B, g.C, D, g.Ts)
+			if err != nil {
+				return nil, true, err
+			}
+			s, err = s.WithNames(g.StateNames, []string{in}, g.OutputNames)
+			return s, true, err
+		}
+	}
+	return nil, false, nil
+}
+
+// toSystem converts v to a linear system where that makes sense: systems,
+// transfer functions, transfer matrices and static gains. It returns
+// (nil, nil) when v is something else entirely.
+func (ev *evaluator) toSystem(v any, pos Pos) (*lsys.System, error) {
+	switch t := v.(type) {
+	case *lsys.System:
+		return t, nil
+	case *NonlinearModel:
+		return nil, t.needLinearize(ev, pos)
+	case *lsys.Rational:
+		return ev.realize([][]*lsys.Rational{{t}}, pos)
+	case float64:
+		return staticGain(mat.NewDense(1, 1, []float64{t}), 0)
+	case *List:
+		rows, ok := transferRows(t)
+		if !ok {
+			return nil, nil
+		}
+		return ev.realize(rows, pos)
+	}
+	return nil, nil
+}
+
+func staticGain(d *mat.Dense, ts float64) (*lsys.System, error) {
+	r, c := d.Dims()
+	return lsys.NewSystem(0, c, r, nil, nil, nil, d, ts)
+}
+
+// transferRows reads a list of lists of transfer functions and numbers.
+func transferRows(l *List) ([][]*lsys.Rational, bool) {
+	var rows [][]*lsys.Rational
+	for _, it := range l.Items {
+		var row []*lsys.Rational
+		switch r := it.(type) {
+		case *List:
+			for _, e := range r.Items {
+				q, ok := asRational(e)
+				if !ok {
+					return nil, false
+				}
+				row = append(row, q)
+			}
+		case *mat.Dense:
+			n, c := r.Dims()
+			if c != 1 {
+				return nil, false
+			}
+			for i := 0; i < n; i++ {
+				row = append(row, lsys.Constant(r.At(i, 0)))
+			}
+		case *lsys.Rational:
+			// A flat list: one row.
+			return nil, false
+		default:
+			return nil, false
+		}
+		rows = append(rows, row)
+	}
+	if len(rows) == 0 {
+		return nil, false
+	}
+	for _, r := range rows {
+		if len(r) != len(rows[0]) {
+			return nil, false
+		}
+	}
+	return rows, true
+}
+
+func asRational(v any) (*lsys.Rational, bool) {
+	switch t := v.(type) {
+	case *lsys.Rational:
+		return t, true
+	case float64:
+		return lsys.Constant(t), true
+	}
+	return nil, false
+}
+
+func (ev *evaluator) realize(rows [][]*lsys.Rational, pos Pos) (*lsys.System, error) {
+	ts := 0.0
+	for _, r := range rows {
+		for _, q := range r {
+			if q.Ts != 0 {
+				ts = q.Ts
+			}
+		}
+	}
+	if ts < 0 {
+		return nil, ev.errorAt(pos, "this transfer function in z has no sample time yet",
+			"Give it one: system(H, every: 0.01).")
+	}
+	g, err := lsys.Realize(rows, ts)
+	if err != nil {
+		return nil, ev.errorAt(pos, "cannot turn this transfer function into a system: "+err.Error(), "")
+	}
+	return g, nil
+}
+
+// sortedKeys returns the keys of m in order (deterministic messages).
+func sortedKeys[V any](m map[string]V) []string {
+	out := make([]string, 0, len(m))
+	for k := range m {
+		out = append(out, k)
+	}
+	sort.Strings(out)
+	return out
+}
+
+// fielder is implemented by language values with fields (r.name).
+type fielder interface {
+	Field(name string) (any, bool)
+	FieldNames() []string
+}
+
+func valueFields(v any) (func(string) (any, bool), bool) {
+	if f, ok := v.(fielder); ok {
+		return f.Field, true
+	}
+	return nil, false
+}
+
+func valueFieldNames(v any) ([]string, bool) {
+	if f, ok := v.(fielder); ok {
+		return f.FieldNames(), true
+	}
+	return nil, false
+}
+
+func entries(k int) string {
+	if k == 1 {
+		return "1 entry"
+	}
+	return fmt.Sprintf("%d entries", k)
+}

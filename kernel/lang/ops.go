@@ -1,0 +1,509 @@
+package lang
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+
+	"gonum.org/v1/gonum/mat"
+
+	"lsys/lsys"
+)
+
+func toComplex(v any) complex128 {
+	switch x := v.(type) {
+	case float64:
+		return complex(x, 0)
+	case complex128:
+		return x
+	}
+	return 0
+}
+
+// number normalises a complex result with an exactly zero imaginary part
+// to a real number.
+func number(c complex128) any {
+	if imag(c) == 0 {
+		return real(c)
+	}
+	return c
+}
+
+func isNumber(v any) bool {
+	switch v.(type) {
+	case float64, complex128:
+		return true
+	}
+	return false
+}
+
+func (ev *evaluator) negate(v any, pos Pos) (any, error) {
+	switch x := v.(type) {
+	case float64:
+		return -x, nil
+	case complex128:
+		return -x, nil
+	case *mat.Dense:
+		var m mat.Dense
+		m.Scale(-1, x)
+		return &m, nil
+	case *mat.CDense:
+		r, c := x.Dims()
+		m := mat.NewCDense(r, c, nil)
+		for i := 0; i < r; i++ {
+			for j := 0; j < c; j++ {
+				m.Set(i, j, -x.At(i, j))
+			}
+		}
+		return m, nil
+	case *lsys.Rational:
+		return x.Neg(), nil
+	case *lsys.System:
+		return ev.binary(MUL, -1.0, x, pos, nil)
+	}
+	return nil, ev.errorAt(pos, fmt.Sprintf("cannot negate %s", typeName(v)), "")
+}
+
+var opVerb = map[Token]string{ADD: "add", SUB: "subtract", MUL: "multiply", DIV: "divide", POW: "raise"}
+
+func (ev *evaluator) opError(op Token, a, b any, pos Pos, hint string) error {
+	var msg string
+	switch op {
+	case ADD:
+		msg = fmt.Sprintf("cannot add %s and %s", typeName(a), typeName(b))
+	case SUB:
+		msg = fmt.Sprintf("cannot subtract %s from %s", typeName(b), typeName(a))
+	case MUL:
+		msg = fmt.Sprintf("cannot multiply %s by %s", typeName(a), typeName(b))
+	case DIV:
+		msg = fmt.Sprintf("cannot divide %s by %s", typeName(a), typeName(b))
+	case POW:
+		msg = fmt.Sprintf("cannot raise %s to the power %s", typeName(a), typeName(b))
+	default:
+		msg = fmt.Sprintf("cannot compare %s with %s using '%s'", typeName(a), typeName(b), op)
+	}
+	return ev.errorAt(pos, msg, hint)
+}
+
+// binary applies op to a and b. node is the expression (may be nil).
+func (ev *evaluator) binary(op Token, a, b any, pos Pos, node *BinaryExpr) (any, error) {
+	switch op {
+	case EQL, NEQ, LSS, LEQ, GTR, GEQ:
+		return ev.compare(op, a, b, pos)
+	}
+	// Numbers.
+	if isNumber(a) && isNumber(b) {
+		return ev.scalar(op, a, b, pos)
+	}
+	if sa, ok := a.(string); ok {
+		if sb, ok := b.(string); ok && op == ADD {
+			return sa + sb, nil
+		}
+	}
+	// Systems: series and parallel connections.
+	if _, ok := a.(*lsys.System); ok {
+		return ev.systemOp(op, a, b, pos)
+	}
+	if _, ok := b.(*lsys.System); ok {
+		return ev.systemOp(op, a, b, pos)
+	}
+	if _, ok := a.(*NonlinearModel); ok {
+		return nil, a.(*NonlinearModel).needLinearize(ev, pos)
+	}
+	if _, ok := b.(*NonlinearModel); ok {
+		return nil, b.(*NonlinearModel).needLinearize(ev, pos)
+	}
+	// Transfer functions.
+	_, ra := a.(*lsys.Rational)
+	_, rb := b.(*lsys.Rational)
+	if ra || rb {
+		return ev.rationalOp(op, a, b, pos)
+	}
+	// Matrices.
+	_, ma := a.(*mat.Dense)
+	_, mb := b.(*mat.Dense)
+	if ma || mb {
+		return ev.matrixOp(op, a, b, pos)
+	}
+	_, ca := a.(*mat.CDense)
+	_, cb := b.(*mat.CDense)
+	if ca || cb {
+		return nil, ev.opError(op, a, b, pos, "Arithmetic on complex matrices is not supported; work with real matrices or with their entries.")
+	}
+	return nil, ev.opError(op, a, b, pos, "")
+}
+
+func (ev *evaluator) scalar(op Token, a, b any, pos Pos) (any, error) {
+	fa, okA := a.(float64)
+	fb, okB := b.(float64)
+	inputsFinite := finite(a) && finite(b)
+	var r any
+	if okA && okB {
+		switch op {
+		case ADD:
+			r = fa + fb
+		case SUB:
+			r = fa - fb
+		case MUL:
+			r = fa * fb
+		case DIV:
+			if fb == 0 {
+				return nil, ev.errorAt(pos, "division by zero", "")
+			}
+			r = fa / fb
+		case POW:
+			if fa == 0 && fb < 0 {
+				return nil, ev.errorAt(pos, "zero to a negative power is division by zero", "")
+			}
+			if fa < 0 && fb != math.Trunc(fb) {
+				r = number(cmplx.Pow(complex(fa, 0), complex(fb, 0)))
+			} else {
+				r = math.Pow(fa, fb)
+			}
+		}
+	} else {
+		ca, cb := toComplex(a), toComplex(b)
+		switch op {
+		case ADD:
+			r = number(ca + cb)
+		case SUB:
+			r = number(ca - cb)
+		case MUL:
+			r = number(ca * cb)
+		case DIV:
+			if cb == 0 {
+				return nil, ev.errorAt(pos, "division by zero", "")
+			}
+			r = number(ca / cb)
+		case POW:
+			if ca == 0 && real(cb) < 0 {
+				return nil, ev.errorAt(pos, "zero to a negative power is division by zero", "")
+			}
+			if imag(cb) == 0 && real(cb) == math.Trunc(real(cb)) && math.Abs(real(cb)) <= 64 {
+				r = number(cpowInt(ca, int(real(cb))))
+			} else {
+				r = number(cmplx.Pow(ca, cb))
+			}
+		}
+	}
+	if !finite(r) {
+		if !inputsFinite {
+			if f, ok := r.(float64); ok && math.IsInf(f, 0) {
+				return r, nil
+			}
+		}
+		return nil, ev.errorAt(pos, fmt.Sprintf("the result of %s %s %s is not a finite number", FormatValue(a), op, FormatValue(b)),
+			"Numbers must stay below about 1.8e308; rescale the quantities (other units).")
+	}
+	return r, nil
+}
+
+// cpowInt is exact repeated multiplication, so (1j)^2 is exactly -1.
+func cpowInt(c complex128, k int) complex128 {
+	if k < 0 {
+		return 1 / cpowInt(c, -k)
+	}
+	out := complex(1, 0)
+	for k > 0 {
+		if k&1 == 1 {
+			out *= c
+		}
+		c *= c
+		k >>= 1
+	}
+	return out
+}
+
+func (ev *evaluator) compare(op Token, a, b any, pos Pos) (any, error) {
+	if op == EQL || op == NEQ {
+		var eq bool
+		switch {
+		case isNumber(a) && isNumber(b):
+			eq = toComplex(a) == toComplex(b)
+		default:
+			switch x := a.(type) {
+			case string:
+				y, ok := b.(string)
+				eq = ok && x == y
+				if !ok {
+					return nil, ev.opError(op, a, b, pos, "")
+				}
+			case bool:
+				y, ok := b.(bool)
+				eq = ok && x == y
+				if !ok {
+					return nil, ev.opError(op, a, b, pos, "")
+				}
+			case *mat.Dense:
+				y, ok := b.(*mat.Dense)
+				if !ok {
+					return nil, ev.opError(op, a, b, pos, "")
+				}
+				eq = mat.Equal(x, y)
+			default:
+				return nil, ev.opError(op, a, b, pos, "Only numbers, strings, booleans and matrices can be compared.")
+			}
+		}
+		if op == NEQ {
+			eq = !eq
+		}
+		return eq, nil
+	}
+	fa, okA := a.(float64)
+	fb, okB := b.(float64)
+	if !okA || !okB {
+		hint := ""
+		if isNumber(a) && isNumber(b) {
+			hint = "Complex numbers have no order; compare real(x) or abs(x)."
+		}
+		return nil, ev.opError(op, a, b, pos, hint)
+	}
+	switch op {
+	case LSS:
+		return fa < fb, nil
+	case LEQ:
+		return fa <= fb, nil
+	case GTR:
+		return fa > fb, nil
+	}
+	return fa >= fb, nil
+}
+
+func shape(m mat.Matrix) string {
+	r, c := m.Dims()
+	return fmt.Sprintf("%dx%d", r, c)
+}
+
+func (ev *evaluator) matrixOp(op Token, a, b any, pos Pos) (any, error) {
+	ma, aMat := a.(*mat.Dense)
+	mb, bMat := b.(*mat.Dense)
+	fa, aNum := a.(float64)
+	fb, bNum := b.(float64)
+	var out mat.Dense
+	switch {
+	case aMat && bMat:
+		ar, ac := ma.Dims()
+		br, bc := mb.Dims()
+		switch op {
+		case ADD, SUB:
+			if ar != br || ac != bc {
+				return nil, ev.errorAt(pos, fmt.Sprintf("cannot %s a %dx%d and a %dx%d matrix: the shapes differ", opVerb[op], ar, ac, br, bc),
+					"Both sides of + and - need the same number of rows and columns.")
+			}
+			if op == ADD {
+				out.Add(ma, mb)
+			} else {
+				out.Sub(ma, mb)
+			}
+		case MUL:
+			if ac != br {
+				return nil, ev.errorAt(pos, fmt.Sprintf("cannot multiply a %dx%d by a %dx%d matrix: %d columns against %d rows", ar, ac, br, bc, ac, br),
+					"In A*B the columns of A must match the rows of B; transpose(v) turns a column into a row.")
+			}
+			if ar*bc > MaxEntries {
+				return nil, ev.tooBig(pos, ar, bc)
+			}
+			out.Mul(ma, mb)
+		case DIV:
+			return nil, ev.errorAt(pos, "cannot divide by a matrix", "Use solve(A, b) for A x = b, or inverse(A).")
+		case POW:
+			return nil, ev.errorAt(pos, "the power must be a whole number", "Write M^2, M^-1.")
+		}
+	case aMat && bNum:
+		switch op {
+		case MUL:
+			out.Scale(fb, ma)
+		case DIV:
+			if fb == 0 {
+				return nil, ev.errorAt(pos, "division by zero", "")
+			}
+			out.Scale(1/fb, ma)
+		case POW:
+			return ev.matrixPow(ma, fb, pos)
+		default:
+			return nil, ev.opError(op, a, b, pos, "To shift the diagonal write M + k*identity(n).")
+		}
+	case aNum && bMat:
+		if op != MUL {
+			return nil, ev.opError(op, a, b, pos, "To shift the diagonal write k*identity(n) + M.")
+		}
+		out.Scale(fa, mb)
+	default:
+		hint := ""
+		if isNumber(a) || isNumber(b) {
+			hint = "Complex numbers times real matrices are not supported; scale by a real number."
+		}
+		return nil, ev.opError(op, a, b, pos, hint)
+	}
+	if err := lsys.CheckFinite("the result", &out); err != nil {
+		return nil, ev.errorAt(pos, err.Error(), "Rescale the quantities (other units).")
+	}
+	return &out, nil
+}
+
+func (ev *evaluator) matrixPow(m *mat.Dense, k float64, pos Pos) (any, error) {
+	r, c := m.Dims()
+	if r != c {
+		return nil, ev.errorAt(pos, fmt.Sprintf("only a square matrix has powers, not a %dx%d one", r, c), "")
+	}
+	if k != math.Trunc(k) || math.Abs(k) > 1e6 {
+		return nil, ev.errorAt(pos, fmt.Sprintf("a matrix power must be a whole number, not %s", FormatNumber(k)), "For exp(A t) use exp(t*A).")
+	}
+	base := mat.DenseCopyOf(m)
+	if k < 0 {
+		var inv mat.Dense
+		if err := inv.Inverse(m); err != nil {
+			return nil, ev.errorAt(pos, "the matrix is singular (or nearly): it has no inverse", "Check it with rank(M) or det(M).")
+		}
+		base = &inv
+		k = -k
+	}
+	out := mat.NewDense(r, r, nil)
+	for i := 0; i < r; i++ {
+		out.Set(i, i, 1)
+	}
+	n := int(k)
+	for n > 0 {
+		if err := ev.step(pos); err != nil {
+			return nil, err
+		}
+		if n&1 == 1 {
+			var t mat.Dense
+			t.Mul(out, base)
+			out = &t
+		}
+		var t mat.Dense
+		t.Mul(base, base)
+		base = &t
+		n >>= 1
+	}
+	if err := lsys.CheckFinite("the result", out); err != nil {
+		return nil, ev.errorAt(pos, err.Error(), "")
+	}
+	return out, nil
+}
+
+func (ev *evaluator) rationalOp(op Token, a, b any, pos Pos) (any, error) {
+	if op == POW {
+		ra, ok := a.(*lsys.Rational)
+		k, okk := b.(float64)
+		if !ok || !okk || k != math.Trunc(k) || math.Abs(k) > 100 {
+			return nil, ev.opError(op, a, b, pos, "A transfer function can be raised to a whole power up to 100: (s + 1)^2.")
+		}
+		r, err := ra.Pow(int(k))
+		if err != nil {
+			return nil, ev.errorAt(pos, err.Error(), "")
+		}
+		return simplifyRational(r), nil
+	}
+	ra, okA := asRational(a)
+	rb, okB := asRational(b)
+	if !okA || !okB {
+		return nil, ev.opError(op, a, b, pos, "Transfer functions combine with numbers and other transfer functions; a list of lists of them is a transfer matrix.")
+	}
+	var r *lsys.Rational
+	var err error
+	switch op {
+	case ADD:
+		r, err = ra.Add(rb)
+	case SUB:
+		r, err = ra.Sub(rb)
+	case MUL:
+		r, err = ra.Mul(rb)
+	case DIV:
+		r, err = ra.Div(rb)
+	}
+	if err != nil {
+		return nil, ev.errorAt(pos, err.Error(), "")
+	}
+	return simplifyRational(r), nil
+}
+
+// simplifyRational turns a constant rational into a plain number.
+func simplifyRational(r *lsys.Rational) any {
+	if r.IsConstant() && r.Ts <= 0 {
+		if len(r.Num) == 0 {
+			return 0.0
+		}
+		return r.Num[0] / r.Den[0]
+	}
+	return r
+}
+
+// systemOp: G*K is the series connection (K feeds G), G+H and G-H the
+// parallel ones. Numbers and transfer functions are turned into systems.
+func (ev *evaluator) systemOp(op Token, a, b any, pos Pos) (any, error) {
+	if op != ADD && op != SUB && op != MUL {
+		hint := "Between systems, * is the series connection and + and - the parallel ones."
+		if op == DIV {
+			hint = "To close a loop use closeloop(G, K); there is no division of systems."
+		}
+		return nil, ev.opError(op, a, b, pos, hint)
+	}
+	ga, err := ev.toSystem(a, pos)
+	if err != nil {
+		return nil, err
+	}
+	gb, err := ev.toSystem(b, pos)
+	if err != nil {
+		return nil, err
+	}
+	if ga == nil || gb == nil {
+		return nil, ev.opError(op, a, b, pos, "Systems combine with systems, transfer functions and numbers.")
+	}
+	// A number is a static gain of matching size.
+	if f, ok := a.(float64); ok && op == MUL {
+		ga, err = scalarGain(f, gb.P(), gb.Ts)
+	} else if f, ok := b.(float64); ok && op == MUL {
+		gb, err = scalarGain(f, ga.M(), ga.Ts)
+	} else if f, ok := a.(float64); ok {
+		ga, err = scalarGain(f, gb.P(), gb.Ts)
+		if err == nil && gb.M() != gb.P() {
+			return nil, ev.errorAt(pos, "adding a number to a system needs as many inputs as outputs", "")
+		}
+	} else if f, ok := b.(float64); ok {
+		gb, err = scalarGain(f, ga.P(), ga.Ts)
+		if err == nil && ga.M() != ga.P() {
+			return nil, ev.errorAt(pos, "adding a number to a system needs as many inputs as outputs", "")
+		}
+	}
+	if err != nil {
+		return nil, ev.errorAt(pos, err.Error(), "")
+	}
+	var g *lsys.System
+	switch op {
+	case MUL:
+		if ga.M() != gb.P() {
+			return nil, ev.errorAt(pos, fmt.Sprintf("cannot connect in series: the left system has %s but the right one has %s",
+				plural(ga.M(), "input"), plural(gb.P(), "output")),
+				"In G * K the outputs of K feed the inputs of G, so their numbers must match.")
+		}
+		g, err = lsys.Series(ga, gb)
+	case ADD, SUB:
+		if ga.M() != gb.M() || ga.P() != gb.P() {
+			return nil, ev.errorAt(pos, fmt.Sprintf("cannot connect in parallel a system with %s and %s to one with %s and %s",
+				plural(ga.M(), "input"), plural(ga.P(), "output"), plural(gb.M(), "input"), plural(gb.P(), "output")),
+				"Both sides of + and - need the same numbers of inputs and outputs.")
+		}
+		sign := 1.0
+		if op == SUB {
+			sign = -1
+		}
+		g, err = lsys.Parallel(ga, gb, sign)
+	}
+	if err != nil {
+		return nil, ev.errorAt(pos, err.Error(), "")
+	}
+	return g, nil
+}
+
+func scalarGain(k float64, n int, ts float64) (*lsys.System, error) {
+	d := mat.NewDense(n, n, nil)
+	for i := 0; i < n; i++ {
+		d.Set(i, i, k)
+	}
+	if n == 0 {
+		return lsys.NewSystem(0, 0, 0, nil, nil, nil, nil, ts)
+	}
+	return staticGain(d, ts)
+}
