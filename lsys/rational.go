@@ -201,7 +201,7 @@ func (r *Rational) Add(q *Rational) (*Rational, error) {
 	if err != nil {
 		return nil, err
 	}
-	if polyEqual(r.Den, q.Den) {
+	if samePoly(r.Den, q.Den) {
 		return (&Rational{Num: r.Num.Add(q.Num), Den: r.Den, Ts: ts}).Normalize()
 	}
 	return (&Rational{Num: r.Num.Mul(q.Den).Add(q.Num.Mul(r.Den)), Den: r.Den.Mul(q.Den), Ts: ts}).Normalize()
@@ -268,7 +268,7 @@ func (r *Rational) Degree() (num, den int) { return r.Num.Degree(), r.Den.Degree
 // model without derivatives of the input).
 func (r *Rational) Proper() bool { n, d := r.Degree(); return n <= d }
 
-func polyEqual(p, q Poly) bool {
+func samePoly(p, q Poly) bool {
 	p, q = p.Trim(), q.Trim()
 	if len(p) != len(q) {
 		return false

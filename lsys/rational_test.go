@@ -9,7 +9,7 @@ import (
 func TestPolyArithmetic(t *testing.T) {
 	// (s + 1)(s + 2) = s^2 + 3 s + 2 (algebra).
 	p := Poly{1, 1}.Mul(Poly{2, 1})
-	if !polyEqual(p, Poly{2, 3, 1}) {
+	if !samePoly(p, Poly{2, 3, 1}) {
 		t.Errorf("(s+1)(s+2) = %v", p)
 	}
 	if got := p.Format("s"); got != "s^2 + 3*s + 2" {
@@ -43,7 +43,7 @@ func TestRationalArithmetic(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !polyEqual(sum.Num, Poly{3, 2}) || !polyEqual(sum.Den, Poly{2, 3, 1}) {
+	if !samePoly(sum.Num, Poly{3, 2}) || !samePoly(sum.Den, Poly{2, 3, 1}) {
 		t.Errorf("sum = %v", sum)
 	}
 	// 5/(s^2 + 2s + 5): steady-state gain H(0) = 1, and |H(j sqrt(5))| = 5/(2 sqrt 5)
@@ -61,12 +61,12 @@ func TestRationalArithmetic(t *testing.T) {
 	}
 	// Normalisation makes the denominator monic.
 	n, _ := (&Rational{Num: Poly{2}, Den: Poly{4, 2}}).Normalize()
-	if !polyEqual(n.Num, Poly{1}) || !polyEqual(n.Den, Poly{2, 1}) {
+	if !samePoly(n.Num, Poly{1}) || !samePoly(n.Den, Poly{2, 1}) {
 		t.Errorf("normalised %v", n)
 	}
 	// (s + 1)^-2
 	p, err := mustAdd(t, s, one).Pow(-2)
-	if err != nil || !polyEqual(p.Den, Poly{1, 2, 1}) || !polyEqual(p.Num, Poly{1}) {
+	if err != nil || !samePoly(p.Den, Poly{1, 2, 1}) || !samePoly(p.Num, Poly{1}) {
 		t.Errorf("(s+1)^-2 = %v, %v", p, err)
 	}
 	if nd, dd := p.Degree(); nd != 0 || dd != 2 || !p.Proper() {

@@ -9,6 +9,7 @@ import (
 	"math"
 	"math/cmplx"
 	"strings"
+	"time"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -54,6 +55,45 @@ func coreBuiltins() []*Builtin {
 			Fn: func(c *Call) (any, error) {
 				c.Out().Display(c.Value("value"), "")
 				return nil, nil
+			},
+		},
+		{
+			Name: "clear", Group: GroupOutput,
+			Params:   []Param{{Name: "wait", Default: false, Doc: "true: clear only when the next output arrives (no flicker)"}},
+			Help:     "Clear the cell's output shown so far.",
+			Doc:      "Useful in a cell that shows progress and then its result.",
+			Examples: []string{"print(\"working\")\nclear()\nprint(\"done\")"},
+			Fn: func(c *Call) (any, error) {
+				w, err := c.Bool("wait")
+				if err != nil {
+					return nil, err
+				}
+				c.Out().ClearOutput(w)
+				return nil, nil
+			},
+		},
+		{
+			Name: "pause", Group: GroupOutput,
+			Params:   []Param{{Name: "seconds", Doc: "how long to wait, at most 3600"}},
+			Help:     "Wait for a number of seconds (an interrupt ends the wait).",
+			Doc:      "For demonstrations and for testing interrupts; analysis never needs it.",
+			Examples: []string{"pause(0.01)"},
+			Fn: func(c *Call) (any, error) {
+				sec, err := c.Float("seconds")
+				if err != nil {
+					return nil, err
+				}
+				if sec < 0 || sec > 3600 {
+					return nil, c.Errorf("seconds", "", "pause takes 0 to 3600 seconds, not %s", FormatNumber(sec))
+				}
+				t := time.NewTimer(time.Duration(sec * float64(time.Second)))
+				defer t.Stop()
+				select {
+				case <-t.C:
+					return nil, nil
+				case <-c.Context().Done():
+					return nil, c.Context().Err()
+				}
 			},
 		},
 		{
