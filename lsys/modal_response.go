@@ -21,25 +21,18 @@ type ModalResponse struct {
 	Labels   []string     // the eigenvalue of each part ("-1 ± 2j"), or "direct"
 	Values   []complex128 // the eigenvalue of each part (upper of a pair); NaN for the direct part
 	Parts    [][][][]float64
-	MaxCond  float64 // largest eigenvalue condition number among the modes
+	MaxCond  float64 // condition number of the modal transformation
 }
-
-// ModalCondLimit is the eigenvalue condition number above which ByMode
-// refuses the split: the spectral projectors then have norms of that size
-// and the parts cancel each other to the displayed accuracy.
-const ModalCondLimit = 1e8
 
 // ByMode computes the response of kind "step", "impulse", "initial" (from
 // x0) or "input" (the signal u, from x0 or rest) together with its modal
-// parts. Each part is C P_q x(t), with P_q = v w^H/(w^H v) the spectral
-// projector of a simple eigenvalue (for a conjugate pair, 2 Re of the
-// projector of its upper member; Kato, Perturbation Theory for Linear
-// Operators, 1966, Ch. I, Section 5). Because P_q commutes with A, the part
-// is the response of (A, B, C P_q, 0) and is computed exactly like the total.
-//
-// Diagonalizable systems only: when an eigenvalue condition number exceeds
-// ModalCondLimit (a defective or nearly defective eigenvalue) the split is
-// refused with an error; splitting per invariant block is not implemented.
+// parts. The blocks come from Modal: a real mode, a complex pair, or (for
+// defective, nearly defective or very close eigenvalues) one invariant
+// block holding the cluster. With z = T x and block rows b, each part is
+// C P_b x(t) with the spectral projector P_b = Tinv[:, b] T[b, :] (Kato,
+// Perturbation Theory for Linear Operators, 1966, Ch. I, Section 5).
+// Because P_b commutes with A, the part is the response of (A, B, C P_b, 0)
+// and is computed exactly like the total; the parts sum to the response.
 func ByMode(ctx context.Context, g *System, kind string, x0 []float64, u *Signal, opt ResponseOptions) (*ModalResponse, error) {
 	if g == nil {
 		return nil, errors.New("response: the system is missing")
@@ -77,34 +70,16 @@ func ByMode(ctx context.Context, g *System, kind string, x0 []float64, u *Signal
 		if n > 200 {
 			return nil, fmt.Errorf("response by mode: %d states is more than the 200 this split handles; reduce the model first", n)
 		}
-		es, err := Eigen(g.A)
+		mf, err := Modal(g)
 		if err != nil {
 			return nil, fmt.Errorf("response by mode: %w", err)
 		}
-		for k := 0; k < n; k++ {
-			mr.MaxCond = math.Max(mr.MaxCond, es.Cond[k])
-		}
-		if mr.MaxCond > ModalCondLimit {
-			return nil, fmt.Errorf("response by mode: an eigenvalue has condition number %.3g (above %.0e): the system is defective or nearly so, and splitting per invariant block is not implemented; look at modes(G) and jordan(G)", mr.MaxCond, ModalCondLimit)
-		}
-		for k := 0; k < n; k++ {
-			l := es.Values[k]
-			if imag(l) < 0 {
-				continue // the upper member of the pair carries it
-			}
-			v, w := es.Right[k], es.Left[k]
-			d := eigDotH(w, v)
-			f := 1.0
-			if imag(l) > 0 {
-				f = 2
-			}
-			P := mat.NewDense(n, n, nil)
-			for i := 0; i < n; i++ {
-				for j := 0; j < n; j++ {
-					P.Set(i, j, f*real(v[i]*cmplx.Conj(w[j])/d))
-				}
-			}
-			part, err := NewSystem(n, g.M(), p, g.A, g.B, mul(g.C, P), nil, g.Ts)
+		mr.MaxCond = mf.Cond
+		for _, blk := range mf.Blocks {
+			b0, b1 := blk.Start, blk.Start+blk.Size
+			var P mat.Dense
+			P.Mul(mf.Tinv.Slice(0, n, b0, b1), mf.T.Slice(b0, b1, 0, n))
+			part, err := NewSystem(n, g.M(), p, g.A, g.B, mul(g.C, &P), nil, g.Ts)
 			if err != nil {
 				return nil, fmt.Errorf("response by mode: %w", err)
 			}
@@ -113,8 +88,24 @@ func ByMode(ctx context.Context, g *System, kind string, x0 []float64, u *Signal
 				return nil, err
 			}
 			mr.Parts = append(mr.Parts, r.Y)
+			l := cmplx.NaN()
+			label := ""
+			for i, v := range blk.Values {
+				if imag(v) < 0 {
+					continue
+				}
+				if i == 0 {
+					l = v
+				} else {
+					label += ", "
+				}
+				label += modeLabel(v)
+			}
+			if blk.Kind == "cluster" {
+				label = "block {" + label + "}"
+			}
 			mr.Values = append(mr.Values, l)
-			mr.Labels = append(mr.Labels, modeLabel(l))
+			mr.Labels = append(mr.Labels, label)
 		}
 	}
 	if kind != "impulse" && kind != "initial" && g.D != nil && mat.Norm(g.D, 1) > 0 {

@@ -59,9 +59,27 @@ func TestByModeSumsAndFirstOrderParts(t *testing.T) {
 	if worst > 1e-12 {
 		t.Errorf("sum error %g", worst)
 	}
-	// A Jordan block is refused.
-	jb, _ := FromMatrices(mat.NewDense(2, 2, []float64{-1, 1, 0, -1}), mat.NewDense(2, 1, []float64{0, 1}), mat.NewDense(1, 2, []float64{1, 0}), nil, 0)
-	if _, err := ByMode(context.Background(), jb, "step", nil, nil, ResponseOptions{}); err == nil {
-		t.Error("defective system split")
+	// A Jordan block stays one part: the whole response.
+	jb, _ := FromMatrices(mat.NewDense(3, 3, []float64{-1, 1, 0, 0, -1, 0, 0, 0, -4}), mat.NewDense(3, 1, []float64{0, 1, 1}), mat.NewDense(1, 3, []float64{1, 0, 1}), nil, 0)
+	mr, err = ByMode(context.Background(), jb, "step", nil, nil, ResponseOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(mr.Parts) != 2 {
+		t.Fatalf("Jordan case: %d parts %v, want 2", len(mr.Parts), mr.Labels)
+	}
+	// parts: 1/(s+1)^2 and 1/(s+4) step responses (by hand):
+	// 1 - (1+t)e^{-t} and (1 - e^{-4t})/4.
+	worst = 0
+	for k, tk := range mr.Response.T {
+		a, b := 1-(1+tk)*math.Exp(-tk), (1-math.Exp(-4*tk))/4
+		p0, p1 := mr.Parts[0][0][0][k], mr.Parts[1][0][0][k]
+		if math.Abs(real(mr.Values[0])+4) < 1e-9 {
+			p0, p1 = p1, p0
+		}
+		worst = math.Max(worst, math.Max(math.Abs(p0-a), math.Abs(p1-b)))
+	}
+	if worst > 1e-9 {
+		t.Errorf("Jordan parts worst error %g (%v)", worst, mr.Labels)
 	}
 }
