@@ -92,7 +92,7 @@ func TestModalUnreachableRowUnseenColumn(t *testing.T) {
 	Am.Set(2, 2, -0.3)
 	Am.Set(3, 3, -7)
 	Am.Set(4, 4, -20)
-	Bm := mat.NewDense(5, 1, []float64{1, 0, 0, 2, 1}) // the pair is not reached
+	Bm := mat.NewDense(5, 1, []float64{1, 0, 0, 2, 1})  // the pair is not reached
 	Cm := mat.NewDense(1, 5, []float64{1, 1, -1, 0, 1}) // mode -7 is not seen
 	s0, _ := FromMatrices(Am, Bm, Cm, nil, 0)
 	S := randDense(rng, 5, 5)
