@@ -1,0 +1,177 @@
+package lsys
+
+import (
+	"math"
+	"math/cmplx"
+	"math/rand/v2"
+	"sort"
+	"testing"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+func sysOf(t *testing.T, A, B, C, D *mat.Dense) *System {
+	t.Helper()
+	s, err := FromMatrices(A, B, C, D, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s
+}
+
+func TestZerosSISO(t *testing.T) {
+	// Closed form: the zeros of a SISO transfer function are the roots of
+	// its numerator (no cancellation). Controllable canonical form of
+	// (s + 2)/(s^2 + 4 s + 3): zero -2.
+	A := mat.NewDense(2, 2, []float64{0, 1, -3, -4})
+	B := mat.NewDense(2, 1, []float64{0, 1})
+	s := sysOf(t, A, B, mat.NewDense(1, 2, []float64{2, 1}), nil)
+	z, err := Zeros(s, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !zerosClose(z.Invariant, []complex128{-2}, 1e-12) || !zerosClose(z.Transmission, []complex128{-2}, 1e-12) {
+		t.Errorf("zeros %v / %v, want -2", z.Invariant, z.Transmission)
+	}
+	// With a direct feedthrough: 1 + (2 - s)/(s^2 + 4s + 3) = (s^2 + 3s + 5)/(...):
+	// zeros -1.5 +- j sqrt(11)/2.
+	s2 := sysOf(t, A, B, mat.NewDense(1, 2, []float64{2, -1}), mat.NewDense(1, 1, []float64{1}))
+	z2, err := Zeros(s2, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []complex128{complex(-1.5, math.Sqrt(11)/2), complex(-1.5, -math.Sqrt(11)/2)}
+	if !zerosClose(z2.Invariant, want, 1e-12) {
+		t.Errorf("zeros %v, want %v", z2.Invariant, want)
+	}
+	// Relative degree 2: 1/(s^2 + 4s + 3) has no finite zeros.
+	s3 := sysOf(t, A, B, mat.NewDense(1, 2, []float64{1, 0}), nil)
+	z3, _ := Zeros(s3, 0)
+	if len(z3.Invariant) != 0 {
+		t.Errorf("zeros %v, want none", z3.Invariant)
+	}
+}
+
+func TestZerosMIMO(t *testing.T) {
+	// G = [[1/(s+1), 2/(s+3)], [1/(s+1), 1/(s+1)]]: det G = (1 - s) /
+	// ((s+1)^2 (s+3)), so one transmission zero at s = 1 (closed form; for
+	// a square G without cancellations the zeros are the roots of the
+	// numerator of det G, Skogestad & Postlethwaite, Multivariable Feedback
+	// Control, 2nd ed. 2005, sec. 4.5, from memory).
+	A := mat.NewDense(3, 3, []float64{-1, 0, 0, 0, -3, 0, 0, 0, -1})
+	B := mat.NewDense(3, 2, []float64{1, 0, 0, 2, 0, 1})
+	C := mat.NewDense(2, 3, []float64{1, 1, 0, 1, 0, 1})
+	s := sysOf(t, A, B, C, nil)
+	z, err := Zeros(s, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !zerosClose(z.Invariant, []complex128{1}, 1e-12) {
+		t.Errorf("zeros %v, want [1]", z.Invariant)
+	}
+	// Hidden behind a random similarity and with a 3rd output (non-square):
+	// a 3x2 system with an extra independent output generically has no
+	// zeros; with the extra output a copy of y1 it keeps s = 1.
+	rng := rand.New(rand.NewPCG(82, 4))
+	C3 := mat.NewDense(3, 3, []float64{1, 1, 0, 1, 0, 1, 1, 1, 0})
+	s3, _ := Transform(sysOf(t, A, B, C3, nil), randDense(rng, 3, 3))
+	z3, err := Zeros(s3, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !zerosClose(z3.Invariant, []complex128{1}, 1e-9) {
+		t.Errorf("non-square zeros %v, want [1]", z3.Invariant)
+	}
+	C4 := mat.NewDense(3, 3, []float64{1, 1, 0, 1, 0, 1, 0, 1, 0})
+	z4, _ := Zeros(sysOf(t, A, B, C4, nil), 0)
+	if len(z4.Invariant) != 0 {
+		t.Errorf("tall system zeros %v, want none", z4.Invariant)
+	}
+}
+
+func TestZerosDecoupling(t *testing.T) {
+	// A mode no input reaches is an input-decoupling zero; one no output
+	// sees an output-decoupling zero (Rosenbrock 1970, State-space and
+	// multivariable theory, ch. 3). Plant: diag(-1, -2, -5), B reaches
+	// modes 1 and 2, C sees modes 1 and 3.
+	A := mat.NewDense(3, 3, []float64{-1, 0, 0, 0, -2, 0, 0, 0, -5})
+	B := mat.NewDense(3, 1, []float64{1, 1, 0})
+	C := mat.NewDense(1, 3, []float64{1, 0, 1})
+	rng := rand.New(rand.NewPCG(70, 3))
+	s, _ := Transform(sysOf(t, A, B, C, mat.NewDense(1, 1, []float64{0.5})), randDense(rng, 3, 3))
+	z, err := Zeros(s, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !zerosClose(z.InputDecoupling, []complex128{-5}, 1e-10) || !zerosClose(z.OutputDecoupling, []complex128{-2}, 1e-10) {
+		t.Errorf("decoupling zeros in %v out %v", z.InputDecoupling, z.OutputDecoupling)
+	}
+	// Transmission zero of the minimal part 1/(s+1) + 0.5: s = -3.
+	if !zerosClose(z.Transmission, []complex128{-3}, 1e-10) {
+		t.Errorf("transmission %v, want [-3]", z.Transmission)
+	}
+	// Invariant zeros hold all three.
+	if !zerosClose(z.Invariant, []complex128{-3, -2, -5}, 1e-9) {
+		t.Errorf("invariant %v, want -3, -2, -5", z.Invariant)
+	}
+}
+
+func TestQZKnownPencil(t *testing.T) {
+	// Planted: Q diag(1, 2, -3, 4) Z - s Q diag(1, 1, 1, 0) Z has finite
+	// generalized eigenvalues 1, 2, -3 and one infinite (Moler & Stewart
+	// 1973, sec. 1: equivalence preserves them).
+	rng := rand.New(rand.NewPCG(1973, 1))
+	Q, Z := randOrthogonal(rng, 4), randDense(rng, 4, 4)
+	var A, E mat.Dense
+	A.Mul(Q, mat.NewDense(4, 4, []float64{1, 0, 0, 0, 0, 2, 0, 0, 0, 0, -3, 0, 0, 0, 0, 4}))
+	A.Mul(&A, Z)
+	E.Mul(Q, mat.NewDense(4, 4, []float64{1, 0, 0, 0, 0, 1, 0, 0, 0, 0, 1, 0, 0, 0, 0, 0}))
+	E.Mul(&E, Z)
+	ge, err := QZ(&A, &E)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var fin []complex128
+	inf := 0
+	for _, g := range ge {
+		if g.Finite(1e-10) {
+			fin = append(fin, g.Value())
+		} else {
+			inf++
+		}
+	}
+	if inf != 1 || !zerosClose(fin, []complex128{1, 2, -3}, 1e-12) {
+		t.Errorf("finite %v, %d infinite", fin, inf)
+	}
+}
+
+func TestQZMatchesStandardEigen(t *testing.T) {
+	// With E invertible the generalized eigenvalues are those of E^-1 A
+	// (definition); compare QZ with the Hessenberg-QR eigenvalues.
+	rng := rand.New(rand.NewPCG(11, 12))
+	for trial := 0; trial < 20; trial++ {
+		n := 2 + trial%9
+		A, E := randDense(rng, n, n), randDense(rng, n, n)
+		for i := 0; i < n; i++ {
+			E.Set(i, i, E.At(i, i)+4) // keep E well-conditioned
+		}
+		ge, err := QZ(A, E)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var M mat.Dense
+		if err := M.Solve(E, A); err != nil {
+			t.Fatal(err)
+		}
+		es, _ := Eigen(&M)
+		var got []complex128
+		for _, g := range ge {
+			got = append(got, g.Value())
+		}
+		if !zerosClose(got, es.Values, 1e-9) {
+			sort.Slice(got, func(i, j int) bool { return real(got[i]) < real(got[j]) })
+			t.Errorf("n=%d: QZ %v vs eig %v", n, got, es.Values)
+		}
+	}
+	_ = cmplx.Abs
+}
