@@ -1,0 +1,514 @@
+package display
+
+// The plotting theme and figure builder for the response displays.
+//
+// Colours are the colour-blind-safe palette of Okabe & Ito (2008, "Color
+// Universal Design", https://jfly.uni-koeln.de/color/), and every series
+// also has its own line style and marker shape, so charts read in grey
+// scale and for every kind of colour vision. Curves are decimated to the
+// screen resolution before drawing (see rpDecimate), which keeps a
+// 10,000-sample response a small SVG, and all output is deterministic:
+// the same data give the same bytes.
+
+import (
+	"bytes"
+	"encoding/base64"
+	"image/color"
+	"math"
+	"sort"
+	"strconv"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgimg"
+	"gonum.org/v1/plot/vg/vgsvg"
+)
+
+// rpPalette is Okabe & Ito's palette in the order we use it: blue,
+// vermillion, bluish green, orange, reddish purple, sky blue, black,
+// yellow (last: weak on white).
+var rpPalette = []color.NRGBA{
+	{0x00, 0x72, 0xB2, 0xFF}, // blue
+	{0xD5, 0x5E, 0x00, 0xFF}, // vermillion
+	{0x00, 0x9E, 0x73, 0xFF}, // bluish green
+	{0xE6, 0x9F, 0x00, 0xFF}, // orange
+	{0xCC, 0x79, 0xA7, 0xFF}, // reddish purple
+	{0x56, 0xB4, 0xE9, 0xFF}, // sky blue
+	{0x00, 0x00, 0x00, 0xFF}, // black
+	{0xF0, 0xE4, 0x42, 0xFF}, // yellow
+}
+
+var (
+	rpBlack = color.NRGBA{0, 0, 0, 0xFF}
+	rpGrey  = color.NRGBA{0x99, 0x99, 0x99, 0xFF}
+	rpGrid  = color.NRGBA{0xE4, 0xE4, 0xE4, 0xFF}
+)
+
+// rpDashes gives each series index its own line pattern besides colour.
+var rpDashes = [][]vg.Length{
+	nil,
+	{vg.Points(6), vg.Points(3)},
+	{vg.Points(1.5), vg.Points(2.5)},
+	{vg.Points(7), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5)},
+	{vg.Points(11), vg.Points(4)},
+	{vg.Points(3), vg.Points(3)},
+	{vg.Points(9), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5)},
+	{vg.Points(2), vg.Points(5)},
+}
+
+// rpGlyphs gives each series index its own marker shape.
+var rpGlyphs = []draw.GlyphDrawer{
+	draw.CircleGlyph{}, draw.TriangleGlyph{}, draw.BoxGlyph{}, draw.PyramidGlyph{},
+	draw.RingGlyph{}, draw.SquareGlyph{}, draw.PlusGlyph{}, draw.CrossGlyph{},
+}
+
+// rpSeries is one curve.
+type rpSeries struct {
+	Name  string
+	X, Y  []float64
+	Style int     // index into the palette, dashes and glyphs; -1: black reference style
+	Width float64 // points; 0 means 1.5
+	Stairs bool   // sampled signal: hold each value to the next sample
+	Glyph  bool   // draw markers at a few places along the curve
+	Points bool   // draw markers only (no line), e.g. poles and zeros
+	Shape  draw.GlyphDrawer
+	Radius float64
+	Color  color.Color // overrides the style's colour (grid curves)
+}
+
+// rpLine is a reference line across a panel (horizontal or vertical).
+type rpLine struct {
+	At       float64
+	Vertical bool
+	Dashed   bool
+}
+
+// rpText is an annotation placed at data coordinates.
+type rpText struct {
+	X, Y float64
+	Text string
+}
+
+// rpPanel is one chart.
+type rpPanel struct {
+	Title, XLabel, YLabel string
+	LogX                  bool
+	Series                []rpSeries
+	Lines                 []rpLine
+	Texts                 []rpText
+	Legend                bool
+	// Fixed ranges (both ends set) or NaN for automatic.
+	XMin, XMax, YMin, YMax float64
+	Equal                  bool // equal scales on both axes (pole-zero and polar charts)
+	PhaseTicks             bool // y ticks at multiples of 45, 90 or 180 degrees
+}
+
+// rpPhaseTicker puts phase ticks at multiples of 45, 90, 180 or 360
+// degrees, whichever gives at most seven labels.
+type rpPhaseTicker struct{}
+
+func (rpPhaseTicker) Ticks(min, max float64) []plot.Tick {
+	step := 45.0
+	for _, s := range []float64{45, 90, 180, 360, 720, 1440} {
+		step = s
+		if (max-min)/s <= 6 {
+			break
+		}
+	}
+	var out []plot.Tick
+	for v := math.Ceil(min/step) * step; v <= max; v += step {
+		out = append(out, plot.Tick{Value: v, Label: strconv.FormatFloat(v, 'f', -1, 64)})
+	}
+	return out
+}
+
+func newPanel(title, xl, yl string) *rpPanel {
+	nan := math.NaN()
+	return &rpPanel{Title: title, XLabel: xl, YLabel: yl, XMin: nan, XMax: nan, YMin: nan, YMax: nan}
+}
+
+// rpFigure is a grid of panels, row-major.
+type rpFigure struct {
+	Rows, Cols int
+	Panels     []*rpPanel
+	W, H       vg.Length
+}
+
+// rpPixels is the horizontal resolution a curve is decimated to: enough
+// for a chart up to about 1000 px wide on screen.
+const rpPixels = 1000
+
+const cmLen = vg.Centimeter
+
+// rpDecimate keeps, for every one of the given number of buckets along x,
+// the first, last, lowest and highest points, in their original order
+// (the M4 aggregation: Jugel et al. 2014, "M4: a visualization-oriented
+// time series data aggregation", Proc. VLDB Endowment 7(10)). At screen
+// resolution the drawn line is then the same as the full one. Non-finite
+// points are dropped. x must be increasing; logX buckets in log10(x).
+func rpDecimate(x, y []float64, buckets int, logX bool) (xs, ys []float64) {
+	var idx []int
+	for k := range x {
+		if ok(x[k]) && ok(y[k]) && (!logX || x[k] > 0) {
+			idx = append(idx, k)
+		}
+	}
+	if len(idx) <= 4*buckets {
+		for _, k := range idx {
+			xs, ys = append(xs, x[k]), append(ys, y[k])
+		}
+		return
+	}
+	tx := func(v float64) float64 {
+		if logX {
+			return math.Log10(v)
+		}
+		return v
+	}
+	lo, hi := tx(x[idx[0]]), tx(x[idx[len(idx)-1]])
+	width := (hi - lo) / float64(buckets)
+	if !(width > 0) {
+		width = 1
+	}
+	start := 0
+	for start < len(idx) {
+		b := math.Floor((tx(x[idx[start]]) - lo) / width)
+		end := start
+		for end+1 < len(idx) && math.Floor((tx(x[idx[end+1]])-lo)/width) == b {
+			end++
+		}
+		first, last := idx[start], idx[end]
+		mn, mx := first, first
+		for _, k := range idx[start : end+1] {
+			if y[k] < y[mn] {
+				mn = k
+			}
+			if y[k] > y[mx] {
+				mx = k
+			}
+		}
+		keep := []int{first, mn, mx, last}
+		sort.Ints(keep)
+		prev := -1
+		for _, k := range keep {
+			if k != prev {
+				xs, ys = append(xs, x[k]), append(ys, y[k])
+				prev = k
+			}
+		}
+		start = end + 1
+	}
+	return
+}
+
+func ok(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// stairs turns samples into a held (zero-order) curve.
+func stairs(x, y []float64) ([]float64, []float64) {
+	if len(x) == 0 {
+		return nil, nil
+	}
+	xs := make([]float64, 0, 2*len(x))
+	ys := make([]float64, 0, 2*len(y))
+	for k := range x {
+		if k > 0 {
+			xs, ys = append(xs, x[k]), append(ys, y[k-1])
+		}
+		xs, ys = append(xs, x[k]), append(ys, y[k])
+	}
+	return xs, ys
+}
+
+func xys(x, y []float64) plotter.XYs {
+	out := make(plotter.XYs, len(x))
+	for i := range x {
+		out[i].X, out[i].Y = x[i], y[i]
+	}
+	return out
+}
+
+func styleColor(i int) color.Color {
+	if i < 0 {
+		return rpBlack
+	}
+	return rpPalette[i%len(rpPalette)]
+}
+
+// build makes the gonum plot of a panel.
+func (pn *rpPanel) build(buckets int) *plot.Plot {
+	p := plot.New()
+	p.Title.Text = pn.Title
+	p.Title.TextStyle.Font.Size = vg.Points(10)
+	p.X.Label.Text = pn.XLabel
+	p.Y.Label.Text = pn.YLabel
+	for _, ax := range []*plot.Axis{&p.X, &p.Y} {
+		ax.Label.TextStyle.Font.Size = vg.Points(9)
+		ax.Tick.Label.Font.Size = vg.Points(8)
+	}
+	p.Legend.TextStyle.Font.Size = vg.Points(8)
+	p.Legend.Top = true
+	p.Legend.ThumbnailWidth = vg.Points(26)
+	grid := plotter.NewGrid()
+	grid.Vertical.Color, grid.Horizontal.Color = rpGrid, rpGrid
+	grid.Vertical.Width, grid.Horizontal.Width = vg.Points(0.5), vg.Points(0.5)
+	p.Add(grid)
+	if pn.LogX {
+		p.X.Scale = plot.LogScale{}
+		p.X.Tick.Marker = plot.LogTicks{Prec: -1}
+	}
+	if pn.PhaseTicks {
+		p.Y.Tick.Marker = rpPhaseTicker{}
+	}
+	// data range, for reference lines and fixed ranges
+	xmin, xmax, ymin, ymax := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
+	for si, s := range pn.Series {
+		x, y := s.X, s.Y
+		if s.Stairs {
+			x, y = stairs(x, y)
+		}
+		if !s.Points {
+			x, y = rpDecimate(x, y, buckets, pn.LogX)
+		} else {
+			var fx, fy []float64
+			for k := range x {
+				if ok(x[k]) && ok(y[k]) {
+					fx, fy = append(fx, x[k]), append(fy, y[k])
+				}
+			}
+			x, y = fx, fy
+		}
+		if len(x) == 0 {
+			continue
+		}
+		for k := range x {
+			xmin, xmax = math.Min(xmin, x[k]), math.Max(xmax, x[k])
+			ymin, ymax = math.Min(ymin, y[k]), math.Max(ymax, y[k])
+		}
+		col := styleColor(s.Style)
+		if s.Color != nil {
+			col = s.Color
+		}
+		shape := s.Shape
+		if shape == nil {
+			shape = rpGlyphs[max(s.Style, 0)%len(rpGlyphs)]
+		}
+		rad := s.Radius
+		if rad == 0 {
+			rad = 3
+		}
+		gs := draw.GlyphStyle{Color: col, Radius: vg.Points(rad), Shape: shape}
+		var thumbs []plot.Thumbnailer
+		if !s.Points {
+			l, err := plotter.NewLine(xys(x, y))
+			if err != nil {
+				continue
+			}
+			w := s.Width
+			if w == 0 {
+				w = 1.5
+			}
+			l.LineStyle = draw.LineStyle{Color: col, Width: vg.Points(w)}
+			if s.Style >= 0 && s.Color == nil {
+				l.LineStyle.Dashes = rpDashes[s.Style%len(rpDashes)]
+			}
+			p.Add(l)
+			thumbs = append(thumbs, l)
+		}
+		if s.Glyph || s.Points {
+			var gx, gy []float64
+			if s.Points {
+				gx, gy = x, y
+			} else {
+				// six markers along the curve, shifted per series so that
+				// markers of overlapping curves do not hide each other
+				for j := 0; j < 6; j++ {
+					k := int((float64(j) + 0.3 + 0.11*float64(si%5)) / 6 * float64(len(x)-1))
+					gx, gy = append(gx, x[k]), append(gy, y[k])
+				}
+			}
+			sc, err := plotter.NewScatter(xys(gx, gy))
+			if err == nil {
+				sc.GlyphStyle = gs
+				p.Add(sc)
+				thumbs = append(thumbs, sc)
+			}
+		}
+		if pn.Legend && s.Name != "" && len(thumbs) > 0 {
+			p.Legend.Add(s.Name, thumbs...)
+		}
+	}
+	if !ok(xmin) {
+		xmin, xmax, ymin, ymax = 0, 1, 0, 1
+		if pn.LogX {
+			xmin, xmax = 1, 10
+		}
+	}
+	if ok(pn.XMin) && ok(pn.XMax) {
+		xmin, xmax = pn.XMin, pn.XMax
+	}
+	if ok(pn.YMin) && ok(pn.YMax) {
+		ymin, ymax = pn.YMin, pn.YMax
+	}
+	for _, l := range pn.Lines {
+		if l.Vertical {
+			xmin, xmax = math.Min(xmin, l.At), math.Max(xmax, l.At)
+		} else {
+			ymin, ymax = math.Min(ymin, l.At), math.Max(ymax, l.At)
+		}
+	}
+	if ymax-ymin <= 1e-12*math.Max(1, math.Abs(ymax)) {
+		d := math.Max(1, math.Abs(ymax)) * 0.1
+		ymin, ymax = ymin-d, ymax+d
+	}
+	if xmax <= xmin {
+		xmax = xmin + 1
+	}
+	for _, l := range pn.Lines {
+		var pts plotter.XYs
+		if l.Vertical {
+			pts = plotter.XYs{{X: l.At, Y: ymin}, {X: l.At, Y: ymax}}
+		} else {
+			pts = plotter.XYs{{X: xmin, Y: l.At}, {X: xmax, Y: l.At}}
+		}
+		ln, err := plotter.NewLine(pts)
+		if err != nil {
+			continue
+		}
+		ln.LineStyle = draw.LineStyle{Color: rpGrey, Width: vg.Points(0.8)}
+		if l.Dashed {
+			ln.LineStyle.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
+		}
+		p.Add(ln)
+	}
+	if len(pn.Texts) > 0 {
+		var lx plotter.XYLabels
+		for _, t := range pn.Texts {
+			if ok(t.X) && ok(t.Y) {
+				lx.XYs = append(lx.XYs, plotter.XY{X: t.X, Y: t.Y})
+				lx.Labels = append(lx.Labels, t.Text)
+			}
+		}
+		if len(lx.XYs) > 0 {
+			if lb, err := plotter.NewLabels(lx); err == nil {
+				for i := range lb.TextStyle {
+					lb.TextStyle[i].Font.Size = vg.Points(8)
+					lb.TextStyle[i].Color = rpBlack
+					lb.TextStyle[i].XAlign = draw.XLeft
+				}
+				lb.Offset = vg.Point{X: vg.Points(3), Y: vg.Points(3)}
+				p.Add(lb)
+			}
+		}
+	}
+	if pn.Equal {
+		// widen the shorter span so both axes have the same scale (the
+		// panel is drawn about 1.6 times wider than high)
+		cx, cy := (xmin+xmax)/2, (ymin+ymax)/2
+		sx, sy := (xmax-xmin)*1.1, (ymax-ymin)*1.1
+		if sx < 1.6*sy {
+			sx = 1.6 * sy
+		} else {
+			sy = sx / 1.6
+		}
+		xmin, xmax, ymin, ymax = cx-sx/2, cx+sx/2, cy-sy/2, cy+sy/2
+	}
+	p.X.Min, p.X.Max = xmin, xmax
+	p.Y.Min, p.Y.Max = ymin, ymax
+	if !pn.Equal {
+		pad := 0.04 * (ymax - ymin)
+		p.Y.Min, p.Y.Max = ymin-pad, ymax+pad
+	}
+	return p
+}
+
+// draw renders the figure onto a canvas.
+func (f *rpFigure) draw(c vg.CanvasSizer) {
+	dc := draw.New(c)
+	buckets := rpPixels / max(f.Cols, 1)
+	plots := make([][]*plot.Plot, f.Rows)
+	for r := range plots {
+		plots[r] = make([]*plot.Plot, f.Cols)
+		for k := 0; k < f.Cols; k++ {
+			i := r*f.Cols + k
+			if i < len(f.Panels) && f.Panels[i] != nil {
+				plots[r][k] = f.Panels[i].build(buckets)
+			} else {
+				plots[r][k] = plot.New()
+				plots[r][k].HideAxes()
+			}
+		}
+	}
+	pad := vg.Points(6)
+	tiles := draw.Tiles{Rows: f.Rows, Cols: f.Cols, PadTop: pad, PadBottom: pad, PadLeft: pad, PadRight: pad, PadX: vg.Points(14), PadY: vg.Points(12)}
+	canvases := plot.Align(plots, tiles, dc)
+	for r := range plots {
+		for k := range plots[r] {
+			plots[r][k].Draw(canvases[r][k])
+		}
+	}
+}
+
+// size chooses the figure size: 16 x 10 cm for one panel, 9 x 6 cm per
+// panel otherwise (capped at 30 cm wide).
+func (f *rpFigure) size() (vg.Length, vg.Length) {
+	if f.W > 0 && f.H > 0 {
+		return f.W, f.H
+	}
+	if f.Rows == 1 && f.Cols == 1 {
+		return 16 * vg.Centimeter, 10 * vg.Centimeter
+	}
+	w := vg.Length(f.Cols) * 9 * vg.Centimeter
+	h := vg.Length(f.Rows) * 6 * vg.Centimeter
+	if w > 30*vg.Centimeter {
+		w = 30 * vg.Centimeter
+	}
+	return w, h
+}
+
+// SVG renders the figure as SVG bytes (fonts referenced, not embedded).
+func (f *rpFigure) SVG() []byte {
+	w, h := f.size()
+	c := vgsvg.New(w, h)
+	f.draw(c)
+	var buf bytes.Buffer
+	if _, err := c.WriteTo(&buf); err != nil {
+		return nil
+	}
+	return buf.Bytes()
+}
+
+// PNG renders the figure as PNG bytes at 96 dpi.
+func (f *rpFigure) PNG() []byte {
+	w, h := f.size()
+	c := vgimg.NewWith(vgimg.UseWH(w, h), vgimg.UseDPI(96))
+	f.draw(c)
+	var buf bytes.Buffer
+	if _, err := (vgimg.PngCanvas{Canvas: c}).WriteTo(&buf); err != nil {
+		return nil
+	}
+	return buf.Bytes()
+}
+
+// rpBundle makes a bundle with the text, the SVG chart and, on request,
+// the PNG (base64, as Jupyter expects).
+func rpBundle(text string, f *rpFigure, opt Options) (b Bundle) {
+	b = NewBundle(text)
+	if f == nil || len(f.Panels) == 0 {
+		return b
+	}
+	defer func() {
+		// gonum/plot may panic on degenerate data; the text still shows.
+		if r := recover(); r != nil {
+			delete(b.Data, SVG)
+			delete(b.Data, PNG)
+			b.Data[Text] = text + "\n(chart not drawn: the data could not be plotted)"
+		}
+	}()
+	b.Data[SVG] = string(f.SVG())
+	if opt.PNG {
+		b.Data[PNG] = base64.StdEncoding.EncodeToString(f.PNG())
+	}
+	return b
+}

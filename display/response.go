@@ -1,0 +1,289 @@
+package display
+
+import (
+	"fmt"
+	"html"
+	"math"
+	"math/cmplx"
+	"strings"
+
+	"gonum.org/v1/plot/vg/draw"
+
+	"lsys/lsys"
+)
+
+func init() {
+	Register((*lsys.Response)(nil), renderResponse)
+	Register((*lsys.Metrics)(nil), renderMetrics)
+	Register((*lsys.ModalResponse)(nil), renderModalResponse)
+	Register((*lsys.Signal)(nil), renderSignal)
+}
+
+// rpMaxRows and rpMaxCols bound the panel grid of MIMO charts; the text
+// says when channels were left out.
+const rpMaxRows, rpMaxCols = 6, 6
+
+var rpKindTitle = map[string]string{
+	"step":    "step response",
+	"impulse": "impulse response",
+	"initial": "response from the initial state",
+	"input":   "response",
+}
+
+func rpPanelTitle(out, ch string, kind string, multi bool) string {
+	if kind == "initial" {
+		return out
+	}
+	if kind == "input" {
+		return out + " to " + ch
+	}
+	if multi {
+		return out + " from " + ch
+	}
+	return out
+}
+
+func rpResponseText(r *lsys.Response) string {
+	var b strings.Builder
+	title := rpKindTitle[r.Kind]
+	if r.Kind == "input" && len(r.Channels) > 0 {
+		title += " to " + r.Channels[0]
+	}
+	fmt.Fprintf(&b, "%s: %d output(s) x %d channel(s), 0 to %s s, %d samples", title, len(r.Outputs), len(r.Channels), sxNum(r.T[len(r.T)-1]), len(r.T))
+	if r.Sampled {
+		b.WriteString(" (sampled)")
+	}
+	b.WriteString("\n" + r.Rule + "\n")
+	for i, o := range r.Outputs {
+		for c, ch := range r.Channels {
+			y := r.Y[i][c]
+			fmt.Fprintf(&b, "  %s", o)
+			if r.Kind == "step" || r.Kind == "impulse" {
+				fmt.Fprintf(&b, " from %s", ch)
+			}
+			lo, hi := math.Inf(1), math.Inf(-1)
+			for _, v := range y {
+				lo, hi = math.Min(lo, v), math.Max(hi, v)
+			}
+			fmt.Fprintf(&b, ": final %s, range [%s, %s]\n", sxNum(y[len(y)-1]), sxNum(lo), sxNum(hi))
+		}
+	}
+	return strings.TrimRight(b.String(), "\n")
+}
+
+func rpClip(n, limit int) (int, bool) {
+	if n > limit {
+		return limit, true
+	}
+	return n, false
+}
+
+func renderResponse(v any, opt Options) Bundle {
+	r := v.(*lsys.Response)
+	text := rpResponseText(r)
+	if len(r.T) == 0 || len(r.Outputs) == 0 {
+		return NewBundle(text)
+	}
+	rows, cutR := rpClip(len(r.Outputs), rpMaxRows)
+	cols, cutC := rpClip(len(r.Channels), rpMaxCols)
+	if cutR || cutC {
+		text += fmt.Sprintf("\n(chart shows the first %d outputs and %d channels)", rows, cols)
+	}
+	var gain []float64
+	if r.Kind == "step" && lsys.Stable(r.System) {
+		if G, ok := lsys.DCGain(r.System); ok && G != nil {
+			_, m := G.Dims()
+			for i := 0; i < len(r.Outputs); i++ {
+				for j := 0; j < m; j++ {
+					gain = append(gain, G.At(i, j))
+				}
+			}
+		}
+	}
+	multi := len(r.Outputs) > 1 || len(r.Channels) > 1
+	f := &rpFigure{Rows: rows, Cols: cols}
+	for i := 0; i < rows; i++ {
+		for c := 0; c < cols; c++ {
+			title := ""
+			if multi || r.Kind == "input" {
+				title = rpPanelTitle(r.Outputs[i], r.Channels[c], r.Kind, multi)
+			} else {
+				title = rpKindTitle[r.Kind]
+			}
+			pn := newPanel(title, "time (s)", r.Outputs[i])
+			pn.Series = append(pn.Series, rpSeries{Name: r.Outputs[i], X: r.T, Y: r.Y[i][c], Style: 0, Stairs: r.Sampled})
+			if r.Kind == "input" && len(r.U) == 1 {
+				pn.Series = append(pn.Series, rpSeries{Name: "input " + r.System.InputNames[0], X: r.T, Y: r.U[0], Style: 1, Width: 1, Stairs: r.Sampled})
+				pn.Legend = true
+			}
+			if gain != nil {
+				pn.Lines = append(pn.Lines, rpLine{At: gain[i*len(r.Channels)+c], Dashed: true})
+			}
+			f.Panels = append(f.Panels, pn)
+		}
+	}
+	b := rpBundle(text, f, opt)
+	b.Data[JSON] = map[string]any{
+		"kind": r.Kind, "outputs": r.Outputs, "channels": r.Channels,
+		"samples": len(r.T), "until": r.T[len(r.T)-1], "sampled": r.Sampled, "rule": r.Rule,
+	}
+	return b
+}
+
+func renderMetrics(v any, _ Options) Bundle {
+	m := v.(*lsys.Metrics)
+	head := []string{"output", "input", "rise time 10-90 % (s)", "settling time 2 % (s)", "overshoot (%)", "peak", "peak time (s)", "steady value"}
+	var rows [][]string
+	var js []map[string]any
+	for _, r := range m.Rows {
+		steady := sxNum(r.Steady)
+		if !r.SteadyFromGain {
+			steady += " (last sample)"
+		}
+		rows = append(rows, []string{r.Output, r.Channel, sxNum(r.RiseTime), sxNum(r.SettlingTime), sxNum(r.Overshoot), sxNum(r.Peak), sxNum(r.PeakTime), steady})
+		js = append(js, map[string]any{
+			"output": r.Output, "input": r.Channel, "rise_time": jsNum(r.RiseTime), "settling_time": jsNum(r.SettlingTime),
+			"overshoot_percent": jsNum(r.Overshoot), "peak": jsNum(r.Peak), "peak_time": jsNum(r.PeakTime), "steady": jsNum(r.Steady),
+			"steady_from_gain": r.SteadyFromGain,
+		})
+	}
+	note := "n/a: not defined by this response (no change, or it leaves the 2 % band at the end of the horizon)."
+	b := NewBundle(rpTextTable("response metrics", head, rows) + "\n" + note)
+	b.Data[HTML] = rpHTMLTable("Response metrics", head, rows, note)
+	b.Data[JSON] = js
+	return b
+}
+
+// jsNum keeps JSON valid: NaN and infinities become strings.
+func jsNum(v float64) any {
+	if ok(v) {
+		return v
+	}
+	return sxNum(v)
+}
+
+func rpTextTable(title string, head []string, rows [][]string) string {
+	w := make([]int, len(head))
+	for i, h := range head {
+		w[i] = len([]rune(h))
+	}
+	for _, r := range rows {
+		for i, c := range r {
+			w[i] = max(w[i], len([]rune(c)))
+		}
+	}
+	var b strings.Builder
+	b.WriteString(title + "\n")
+	line := func(cells []string) {
+		for i, c := range cells {
+			if i > 0 {
+				b.WriteString("  ")
+			}
+			b.WriteString(c + strings.Repeat(" ", w[i]-len([]rune(c))))
+		}
+		b.WriteString("\n")
+	}
+	line(head)
+	for _, r := range rows {
+		line(r)
+	}
+	return strings.TrimRight(b.String(), "\n")
+}
+
+func rpHTMLTable(caption string, head []string, rows [][]string, note string) string {
+	var b strings.Builder
+	b.WriteString(`<table class="lsys-response"><caption style="text-align:left;font-weight:bold">` + html.EscapeString(caption) + "</caption>\n<thead><tr>")
+	for _, h := range head {
+		b.WriteString(`<th style="text-align:left">` + html.EscapeString(h) + "</th>")
+	}
+	b.WriteString("</tr></thead>\n<tbody>\n")
+	for _, r := range rows {
+		b.WriteString("<tr>")
+		for i, c := range r {
+			align := "right"
+			if i < 2 {
+				align = "left"
+			}
+			b.WriteString(`<td style="text-align:` + align + `">` + html.EscapeString(c) + "</td>")
+		}
+		b.WriteString("</tr>\n")
+	}
+	b.WriteString("</tbody></table>")
+	if note != "" {
+		b.WriteString("\n<p><small>" + html.EscapeString(note) + "</small></p>")
+	}
+	return b.String()
+}
+
+func renderModalResponse(v any, opt Options) Bundle {
+	mr := v.(*lsys.ModalResponse)
+	r := mr.Response
+	var b strings.Builder
+	fmt.Fprintf(&b, "%s split by mode: %d part(s): %s\n", rpKindTitle[r.Kind], len(mr.Labels), strings.Join(mr.Labels, "; "))
+	fmt.Fprintf(&b, "condition number of the modal basis %s; the parts sum to the response", sxNum(mr.MaxCond))
+	text := b.String()
+	rows, _ := rpClip(len(r.Outputs), rpMaxRows)
+	cols, _ := rpClip(len(r.Channels), rpMaxCols)
+	f := &rpFigure{Rows: rows, Cols: cols}
+	multi := len(r.Outputs) > 1 || len(r.Channels) > 1
+	for i := 0; i < rows; i++ {
+		for c := 0; c < cols; c++ {
+			title := rpKindTitle[r.Kind] + " by mode"
+			if multi {
+				title = rpPanelTitle(r.Outputs[i], r.Channels[c], r.Kind, multi)
+			}
+			pn := newPanel(title, "time (s)", r.Outputs[i])
+			pn.Legend = i == 0 && c == 0 // one legend for the figure
+			for q, lab := range mr.Labels {
+				pn.Series = append(pn.Series, rpSeries{Name: "mode " + lab, X: r.T, Y: mr.Parts[q][i][c], Style: q % 6, Glyph: true, Width: 1.2, Stairs: r.Sampled})
+				if lab == "direct" {
+					pn.Series[len(pn.Series)-1].Name = "direct"
+				}
+			}
+			pn.Series = append(pn.Series, rpSeries{Name: "total", X: r.T, Y: r.Y[i][c], Style: -1, Width: 2, Stairs: r.Sampled})
+			f.Panels = append(f.Panels, pn)
+		}
+	}
+	out := rpBundle(text, f, opt)
+	out.Data[JSON] = map[string]any{"modes": mr.Labels, "outputs": r.Outputs, "channels": r.Channels, "samples": len(r.T)}
+	return out
+}
+
+func renderSignal(v any, _ Options) Bundle {
+	s := v.(*lsys.Signal)
+	var d string
+	switch s.Kind {
+	case "step":
+		d = fmt.Sprintf("step of height %s at t = %s s", sxNum(s.Amp), sxNum(s.Delay))
+	case "sine":
+		d = fmt.Sprintf("sine: amplitude %s, %s rad/s (%s Hz), phase %s rad", sxNum(s.Amp), sxNum(s.Freq), sxNum(s.Freq/(2*math.Pi)), sxNum(s.Phase))
+	case "ramp":
+		d = fmt.Sprintf("ramp of slope %s per second", sxNum(s.Amp))
+	case "table":
+		hold := "linear between rows"
+		if s.Hold == "zoh" {
+			hold = "held between rows"
+		}
+		d = fmt.Sprintf("table %s: %d rows x %d channel(s) from %s to %s s, %s", s.Name, len(s.T), s.Channels(), sxNum(s.T[0]), sxNum(s.T[len(s.T)-1]), hold)
+	case "function":
+		d = "signal " + s.Name + "(t)"
+	default:
+		d = "signal " + s.Name
+	}
+	if s.Delay != 0 && s.Kind != "step" {
+		d += fmt.Sprintf(", starting at t = %s s", sxNum(s.Delay))
+	}
+	return NewBundle(d)
+}
+
+// rpMark places a marker series (poles, zeros, the critical point).
+func rpMark(name string, pts []complex128, style int, shape draw.GlyphDrawer, radius float64) rpSeries {
+	var x, y []float64
+	for _, p := range pts {
+		if cmplx.IsNaN(p) || cmplx.IsInf(p) {
+			continue
+		}
+		x, y = append(x, real(p)), append(y, imag(p))
+	}
+	return rpSeries{Name: name, X: x, Y: y, Style: style, Points: true, Shape: shape, Radius: radius}
+}

@@ -1,0 +1,452 @@
+package display
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"sort"
+	"strings"
+
+	"gonum.org/v1/plot/vg/draw"
+
+	"lsys/lsys"
+)
+
+func init() {
+	Register((*lsys.FrequencyResponse)(nil), renderFrequency)
+	Register((*lsys.PolarChart)(nil), renderPolar)
+	Register((*lsys.SingularValues)(nil), renderSingular)
+	Register((*lsys.Margins)(nil), renderMargins)
+	Register((*lsys.PoleZeroMap)(nil), renderPoleZero)
+}
+
+// rpFreqAxis returns the frequencies to plot and the axis label.
+func rpFreqAxis(f *lsys.FrequencyResponse) ([]float64, string, float64) {
+	if !f.Hz {
+		return f.W, "frequency (rad/s)", 1
+	}
+	w := make([]float64, len(f.W))
+	for k, v := range f.W {
+		w[k] = v / (2 * math.Pi)
+	}
+	return w, "frequency (Hz)", 1 / (2 * math.Pi)
+}
+
+func db(x []float64) []float64 {
+	out := make([]float64, len(x))
+	for k, v := range x {
+		out[k] = 20 * math.Log10(v)
+	}
+	return out
+}
+
+func rpFreqText(f *lsys.FrequencyResponse, what string) string {
+	unit, sc := "rad/s", 1.0
+	if f.Hz {
+		unit, sc = "Hz", 1/(2*math.Pi)
+	}
+	s := fmt.Sprintf("%s: %d output(s) x %d input(s), %d frequencies from %s to %s %s\n%s",
+		what, len(f.Outputs), len(f.Inputs), len(f.W), sxNum(f.W[0]*sc), sxNum(f.W[len(f.W)-1]*sc), unit, f.Rule)
+	if f.Nyquist > 0 {
+		s += fmt.Sprintf("\nsampled: the Nyquist frequency is %s %s", sxNum(f.Nyquist*sc), unit)
+	}
+	return s
+}
+
+func renderFrequency(v any, opt Options) Bundle {
+	f := v.(*lsys.FrequencyResponse)
+	if len(f.W) == 0 {
+		return NewBundle("frequency response: no frequencies")
+	}
+	text := rpFreqText(f, "frequency response")
+	x, xl, sc := rpFreqAxis(f)
+	p, cutR := rpClip(len(f.Outputs), 3)
+	m, cutC := rpClip(len(f.Inputs), 4)
+	if cutR || cutC {
+		text += fmt.Sprintf("\n(chart shows the first %d outputs and %d inputs)", p, m)
+	}
+	multi := len(f.Outputs) > 1 || len(f.Inputs) > 1
+	fig := &rpFigure{Rows: 2 * p, Cols: m}
+	mags := make([]*rpPanel, 0, p*m)
+	phs := make([]*rpPanel, 0, p*m)
+	for i := 0; i < p; i++ {
+		for j := 0; j < m; j++ {
+			title := "magnitude"
+			if multi {
+				title = f.Outputs[i] + " from " + f.Inputs[j]
+			}
+			mg := newPanel(title, xl, "magnitude (dB)")
+			mg.LogX = true
+			mg.Series = []rpSeries{{X: x, Y: db(f.Magnitude(i, j)), Style: 0}}
+			ph := newPanel("", xl, "phase (deg)")
+			ph.LogX = true
+			ph.PhaseTicks = true
+			ph.Series = []rpSeries{{X: x, Y: f.Phase(i, j), Style: 0}}
+			if f.Nyquist > 0 {
+				mg.Lines = append(mg.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true})
+				ph.Lines = append(ph.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true})
+			}
+			mags, phs = append(mags, mg), append(phs, ph)
+		}
+	}
+	for i := 0; i < p; i++ {
+		fig.Panels = append(fig.Panels, mags[i*m:(i+1)*m]...)
+		fig.Panels = append(fig.Panels, phs[i*m:(i+1)*m]...)
+	}
+	if p == 1 && m == 1 {
+		fig.W, fig.H = 16*cmLen, 14*cmLen
+	}
+	b := rpBundle(text, fig, opt)
+	b.Data[JSON] = map[string]any{"outputs": f.Outputs, "inputs": f.Inputs, "points": len(f.W), "from_rad_s": f.W[0], "to_rad_s": f.W[len(f.W)-1]}
+	return b
+}
+
+func renderPolar(v any, opt Options) Bundle {
+	pc := v.(*lsys.PolarChart)
+	f := pc.Frequency
+	if f == nil || len(f.W) == 0 {
+		return NewBundle("polar chart: no frequencies")
+	}
+	text := rpFreqText(f, "polar (Nyquist) chart") + "\nsolid: positive frequencies; dashed: negative (mirror); cross: the critical point -1"
+	p, _ := rpClip(len(f.Outputs), 3)
+	m, _ := rpClip(len(f.Inputs), 3)
+	fig := &rpFigure{Rows: p, Cols: m}
+	multi := len(f.Outputs) > 1 || len(f.Inputs) > 1
+	for i := 0; i < p; i++ {
+		for j := 0; j < m; j++ {
+			title := "polar chart"
+			if multi {
+				title = f.Outputs[i] + " from " + f.Inputs[j]
+			}
+			pn := newPanel(title, "real part", "imaginary part")
+			pn.Equal = true
+			pn.Legend = true
+			n := len(f.W)
+			re, im := make([]float64, n), make([]float64, n)
+			mre, mim := make([]float64, n), make([]float64, n)
+			mags := make([]float64, n)
+			for k := range f.W {
+				g := f.G[k][i*len(f.Inputs)+j]
+				re[k], im[k] = real(g), imag(g)
+				// the mirror image (negative frequencies) runs back from high to low
+				mre[n-1-k], mim[n-1-k] = real(g), -imag(g)
+				mags[k] = cmplx.Abs(g)
+			}
+			pn.Series = append(pn.Series,
+				rpSeries{Name: "ω > 0", X: re, Y: im, Style: 0, Glyph: true},
+				rpSeries{Name: "ω < 0", X: mre, Y: mim, Style: 1, Width: 1},
+				rpMark("-1", []complex128{-1}, -1, draw.CrossGlyph{}, 4),
+			)
+			// Near an integrator |G| runs off to infinity: frame the part
+			// of the curve within the 85th percentile of |G| (and -1).
+			sorted := append([]float64(nil), mags...)
+			sort.Float64s(sorted)
+			R := math.Max(1.2, sorted[int(0.85*float64(n-1))]*1.1)
+			xmin, xmax, ymin, ymax := -1.2, 0.2, -0.2, 0.2
+			for k := range re {
+				if mags[k] <= R {
+					xmin, xmax = math.Min(xmin, re[k]), math.Max(xmax, re[k])
+					ymin, ymax = math.Min(ymin, math.Min(im[k], -im[k])), math.Max(ymax, math.Max(im[k], -im[k]))
+				}
+			}
+			pn.XMin, pn.XMax, pn.YMin, pn.YMax = xmin, xmax, ymin, ymax
+			fig.Panels = append(fig.Panels, pn)
+		}
+	}
+	b := rpBundle(text, fig, opt)
+	b.Data[JSON] = map[string]any{"outputs": f.Outputs, "inputs": f.Inputs, "points": len(f.W)}
+	return b
+}
+
+func renderSingular(v any, opt Options) Bundle {
+	sv := v.(*lsys.SingularValues)
+	f := sv.Frequency
+	if len(f.W) == 0 {
+		return NewBundle("singular values: no frequencies")
+	}
+	x, xl, _ := rpFreqAxis(f)
+	k := len(sv.S[0])
+	text := rpFreqText(f, "singular values") + fmt.Sprintf("\n%d singular value(s); the largest peaks at ", k)
+	peak, at := 0.0, 0.0
+	for n := range f.W {
+		if sv.S[n][0] > peak {
+			peak, at = sv.S[n][0], x[n]
+		}
+	}
+	unit := "rad/s"
+	if f.Hz {
+		unit = "Hz"
+	}
+	text += fmt.Sprintf("%s dB at %s %s (on the grid)", sxNum(20*math.Log10(peak)), sxNum(at), unit)
+	pn := newPanel("singular values", xl, "singular value (dB)")
+	pn.LogX = true
+	pn.Legend = k > 1
+	for i := 0; i < k; i++ {
+		y := make([]float64, len(f.W))
+		for n := range f.W {
+			y[n] = 20 * math.Log10(sv.S[n][i])
+		}
+		pn.Series = append(pn.Series, rpSeries{Name: fmt.Sprintf("σ%d", i+1), X: x, Y: y, Style: i, Glyph: k > 1})
+	}
+	b := rpBundle(text, &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}}, opt)
+	b.Data[JSON] = map[string]any{"count": k, "points": len(f.W), "peak_db": jsNum(20 * math.Log10(peak)), "peak_at": at, "unit": unit}
+	return b
+}
+
+func rpFreq(w float64, hz bool) string {
+	if math.IsNaN(w) {
+		return "n/a"
+	}
+	if hz {
+		return sxNum(w/(2*math.Pi)) + " Hz"
+	}
+	return sxNum(w) + " rad/s"
+}
+
+func rpList(ws []float64, hz bool) string {
+	if len(ws) == 0 {
+		return "none"
+	}
+	var parts []string
+	for _, w := range ws {
+		parts = append(parts, rpFreq(w, hz))
+	}
+	return strings.Join(parts, ", ")
+}
+
+func renderMargins(v any, opt Options) Bundle {
+	mg := v.(*lsys.Margins)
+	f := mg.Loop
+	hz := f.Hz
+	gm := "infinite (no phase crossover)"
+	if !math.IsInf(mg.GainMargin, 1) {
+		gm = fmt.Sprintf("%s dB (factor %s) at %s", sxNum(mg.GainMarginDB), sxNum(mg.GainMargin), rpFreq(mg.PhaseCrossover, hz))
+	}
+	pm := "infinite (no gain crossover)"
+	dm := "infinite"
+	if !math.IsInf(mg.PhaseMargin, 1) {
+		pm = fmt.Sprintf("%s deg at %s", sxNum(mg.PhaseMargin), rpFreq(mg.GainCrossover, hz))
+		dm = sxNum(mg.DelayMargin) + " s"
+	}
+	verdict := "closed loop (negative unity feedback): stability not checked"
+	if mg.ClosedChecked {
+		verdict = sxVerdictText(mg.ClosedStable, "closed loop (negative unity feedback) is stable", "closed loop (negative unity feedback) is UNSTABLE: the margins do not describe a working loop")
+	}
+	head := []string{"figure", "value"}
+	rows := [][]string{
+		{"gain margin", gm},
+		{"phase margin", pm},
+		{"delay margin", dm},
+		{"gain crossovers (|L| = 1)", rpList(mg.GainCrossovers, hz)},
+		{"phase crossovers (angle L = -180 deg)", rpList(mg.PhaseCrossovers, hz)},
+		{"closed-loop bandwidth (-3 dB)", rpFreq(mg.Bandwidth, hz)},
+		{"closed-loop resonant peak", fmt.Sprintf("%s dB at %s", sxNum(mg.ResonantPeak), rpFreq(mg.ResonantFreq, hz))},
+	}
+	text := rpTextTable("loop margins", head, rows) + "\n" + verdict
+	x, xl, sc := rpFreqAxis(f)
+	mag := newPanel("loop gain with margins", xl, "magnitude (dB)")
+	mag.LogX = true
+	mag.Series = []rpSeries{{X: x, Y: db(f.Magnitude(0, 0)), Style: 0}}
+	mag.Lines = []rpLine{{At: 0, Dashed: true}}
+	ph := newPanel("", xl, "phase (deg)")
+	ph.LogX = true
+	ph.PhaseTicks = true
+	phase := f.Phase(0, 0)
+	ph.Series = []rpSeries{{X: x, Y: phase, Style: 0}}
+	// the -180 line nearest the phase curve at the crossover (or its start)
+	ref := -180.0
+	if len(phase) > 0 {
+		probe := phase[0]
+		if ok(mg.GainCrossover) {
+			probe = interpAt(f.W, phase, mg.GainCrossover)
+		}
+		ref = -180 + 360*math.Round((probe+180)/360)
+	}
+	ph.Lines = []rpLine{{At: ref, Dashed: true}}
+	if ok(mg.PhaseCrossover) {
+		mag.Lines = append(mag.Lines, rpLine{At: mg.PhaseCrossover * sc, Vertical: true, Dashed: true})
+		mag.Texts = append(mag.Texts, rpText{X: mg.PhaseCrossover * sc, Y: -mg.GainMarginDB, Text: "GM " + sxNum(mg.GainMarginDB) + " dB"})
+		mag.Series = append(mag.Series, rpSeries{X: []float64{mg.PhaseCrossover * sc, mg.PhaseCrossover * sc}, Y: []float64{-mg.GainMarginDB, 0}, Style: 1, Width: 2.5})
+	}
+	if ok(mg.GainCrossover) && !math.IsInf(mg.PhaseMargin, 0) {
+		ph.Lines = append(ph.Lines, rpLine{At: mg.GainCrossover * sc, Vertical: true, Dashed: true})
+		ph.Texts = append(ph.Texts, rpText{X: mg.GainCrossover * sc, Y: ref + mg.PhaseMargin, Text: "PM " + sxNum(mg.PhaseMargin) + " deg"})
+		ph.Series = append(ph.Series, rpSeries{X: []float64{mg.GainCrossover * sc, mg.GainCrossover * sc}, Y: []float64{ref, ref + mg.PhaseMargin}, Style: 2, Width: 2.5})
+	}
+	fig := &rpFigure{Rows: 2, Cols: 1, Panels: []*rpPanel{mag, ph}, W: 16 * cmLen, H: 14 * cmLen}
+	b := rpBundle(text, fig, opt)
+	b.Data[HTML] = rpHTMLTable("Loop margins", head, rows, verdict)
+	b.Data[JSON] = map[string]any{
+		"gain_margin": jsNum(mg.GainMargin), "gain_margin_db": jsNum(mg.GainMarginDB), "phase_crossover": jsNum(mg.PhaseCrossover),
+		"phase_margin_deg": jsNum(mg.PhaseMargin), "gain_crossover": jsNum(mg.GainCrossover), "delay_margin": jsNum(mg.DelayMargin),
+		"gain_crossovers": mg.GainCrossovers, "phase_crossovers": mg.PhaseCrossovers, "bandwidth": jsNum(mg.Bandwidth),
+		"resonant_peak_db": jsNum(mg.ResonantPeak), "resonant_freq": jsNum(mg.ResonantFreq), "closed_loop_stable": mg.ClosedStable,
+	}
+	return b
+}
+
+func sxVerdictText(okv bool, yes, no string) string {
+	if okv {
+		return yes
+	}
+	return no
+}
+
+// interpAt interpolates y(x) linearly in log x.
+func interpAt(x, y []float64, at float64) float64 {
+	for k := 1; k < len(x); k++ {
+		if x[k] >= at {
+			a, b := math.Log(x[k-1]), math.Log(x[k])
+			t := (math.Log(at) - a) / (b - a)
+			return y[k-1] + t*(y[k]-y[k-1])
+		}
+	}
+	return y[len(y)-1]
+}
+
+func renderPoleZero(v any, opt Options) Bundle {
+	pz := v.(*lsys.PoleZeroMap)
+	g := pz.System
+	var b strings.Builder
+	plane := "s-plane"
+	if g.Sampled() {
+		plane = "z-plane, sampled every " + sxNum(g.Ts) + " s"
+	}
+	fmt.Fprintf(&b, "pole-zero map (%s): %d pole(s)", plane, len(pz.Poles))
+	if pz.ZerosKnown {
+		fmt.Fprintf(&b, ", %d zero(s)", len(pz.Zeros))
+	}
+	b.WriteString("\npoles: ")
+	b.WriteString(rpComplexList(pz.Poles))
+	if pz.ZerosKnown {
+		b.WriteString("\nzeros: " + rpComplexList(pz.Zeros))
+	}
+	if pz.Note != "" {
+		b.WriteString("\n" + pz.Note)
+	}
+	text := b.String()
+	pn := newPanel("pole-zero map", "real part", "imaginary part")
+	if g.Sampled() {
+		pn.Title = "pole-zero map (z-plane)"
+	} else {
+		pn.XLabel, pn.YLabel = "real part (1/s)", "imaginary part (rad/s)"
+	}
+	pn.Equal = true
+	pn.Legend = true
+	// extent of the points
+	R := 0.0
+	for _, p := range append(append([]complex128(nil), pz.Poles...), pz.Zeros...) {
+		if !cmplx.IsInf(p) && !cmplx.IsNaN(p) {
+			R = math.Max(R, cmplx.Abs(p))
+		}
+	}
+	if R == 0 {
+		R = 1
+	}
+	gridCol := rpGrid
+	var texts []rpText
+	if g.Sampled() {
+		R = math.Max(R, 1)
+		// unit circle, then curves of constant damping and natural
+		// frequency mapped through z = e^{sT}
+		var ux, uy []float64
+		for k := 0; k <= 360; k++ {
+			a := float64(k) * math.Pi / 180
+			ux, uy = append(ux, math.Cos(a)), append(uy, math.Sin(a))
+		}
+		pn.Series = append(pn.Series, rpSeries{X: ux, Y: uy, Style: -1, Width: 1, Color: rpGrey})
+		T := g.Ts
+		for _, zeta := range []float64{0.2, 0.4, 0.6, 0.8} {
+			wd := math.Sqrt(1 - zeta*zeta)
+			for _, sgn := range []float64{1, -1} {
+				var x, y []float64
+				for k := 0; k <= 100; k++ {
+					wn := float64(k) / 100 * math.Pi / (T * wd)
+					z := cmplx.Exp(complex(-zeta*wn*T, sgn*wd*wn*T))
+					x, y = append(x, real(z)), append(y, imag(z))
+				}
+				pn.Series = append(pn.Series, rpSeries{X: x, Y: y, Style: -1, Width: 0.6, Color: gridCol})
+				if sgn > 0 {
+					texts = append(texts, rpText{X: x[50], Y: y[50], Text: "ζ " + sxNum(zeta)})
+				}
+			}
+		}
+		for _, frac := range []float64{0.2, 0.4, 0.6, 0.8} {
+			wn := frac * math.Pi / T
+			var x, y []float64
+			for k := 0; k <= 60; k++ {
+				zeta := float64(k) / 60
+				wd := math.Sqrt(1 - zeta*zeta)
+				z := cmplx.Exp(complex(-zeta*wn*T, wd*wn*T))
+				x, y = append(x, real(z)), append(y, imag(z))
+			}
+			pn.Series = append(pn.Series, rpSeries{X: x, Y: y, Style: -1, Width: 0.6, Color: gridCol})
+			texts = append(texts, rpText{X: x[0], Y: y[0], Text: sxNum(frac) + "π/T"})
+		}
+	} else {
+		R *= 1.15
+		for _, zeta := range []float64{0.2, 0.4, 0.6, 0.8} {
+			wd := math.Sqrt(1 - zeta*zeta)
+			pn.Series = append(pn.Series,
+				rpSeries{X: []float64{0, -zeta * R}, Y: []float64{0, wd * R}, Style: -1, Width: 0.6, Color: gridCol},
+				rpSeries{X: []float64{-zeta * R, 0}, Y: []float64{-wd * R, 0}, Style: -1, Width: 0.6, Color: gridCol})
+			texts = append(texts, rpText{X: -zeta * R * 0.95, Y: wd * R * 0.95, Text: "ζ " + sxNum(zeta)})
+		}
+		step := niceStep(R / 4)
+		for wn := step; wn <= R*1.0001; wn += step {
+			var x, y []float64
+			for k := 0; k <= 60; k++ {
+				a := math.Pi/2 + float64(k)/60*math.Pi
+				x, y = append(x, wn*math.Cos(a)), append(y, wn*math.Sin(a))
+			}
+			pn.Series = append(pn.Series, rpSeries{X: x, Y: y, Style: -1, Width: 0.6, Color: gridCol})
+			texts = append(texts, rpText{X: -wn, Y: 0, Text: sxNum(wn)})
+		}
+		pn.Lines = append(pn.Lines, rpLine{At: 0, Vertical: true})
+	}
+	pn.Series = append(pn.Series, rpMark("poles", pz.Poles, 0, draw.CrossGlyph{}, 4.5))
+	if pz.ZerosKnown && len(pz.Zeros) > 0 {
+		pn.Series = append(pn.Series, rpMark("zeros", pz.Zeros, 1, draw.RingGlyph{}, 4.5))
+	}
+	pn.Texts = texts
+	fig := &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}}
+	out := rpBundle(text, fig, opt)
+	js := map[string]any{"sampled": g.Sampled(), "poles": rpComplexJSON(pz.Poles), "zeros_known": pz.ZerosKnown}
+	if pz.ZerosKnown {
+		js["zeros"] = rpComplexJSON(pz.Zeros)
+	}
+	out.Data[JSON] = js
+	return out
+}
+
+func niceStep(x float64) float64 {
+	if !(x > 0) {
+		return 1
+	}
+	e := math.Pow(10, math.Floor(math.Log10(x)))
+	for _, f := range []float64{1, 2, 5, 10} {
+		if f*e >= x {
+			return f * e
+		}
+	}
+	return 10 * e
+}
+
+func rpComplexList(v []complex128) string {
+	if len(v) == 0 {
+		return "none"
+	}
+	var parts []string
+	for _, z := range v {
+		parts = append(parts, sxComplex(z, false))
+	}
+	return strings.Join(parts, ", ")
+}
+
+func rpComplexJSON(v []complex128) [][2]float64 {
+	out := make([][2]float64, 0, len(v))
+	for _, z := range v {
+		out = append(out, [2]float64{real(z), imag(z)})
+	}
+	return out
+}

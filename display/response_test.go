@@ -1,0 +1,175 @@
+package display
+
+import (
+	"bytes"
+	"context"
+	"encoding/base64"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"gonum.org/v1/gonum/mat"
+
+	"lsys/lsys"
+)
+
+func rpSecondOrder(t testing.TB, zeta, wn float64) *lsys.System {
+	g, err := lsys.FromMatrices(
+		mat.NewDense(2, 2, []float64{0, 1, -wn * wn, -2 * zeta * wn}),
+		mat.NewDense(2, 1, []float64{0, wn * wn}),
+		mat.NewDense(1, 2, []float64{1, 0}), nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return g
+}
+
+func rpLoop(t testing.TB) *lsys.System {
+	// 2/(s(s+1)(s+2)) in companion form
+	g, err := lsys.Realize([][]*lsys.Rational{{{Num: lsys.Poly{2}, Den: lsys.Poly{0, 2, 3, 1}}}}, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return g
+}
+
+// rpSamples builds one value of every type this file set renders.
+func rpSamples(t testing.TB) map[string]any {
+	ctx := context.Background()
+	g := rpSecondOrder(t, 0.25, 3)
+	out := map[string]any{}
+	st, err := lsys.Step(ctx, g, lsys.ResponseOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	out["step"] = st
+	m, _ := lsys.ResponseMetrics(st)
+	out["metrics"] = m
+	two, _ := lsys.Stack(g, rpSecondOrder(t, 0.7, 1))
+	mimo, _ := lsys.Step(ctx, two, lsys.ResponseOptions{})
+	out["step_mimo"] = mimo
+	d, _ := lsys.Sample(g, 0.2, "zoh", 0)
+	sd, _ := lsys.Step(ctx, d, lsys.ResponseOptions{})
+	out["step_sampled"] = sd
+	sig := lsys.Sine(2, 1)
+	sim, _ := lsys.Simulate(ctx, g, sig, nil, lsys.ResponseOptions{Until: 10})
+	out["sine"] = sim
+	mr, err := lsys.ByMode(ctx, two, "impulse", nil, nil, lsys.ResponseOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	out["modal"] = mr
+	f, _ := lsys.Frequency(ctx, g, lsys.FrequencyOptions{})
+	out["bode"] = f
+	out["polar"] = &lsys.PolarChart{Frequency: f}
+	fl, _ := lsys.Frequency(ctx, rpLoop(t), lsys.FrequencyOptions{})
+	out["polar_loop"] = &lsys.PolarChart{Frequency: fl}
+	f2, _ := lsys.Frequency(ctx, two, lsys.FrequencyOptions{})
+	sv, _ := lsys.Singular(f2)
+	out["singular"] = sv
+	mg, err := lsys.LoopMargins(ctx, rpLoop(t), lsys.FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	out["margins"] = mg
+	pz, _ := lsys.PoleZero(two, nil, false)
+	out["polezero"] = pz
+	pzd, _ := lsys.PoleZero(d, nil, false)
+	out["polezero_sampled"] = pzd
+	return out
+}
+
+// TestResponseChartsDeterministic renders every chart twice and asks for
+// the same bytes (SVG and PNG). With LSYS_PLOT_DIR set it also writes the
+// PNGs there, for looking at them.
+func TestResponseChartsDeterministic(t *testing.T) {
+	dir := os.Getenv("LSYS_PLOT_DIR")
+	for name, v := range rpSamples(t) {
+		a := Render(v, Options{PNG: true})
+		b := Render(v, Options{PNG: true})
+		txt, _ := a.Data[Text].(string)
+		if txt == "" || strings.Contains(txt, "not drawn") {
+			t.Errorf("%s: text %q", name, txt)
+		}
+		for _, mime := range []string{SVG, PNG} {
+			x, _ := a.Data[mime].(string)
+			y, _ := b.Data[mime].(string)
+			if x == "" {
+				if name != "metrics" {
+					t.Errorf("%s: no %s", name, mime)
+				}
+				continue
+			}
+			if x != y {
+				t.Errorf("%s: %s differs between two renders", name, mime)
+			}
+		}
+		if dir != "" {
+			if p, ok := a.Data[PNG].(string); ok {
+				raw, _ := base64.StdEncoding.DecodeString(p)
+				os.WriteFile(filepath.Join(dir, name+".png"), raw, 0o644)
+			}
+			if s, ok := a.Data[SVG].(string); ok {
+				os.WriteFile(filepath.Join(dir, name+".svg"), []byte(s), 0o644)
+			}
+		}
+	}
+}
+
+func TestLongResponseSVGIsSmall(t *testing.T) {
+	// 10,000 samples of a lightly damped response: the SVG must stay under
+	// 100 KB thanks to decimation (our own target, DESIGN.md).
+	g := rpSecondOrder(t, 0.02, 20)
+	r, err := lsys.Step(context.Background(), g, lsys.ResponseOptions{Until: 20, Step: 0.002})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(r.T) != 10001 {
+		t.Fatalf("%d samples", len(r.T))
+	}
+	svg := Render(r, Options{}).Data[SVG].(string)
+	t.Logf("SVG of a 10,001-sample step response: %d bytes", len(svg))
+	if len(svg) > 100_000 {
+		t.Errorf("SVG is %d bytes, want < 100 KB", len(svg))
+	}
+	if !bytes.HasPrefix([]byte(strings.TrimSpace(svg)), []byte("<?xml")) {
+		t.Error("not an SVG document")
+	}
+}
+
+func TestDecimateKeepsExtremes(t *testing.T) {
+	// a spike inside one bucket must survive decimation
+	n := 10000
+	x, y := make([]float64, n), make([]float64, n)
+	for k := range x {
+		x[k] = float64(k)
+	}
+	y[5003] = 7
+	y[7001] = -3
+	xs, ys := rpDecimate(x, y, 100, false)
+	if len(xs) > 400 {
+		t.Errorf("%d points kept, want <= 400", len(xs))
+	}
+	var hi, lo float64
+	for _, v := range ys {
+		hi, lo = max(hi, v), min(lo, v)
+	}
+	if hi != 7 || lo != -3 {
+		t.Errorf("extremes lost: %g %g", hi, lo)
+	}
+	for k := 1; k < len(xs); k++ {
+		if xs[k] <= xs[k-1] {
+			t.Fatal("order lost")
+		}
+	}
+}
+
+func BenchmarkPlot10000(b *testing.B) {
+	g := rpSecondOrder(b, 0.02, 20)
+	r, _ := lsys.Step(context.Background(), g, lsys.ResponseOptions{Until: 20, Step: 0.002})
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		Render(r, Options{})
+	}
+}
