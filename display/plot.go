@@ -66,13 +66,13 @@ var rpGlyphs = []draw.GlyphDrawer{
 
 // rpSeries is one curve.
 type rpSeries struct {
-	Name  string
-	X, Y  []float64
-	Style int     // index into the palette, dashes and glyphs; -1: black reference style
-	Width float64 // points; 0 means 1.5
-	Stairs bool   // sampled signal: hold each value to the next sample
-	Glyph  bool   // draw markers at a few places along the curve
-	Points bool   // draw markers only (no line), e.g. poles and zeros
+	Name   string
+	X, Y   []float64
+	Style  int     // index into the palette, dashes and glyphs; -1: black reference style
+	Width  float64 // points; 0 means 1.5
+	Stairs bool    // sampled signal: hold each value to the next sample
+	Glyph  bool    // draw markers at a few places along the curve
+	Points bool    // draw markers only (no line), e.g. poles and zeros
 	Shape  draw.GlyphDrawer
 	Radius float64
 	Color  color.Color // overrides the style's colour (grid curves)
