@@ -3,6 +3,7 @@ package lsys
 import (
 	"context"
 	"math"
+	"math/cmplx"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
@@ -296,5 +297,42 @@ func TestMetricsSecondOrder(t *testing.T) {
 	// Approximation 4/(zeta wn) (Ogata Section 5-3) within 25 % as a sanity check.
 	if math.Abs(row.SettlingTime-4/(zeta*wn)) > 0.25*4/(zeta*wn) {
 		t.Errorf("settling %g far from 4/(zeta wn) = %g", row.SettlingTime, 4/(zeta*wn))
+	}
+}
+
+func TestMatchedPoleZero(t *testing.T) {
+	// Matched pole-zero of (s+1)/((s+2)(s+3)), T = 0.1: zero e^{-T},
+	// poles e^{-2T}, e^{-3T}, DC gain 1/6 kept (Franklin, Powell & Workman,
+	// Digital Control of Dynamic Systems, 3rd ed., Section 6.3.3, from
+	// memory). Relative degree 1: no zero at z = -1 is added.
+	T := 0.1
+	g := siso(t, []float64{1, 1}, []float64{6, 5, 1})
+	d, err := Sample(g, T, "matched", 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	dc, ok := DCGain(d)
+	if !ok || math.Abs(dc.At(0, 0)-1.0/6) > 1e-13 {
+		t.Errorf("DC gain %v want 1/6", dc)
+	}
+	// the sampled transfer function vanishes at the mapped zero
+	out := make([]complex128, 1)
+	if err := newHessenberg(d).at(complex(math.Exp(-T), 0), out); err != nil || math.Abs(real(out[0])) > 1e-12 {
+		t.Errorf("value at the mapped zero: %v %v", out[0], err)
+	}
+	poles, _ := Poles(d)
+	want := []float64{math.Exp(-3 * T), math.Exp(-2 * T)}
+	for i, p := range poles {
+		if math.Abs(real(p)-want[i]) > 1e-12 && math.Abs(real(p)-want[1-i]) > 1e-12 {
+			t.Errorf("pole %v, want %v", p, want)
+		}
+	}
+	// Relative degree 2: 1/((s+2)(s+3)) gets one zero at z = -1.
+	d, err = Sample(siso(t, []float64{1}, []float64{6, 5, 1}), T, "matched", 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := newHessenberg(d).at(-1, out); err != nil || cmplx.Abs(out[0]) > 1e-12 {
+		t.Errorf("value at z = -1: %v %v", out[0], err)
 	}
 }

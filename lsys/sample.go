@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/cmplx"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -32,8 +33,14 @@ const (
 //     prewarp w0 > 0, h = 2 tan(w0 T/2)/w0 so that the frequency response
 //     agrees exactly at w0. With M = I - hA/2: Ad = M^{-1}(I + hA/2),
 //     Bd = M^{-1} B h, Cd = C M^{-1}, Dd = D + C M^{-1} B h/2.
-//   - "matched": not available until the zeros of a system can be computed
-//     here; it is refused with an error that says so.
+//   - "matched" (SISO): the poles and finite zeros of a minimal realization
+//     map by z = e^{sT}; of the zeros at infinity all but one go to z = -1
+//     and one stays at infinity, so a strictly proper system stays strictly
+//     proper (a one-sample computation delay); the gain is matched at
+//     s = 0, or at w = pi/(10 T) when there is a pole at s = 0 (Franklin,
+//     Powell & Workman, Digital Control of Dynamic Systems, 3rd ed., 1998,
+//     Section 6.3.3, from memory; the treatment of zeros at infinity varies
+//     between texts and is ours as stated).
 //
 // The exponential is gonum's scaling and squaring with Pade approximants
 // (Higham 2005, "The scaling and squaring method for the matrix
@@ -85,7 +92,7 @@ func Sample(g *System, T float64, method string, prewarp float64) (*System, erro
 		}
 		out, err = bilinear(g, h, T)
 	case MethodMatched:
-		return nil, errors.New("sample: the matched method needs the zeros of the system, which are not available in this build; use zoh, foh or tustin")
+		out, err = matched(g, T)
 	default:
 		return nil, fmt.Errorf("sample: unknown method %q; use \"zoh\", \"foh\", \"tustin\" or \"matched\"", method)
 	}
@@ -307,4 +314,94 @@ func logm(F *mat.Dense) (*mat.Dense, error) {
 		return nil, errors.New("the matrix logarithm did not converge")
 	}
 	return L, nil
+}
+
+// matched implements the matched pole-zero method (see Sample).
+func matched(g *System, T float64) (*System, error) {
+	if g.M() != 1 || g.P() != 1 {
+		return nil, fmt.Errorf("the matched method is for one input and one output; this system has %d and %d (sample each channel, or use zoh)", g.M(), g.P())
+	}
+	if g.N() == 0 {
+		return NewSystem(0, 1, 1, nil, nil, nil, g.D, T)
+	}
+	mg, err := Minimal(g, 0)
+	if err != nil {
+		return nil, err
+	}
+	if mg.N() == 0 {
+		return NewSystem(0, 1, 1, nil, nil, nil, mg.D, T)
+	}
+	poles, err := Poles(mg)
+	if err != nil {
+		return nil, err
+	}
+	zs, err := Zeros(mg, 0)
+	if err != nil {
+		return nil, err
+	}
+	var zp, zz []complex128
+	for _, p := range poles {
+		zp = append(zp, cmplx.Exp(p*complex(T, 0)))
+	}
+	for _, z := range zs.Invariant {
+		zz = append(zz, cmplx.Exp(z*complex(T, 0)))
+	}
+	for k := len(zs.Invariant); k < len(poles)-1; k++ {
+		zz = append(zz, -1)
+	}
+	num, den := polyFromRoots(zz), polyFromRoots(zp)
+	// gain matching point
+	w0 := 0.0
+	for _, p := range poles {
+		if cmplx.Abs(p) <= 1e-9*math.Max(1, mat.Norm(mg.A, 1)) {
+			w0 = math.Pi / (10 * T)
+		}
+	}
+	gc, err := GainAt(mg, w0)
+	if err != nil {
+		return nil, fmt.Errorf("the gain cannot be matched at %g rad/s: %w", w0, err)
+	}
+	zpt := cmplx.Exp(complex(0, w0*T))
+	gd := polyAtC(num, zpt) / polyAtC(den, zpt)
+	if gd == 0 || cmplx.IsNaN(gd) || cmplx.IsInf(gd) {
+		return nil, errors.New("the gain cannot be matched: the sampled system vanishes or has a pole at the matching point")
+	}
+	ratio := gc[0] / gd
+	K := cmplx.Abs(ratio)
+	if real(ratio) < 0 {
+		K = -K
+	}
+	d, err := Realize([][]*Rational{{{Num: polyScale(K, num), Den: den, Ts: T}}}, T)
+	if err != nil {
+		return nil, err
+	}
+	return d, nil
+}
+
+// polyFromRoots returns the monic real polynomial (ascending) with the
+// given roots; complex roots must come in conjugate pairs (imaginary
+// parts of the product are rounding and are dropped).
+func polyFromRoots(roots []complex128) []float64 {
+	c := []complex128{1}
+	for _, r := range roots {
+		next := make([]complex128, len(c)+1)
+		for i, v := range c {
+			next[i+1] += v
+			next[i] -= r * v
+		}
+		c = next
+	}
+	out := make([]float64, len(c))
+	for i, v := range c {
+		out[i] = real(v)
+	}
+	return out
+}
+
+func polyAtC(p []float64, z complex128) complex128 {
+	var acc complex128
+	for i := len(p) - 1; i >= 0; i-- {
+		acc = acc*z + complex(p[i], 0)
+	}
+	return acc
 }
