@@ -120,8 +120,8 @@ func TestTustinFirstOrderAndRoundTrips(t *testing.T) {
 	if _, err := Continuous(neg, "zoh", 0); err == nil {
 		t.Error("zoh inverse of a negative real pole accepted")
 	}
-	if _, err := Sample(g, 0.1, "matched", 0); err == nil {
-		t.Error("matched claimed to work")
+	if _, err := Sample(stackTwo(g), 0.1, "matched", 0); err == nil {
+		t.Error("matched accepted a two-input system")
 	}
 }
 
@@ -335,4 +335,9 @@ func TestMatchedPoleZero(t *testing.T) {
 	if err := newHessenberg(d).at(-1, out); err != nil || cmplx.Abs(out[0]) > 1e-12 {
 		t.Errorf("value at z = -1: %v %v", out[0], err)
 	}
+}
+
+func stackTwo(g *System) *System {
+	s, _ := Stack(g, g)
+	return s
 }
