@@ -213,7 +213,7 @@ func mathBuiltins() []*Builtin {
 			always(func(x float64) float64 { return x }), func(x complex128) complex128 { return complex(real(x), 0) }, nil),
 		elementary("imag", "Imaginary part of a complex number.", "imag(-1 + 2j)",
 			always(func(float64) float64 { return 0 }), func(x complex128) complex128 { return complex(imag(x), 0) }, nil),
-		elementary("angle", "Angle of a complex number in radians, from -pi to pi.", "angle(1j)",
+		elementary("phase", "Phase (angle) of a complex number in radians, from -pi to pi.", "phase(1j)",
 			always(func(x float64) float64 { return math.Atan2(0, x) }), func(x complex128) complex128 { return complex(cmplx.Phase(x), 0) }, nil),
 		elementary("conjugate", "Complex conjugate.", "conjugate(-1 + 2j)",
 			always(func(x float64) float64 { return x }), cmplx.Conj, nil),

@@ -103,11 +103,9 @@ func (ev *evaluator) run(stmts []Stmt) (any, error) {
 	return last, nil
 }
 
+// checkBindable: a binding may hide a built-in of the same name (gain = 2
+// is a natural thing to write); calling it then says what happened.
 func (ev *evaluator) checkBindable(id *Ident) error {
-	if b, ok := Lookup(id.Name); ok && b.Fn != nil {
-		return ev.errorAt(id.NamePos, fmt.Sprintf("'%s' is the name of a built-in function", id.Name),
-			"Choose another name for your value.")
-	}
 	return nil
 }
 
@@ -408,8 +406,13 @@ func (ev *evaluator) evalCall(x *CallExpr) (any, error) {
 	case *Function:
 		return ev.callFunction(f, vals, pos, named, x.Fun.Pos())
 	}
-	return nil, ev.errorAt(x.Lparen, fmt.Sprintf("%s is %s, not a function", ExprString(x.Fun), typeName(fn)),
-		"Only functions can be called; to index a matrix use M[2, 1].")
+	hint := "Only functions can be called; to index a matrix use M[2, 1]."
+	if id, ok := x.Fun.(*Ident); ok {
+		if b, ok := Lookup(id.Name); ok && b.Fn != nil {
+			hint = fmt.Sprintf("Your binding '%s' hides the built-in %s; give your value another name.", id.Name, b.Signature())
+		}
+	}
+	return nil, ev.errorAt(x.Lparen, fmt.Sprintf("%s is %s, not a function", ExprString(x.Fun), typeName(fn)), hint)
 }
 
 // apply calls f with values (used by built-ins that take functions).

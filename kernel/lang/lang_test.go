@@ -144,7 +144,7 @@ func TestCellsErrors(t *testing.T) {
 		{src: "system([[0, 1]])", err: "needs a square matrix, not a 1x2 one", line: 1, col: 8},
 		{src: "system([[0, 1], [0, 0]], [1, 2, 3])", err: "B must have as many rows as A: got 3x1 against 2x2", line: 1, col: 1},
 		{src: "system()", err: "system needs the argument 'A'", line: 1, col: 1},
-		{src: "modes = 3", err: "'modes' is the name of a built-in function", line: 1, col: 1},
+		{src: "modes = 3\nmodes(1)", err: "hides the built-in modes(system)", line: 2, col: 6},
 		{src: "x = 3\nx(2)", err: "x is a number, not a function", line: 2, col: 2},
 		{src: "f(k) = k\nf(1, 2)", err: "f takes 1 argument", line: 2, col: 6},
 		{src: "f(k) = g(k)\nf(1)", err: "unknown name 'g'", line: 1, col: 8},

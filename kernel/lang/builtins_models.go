@@ -1,0 +1,639 @@
+package lang
+
+// Built-ins for equation models: linearize, equilibrium, sensitivity and
+// locus.
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"gonum.org/v1/gonum/mat"
+
+	"lsys/lsys"
+)
+
+func init() {
+	for _, b := range modelBuiltins() {
+		Register(b)
+	}
+	RegisterType((*lsys.Sensitivity)(nil), TypeInfo{Name: "an eigenvalue sensitivity table",
+		Fields: []string{"eigenvalues", "parameters", "values"},
+		Field: func(v any, name string) (any, bool) {
+			s := v.(*lsys.Sensitivity)
+			switch name {
+			case "eigenvalues":
+				return complexList(s.Eigenvalues), true
+			case "parameters":
+				return namesList(s.Parameters), true
+			case "values":
+				return floatVector(s.Values), true
+			}
+			return nil, false
+		}})
+	RegisterType((*lsys.Locus)(nil), TypeInfo{Name: "a locus", Fields: []string{"parameter", "values", "branches"},
+		Field: func(v any, name string) (any, bool) {
+			l := v.(*lsys.Locus)
+			switch name {
+			case "parameter":
+				return l.Parameter, true
+			case "values":
+				return floatVector(l.Values), true
+			case "branches":
+				out := &List{}
+				for _, b := range l.Branches {
+					out.Items = append(out.Items, complexList(b))
+				}
+				return out, true
+			}
+			return nil, false
+		}})
+}
+
+func complexList(v []complex128) any {
+	m := mat.NewCDense(len(v), 1, nil)
+	for i, c := range v {
+		m.Set(i, 0, c)
+	}
+	return m
+}
+
+func floatVector(v []float64) *mat.Dense {
+	if len(v) == 0 {
+		return nil
+	}
+	return mat.NewDense(len(v), 1, append([]float64(nil), v...))
+}
+
+const pendulumExample = `g = 9.81; len = 0.5; damping = 0.2
+pendulum = system {
+  states angle, rate
+  inputs torque
+  outputs tip
+  angle' = rate
+  rate' = -g/len*sin(angle) - damping*rate + torque
+  tip = len*sin(angle)
+}
+`
+
+func modelBuiltins() []*Builtin {
+	return []*Builtin{
+		{
+			Name: "linearize", Group: GroupModels,
+			Params: []Param{
+				{Name: "model", Doc: "a nonlinear model (an equation block)"},
+				{Name: "at", Optional: true, Doc: "the operating point: a record with a value for every state and input, or an equilibrium"},
+			},
+			Help: "The linear system of a nonlinear model at an operating point, with exact Jacobians.",
+			Doc: "The matrices A = df/dx, B = df/du, C = dg/dx, D = dg/du are computed by forward-mode automatic differentiation " +
+				"(dual numbers): exact up to rounding, with no step size. The states, inputs and outputs of the result are deviations from " +
+				"the operating point. A linear system is returned as it is.",
+			Examples: []string{pendulumExample + "linearize(pendulum, at: {angle: pi, rate: 0, torque: 0})"},
+			Fn:       linearizeFn,
+		},
+		{
+			Name: "equilibrium", Group: GroupModels,
+			Params: []Param{
+				{Name: "model", Doc: "an equation block (nonlinear model or linear system)"},
+				{Name: "inputs", Optional: true, Doc: "a record with the constant input values; inputs left out are 0"},
+				{Name: "guess", Optional: true, Doc: "a record with starting values for the states; states left out start at 0"},
+			},
+			Help: "A steady state of a model for constant inputs, by Newton's method with a line search.",
+			Doc: "Solves f(x, u) = 0 (continuous) or f(x, u) = x (sampled) for the states x. The Jacobian comes from automatic " +
+				"differentiation; each Newton step is shortened until the residual falls (Armijo's rule, Dennis & Schnabel, " +
+				"Numerical Methods for Unconstrained Optimization and Nonlinear Equations, 1983, section 6.3). The result gives " +
+				"the states, the inputs, the residual max|f| and the number of steps, and can be passed to linearize(model, at: ...). " +
+				"When Newton fails, the error says why: a singular Jacobian, a line search that cannot reduce the residual, or too many steps.",
+			Examples: []string{pendulumExample + "e = equilibrium(pendulum, inputs: {torque: 0}, guess: {angle: 3})\nlinearize(pendulum, at: e)"},
+			Fn:       equilibriumFn,
+		},
+		{
+			Name: "sensitivity", Group: GroupModels,
+			Params: []Param{
+				{Name: "model", Doc: "an equation block: a system built from one, or a nonlinear model"},
+				{Name: "parameters", Doc: `names of parameters used in the block, as strings: ["k", "b"]`},
+				{Name: "at", Optional: true, Doc: "operating point (nonlinear models only)"},
+			},
+			Help: "How fast each eigenvalue moves with each named parameter: d(eigenvalue)/d(parameter).",
+			Doc: "For each mode, d lambda/dp = w^H (dA/dp) v / (w^H v) with v, w the right and left eigenvectors of A. dA/dp is " +
+				"exact: second derivatives of the equations by hyper-dual numbers (Fike & Alonso 2011). A defective eigenvalue has no " +
+				"derivative and is marked undefined. The parameters are the values the block used when it was evaluated.",
+			Examples: []string{"k = 4; b = 0.4; mass = 1\naxis = system {\n  states position, velocity\n  inputs force\n  position' = velocity\n  velocity' = (force - k*position - b*velocity) / mass\n}\nsensitivity(axis, [\"k\", \"b\"])"},
+			Fn:       sensitivityFn,
+		},
+		{
+			Name: "locus", Group: GroupModels,
+			Params: []Param{
+				{Name: "family", Doc: "a function of one parameter that gives a system, e.g. f(k) = closeloop(G, k)"},
+			},
+			AnyNamed: true,
+			Help:     "How the modes of f(k) move as the parameter k runs over values: locus(f, k: linear(0, 10)).",
+			Doc: "The named argument gives the parameter's name (that of the function's parameter) and its values. At each value the " +
+				"eigenvalues of the system are matched to those of the previous value by a minimum-distance assignment (Kuhn 1955), so " +
+				"each branch follows one mode, even where modes cross. Long sweeps show their progress.",
+			Examples: []string{"axis(k) = system([[0, 1], [-k, -0.4]], [0, 1], [1, 0])\nlocus(axis, k: linear(1, 10, n: 20))"},
+			Fn:       locusFn,
+		},
+	}
+}
+
+// operatingPoint reads the values of the states and inputs from a record
+// or an equilibrium.
+func operatingPoint(c *Call, name string, bs *blockSource, needAll bool) (x, u []float64, err error) {
+	v := c.Value(name)
+	var rec *Record
+	switch t := v.(type) {
+	case *Record:
+		rec = t
+	case *Equilibrium:
+		rec = t.point()
+	default:
+		return nil, nil, c.typeError(name, "a record such as {angle: 0, rate: 0, torque: 0}, or an equilibrium", v)
+	}
+	known := append(append([]string(nil), bs.states...), bs.inputs...)
+	for i, n := range rec.Names {
+		if !contains(known, n) {
+			return nil, nil, c.Errorf(name, "Give values for the states and inputs only: "+strings.Join(known, ", ")+".",
+				"'%s' is not a state or input of this model%s", n, didYouMean(n, known))
+		}
+		if _, ok := rec.Values[i].(float64); !ok {
+			return nil, nil, c.Errorf(name, "", "the value of '%s' must be a real number, not %s", n, typeName(rec.Values[i]))
+		}
+		if f := rec.Values[i].(float64); math.IsInf(f, 0) {
+			return nil, nil, c.Errorf(name, "", "the value of '%s' must be finite", n)
+		}
+	}
+	get := func(names []string, kind string) ([]float64, error) {
+		out := make([]float64, len(names))
+		for i, n := range names {
+			f, ok := rec.Get(n)
+			if !ok {
+				if needAll {
+					return nil, c.Errorf(name, "Give a value for every state and input: "+strings.Join(known, ", ")+".",
+						"%s gives no value for the %s '%s'", name, kind, n)
+				}
+				continue
+			}
+			out[i] = f.(float64)
+		}
+		return out, nil
+	}
+	if x, err = get(bs.states, "state"); err != nil {
+		return nil, nil, err
+	}
+	if u, err = get(bs.inputs, "input"); err != nil {
+		return nil, nil, err
+	}
+	return x, u, nil
+}
+
+func linearizeFn(c *Call) (any, error) {
+	v := c.Value("model")
+	if g, ok := v.(*lsys.System); ok {
+		return g, nil
+	}
+	bs, ok := c.ev.s.sourceOf(v)
+	if !ok {
+		return nil, c.typeError("model", "a nonlinear model (an equation block)", v)
+	}
+	if !c.Has("at") {
+		return nil, c.Errorf("", "Write linearize(model, at: {"+strings.Join(append(append([]string(nil), bs.states...), bs.inputs...), ": 0, ")+": 0}).",
+			"linearize needs the operating point 'at'")
+	}
+	x, u, err := operatingPoint(c, "at", bs, true)
+	if err != nil {
+		return nil, err
+	}
+	A, B, C, D, err := bs.jacobians(c.ev, x, u, "", nil)
+	if err != nil {
+		return nil, err
+	}
+	g, err := bs.system(A, B, C, D)
+	if err != nil {
+		return nil, c.Errorf("at", "", "%v", err)
+	}
+	return g, nil
+}
+
+// Equilibrium is a steady state found by equilibrium().
+type Equilibrium struct {
+	States     *Record
+	Inputs     *Record
+	Residual   float64 // max |f| (continuous) or max |f - x| (sampled) at the result
+	Iterations int
+}
+
+func (e *Equilibrium) point() *Record {
+	r := &Record{}
+	r.Names = append(append(r.Names, e.States.Names...), e.Inputs.Names...)
+	r.Values = append(append(r.Values, e.States.Values...), e.Inputs.Values...)
+	return r
+}
+
+func (e *Equilibrium) String() string {
+	return fmt.Sprintf("equilibrium after %d Newton steps, residual %.3g\nstates: %s\ninputs: %s",
+		e.Iterations, e.Residual, e.States, e.Inputs)
+}
+
+// Field reads e.states, e.inputs, e.residual, e.iterations or a state or
+// input by name.
+func (e *Equilibrium) Field(name string) (any, bool) {
+	switch name {
+	case "states":
+		return e.States, true
+	case "inputs":
+		return e.Inputs, true
+	case "residual":
+		return e.Residual, true
+	case "iterations":
+		return float64(e.Iterations), true
+	}
+	if v, ok := e.States.Get(name); ok {
+		return v, true
+	}
+	return e.Inputs.Get(name)
+}
+
+// FieldNames lists the fields of an equilibrium.
+func (e *Equilibrium) FieldNames() []string {
+	out := []string{"states", "inputs", "residual", "iterations"}
+	out = append(out, e.States.Names...)
+	return append(out, e.Inputs.Names...)
+}
+
+func equilibriumFn(c *Call) (any, error) {
+	v := c.Value("model")
+	bs, ok := c.ev.s.sourceOf(v)
+	if !ok {
+		return nil, c.typeError("model", "an equation block (system { ... })", v)
+	}
+	n := len(bs.states)
+	if n == 0 {
+		return nil, c.Errorf("model", "", "the model has no states")
+	}
+	u := make([]float64, len(bs.inputs))
+	if c.Has("inputs") {
+		r, ok := c.Value("inputs").(*Record)
+		if !ok {
+			return nil, c.typeError("inputs", "a record such as {torque: 0}", c.Value("inputs"))
+		}
+		for i, name := range r.Names {
+			j := -1
+			for k, in := range bs.inputs {
+				if in == name {
+					j = k
+				}
+			}
+			if j < 0 {
+				return nil, c.Errorf("inputs", "", "'%s' is not an input of this model%s", name, didYouMean(name, bs.inputs))
+			}
+			f, ok := r.Values[i].(float64)
+			if !ok || math.IsInf(f, 0) {
+				return nil, c.Errorf("inputs", "", "the value of '%s' must be a finite real number", name)
+			}
+			u[j] = f
+		}
+	}
+	x := make([]float64, n)
+	if c.Has("guess") {
+		r, ok := c.Value("guess").(*Record)
+		if !ok {
+			return nil, c.typeError("guess", "a record such as {angle: 3}", c.Value("guess"))
+		}
+		for i, name := range r.Names {
+			j := -1
+			for k, s := range bs.states {
+				if s == name {
+					j = k
+				}
+			}
+			if j < 0 {
+				return nil, c.Errorf("guess", "", "'%s' is not a state of this model%s", name, didYouMean(name, bs.states))
+			}
+			f, ok := r.Values[i].(float64)
+			if !ok || math.IsInf(f, 0) {
+				return nil, c.Errorf("guess", "", "the value of '%s' must be a finite real number", name)
+			}
+			x[j] = f
+		}
+	}
+	sampled := bs.ts > 0
+	// residual and Jacobian of F(x) = f(x, u) (- x when sampled).
+	eval := func(x []float64, jac bool) ([]float64, *mat.Dense, error) {
+		f, _, err := bs.evalAt(c.ev, x, u, -1, "", nil)
+		if err != nil {
+			return nil, nil, err
+		}
+		F := make([]float64, n)
+		for i := range F {
+			F[i] = f[i].V
+			if sampled {
+				F[i] -= x[i]
+			}
+		}
+		if !jac {
+			return F, nil, nil
+		}
+		A, _, _, _, err := bs.jacobians(c.ev, x, u, "", nil)
+		if err != nil {
+			return nil, nil, err
+		}
+		if sampled {
+			for i := 0; i < n; i++ {
+				A.Set(i, i, A.At(i, i)-1)
+			}
+		}
+		return F, A, nil
+	}
+	norm := func(F []float64) float64 {
+		m := 0.0
+		for _, f := range F {
+			m = math.Max(m, math.Abs(f))
+		}
+		return m
+	}
+	sq := func(F []float64) float64 {
+		s := 0.0
+		for _, f := range F {
+			s += f * f
+		}
+		return s
+	}
+	const maxIter = 100
+	F, J, err := eval(x, true)
+	if err != nil {
+		return nil, err
+	}
+	iter := 0
+	for ; iter < maxIter; iter++ {
+		if err := c.Check(); err != nil {
+			return nil, err
+		}
+		r := norm(F)
+		if r == 0 {
+			break
+		}
+		// Newton step J dx = -F; a (nearly) singular J falls back to the
+		// least-squares step from the SVD.
+		dx, ok := newtonStep(J, F)
+		if !ok {
+			return nil, c.Errorf("", "Try another guess, or check that the inputs admit a steady state.",
+				"equilibrium: the Jacobian is singular at step %d (residual %.3g); Newton cannot go on", iter+1, r)
+		}
+		phi0 := sq(F)
+		t := 1.0
+		var xn, Fn []float64
+		accepted := false
+		for t > 1e-10 {
+			xn = make([]float64, n)
+			for i := range xn {
+				xn[i] = x[i] + t*dx[i]
+			}
+			var e error
+			Fn, _, e = eval(xn, false)
+			if e == nil && sq(Fn) <= (1-2e-4*t)*phi0 {
+				accepted = true
+				break
+			}
+			t /= 2
+		}
+		if !accepted {
+			if r <= 1e-12*math.Max(1, maxAbs(x)) {
+				break // already at the rounding level
+			}
+			return nil, c.Errorf("", "Try another guess: equilibrium(model, inputs: {...}, guess: {...}).",
+				"equilibrium: the line search cannot reduce the residual %.3g at step %d; the iteration is stuck (near a minimum of |f| that is not zero?)", r, iter+1)
+		}
+		small := true
+		for i := range dx {
+			if math.Abs(t*dx[i]) > 1e-15*math.Max(1, math.Abs(x[i])) {
+				small = false
+			}
+		}
+		x = xn
+		F, J, err = eval(x, true)
+		if err != nil {
+			return nil, err
+		}
+		if small || norm(F) <= 1e-15*math.Max(1, maxAbs(x)) {
+			iter++
+			break
+		}
+	}
+	res := norm(F)
+	if res > 1e-9*math.Max(1, maxAbs(x)) {
+		return nil, c.Errorf("", "Try another guess: equilibrium(model, inputs: {...}, guess: {...}).",
+			"equilibrium: no steady state found after %d Newton steps; the residual is still %.3g", iter, res)
+	}
+	e := &Equilibrium{States: &Record{}, Inputs: &Record{}, Residual: res, Iterations: iter}
+	for i, s := range bs.states {
+		e.States.Names = append(e.States.Names, s)
+		e.States.Values = append(e.States.Values, x[i])
+	}
+	for j, s := range bs.inputs {
+		e.Inputs.Names = append(e.Inputs.Names, s)
+		e.Inputs.Values = append(e.Inputs.Values, u[j])
+	}
+	return e, nil
+}
+
+func maxAbs(v []float64) float64 {
+	m := 0.0
+	for _, x := range v {
+		m = math.Max(m, math.Abs(x))
+	}
+	return m
+}
+
+// newtonStep solves J dx = -F by LU with partial pivoting; when J is
+// singular or its condition exceeds 1e12 it takes the minimum-norm
+// least-squares step from the SVD, truncating singular values below
+// 1e-12 of the largest. ok is false when J is zero.
+func newtonStep(J *mat.Dense, F []float64) ([]float64, bool) {
+	n := len(F)
+	rhs := mat.NewVecDense(n, nil)
+	for i, f := range F {
+		rhs.SetVec(i, -f)
+	}
+	var lu mat.LU
+	lu.Factorize(J)
+	if c := lu.Cond(); !math.IsInf(c, 0) && c < 1e12 {
+		var dx mat.VecDense
+		if err := lu.SolveVecTo(&dx, false, rhs); err == nil {
+			return dx.RawVector().Data, true
+		}
+	}
+	var svd mat.SVD
+	if !svd.Factorize(J, mat.SVDFull) {
+		return nil, false
+	}
+	s := svd.Values(nil)
+	if len(s) == 0 || s[0] == 0 {
+		return nil, false
+	}
+	var U, V mat.Dense
+	svd.UTo(&U)
+	svd.VTo(&V)
+	dx := make([]float64, n)
+	for k, sk := range s {
+		if sk <= 1e-12*s[0] {
+			break
+		}
+		var coef float64
+		for i := 0; i < n; i++ {
+			coef += U.At(i, k) * rhs.AtVec(i)
+		}
+		coef /= sk
+		for i := 0; i < n; i++ {
+			dx[i] += coef * V.At(i, k)
+		}
+	}
+	return dx, true
+}
+
+func sensitivityFn(c *Call) (any, error) {
+	v := c.Value("model")
+	bs, ok := c.ev.s.sourceOf(v)
+	if !ok {
+		if _, isSys := v.(*lsys.System); isSys {
+			return nil, c.Errorf("model", "Write the model as an equation block, system { ... }, using named parameters bound before it.",
+				"sensitivity needs a system written as an equation block, so that its parameters are known; this one was built from matrices")
+		}
+		return nil, c.typeError("model", "an equation block", v)
+	}
+	names, err := c.Strings("parameters")
+	if err != nil {
+		return nil, err
+	}
+	if len(names) == 0 {
+		return nil, c.Errorf("parameters", "", "give at least one parameter name")
+	}
+	for _, p := range names {
+		if _, ok := bs.params[p]; !ok {
+			hint := "The parameters of this model are: " + strings.Join(bs.paramOrder, ", ") + "."
+			if len(bs.paramOrder) == 0 {
+				hint = "This model uses no named parameters: its equations have numbers only."
+			}
+			return nil, c.Errorf("parameters", hint, "'%s' is not a parameter of this model%s", p, didYouMean(p, bs.paramOrder))
+		}
+	}
+	x := make([]float64, len(bs.states))
+	u := make([]float64, len(bs.inputs))
+	if bs.firstNL != nil {
+		if !c.Has("at") {
+			return nil, c.Errorf("", "Give the operating point: sensitivity(model, [...], at: {...}).",
+				"a nonlinear model needs the operating point 'at'")
+		}
+		if x, u, err = operatingPoint(c, "at", bs, true); err != nil {
+			return nil, err
+		}
+	}
+	A, _, _, _, err := bs.jacobians(c.ev, x, u, "", nil)
+	if err != nil {
+		return nil, err
+	}
+	if A == nil {
+		return nil, c.Errorf("model", "", "the model has no states, so no eigenvalues")
+	}
+	var dA []*mat.Dense
+	var vals []float64
+	for _, p := range names {
+		d, _, _, _, err := bs.jacobians(c.ev, x, u, p, nil)
+		if err != nil {
+			return nil, err
+		}
+		dA = append(dA, d)
+		vals = append(vals, bs.params[p])
+	}
+	return lsys.EigenvalueSensitivity(A, dA, names, vals, bs.ts)
+}
+
+// MaxLocusSteps bounds the number of parameter values of one locus.
+const MaxLocusSteps = 100_000
+
+func locusFn(c *Call) (any, error) {
+	f := c.Value("family")
+	var params []string
+	switch t := f.(type) {
+	case *Function:
+		params = t.Params
+	case *Builtin:
+		return nil, c.Errorf("family", "Define a function first: f(k) = ..., then locus(f, k: values).", "locus needs a function of your own, not the built-in %s", t.Name)
+	default:
+		return nil, c.typeError("family", "a function such as f(k) = system(...)", f)
+	}
+	if len(params) != 1 {
+		return nil, c.Errorf("family", "", "the function must have exactly one parameter; it has %d", len(params))
+	}
+	if len(c.Extra) != 1 {
+		return nil, c.Errorf("", fmt.Sprintf("Write locus(f, %s: linear(1, 10)).", params[0]),
+			"locus needs one named argument: the parameter '%s' with its values", params[0])
+	}
+	nv := c.Extra[0]
+	if nv.Name != params[0] {
+		return nil, c.ev.errorAt(nv.Pos, fmt.Sprintf("the function's parameter is '%s', not '%s'", params[0], nv.Name),
+			fmt.Sprintf("Write locus(f, %s: values).", params[0]))
+	}
+	var values []float64
+	switch t := nv.Value.(type) {
+	case *mat.Dense:
+		r, cc := t.Dims()
+		for i := 0; i < r; i++ {
+			for j := 0; j < cc; j++ {
+				values = append(values, t.At(i, j))
+			}
+		}
+	case float64:
+		values = []float64{t}
+	default:
+		return nil, c.ev.errorAt(nv.Pos, fmt.Sprintf("the values of '%s' must be a vector of numbers, not %s", nv.Name, typeName(nv.Value)),
+			"Use linear(a, b, n: 50) or logarithmic(a, b).")
+	}
+	if len(values) > MaxLocusSteps {
+		return nil, c.ev.errorAt(nv.Pos, fmt.Sprintf("%d values are more than the limit of %d", len(values), MaxLocusSteps), "")
+	}
+	progress := len(values) >= 50
+	const id = "locus-progress"
+	if progress {
+		c.Progress(id, fmt.Sprintf("locus: 0 of %d values", len(values)), true)
+	}
+	var eig [][]complex128
+	ts := 0.0
+	every := max(1, len(values)/10)
+	for k, p := range values {
+		if err := c.Check(); err != nil {
+			return nil, err
+		}
+		r, err := c.Apply(f, p)
+		if err != nil {
+			return nil, err
+		}
+		g, err := c.ev.toSystem(r, c.pos)
+		if err != nil {
+			return nil, err
+		}
+		if g == nil {
+			return nil, c.Errorf("family", "", "at %s = %s the function gives %s, not a system", nv.Name, FormatNumber(p), typeName(r))
+		}
+		if g.N() == 0 {
+			return nil, c.Errorf("family", "", "at %s = %s the system has no states, so no modes", nv.Name, FormatNumber(p))
+		}
+		if k > 0 && g.N() != len(eig[0]) {
+			return nil, c.Errorf("family", "A locus follows a fixed number of modes.",
+				"at %s = %s the system has %s, but %d at the first value", nv.Name, FormatNumber(p), plural(g.N(), "state"), len(eig[0]))
+		}
+		es, err := lsys.Eigen(g.A)
+		if err != nil {
+			return nil, c.Errorf("family", "", "at %s = %s: %v", nv.Name, FormatNumber(p), err)
+		}
+		eig = append(eig, es.Values)
+		ts = g.Ts
+		if progress && (k+1)%every == 0 && k+1 < len(values) {
+			c.Progress(id, fmt.Sprintf("locus: %d of %d values", k+1, len(values)), false)
+		}
+	}
+	if progress {
+		c.Progress(id, fmt.Sprintf("locus: %d values done", len(values)), false)
+	}
+	return lsys.NewLocus(nv.Name, values, eig, ts)
+}
