@@ -6,7 +6,7 @@ import "math"
 // e1^2 = e2^2 = 0 and e1e2 != 0 (Fike & Alonso, "The development of
 // hyper-dual numbers for exact second-derivative calculations", AIAA
 // 2011-886). Evaluating a function f on x = a + e1 + e2 (seeds in both
-// parts) gives f(a) + f'(a) e1 + f'(a) e2 + f''(a) e1e2; seeding e1 on one
+// parts) gives f(a) + f'(a) e1 + f'(a) e2 + f2(a) e1e2 (f2 the second derivative); seeding e1 on one
 // variable and e2 on another gives the mixed second derivative in E12.
 // Unlike finite differences there is no step size: first and second
 // derivatives are exact up to rounding.
