@@ -109,7 +109,7 @@ func (m *NonlinearModel) FieldNames() []string {
 
 func (m *NonlinearModel) needLinearize(ev *evaluator, pos Pos) error {
 	t := m.bs.firstNL
-	return ev.errorAt(pos, fmt.Sprintf("this is a nonlinear model, not a linear system: its first nonlinear term is %s (line %d, column %d of its block)",
+	return ev.errorAt(pos, fmt.Sprintf("this is a nonlinear model, not a linear system: its first nonlinear term is %s (line %d, column %d of the cell that defines it)",
 		ExprString(t), t.Pos().Line, t.Pos().Column),
 		"Linearize it first: linearize(model, at: {state: value, ..., input: value}); equilibrium(model, inputs: {...}) finds an operating point.")
 }
@@ -133,12 +133,21 @@ type meval struct {
 	pseed      string
 	params     map[string]float64
 	depth      int
+	callSite   Expr // the outermost user-function call being evaluated
 }
 
 var equationFuncs = map[string]bool{"sin": true, "cos": true, "tan": true, "exp": true, "log": true, "sqrt": true, "abs": true}
 
+// nonlinear records a nonlinear term; the first in source order wins.
+// Inside a user function the term is the call in the block.
 func (me *meval) nonlinear(e Expr) {
-	if me.structural && me.bs.firstNL == nil {
+	if !me.structural {
+		return
+	}
+	if me.callSite != nil {
+		e = me.callSite
+	}
+	if f := me.bs.firstNL; f == nil || e.Pos().Offset < f.Pos().Offset {
 		me.bs.firstNL = e
 	}
 }
@@ -438,10 +447,13 @@ func (me *meval) call(x *CallExpr) (mval, error) {
 		}
 		me.depth++
 		me.frames = append(me.frames, frame)
-		oldSrc := me.ev.src
+		oldSrc, oldSite := me.ev.src, me.callSite
 		me.ev.src = f.src
+		if me.callSite == nil {
+			me.callSite = x
+		}
 		v, err := me.eval(f.Body)
-		me.ev.src = oldSrc
+		me.ev.src, me.callSite = oldSrc, oldSite
 		me.frames = me.frames[:len(me.frames)-1]
 		me.depth--
 		return v, err

@@ -537,7 +537,7 @@ func (p *parser) parseSystemBlock(pos Pos) Expr {
 		switch p.tok {
 		case NEWLINE:
 			p.next()
-		case RBRACE:
+		case RBRACE, EOF:
 		default:
 			p.errorAt(p.pos, fmt.Sprintf("unexpected %s after the equation", p.describe()),
 				"Put one equation or declaration per line, or separate them with ';'.")
