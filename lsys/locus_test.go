@@ -36,7 +36,7 @@ func TestLocusFollowsCrossingModes(t *testing.T) {
 	var vals []float64
 	var eig [][]complex128
 	for k := 1.0; k <= 10; k++ {
-		a, b := complex(-k, 0.5), complex(-(11 - k), -0.5)
+		a, b := complex(-k, 0.5), complex(-(11-k), -0.5)
 		vals = append(vals, k)
 		if real(a) > real(b) { // present them sorted, as an eigen solver might
 			eig = append(eig, []complex128{a, b})

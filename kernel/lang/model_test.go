@@ -140,7 +140,7 @@ pendulum = system {
 }
 `
 
-// The pendulum angle'' = -(g/L) sin(angle) - c angle' + torque linearized by
+// The pendulum angle” = -(g/L) sin(angle) - c angle' + torque linearized by
 // hand: A = [[0, 1], [-(g/L) cos(a0), -c]], B = [0; 1], C = [L cos(a0), 0]
 // (Taylor expansion to first order, common practice).
 func TestLinearizePendulum(t *testing.T) {
@@ -211,7 +211,7 @@ tank = system {
 	}
 }
 
-// Mass-spring-damper m x'' + b x' + k x = F with k = 4, b = 0.4, m = 1:
+// Mass-spring-damper m x” + b x' + k x = F with k = 4, b = 0.4, m = 1:
 // lambda = (-b + j sqrt(4km - b^2)) / (2m), so d lambda/dk = j/sqrt(4km - b^2)
 // and d lambda/db = -1/(2m) - j b/(2m sqrt(4km - b^2)) (differentiating the
 // quadratic formula, common practice). Also checked against a central
