@@ -100,3 +100,56 @@ func TestNumberFormat(t *testing.T) {
 		}
 	}
 }
+
+func TestStructureRenderers(t *testing.T) {
+	// diag(-1, -2, -3) with the middle mode not reached and the last not
+	// seen (Hautus 1969): every report names them.
+	A := mat.NewDense(3, 3, []float64{-1, 0, 0, 0, -2, 0, 0, 0, -3})
+	B := mat.NewDense(3, 1, []float64{1, 0, 1})
+	C := mat.NewDense(1, 3, []float64{1, 1, 0})
+	s, err := lsys.FromMatrices(A, B, C, nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st, _ := lsys.StructureOf(s, 0)
+	zs, _ := lsys.Zeros(s, 0)
+	mf, _ := lsys.Modal(s)
+	js, _ := lsys.Jordan(mat.NewDense(2, 2, []float64{-1, 1, 0, -1}), 0, 0)
+	dec, _ := lsys.Decompose(s, 0)
+	sub, _ := lsys.Reachable(s, 0)
+	ic, _ := lsys.Invariant(A, mat.NewDense(3, 1, []float64{1, 0, 0}), 0)
+	es, _ := lsys.Eigen(A)
+	cases := []struct {
+		v    any
+		want []string
+	}{
+		{st, []string{"controllable", "NO", "-2", "Kalman parts", "neither"}},
+		{zs, []string{"input-decoupling (not reached)", "-2", "-3"}},
+		{mf, []string{"real modal form", "q1"}},
+		{js, []string{"DEFECTIVE", "2"}},
+		{dec, []string{"Kalman decomposition", "ro1"}},
+		{sub, []string{"reachable subspace: dimension 2 of 3"}},
+		{ic, []string{"is A-invariant"}},
+		{es, []string{"eigen-structure", "condition"}},
+	}
+	for _, c := range cases {
+		b := Render(c.v, Options{})
+		txt := b.Data[Text].(string)
+		for _, w := range c.want {
+			if !strings.Contains(txt, w) {
+				t.Errorf("%T: text lacks %q:\n%s", c.v, w, txt)
+			}
+		}
+		if _, ok := b.Data[HTML].(string); !ok {
+			t.Errorf("%T: no HTML", c.v)
+		}
+		x, err := json.Marshal(b.Data)
+		if err != nil {
+			t.Fatalf("%T: %v", c.v, err)
+		}
+		y, _ := json.Marshal(Render(c.v, Options{}).Data)
+		if string(x) != string(y) {
+			t.Errorf("%T: two renderings differ", c.v)
+		}
+	}
+}

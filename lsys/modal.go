@@ -23,6 +23,7 @@ type ModalBlock struct {
 
 // ModalForm is the result of Modal: the system in modal coordinates z = T x.
 type ModalForm struct {
+	From   *System // the system in its original coordinates
 	System *System
 	T      *mat.Dense // z = T x
 	Tinv   *mat.Dense // x = Tinv z: its columns are the mode shapes
@@ -171,7 +172,7 @@ func modalFromVectors(s *System, es *EigenStructure, js *JordanStructure) (*Moda
 	// accuracy and the off-block entries are rounding noise of size
 	// u*||A||*cond.
 	sys.StateNames = modalNames(mf.Blocks)
-	mf.System, mf.T, mf.Tinv = sys, T, V
+	mf.System, mf.T, mf.Tinv, mf.From = sys, T, V, s
 	mf.Note = fmt.Sprintf("real modal form from the eigenvectors (condition number of T %.3g)", cond)
 	return mf, nil
 }
@@ -330,7 +331,7 @@ func modalFromSchur(s *System, js *JordanStructure, why string) (*ModalForm, err
 		return nil, err
 	}
 	sys.StateNames = modalNames(mf.Blocks)
-	mf.System, mf.T, mf.Tinv, mf.Cond = sys, Tm, W, cond
+	mf.System, mf.T, mf.Tinv, mf.Cond, mf.From = sys, Tm, W, cond, s
 	nc := 0
 	for _, b := range mf.Blocks {
 		if b.Kind == "cluster" {

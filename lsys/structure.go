@@ -42,6 +42,7 @@ type Structure struct {
 // z = T x ordered as reachable and observable, reachable and unobservable,
 // unreachable and observable, unreachable and unobservable.
 type Decomposition struct {
+	From   *System    // the system in its original coordinates
 	System *System    // transformed system
 	T      *mat.Dense // z = T x
 	Sizes  [4]int     // sizes of the four parts, in order
@@ -199,7 +200,7 @@ func kalman(s *System, rs, os *Staircase, relTol float64) (*Decomposition, float
 		return nil, angTol, err
 	}
 	sys.StateNames = kalmanStateNames(dims(V1), dims(V2), dims(V3), dims(V4))
-	return &Decomposition{System: sys, T: T, Sizes: [4]int{dims(V1), dims(V2), dims(V3), dims(V4)}, Cond: cond}, angTol, nil
+	return &Decomposition{From: s, System: sys, T: T, Sizes: [4]int{dims(V1), dims(V2), dims(V3), dims(V4)}, Cond: cond}, angTol, nil
 }
 
 func kalmanStateNames(n1, n2, n3, n4 int) []string {

@@ -1,0 +1,419 @@
+package display
+
+import (
+	"fmt"
+	"html"
+	"math"
+	"math/cmplx"
+	"strconv"
+	"strings"
+
+	"lsys/lsys"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+func init() {
+	Register((*lsys.ZeroSet)(nil), renderZeros)
+	Register((*lsys.ModalForm)(nil), renderModal)
+	Register((*lsys.JordanStructure)(nil), renderJordan)
+	Register((*lsys.Structure)(nil), renderStructure)
+	Register((*lsys.Decomposition)(nil), renderDecomposition)
+	Register((*lsys.Subspace)(nil), renderSubspace)
+	Register((*lsys.InvariantCheck)(nil), renderInvariant)
+	Register((*lsys.EigenStructure)(nil), renderEigen)
+}
+
+// sxValues writes eigenvalues or zeros; a conjugate pair is written once as
+// "a ± bj". An empty list is "none".
+func sxValues(vals []complex128) string {
+	if len(vals) == 0 {
+		return "none"
+	}
+	used := make([]bool, len(vals))
+	var parts []string
+	for i, v := range vals {
+		if used[i] {
+			continue
+		}
+		used[i] = true
+		paired := false
+		if imag(v) != 0 {
+			for j := i + 1; j < len(vals); j++ {
+				if !used[j] && vals[j] == cmplx.Conj(v) {
+					used[j] = true
+					paired = true
+					break
+				}
+			}
+		}
+		if paired {
+			parts = append(parts, sxComplex(complex(real(v), math.Abs(imag(v))), true))
+		} else {
+			parts = append(parts, sxComplex(v, false))
+		}
+	}
+	return strings.Join(parts, ", ")
+}
+
+func sxValuesJSON(vals []complex128) []any {
+	out := make([]any, len(vals))
+	for i, v := range vals {
+		out[i] = sxJSONComplex(v)
+	}
+	return out
+}
+
+func sxKind(s *lsys.System) string {
+	if s == nil {
+		return "system"
+	}
+	if s.Sampled() {
+		return "sampled system (every " + sxNum(s.Ts) + " s)"
+	}
+	return "continuous-time system"
+}
+
+// sxSection is a small bold heading in HTML.
+func sxSection(h *strings.Builder, title string) {
+	fmt.Fprintf(h, "<div style=\"font-weight:bold;margin:6px 0 2px 0\">%s</div>", html.EscapeString(title))
+}
+
+// sxKeyTable renders rows of (key, value) as a text block and an HTML table.
+func sxKeyTable(t, h *strings.Builder, rows [][2]string) {
+	// Text: left-aligned both columns.
+	w := 0
+	for _, r := range rows {
+		if l := len([]rune(r[0])); l > w {
+			w = l
+		}
+	}
+	for _, r := range rows {
+		fmt.Fprintf(t, "  %s%s  %s\n", r[0], strings.Repeat(" ", w-len([]rune(r[0]))), r[1])
+	}
+	h.WriteString("<table style=\"border-collapse:collapse\">")
+	for _, r := range rows {
+		fmt.Fprintf(h, "<tr><td style=\"padding:1px 10px 1px 0;color:#555;vertical-align:top\">%s</td><td style=\"padding:1px 0;font-family:monospace\">%s</td></tr>", html.EscapeString(r[0]), html.EscapeString(r[1]))
+	}
+	h.WriteString("</table>")
+}
+
+// sxGrid renders a header + rows as text columns and an HTML table.
+func sxGrid(t, h *strings.Builder, head []string, rows [][]string) {
+	cells := append([][]string{head}, rows...)
+	sxWriteColumns(t, cells, "  ")
+	th := "<th style=\"padding:2px 6px;border-bottom:1px solid #999;text-align:right;font-weight:normal;color:#333\">"
+	h.WriteString("<table style=\"border-collapse:collapse\"><tr>")
+	for _, c := range head {
+		h.WriteString(th + html.EscapeString(c) + "</th>")
+	}
+	h.WriteString("</tr>")
+	for _, r := range rows {
+		h.WriteString("<tr>")
+		for _, c := range r {
+			fmt.Fprintf(h, "<td style=\"padding:2px 6px;text-align:right;font-family:monospace\">%s</td>", html.EscapeString(c))
+		}
+		h.WriteString("</tr>")
+	}
+	h.WriteString("</table>")
+}
+
+func sxOpen(h *strings.Builder, class, title string) {
+	fmt.Fprintf(h, "<div class=\"%s\" %s>", class, sxCardStyle)
+	fmt.Fprintf(h, "<div style=\"font-weight:bold;margin-bottom:4px\">%s</div>", html.EscapeString(title))
+}
+
+func sxNote(t, h *strings.Builder, note string) {
+	if note == "" {
+		return
+	}
+	fmt.Fprintf(t, "  %s\n", note)
+	fmt.Fprintf(h, "<div style=\"color:#555;margin-top:4px;max-width:60em\">%s</div>", html.EscapeString(note))
+}
+
+func sxYesNo(b bool) string {
+	if b {
+		return "yes"
+	}
+	return "NO"
+}
+
+func sxInts(v []int) string {
+	if len(v) == 0 {
+		return "-"
+	}
+	parts := make([]string, len(v))
+	for i, k := range v {
+		parts[i] = strconv.Itoa(k)
+	}
+	return strings.Join(parts, ", ")
+}
+
+func renderZeros(v any, _ Options) Bundle {
+	z := v.(*lsys.ZeroSet)
+	var t, h strings.Builder
+	title := "zeros"
+	if z.System != nil {
+		title = fmt.Sprintf("zeros of a %s with %s, %s, %s", sxKind(z.System), sxCount(z.System.N(), "state", "states"),
+			sxCount(z.System.M(), "input", "inputs"), sxCount(z.System.P(), "output", "outputs"))
+	}
+	t.WriteString(title + "\n")
+	sxOpen(&h, "lsys-zeros", title)
+	sxKeyTable(&t, &h, [][2]string{
+		{"invariant zeros", sxValues(z.Invariant)},
+		{"transmission zeros", sxValues(z.Transmission)},
+		{"input-decoupling (not reached)", sxValues(z.InputDecoupling)},
+		{"output-decoupling (not seen)", sxValues(z.OutputDecoupling)},
+	})
+	sxNote(&t, &h, fmt.Sprintf("System pencil reduced by orthogonal compressions, then QZ; rank decisions at %s (= %s x the norm of [[A, B], [C, D]]); regular pencil of order %d.",
+		sxNum(z.Tol), sxNum(z.RelTol), z.ReducedOrder))
+	h.WriteString("</div>")
+	b := NewBundle(t.String())
+	b.Data[HTML] = h.String()
+	b.Data[JSON] = map[string]any{
+		"kind": "zeros", "invariant": sxValuesJSON(z.Invariant), "transmission": sxValuesJSON(z.Transmission),
+		"input_decoupling": sxValuesJSON(z.InputDecoupling), "output_decoupling": sxValuesJSON(z.OutputDecoupling),
+		"tol": z.Tol, "rel_tol": z.RelTol,
+	}
+	return b
+}
+
+// sxEmbedSystem appends the text and HTML of a system card.
+func sxEmbedSystem(t, h *strings.Builder, s *lsys.System) {
+	sb := renderSystem(s, Options{})
+	t.WriteString("\n" + sb.Data[Text].(string))
+	h.WriteString("<div style=\"margin-top:6px\">" + sb.Data[HTML].(string) + "</div>")
+}
+
+func sxEmbedMatrix(t, h *strings.Builder, name string, a *mat.Dense, rows, cols []string) {
+	t.WriteString("\n")
+	sxMatrixText(t, name, a, rows, cols)
+	h.WriteString("<div>")
+	sxMatrixHTML(h, name, a, rows, cols)
+	h.WriteString("</div>")
+}
+
+func renderModal(v any, _ Options) Bundle {
+	mf := v.(*lsys.ModalForm)
+	var t, h strings.Builder
+	title := "real modal form"
+	if mf.BlockDiagonal {
+		title = "block-diagonal modal form"
+	}
+	t.WriteString(title + "\n")
+	sxOpen(&h, "lsys-modal", title)
+	sxNote(&t, &h, mf.Note)
+	rows := [][]string{}
+	for i, b := range mf.Blocks {
+		rows = append(rows, []string{strconv.Itoa(i + 1), b.Kind, fmt.Sprintf("%d-%d", b.Start+1, b.Start+b.Size), sxValues(b.Values)})
+	}
+	t.WriteString("\n")
+	sxGrid(&t, &h, []string{"block", "kind", "states", "eigenvalues"}, rows)
+	if mf.System != nil {
+		sxEmbedSystem(&t, &h, mf.System)
+		if mf.T != nil && mf.System.N() <= 12 {
+			// Caller's state names are those of the original system; the
+			// modal ones index the rows.
+			orig := sxOrigNames(mf.From, mf.System.N())
+			sxEmbedMatrix(&t, &h, "T (modal coordinates q = T x)", mf.T, mf.System.StateNames, orig)
+		}
+	}
+	h.WriteString("</div>")
+	b := NewBundle(t.String())
+	b.Data[HTML] = h.String()
+	return b
+}
+
+func renderJordan(v any, _ Options) Bundle {
+	js := v.(*lsys.JordanStructure)
+	var t, h strings.Builder
+	title := fmt.Sprintf("Jordan structure of a %dx%d matrix: %s", js.N, js.N, sxCount(len(js.Clusters), "distinct eigenvalue", "distinct eigenvalues"))
+	t.WriteString(title + "\n")
+	sxOpen(&h, "lsys-jordan", title)
+	rows := [][]string{}
+	defective := 0
+	for _, c := range js.Clusters {
+		pair := imag(c.Value) > 0
+		verdict := "simple"
+		if c.Algebraic > 1 {
+			verdict = "semisimple"
+			if c.Defective() {
+				verdict = "DEFECTIVE"
+				defective++
+			}
+		}
+		ranks := "-"
+		if len(c.Ranks) > 0 {
+			ranks = sxInts(c.Ranks)
+		}
+		rows = append(rows, []string{sxComplex(c.Value, pair), strconv.Itoa(c.Algebraic), strconv.Itoa(c.Geometric), sxInts(c.Blocks), verdict, ranks, sxNum(c.Spread), sxNum(c.Tol), sxNum(c.Cond)})
+	}
+	sxGrid(&t, &h, []string{"eigenvalue", "alg.", "geom.", "blocks", "verdict", "ranks of powers", "spread", "cluster tol", "cond"}, rows)
+	sxNote(&t, &h, fmt.Sprintf("Eigenvalues i, j are one cluster when |l_i - l_j| <= %s u ||A|| max(cond_i, cond_j) (at most %s%s); block sizes from the ranks of (A - l I)^k, singular values below %s of the largest counted as zero. %d defective.",
+		sxNum(js.ClusterFactor), sxNum(js.CapTol), map[bool]string{true: ", or closer than " + sxNum(js.AbsTol), false: ""}[js.AbsTol > 0], sxNum(js.RankTol), defective))
+	h.WriteString("</div>")
+	b := NewBundle(t.String())
+	b.Data[HTML] = h.String()
+	return b
+}
+
+func renderStructure(v any, _ Options) Bundle {
+	st := v.(*lsys.Structure)
+	var t, h strings.Builder
+	title := "structure of a " + sxKind(st.System)
+	t.WriteString(title + "\n")
+	sxOpen(&h, "lsys-structure", title)
+	n := st.System.N()
+	margin := func(s *lsys.Staircase) string {
+		return fmt.Sprintf("staircase steps %s; rank tolerance %s, smallest kept singular value %s, largest dropped %s", sxInts(s.Steps), sxNum(s.Tol), sxNum(s.Kept), sxNum(s.Dropped))
+	}
+	sxKeyTable(&t, &h, [][2]string{
+		{"controllable", fmt.Sprintf("%s: %d of %d states reachable (%s)", sxYesNo(st.Controllable), st.Reach.Dim, n, margin(st.Reach))},
+		{"observable", fmt.Sprintf("%s: %d of %d states observable (%s)", sxYesNo(st.Observable), st.Observe.Dim, n, margin(st.Observe))},
+		{"stabilizable", fmt.Sprintf("%s: modes not reached: %s", sxYesNo(st.Stabilizable), sxValues(st.UncontrollableModes))},
+		{"detectable", fmt.Sprintf("%s: modes not seen: %s", sxYesNo(st.Detectable), sxValues(st.UnobservableModes))},
+	})
+	t.WriteString("\nKalman parts\n")
+	sxSection(&h, "Kalman parts")
+	rows := [][]string{}
+	for _, p := range st.Parts {
+		rows = append(rows, []string{p.Name, strconv.Itoa(p.Dim), sxValues(p.Modes)})
+	}
+	sxGrid(&t, &h, []string{"part", "states", "modes"}, rows)
+	sxNote(&t, &h, fmt.Sprintf("Orthogonal staircase forms decide every rank at %s x the norm of [A B] (or [A; C]); the Krylov matrix is not used. Reachable and unobservable subspaces intersected at principal-angle tolerance %s; Kalman transformation condition number %s.",
+		sxNum(st.RelTol), sxNum(st.AngleTol), sxNum(st.Cond)))
+	h.WriteString("</div>")
+	b := NewBundle(t.String())
+	b.Data[HTML] = h.String()
+	parts := make([]any, 4)
+	for i, p := range st.Parts {
+		parts[i] = map[string]any{"name": p.Name, "states": p.Dim, "modes": sxValuesJSON(p.Modes)}
+	}
+	b.Data[JSON] = map[string]any{"kind": "structure", "controllable": st.Controllable, "observable": st.Observable,
+		"stabilizable": st.Stabilizable, "detectable": st.Detectable, "parts": parts, "rel_tol": st.RelTol}
+	return b
+}
+
+func renderDecomposition(v any, _ Options) Bundle {
+	d := v.(*lsys.Decomposition)
+	var t, h strings.Builder
+	title := fmt.Sprintf("Kalman decomposition: %d reachable and observable, %d reachable only, %d observable only, %d neither", d.Sizes[0], d.Sizes[1], d.Sizes[2], d.Sizes[3])
+	t.WriteString(title + "\n")
+	sxOpen(&h, "lsys-decomposition", title)
+	sxNote(&t, &h, fmt.Sprintf("States ro* reachable and observable, rn* reachable not observable, uo* observable not reachable, un* neither; z = T x with condition number of T %s.", sxNum(d.Cond)))
+	sxEmbedSystem(&t, &h, d.System)
+	if d.System.N() <= 12 {
+		orig := sxOrigNames(d.From, d.System.N())
+		sxEmbedMatrix(&t, &h, "T (z = T x)", d.T, d.System.StateNames, orig)
+	}
+	h.WriteString("</div>")
+	b := NewBundle(t.String())
+	b.Data[HTML] = h.String()
+	return b
+}
+
+func renderSubspace(v any, _ Options) Bundle {
+	s := v.(*lsys.Subspace)
+	var t, h strings.Builder
+	title := fmt.Sprintf("%s: dimension %d of %d", s.What, s.Dim, s.N)
+	t.WriteString(title + "\n")
+	sxOpen(&h, "lsys-subspace", title)
+	rows := [][2]string{}
+	if s.Dim > 0 {
+		inv := "yes"
+		if !s.Invariant {
+			inv = "NO"
+		}
+		rows = append(rows,
+			[2]string{"A-invariant", fmt.Sprintf("%s: relative residual %s (tolerance %s)", inv, sxNum(s.Residual), sxNum(s.Tol))},
+			[2]string{"eigenvalues in it", sxValues(s.Values)})
+	}
+	if len(rows) > 0 {
+		sxKeyTable(&t, &h, rows)
+	}
+	sxNote(&t, &h, s.Note)
+	if s.Basis != nil && s.N <= 24 {
+		cols := make([]string, s.Dim)
+		for i := range cols {
+			cols[i] = "v" + strconv.Itoa(i+1)
+		}
+		names := s.StateNames
+		if len(names) != s.N {
+			names = make([]string, s.N)
+			for i := range names {
+				names[i] = "x" + strconv.Itoa(i+1)
+			}
+		}
+		sxEmbedMatrix(&t, &h, "orthonormal basis", s.Basis, names, cols)
+	}
+	h.WriteString("</div>")
+	b := NewBundle(t.String())
+	b.Data[HTML] = h.String()
+	return b
+}
+
+func renderInvariant(v any, _ Options) Bundle {
+	ic := v.(*lsys.InvariantCheck)
+	sb := renderSubspace(ic.Subspace, Options{})
+	verdict := "span(V) is A-invariant"
+	if !ic.Subspace.Invariant {
+		verdict = "span(V) is NOT A-invariant"
+	}
+	head := fmt.Sprintf("%s: relative residual %s against tolerance %s (V has rank %d)\n", verdict, sxNum(ic.Subspace.Residual), sxNum(ic.Tol), ic.Rank)
+	b := NewBundle(head + sb.Data[Text].(string))
+	b.Data[HTML] = "<div><div style=\"font-weight:bold\">" + html.EscapeString(strings.TrimSpace(head)) + "</div>" + sb.Data[HTML].(string) + "</div>"
+	return b
+}
+
+func renderEigen(v any, _ Options) Bundle {
+	es := v.(*lsys.EigenStructure)
+	var t, h strings.Builder
+	n := len(es.Values)
+	title := fmt.Sprintf("eigen-structure of a %dx%d matrix", n, n)
+	t.WriteString(title + "\n")
+	sxOpen(&h, "lsys-eigen", title)
+	rows := [][]string{}
+	for k, lam := range es.Values {
+		rows = append(rows, []string{strconv.Itoa(k + 1), sxComplex(lam, false), sxNum(es.Cond[k])})
+	}
+	sxGrid(&t, &h, []string{"#", "eigenvalue", "condition"}, rows)
+	if n <= 12 {
+		for _, which := range []struct {
+			name string
+			vec  [][]complex128
+		}{{"right eigenvectors (columns, unit norm)", es.Right}, {"left eigenvectors (columns, unit norm)", es.Left}} {
+			t.WriteString("\n" + which.name + "\n")
+			sxSection(&h, which.name)
+			head := []string{"row"}
+			for k := range es.Values {
+				head = append(head, "v"+strconv.Itoa(k+1))
+			}
+			var rr [][]string
+			for i := 0; i < n; i++ {
+				row := []string{strconv.Itoa(i + 1)}
+				for k := range es.Values {
+					row = append(row, sxComplex(which.vec[k][i], false))
+				}
+				rr = append(rr, row)
+			}
+			sxGrid(&t, &h, head, rr)
+		}
+	}
+	sxNote(&t, &h, "Condition 1/|w^H v| from unit left and right eigenvectors: a change of A of relative size e moves the eigenvalue by about e ||A|| times it.")
+	h.WriteString("</div>")
+	b := NewBundle(t.String())
+	b.Data[HTML] = h.String()
+	return b
+}
+
+// sxOrigNames are the state names of the original system (x1.. if unknown).
+func sxOrigNames(s *lsys.System, n int) []string {
+	if s != nil && len(s.StateNames) == n {
+		return s.StateNames
+	}
+	out := make([]string, n)
+	for i := range out {
+		out[i] = "x" + strconv.Itoa(i+1)
+	}
+	return out
+}
