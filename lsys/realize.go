@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 
+	"gonum.org/v1/gonum/lapack"
+	"gonum.org/v1/gonum/lapack/gonum"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -158,6 +160,7 @@ func RealizeTol(tf [][]*Rational, ts float64, tol float64) (*System, error) {
 	A := blocks(ns, ns, Ab)
 	B := blocks(ns, ones, Bb)
 	C := blocks([]int{p}, ns, Cb)
+	balanceScale(A, B, C)
 	if tol <= 0 {
 		var AB mat.Dense
 		AB.Augment(A, B)
@@ -178,6 +181,29 @@ func RealizeTol(tf [][]*Rational, ts float64, tol float64) (*System, error) {
 		nr, _ = A.Dims()
 	}
 	return NewSystem(nr, m, p, A, B, C, D, ts)
+}
+
+// balanceScale applies the diagonal similarity of LAPACK's balancing
+// (Dgebal, scaling only; Parlett & Reinsch 1969, "Balancing a matrix for
+// calculation of eigenvalues and eigenvectors", Numer. Math. 13) in place:
+// A <- D^-1 A D, B <- D^-1 B, C <- C D. Companion forms of polynomials with
+// widely spread coefficients (a short dead time, fast and slow poles
+// together) have huge entries; balancing brings the norm near the spectral
+// radius, which the rank decisions and all later computations benefit from.
+// Powers of two only, so the transfer function is not changed by rounding.
+func balanceScale(A, B, C *mat.Dense) {
+	n, _ := A.Dims()
+	raw := A.RawMatrix()
+	d := make([]float64, n)
+	gonum.Implementation{}.Dgebal(lapack.Scale, n, raw.Data, raw.Stride, d)
+	for i := 0; i < n; i++ {
+		for j := 0; j < B.RawMatrix().Cols; j++ {
+			B.Set(i, j, B.At(i, j)/d[i])
+		}
+		for j := 0; j < C.RawMatrix().Rows; j++ {
+			C.Set(j, i, C.At(j, i)*d[i])
+		}
+	}
 }
 
 // staircase returns the controllable part of (A, B, C) by the orthogonal

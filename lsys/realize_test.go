@@ -95,3 +95,25 @@ func TestRealizeRefuses(t *testing.T) {
 		t.Errorf("sampled realization: %v %v", d, err)
 	}
 }
+
+func TestRealizeBalancesSmallDelay(t *testing.T) {
+	// Pade(0.02, 3) has denominator coefficients spread over seven decades;
+	// the balanced realization keeps |G(jw)| = 1 (all-pass, see
+	// TestPadeCoefficients) to near machine precision.
+	r, err := Pade(0.02, 3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := Realize([][]*Rational{{r}}, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, w := range []float64{1, 30, 300, 3000} {
+		g := evalSys(t, s, complex(0, w))[0]
+		if e := math.Abs(cmplxAbs(g) - 1); e > 1e-12 {
+			t.Errorf("|G(j%g)| - 1 = %g", w, e)
+		}
+	}
+}
+
+func cmplxAbs(z complex128) float64 { return math.Hypot(real(z), imag(z)) }
