@@ -289,3 +289,66 @@ func TestShutdownWithRestart(t *testing.T) {
 		t.Fatal("kernel did not exit within 5 s of shutdown_request")
 	}
 }
+
+// TestStopOnErrorAbortsQueued: requests queued behind a failing cell are
+// answered "aborted" and not run (stop_on_error, the protocol's default).
+func TestStopOnErrorAbortsQueued(t *testing.T) {
+	c := startWire(t)
+	c.request(c.shell, "execute_request", map[string]any{"code": "pause(0.3)\nno_such_name", "silent": false, "stop_on_error": true}, "")
+	c.request(c.shell, "execute_request", map[string]any{"code": "after_error = 1", "silent": false}, "")
+	var statuses []string
+	for len(statuses) < 2 {
+		m := c.recvReply(c.shell, "execute_reply", 10*time.Second)
+		var content struct {
+			Status string `json:"status"`
+		}
+		json.Unmarshal(m.Content, &content)
+		statuses = append(statuses, content.Status)
+	}
+	if statuses[0] != "error" || statuses[1] != "aborted" {
+		t.Fatalf("replies %v; want [error aborted]", statuses)
+	}
+	if r := c.execute("after_error"); r["status"] != "error" {
+		t.Fatalf("an aborted cell was run: %v", r)
+	}
+}
+
+// TestIOPubAroundExecute: busy, execute_input, the result and idle, each
+// with the request as parent header.
+func TestIOPubAroundExecute(t *testing.T) {
+	c := startWire(t)
+	// Let the subscription settle, then drain what kernel_info produced.
+	time.Sleep(300 * time.Millisecond)
+	for {
+		if _, err := c.recv(c.iopub, 200*time.Millisecond); err != nil {
+			break
+		}
+	}
+	id := c.request(c.shell, "execute_request", map[string]any{"code": "print(\"x\")\n6 * 7", "silent": false, "store_history": true}, "")
+	var got []string
+	for len(got) == 0 || got[len(got)-1] != "status:idle" {
+		m, err := c.recv(c.iopub, 10*time.Second)
+		if err != nil {
+			t.Fatalf("iopub: %v (so far %v)", err, got)
+		}
+		var parent kernel.Header
+		json.Unmarshal(m.ParentRaw, &parent)
+		if parent.MsgID != id {
+			t.Fatalf("iopub %s has parent %q; want %q", m.Header.MsgType, parent.MsgID, id)
+		}
+		name := m.Header.MsgType
+		if name == "status" {
+			var s struct {
+				State string `json:"execution_state"`
+			}
+			json.Unmarshal(m.Content, &s)
+			name += ":" + s.State
+		}
+		got = append(got, name)
+	}
+	want := "status:busy execute_input stream execute_result status:idle"
+	if strings.Join(got, " ") != want {
+		t.Fatalf("iopub sequence %v; want %s", got, want)
+	}
+	c.recvReply(c.shell, "execute_reply", 5*time.Second)
+}
