@@ -352,3 +352,37 @@ func TestIOPubAroundExecute(t *testing.T) {
 	}
 	c.recvReply(c.shell, "execute_reply", 5*time.Second)
 }
+
+// TestSIGINTInterrupts: Jupyter's signal interrupt mode sends SIGINT; it
+// must end the running cell, not the kernel.
+func TestSIGINTInterrupts(t *testing.T) {
+	c := startWire(t)
+	c.request(c.shell, "execute_request", map[string]any{"code": "pause(60)", "silent": false}, "")
+	time.Sleep(500 * time.Millisecond)
+	sent := time.Now()
+	if err := c.cmd.Process.Signal(os.Interrupt); err != nil {
+		t.Fatal(err)
+	}
+	c.recvReply(c.shell, "execute_reply", 5*time.Second)
+	if d := time.Since(sent); d > time.Second {
+		t.Fatalf("cell ended %v after SIGINT; want within 1 s", d)
+	}
+	if r := c.execute("1 + 1"); r["status"] != "ok" {
+		t.Fatalf("kernel after SIGINT: %v", r)
+	}
+}
+
+// TestShutdownOnShell: shutdown_request is also accepted on shell.
+func TestShutdownOnShell(t *testing.T) {
+	c := startWire(t)
+	c.request(c.shell, "shutdown_request", map[string]any{"restart": false}, "")
+	c.recvReply(c.shell, "shutdown_reply", 5*time.Second)
+	select {
+	case err := <-c.exited:
+		if err != nil {
+			t.Fatalf("kernel exited with %v\n%s", err, c.stderr)
+		}
+	case <-time.After(5 * time.Second):
+		t.Fatal("kernel did not exit within 5 s of shutdown_request on shell")
+	}
+}
