@@ -114,12 +114,13 @@ func (k *Kernel) execute(r *Request) {
 			r.Publish("error", map[string]any{"ename": ename, "evalue": evalue, "traceback": tb})
 		}
 		reply := errorContent(ename, evalue, tb, count)
+		failedAt := time.Now()
 		r.Reply("execute_reply", reply)
 		if store {
 			k.history = append(k.history, historyEntry{line: count, input: req.Code})
 		}
 		if stopOnError {
-			k.abortQueued(r)
+			k.abortBefore = failedAt // the dispatcher aborts once this request is idle
 		}
 		return
 	}
@@ -205,29 +206,29 @@ func errorContent(ename, evalue string, tb []string, count int) map[string]any {
 	return map[string]any{"status": "error", "ename": ename, "evalue": evalue, "traceback": tb, "execution_count": count}
 }
 
-// abortQueued answers execute requests already waiting behind a failed cell
-// with status "aborted" (stop_on_error); other requests are served as usual.
-func (k *Kernel) abortQueued(r *Request) {
-	if r.queue == nil {
-		return
-	}
-	// Give requests already on the wire a moment to reach the queue.
-	deadline := time.After(20 * time.Millisecond)
+// abortQueued answers execute requests that were already waiting when a
+// cell failed with status "aborted" (stop_on_error) and serves the other
+// waiting requests as usual. Requests that arrive later run normally: the
+// client sent them after it could see the error.
+func (k *Kernel) abortQueued(queue <-chan *Message, failedAt time.Time) {
 	for {
 		select {
-		case msg, ok := <-r.queue:
+		case msg, ok := <-queue:
 			if !ok {
 				return
 			}
-			q := &Request{k: k, Msg: msg, sock: r.sock, channel: r.channel}
-			if msg.Header.MsgType == "execute_request" {
+			q := &Request{k: k, Msg: msg, sock: k.shell, channel: "shell"}
+			if msg.Header.MsgType == "execute_request" && msg.Received.Before(failedAt) {
 				k.publishStatus(msg, "busy")
 				q.Reply("execute_reply", map[string]any{"status": "aborted", "execution_count": k.execCount})
 				k.publishStatus(msg, "idle")
 				continue
 			}
 			k.handle(q, k.shellMux)
-		case <-deadline:
+			if msg.Header.MsgType == "execute_request" {
+				return // it ran normally; the dispatcher takes it from here
+			}
+		default:
 			return
 		}
 	}

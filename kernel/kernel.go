@@ -14,6 +14,7 @@ import (
 	"log"
 	"os"
 	"sync"
+	"time"
 
 	"github.com/go-zeromq/zmq4"
 
@@ -41,9 +42,10 @@ type Kernel struct {
 
 	shellMux, controlMux *Mux
 
-	lang      *lang.Session
-	execCount int
-	history   []historyEntry
+	lang        *lang.Session
+	execCount   int
+	abortBefore time.Time // set by a failed cell; shell dispatcher only
+	history     []historyEntry
 
 	runMu  sync.Mutex
 	cancel context.CancelFunc // cancels the running cell, if any
@@ -177,6 +179,9 @@ func (k *Kernel) serveChannel(ctx context.Context, sock zmq4.Socket, name string
 			continue
 		}
 		msg, err := Decode(raw.Frames, k.signer)
+		if err == nil {
+			msg.Received = time.Now()
+		}
 		if err != nil {
 			// A message that fails verification is never acted on.
 			k.log.Printf("%s: dropped a message: %v", name, err)
@@ -204,7 +209,14 @@ func (k *Kernel) dispatchShell(ctx context.Context, queue <-chan *Message) {
 			if !ok {
 				return
 			}
-			k.handle(&Request{k: k, Msg: msg, sock: k.shell, channel: "shell", queue: queue}, k.shellMux)
+			k.handle(&Request{k: k, Msg: msg, sock: k.shell, channel: "shell"}, k.shellMux)
+			// After a failed cell (stop_on_error), abort what was queued
+			// behind it; an execute run there may fail and ask again.
+			for !k.abortBefore.IsZero() {
+				t := k.abortBefore
+				k.abortBefore = time.Time{}
+				k.abortQueued(queue, t)
+			}
 		}
 	}
 }

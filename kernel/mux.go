@@ -40,7 +40,6 @@ type Request struct {
 	Msg     *Message
 	sock    zmq4.Socket
 	channel string
-	queue   <-chan *Message // the shell queue, for aborting after an error
 }
 
 // Decode unmarshals the request content into v.

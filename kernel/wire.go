@@ -39,6 +39,7 @@ type Message struct {
 	Metadata   map[string]any
 	Content    json.RawMessage
 	Buffers    [][]byte
+	Received   time.Time // when the kernel read it off its socket
 }
 
 // Signer signs and verifies messages with HMAC-SHA256; a nil key disables

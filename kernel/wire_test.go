@@ -32,6 +32,9 @@ type wireClient struct {
 	cmd                   *exec.Cmd
 	stderr                *syncBuffer
 	exited                chan error
+
+	mu      sync.Mutex
+	inboxes map[zmq4.Socket]chan received
 }
 
 type syncBuffer struct {
@@ -153,12 +156,7 @@ func (c *wireClient) request(sock zmq4.Socket, msgType string, content any, sig 
 }
 
 func (c *wireClient) recv(sock zmq4.Socket, timeout time.Duration) (*kernel.Message, error) {
-	type res struct {
-		m   zmq4.Msg
-		err error
-	}
-	ch := make(chan res, 1)
-	go func() { m, err := sock.Recv(); ch <- res{m, err} }()
+	ch := c.inbox(sock)
 	select {
 	case r := <-ch:
 		if r.err != nil {
@@ -168,6 +166,36 @@ func (c *wireClient) recv(sock zmq4.Socket, timeout time.Duration) (*kernel.Mess
 	case <-time.After(timeout):
 		return nil, fmt.Errorf("no message within %v", timeout)
 	}
+}
+
+type received struct {
+	m   zmq4.Msg
+	err error
+}
+
+// inbox returns the channel fed by the one reader goroutine of sock, so a
+// receive that timed out cannot swallow a later message.
+func (c *wireClient) inbox(sock zmq4.Socket) chan received {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if c.inboxes == nil {
+		c.inboxes = map[zmq4.Socket]chan received{}
+	}
+	ch, ok := c.inboxes[sock]
+	if !ok {
+		ch = make(chan received, 1024)
+		c.inboxes[sock] = ch
+		go func() {
+			for {
+				m, err := sock.Recv()
+				ch <- received{m, err}
+				if err != nil {
+					return
+				}
+			}
+		}()
+	}
+	return ch
 }
 
 // recvReply waits for a reply of msgType, skipping others.
