@@ -1,11 +1,13 @@
 package kernel_test
 
 import (
+	"fmt"
 	"os"
 	"os/exec"
 	"path/filepath"
 	"regexp"
 	"strings"
+	"sync"
 	"testing"
 )
 
@@ -24,24 +26,52 @@ func needJupyter(t *testing.T, modules ...string) {
 	}
 }
 
-// buildKernel builds the lsys binary and writes a kernelspec for it into a
-// private Jupyter data folder; it returns the binary and the environment
-// that makes Jupyter find that kernelspec.
+var (
+	buildOnce          sync.Once
+	builtBin, builtEnv = "", []string(nil)
+	buildErr           error
+	buildDir           string
+)
+
+// TestMain removes the shared build folder after the tests.
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if buildDir != "" {
+		os.RemoveAll(buildDir)
+	}
+	os.Exit(code)
+}
+
+// buildKernel builds the lsys binary once per test run and writes a
+// kernelspec for it into a private Jupyter data folder; it returns the binary
+// and the environment that makes Jupyter find that kernelspec.
 func buildKernel(t *testing.T) (bin string, env []string) {
 	t.Helper()
-	dir := t.TempDir()
-	bin = filepath.Join(dir, "lsys")
-	build := exec.Command("go", "build", "-o", bin, "..")
-	if out, err := build.CombinedOutput(); err != nil {
-		t.Fatalf("go build: %v\n%s", err, out)
+	buildOnce.Do(func() {
+		dir, err := os.MkdirTemp("", "lsys-kernel-test-")
+		if err != nil {
+			buildErr = err
+			return
+		}
+		buildDir = dir
+		bin := filepath.Join(dir, "lsys")
+		if out, err := exec.Command("go", "build", "-o", bin, "..").CombinedOutput(); err != nil {
+			buildErr = fmt.Errorf("go build: %v\n%s", err, out)
+			return
+		}
+		prefix := filepath.Join(dir, "prefix")
+		if out, err := exec.Command(bin, "kernelspec", "--prefix", prefix).CombinedOutput(); err != nil {
+			buildErr = fmt.Errorf("lsys kernelspec: %v\n%s", err, out)
+			return
+		}
+		builtBin = bin
+		builtEnv = append(os.Environ(), "JUPYTER_PATH="+filepath.Join(prefix, "share", "jupyter"),
+			"JUPYTER_RUNTIME_DIR="+filepath.Join(dir, "runtime"), "PYDEVD_DISABLE_FILE_VALIDATION=1")
+	})
+	if buildErr != nil {
+		t.Fatal(buildErr)
 	}
-	prefix := filepath.Join(dir, "prefix")
-	if out, err := exec.Command(bin, "kernelspec", "--prefix", prefix).CombinedOutput(); err != nil {
-		t.Fatalf("lsys kernelspec: %v\n%s", err, out)
-	}
-	env = append(os.Environ(), "JUPYTER_PATH="+filepath.Join(prefix, "share", "jupyter"),
-		"JUPYTER_RUNTIME_DIR="+filepath.Join(dir, "runtime"), "PYDEVD_DISABLE_FILE_VALIDATION=1")
-	return bin, env
+	return builtBin, builtEnv
 }
 
 // TestConformance runs jupyter_kernel_test against the kernel.
