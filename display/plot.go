@@ -103,15 +103,48 @@ type rpPanel struct {
 	XMin, XMax, YMin, YMax float64
 	Equal                  bool // equal scales on both axes (pole-zero and polar charts)
 	PhaseTicks             bool // y ticks at multiples of 45, 90 or 180 degrees
+	DBTicks                bool // y ticks at multiples of 10, 20, 40 ... dB
 }
 
-// rpPhaseTicker puts phase ticks at multiples of 45, 90, 180 or 360
-// degrees, whichever gives at most seven labels.
-type rpPhaseTicker struct{}
+// rpLogTicks labels every decade and marks the values in between. Unlike
+// gonum's LogTicks it rounds the lower decade down (with a tolerance for
+// log10 of a power of ten computed just above or below the integer), so a
+// range starting at 0.1 gets its 0.1 label.
+type rpLogTicks struct{}
 
-func (rpPhaseTicker) Ticks(min, max float64) []plot.Tick {
-	step := 45.0
-	for _, s := range []float64{45, 90, 180, 360, 720, 1440} {
+func (rpLogTicks) Ticks(min, max float64) []plot.Tick {
+	if !(min > 0) || !(max > min) {
+		return nil
+	}
+	lo := int(math.Floor(math.Log10(min) + 1e-9))
+	hi := int(math.Ceil(math.Log10(max) - 1e-9))
+	var out []plot.Tick
+	for e := lo; e <= hi; e++ {
+		v := math.Pow10(e)
+		if v >= min*(1-1e-9) && v <= max*(1+1e-9) {
+			out = append(out, plot.Tick{Value: v, Label: strconv.FormatFloat(v, 'g', -1, 64)})
+		}
+		for i := 2; i < 10 && e < hi; i++ {
+			if w := v * float64(i); w >= min && w <= max {
+				out = append(out, plot.Tick{Value: w})
+			}
+		}
+	}
+	return out
+}
+
+// rpStepTicker puts ticks at multiples of the first step that gives at
+// most seven labels: 45, 90, 180 ... for phase, 10, 20, 40 ... for dB.
+type rpStepTicker struct{ steps []float64 }
+
+var (
+	rpPhaseTicker = rpStepTicker{[]float64{45, 90, 180, 360, 720, 1440, 2880}}
+	rpDBTicker    = rpStepTicker{[]float64{5, 10, 20, 40, 60, 100, 200, 500}}
+)
+
+func (tk rpStepTicker) Ticks(min, max float64) []plot.Tick {
+	step := tk.steps[0]
+	for _, s := range tk.steps {
 		step = s
 		if (max-min)/s <= 6 {
 			break
@@ -256,10 +289,13 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 	p.Add(grid)
 	if pn.LogX {
 		p.X.Scale = plot.LogScale{}
-		p.X.Tick.Marker = plot.LogTicks{Prec: -1}
+		p.X.Tick.Marker = rpLogTicks{}
 	}
 	if pn.PhaseTicks {
-		p.Y.Tick.Marker = rpPhaseTicker{}
+		p.Y.Tick.Marker = rpPhaseTicker
+	}
+	if pn.DBTicks {
+		p.Y.Tick.Marker = rpDBTicker
 	}
 	// data range, for reference lines and fixed ranges
 	xmin, xmax, ymin, ymax := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)

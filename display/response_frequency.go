@@ -77,6 +77,7 @@ func renderFrequency(v any, opt Options) Bundle {
 			}
 			mg := newPanel(title, xl, "magnitude (dB)")
 			mg.LogX = true
+			mg.DBTicks = true
 			mg.Series = []rpSeries{{X: x, Y: db(f.Magnitude(i, j)), Style: 0}}
 			ph := newPanel("", xl, "phase (deg)")
 			ph.LogX = true
@@ -180,6 +181,7 @@ func renderSingular(v any, opt Options) Bundle {
 	text += fmt.Sprintf("%s dB at %s %s (on the grid)", sxNum(20*math.Log10(peak)), sxNum(at), unit)
 	pn := newPanel("singular values", xl, "singular value (dB)")
 	pn.LogX = true
+	pn.DBTicks = true
 	pn.Legend = k > 1
 	for i := 0; i < k; i++ {
 		y := make([]float64, len(f.W))
@@ -246,6 +248,7 @@ func renderMargins(v any, opt Options) Bundle {
 	x, xl, sc := rpFreqAxis(f)
 	mag := newPanel("loop gain with margins", xl, "magnitude (dB)")
 	mag.LogX = true
+	mag.DBTicks = true
 	mag.Series = []rpSeries{{X: x, Y: db(f.Magnitude(0, 0)), Style: 0}}
 	mag.Lines = []rpLine{{At: 0, Dashed: true}}
 	ph := newPanel("", xl, "phase (deg)")
@@ -266,12 +269,12 @@ func renderMargins(v any, opt Options) Bundle {
 	if ok(mg.PhaseCrossover) {
 		mag.Lines = append(mag.Lines, rpLine{At: mg.PhaseCrossover * sc, Vertical: true, Dashed: true})
 		mag.Texts = append(mag.Texts, rpText{X: mg.PhaseCrossover * sc, Y: -mg.GainMarginDB, Text: "GM " + sxNum(mg.GainMarginDB) + " dB"})
-		mag.Series = append(mag.Series, rpSeries{X: []float64{mg.PhaseCrossover * sc, mg.PhaseCrossover * sc}, Y: []float64{-mg.GainMarginDB, 0}, Style: 1, Width: 2.5})
+		mag.Series = append(mag.Series, rpSeries{X: []float64{mg.PhaseCrossover * sc, mg.PhaseCrossover * sc}, Y: []float64{-mg.GainMarginDB, 0}, Style: 1, Width: 2.5, Color: rpPalette[1]})
 	}
 	if ok(mg.GainCrossover) && !math.IsInf(mg.PhaseMargin, 0) {
 		ph.Lines = append(ph.Lines, rpLine{At: mg.GainCrossover * sc, Vertical: true, Dashed: true})
 		ph.Texts = append(ph.Texts, rpText{X: mg.GainCrossover * sc, Y: ref + mg.PhaseMargin, Text: "PM " + sxNum(mg.PhaseMargin) + " deg"})
-		ph.Series = append(ph.Series, rpSeries{X: []float64{mg.GainCrossover * sc, mg.GainCrossover * sc}, Y: []float64{ref, ref + mg.PhaseMargin}, Style: 2, Width: 2.5})
+		ph.Series = append(ph.Series, rpSeries{X: []float64{mg.GainCrossover * sc, mg.GainCrossover * sc}, Y: []float64{ref, ref + mg.PhaseMargin}, Style: 2, Width: 2.5, Color: rpPalette[2]})
 	}
 	fig := &rpFigure{Rows: 2, Cols: 1, Panels: []*rpPanel{mag, ph}, W: 16 * cmLen, H: 14 * cmLen}
 	b := rpBundle(text, fig, opt)
