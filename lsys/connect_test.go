@@ -176,3 +176,45 @@ func TestConnectByName(t *testing.T) {
 		t.Error("unknown output name accepted")
 	}
 }
+
+func TestFeedbackMIMOAgainstFormula(t *testing.T) {
+	// T = (I - sign G K)^{-1} G for 2x2 blocks with direct feedthrough
+	// (common practice: the closed-loop transfer matrix with K in the
+	// return path), compared at test points.
+	G := randomStable(4, 3)
+	G2, _ := FromMatrices(G.A, mat.NewDense(4, 2, []float64{1, 0, 0, 1, 1, 1, 0.5, -1}), mat.NewDense(2, 4, []float64{1, 0, 1, 0, 0, 1, 0, 1}), mat.NewDense(2, 2, []float64{0.1, 0, 0.2, 0.3}), 0)
+	K, _ := FromMatrices(mat.NewDense(1, 1, []float64{-5}), mat.NewDense(1, 2, []float64{1, 2}), mat.NewDense(2, 1, []float64{3, -1}), mat.NewDense(2, 2, []float64{0.5, 0.1, 0, 0.4}), 0)
+	for _, sign := range []float64{-1, 1} {
+		cl, err := Feedback(G2, K, sign)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, s := range testPoints {
+			g, k, got := evalSys(t, G2, s), evalSys(t, K, s), evalSys(t, cl, s)
+			// M = I - sign G K
+			var M [4]complex128
+			for i := 0; i < 2; i++ {
+				for j := 0; j < 2; j++ {
+					var acc complex128
+					for l := 0; l < 2; l++ {
+						acc += g[i*2+l] * k[l*2+j]
+					}
+					M[i*2+j] = -complex(sign, 0) * acc
+					if i == j {
+						M[i*2+j]++
+					}
+				}
+			}
+			det := M[0]*M[3] - M[1]*M[2]
+			inv := [4]complex128{M[3] / det, -M[1] / det, -M[2] / det, M[0] / det}
+			for i := 0; i < 2; i++ {
+				for j := 0; j < 2; j++ {
+					want := inv[i*2]*g[j] + inv[i*2+1]*g[2+j]
+					if !closeC(got[i*2+j], want, 1e-11) {
+						t.Errorf("sign %g at %v [%d,%d]: got %v want %v", sign, s, i, j, got[i*2+j], want)
+					}
+				}
+			}
+		}
+	}
+}
