@@ -175,13 +175,14 @@ func rpTextTable(title string, head []string, rows [][]string) string {
 	var b strings.Builder
 	b.WriteString(title + "\n")
 	line := func(cells []string) {
+		var l strings.Builder
 		for i, c := range cells {
 			if i > 0 {
-				b.WriteString("  ")
+				l.WriteString("  ")
 			}
-			b.WriteString(c + strings.Repeat(" ", w[i]-len([]rune(c))))
+			l.WriteString(c + strings.Repeat(" ", w[i]-len([]rune(c))))
 		}
-		b.WriteString("\n")
+		b.WriteString(strings.TrimRight(l.String(), " ") + "\n")
 	}
 	line(head)
 	for _, r := range rows {

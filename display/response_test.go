@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/base64"
+	"encoding/json"
 	"os"
 	"path/filepath"
 	"strings"
@@ -88,6 +89,9 @@ func TestResponseChartsDeterministic(t *testing.T) {
 	for name, v := range rpSamples(t) {
 		a := Render(v, Options{PNG: true})
 		b := Render(v, Options{PNG: true})
+		if _, err := json.Marshal(a.Data); err != nil {
+			t.Errorf("%s: bundle does not serialise: %v", name, err)
+		}
 		txt, _ := a.Data[Text].(string)
 		if txt == "" || strings.Contains(txt, "not drawn") {
 			t.Errorf("%s: text %q", name, txt)
