@@ -242,7 +242,7 @@ func renderMargins(v any, opt Options) Bundle {
 		{"gain crossovers (|L| = 1)", rpList(mg.GainCrossovers, hz)},
 		{"phase crossovers (angle L = -180 deg)", rpList(mg.PhaseCrossovers, hz)},
 		{"closed-loop bandwidth (-3 dB)", rpFreq(mg.Bandwidth, hz)},
-		{"closed-loop resonant peak", fmt.Sprintf("%s dB at %s (on the grid)", sxNum(mg.ResonantPeak), rpFreq(mg.ResonantFreq, hz))},
+		{"closed-loop resonant peak", fmt.Sprintf("%s dB at %s", sxNum(mg.ResonantPeak), rpFreq(mg.ResonantFreq, hz))},
 	}
 	text := rpTextTable("loop margins", head, rows) + "\n" + verdict
 	x, xl, sc := rpFreqAxis(f)

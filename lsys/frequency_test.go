@@ -157,11 +157,11 @@ func TestMarginsSecondOrderLoop(t *testing.T) {
 		t.Errorf("PM %g want %g", mg.PhaseMargin, pm)
 	}
 	bw := wn * math.Sqrt(1-2*zeta*zeta+math.Sqrt(4*math.Pow(zeta, 4)-4*zeta*zeta+2))
-	if math.Abs(mg.Bandwidth-bw)/bw > 2e-3 {
+	if math.Abs(mg.Bandwidth-bw)/bw > 1e-9 {
 		t.Errorf("bandwidth %g want %g", mg.Bandwidth, bw)
 	}
 	mr := 20 * math.Log10(1/(2*zeta*math.Sqrt(1-zeta*zeta)))
-	if math.Abs(mg.ResonantPeak-mr) > 0.02 {
+	if math.Abs(mg.ResonantPeak-mr) > 1e-9 {
 		t.Errorf("resonant peak %g dB want %g", mg.ResonantPeak, mr)
 	}
 	if !math.IsInf(mg.GainMargin, 1) || len(mg.PhaseCrossovers) != 0 {

@@ -25,7 +25,7 @@ type Margins struct {
 	PhaseCrossovers []float64 // every w with angle L = -180 + k 360
 
 	Bandwidth     float64 // rad/s: first w where |T| falls 3 dB below |T(0)|; NaN if not within the grid
-	ResonantPeak  float64 // max |T| in dB
+	ResonantPeak  float64 // max |T| in dB (refined between grid points by golden-section search)
 	ResonantFreq  float64 // rad/s
 	ClosedStable  bool    // whether T is stable (from its poles)
 	ClosedChecked bool    // whether the closed-loop poles could be computed
@@ -145,25 +145,50 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 		t0 = 1 // integrator in the loop: T(0) = 1
 	}
 	mg.Bandwidth = math.NaN()
-	var prevW, prevT float64
+	tAt := func(w float64) float64 {
+		l := val(w)
+		return cabs(l / (1 + l))
+	}
+	kPeak := -1
+	lim := t0 / math.Sqrt2
 	for k, w := range f.W {
 		l := f.G[k][0]
 		T := cabs(l / (1 + l))
 		db := 20 * math.Log10(T)
 		if db > mg.ResonantPeak {
-			mg.ResonantPeak, mg.ResonantFreq = db, w
+			mg.ResonantPeak, mg.ResonantFreq, kPeak = db, w, k
 		}
-		lim := t0 / math.Sqrt2
 		if math.IsNaN(mg.Bandwidth) && t0 > 0 && T < lim {
 			if k == 0 {
 				mg.Bandwidth = w
 			} else {
-				// interpolate in log-log between the two points
-				a, b := math.Log(prevT/lim), math.Log(T/lim)
-				mg.Bandwidth = math.Exp(math.Log(prevW) + a/(a-b)*(math.Log(w)-math.Log(prevW)))
+				// refine |T| = |T(0)|/sqrt(2) by bisection in log w
+				mg.Bandwidth = bisect(f.W[k-1], w, math.Log(cabs(f.G[k-1][0]/(1+f.G[k-1][0]))/lim),
+					func(w float64) float64 { return math.Log(tAt(w) / lim) })
 			}
 		}
-		prevW, prevT = w, T
+	}
+	if kPeak > 0 && kPeak < len(f.W)-1 {
+		// golden-section search for the peak between the grid neighbours
+		a, b := math.Log(f.W[kPeak-1]), math.Log(f.W[kPeak+1])
+		g := (math.Sqrt(5) - 1) / 2
+		c, d := b-g*(b-a), a+g*(b-a)
+		fc, fd := tAt(math.Exp(c)), tAt(math.Exp(d))
+		for i := 0; i < 60; i++ {
+			if fc > fd {
+				b, d, fd = d, c, fc
+				c = b - g*(b-a)
+				fc = tAt(math.Exp(c))
+			} else {
+				a, c, fc = c, d, fd
+				d = a + g*(b-a)
+				fd = tAt(math.Exp(d))
+			}
+		}
+		w := math.Exp((a + b) / 2)
+		if db := 20 * math.Log10(tAt(w)); db > mg.ResonantPeak {
+			mg.ResonantPeak, mg.ResonantFreq = db, w
+		}
 	}
 	one, err := NewSystem(0, 1, 1, nil, nil, nil, nil, L.Ts)
 	if err == nil {
