@@ -220,3 +220,19 @@ func BenchmarkStep500x10000(b *testing.B) {
 		}
 	}
 }
+
+func TestMarginsDoubleIntegrator(t *testing.T) {
+	// 1/s^2 sits on -180 degrees at every frequency: |L| = 1 at w = 1 and
+	// the phase margin is 0 (by hand); rounding noise in the phase must
+	// not be counted as phase crossovers.
+	mg, err := LoopMargins(context.Background(), siso(t, []float64{1}, []float64{0, 0, 1}), FrequencyOptions{From: 0.01, To: 100})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(mg.PhaseCrossovers) > 1 {
+		t.Errorf("%d phase crossovers from rounding noise", len(mg.PhaseCrossovers))
+	}
+	if math.Abs(mg.GainCrossover-1) > 1e-9 || math.Abs(mg.PhaseMargin) > 1e-9 {
+		t.Errorf("gain crossover %g, PM %g; want 1 and 0", mg.GainCrossover, mg.PhaseMargin)
+	}
+}

@@ -96,8 +96,10 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 	}
 	for k := 0; k+1 < len(f.W); k++ {
 		// which odd multiple of 180 lies between ph[k] and ph[k+1]?
-		c := math.Floor((ph[k] + 180) / 360)
-		d := math.Floor((ph[k+1] + 180) / 360)
+		// the 1e-9 nudge keeps a phase that sits on -180 (a double
+		// integrator) from counting rounding noise as crossings
+		c := math.Floor((ph[k]+180)/360 + 1e-9)
+		d := math.Floor((ph[k+1]+180)/360 + 1e-9)
 		if c == d {
 			continue
 		}
