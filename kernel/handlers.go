@@ -125,7 +125,7 @@ func (k *Kernel) execute(r *Request) {
 		return
 	}
 	if value != nil && !req.Silent {
-		b := display.Render(value, display.Options{})
+		b := k.render(value)
 		r.Publish("execute_result", map[string]any{"execution_count": count, "data": b.Data, "metadata": b.Metadata})
 		histOut = b.Data[display.Text]
 	}
@@ -248,7 +248,7 @@ func (k *Kernel) userExpressions(exprs map[string]string) map[string]any {
 			out[n] = map[string]any{"status": "error", "ename": ename, "evalue": evalue, "traceback": tb}
 			continue
 		}
-		b := display.Render(v, display.Options{})
+		b := k.render(v)
 		out[n] = map[string]any{"status": "ok", "data": b.Data, "metadata": b.Metadata}
 	}
 	return out
@@ -394,7 +394,7 @@ func (o *cellOutput) display(msgType string, v any, id string) {
 	if o.silent {
 		return
 	}
-	b := display.Render(v, display.Options{})
+	b := o.r.k.render(v)
 	transient := map[string]any{}
 	if id != "" {
 		transient["display_id"] = id
@@ -416,3 +416,15 @@ func (discard) Stderr(string)             {}
 func (discard) Display(any, string)       {}
 func (discard) UpdateDisplay(any, string) {}
 func (discard) ClearOutput(bool)          {}
+
+// render renders a value for the front end. A renderer that panics must not
+// cost the cell its reply: the panic becomes a text note instead.
+func (k *Kernel) render(v any) (b display.Bundle) {
+	defer func() {
+		if p := recover(); p != nil {
+			k.log.Printf("rendering %T panicked: %v\n%s", v, p, debug.Stack())
+			b = display.NewBundle(fmt.Sprintf("(a %T was computed but could not be displayed: %v; please report this)", v, p))
+		}
+	}()
+	return display.Render(v, display.Options{})
+}
