@@ -85,7 +85,7 @@ func TestTustinFirstOrderAndRoundTrips(t *testing.T) {
 	for _, c := range []struct {
 		method  string
 		prewarp float64
-	}{{"zoh", 0}, {"tustin", 0}, {"tustin", 4}} {
+	}{{"zoh", 0}, {"foh", 0}, {"tustin", 0}, {"tustin", 4}} {
 		d, err := Sample(g, 0.05, c.method, c.prewarp)
 		if err != nil {
 			t.Fatal(err)

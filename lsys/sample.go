@@ -116,7 +116,10 @@ func Sample(g *System, T float64, method string, prewarp float64) (*System, erro
 //     Higham, Functions of Matrices, 2008, Section 11.5) with Denman-Beavers
 //     square roots. Defined when Ad has no eigenvalue on the closed negative
 //     real axis; refused otherwise.
-//   - "foh" and "matched" are not inverted here.
+//   - "foh": A from the same logarithm of Ad, then B and D from the linear
+//     relations Bd = (M1 + (Ad - I) M2) B and Dd = D + C M2 B, with M1, M2
+//     the hold integrals of the block exponential.
+//   - "matched" is not inverted here.
 func Continuous(gd *System, method string, prewarp float64) (*System, error) {
 	if gd == nil {
 		return nil, errors.New("continuous: the system is missing")
@@ -177,8 +180,37 @@ func Continuous(gd *System, method string, prewarp float64) (*System, error) {
 			B = mat.DenseCopyOf(L.Slice(0, n, n, n+m))
 		}
 		out, err = NewSystem(n, m, p, A, B, gd.C, gd.D, 0)
+	case MethodFOH:
+		if n == 0 {
+			out, err = NewSystem(0, m, p, nil, nil, nil, gd.D, 0)
+			break
+		}
+		// A = log(Ad)/T; with Gamma1 = M1 B and Gamma2 = M2 B (M1, M2 from
+		// the block exponential with B = I), Bd = (M1 + (Ad - I) M2) B,
+		// Dd = D + C M2 B.
+		L, lerr := logm(gd.A)
+		if lerr != nil {
+			return nil, fmt.Errorf("continuous: %w", lerr)
+		}
+		A := scale(1/T, L)
+		_, M1, M2 := fohTriple(A, identity(n), T)
+		N := add(M1, mul(add(gd.A, scale(-1, identity(n))), M2))
+		var lu mat.LU
+		lu.Factorize(N)
+		if c := lu.Cond(); c > 1e12 || lu.Det() == 0 {
+			return nil, errors.New("continuous: the first-order-hold input map cannot be inverted (singular integral of the exponential)")
+		}
+		var B *mat.Dense
+		if m > 0 {
+			B = mat.NewDense(n, m, nil)
+			if err := lu.SolveTo(B, false, gd.B); err != nil {
+				return nil, fmt.Errorf("continuous: %w", err)
+			}
+		}
+		D := add(gd.D, scale(-1, mul(gd.C, mul(M2, B))))
+		out, err = NewSystem(n, m, p, A, B, gd.C, D, 0)
 	default:
-		return nil, fmt.Errorf("continuous: method %q cannot be inverted here; use \"zoh\" or \"tustin\"", method)
+		return nil, fmt.Errorf("continuous: method %q cannot be inverted here; use \"zoh\", \"foh\" or \"tustin\"", method)
 	}
 	if err != nil {
 		return nil, fmt.Errorf("continuous: %w", err)
