@@ -4,6 +4,8 @@ import (
 	"errors"
 	"math"
 
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/lapack/gonum"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -63,6 +65,7 @@ func ControllabilityStaircase(A, B *mat.Dense, relTol float64) (*Staircase, erro
 		st.Kept = 0
 		return st, nil
 	}
+	impl := gonum.Implementation{}
 	start := 0 // first row of the part not yet reduced
 	prev := -1 // first column of the block being reduced (-1: it is B)
 	cols := m
@@ -79,7 +82,7 @@ func ControllabilityStaircase(A, B *mat.Dense, relTol float64) (*Staircase, erro
 			}
 		}
 		var svd mat.SVD
-		if !svd.Factorize(blk, mat.SVDFull) {
+		if !svd.Factorize(blk, mat.SVDThin) {
 			return nil, errors.New("staircase: singular value decomposition did not converge")
 		}
 		sv := svd.Values(nil)
@@ -92,17 +95,32 @@ func ControllabilityStaircase(A, B *mat.Dense, relTol float64) (*Staircase, erro
 				st.Dropped = math.Max(st.Dropped, v)
 			}
 		}
-		var U mat.Dense
-		svd.UTo(&U)
-		// Rotate rows/columns start.. by U: A <- U^T A U on that range, B <- U^T B.
-		stApplyLeftT(st.A, &U, start)
-		stApplyRight(st.A, &U, start)
-		if st.B != nil {
-			stApplyLeftT(st.B, &U, start)
+		if r > 0 {
+			// An orthogonal Q whose first r columns span the leading left
+			// singular vectors, as r Householder reflectors (QR of U1), so
+			// each step costs O(r n^2) rather than a full rotation.
+			var U mat.Dense
+			svd.UTo(&U)
+			U1 := mat.DenseCopyOf(U.Slice(0, rows, 0, r))
+			u1 := U1.RawMatrix()
+			tau := make([]float64, r)
+			work := make([]float64, 1)
+			impl.Dgeqrf(rows, r, u1.Data, u1.Stride, tau, work, -1)
+			work = make([]float64, max(int(work[0]), n, m))
+			impl.Dgeqrf(rows, r, u1.Data, u1.Stride, tau, work, len(work))
+			ar := st.A.RawMatrix()
+			// A[start:, :] <- Q^T A[start:, :]; A[:, start:] <- A[:, start:] Q.
+			impl.Dormqr(blas.Left, blas.Trans, rows, n, r, u1.Data, u1.Stride, tau, ar.Data[start*ar.Stride:], ar.Stride, work, len(work))
+			impl.Dormqr(blas.Right, blas.NoTrans, n, rows, r, u1.Data, u1.Stride, tau, ar.Data[start:], ar.Stride, work, len(work))
+			if st.B != nil {
+				br := st.B.RawMatrix()
+				impl.Dormqr(blas.Left, blas.Trans, rows, m, r, u1.Data, u1.Stride, tau, br.Data[start*br.Stride:], br.Stride, work, len(work))
+			}
+			zr := st.Z.RawMatrix()
+			impl.Dormqr(blas.Right, blas.NoTrans, n, rows, r, u1.Data, u1.Stride, tau, zr.Data[start:], zr.Stride, work, len(work))
 		}
-		stApplyRight(st.Z, &U, start)
-		// The block is now S V^T on its first r rows; clean the rest to
-		// exact zeros (they are rounding-level by construction).
+		// The block is now zero below its first r rows up to rounding of
+		// the dropped singular values; make the zeros exact.
 		for i := start + r; i < n; i++ {
 			for j := 0; j < cols; j++ {
 				if prev < 0 {
@@ -125,25 +143,6 @@ func ControllabilityStaircase(A, B *mat.Dense, relTol float64) (*Staircase, erro
 		st.Kept = 0
 	}
 	return st, nil
-}
-
-// stApplyLeftT replaces rows off.. of X by U^T times them (U square of
-// order rows-off).
-func stApplyLeftT(X, U *mat.Dense, off int) {
-	r, c := X.Dims()
-	sub := X.Slice(off, r, 0, c).(*mat.Dense)
-	var t mat.Dense
-	t.Mul(U.T(), sub)
-	sub.Copy(&t)
-}
-
-// stApplyRight replaces columns off.. of X by them times U.
-func stApplyRight(X, U *mat.Dense, off int) {
-	r, c := X.Dims()
-	sub := X.Slice(0, r, off, c).(*mat.Dense)
-	var t mat.Dense
-	t.Mul(sub, U)
-	sub.Copy(&t)
 }
 
 // stTransposed returns a copy of a^T (nil stays nil).

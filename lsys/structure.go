@@ -146,6 +146,13 @@ func Decompose(s *System, relTol float64) (*Decomposition, error) {
 // [V1 V2 V3 V4] in general is not, and its condition number is reported.
 func kalman(s *System, rs, os *Staircase, relTol float64) (*Decomposition, float64, error) {
 	n := s.N()
+	angTol := math.Sqrt(relTol)
+	if rs.Dim == n && os.Dim == n {
+		// Minimal already: one part, the identity transformation.
+		sys := s.Copy()
+		sys.StateNames = kalmanStateNames(n, 0, 0, 0)
+		return &Decomposition{From: s, System: sys, T: identity(n), Sizes: [4]int{n, 0, 0, 0}, Cond: 1}, angTol, nil
+	}
 	var R, N *mat.Dense
 	if rs.Dim > 0 {
 		R = mat.DenseCopyOf(rs.Z.Slice(0, n, 0, rs.Dim))
@@ -153,7 +160,6 @@ func kalman(s *System, rs, os *Staircase, relTol float64) (*Decomposition, float
 	if os.Dim < n {
 		N = mat.DenseCopyOf(os.Z.Slice(0, n, os.Dim, n))
 	}
-	angTol := math.Sqrt(relTol)
 	var V1, V2, V3, V4 *mat.Dense
 	if R != nil && N != nil {
 		_, r := R.Dims()
@@ -418,16 +424,21 @@ func Unobservable(s *System, relTol float64) (*Subspace, error) {
 	return sub, nil
 }
 
-// eigOrdered returns the eigenvalues of a in mode-table order.
+// eigOrdered returns the eigenvalues of a in mode-table order (values only:
+// no eigenvectors are formed).
 func eigOrdered(a *mat.Dense, ts float64) ([]complex128, error) {
-	es, err := Eigen(a)
-	if err != nil {
+	if err := CheckFinite("matrix", a); err != nil {
 		return nil, err
 	}
-	idx := orderEigenvalues(es.Values, ts)
+	var e mat.Eigen
+	if !e.Factorize(a, mat.EigenNone) {
+		return nil, errors.New("the eigenvalue iteration did not converge; try rescaling the states")
+	}
+	vals := e.Values(nil)
+	idx := orderEigenvalues(vals, ts)
 	out := make([]complex128, len(idx))
 	for i, k := range idx {
-		out[i] = es.Values[k]
+		out[i] = vals[k]
 	}
 	return out, nil
 }
