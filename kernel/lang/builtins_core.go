@@ -435,7 +435,7 @@ func systemBuiltins() []*Builtin {
 			Doc: "Matrices are written row by row: `[[0, 1], [-2, -3]]`. A plain list `[0, 1]` is a column; for C a plain list of n numbers is taken as one output row. " +
 				"With `every: T` the system is sampled: x[k+1] = A x[k] + B u[k]. " +
 				"Given a transfer function (a rational expression in s or z) or a list of lists of them, it returns a minimal state-space realization. " +
-				"The equation form `system { ... }` is usually clearer; see the language reference.",
+				"The equation form `system { ... }` (see kernel/lang/SPEC.md) is usually clearer.",
 			Examples: []string{
 				"G = system([[0, 1], [-2, -3]], [0, 1], [1, 0], 0)\nG",
 				"system([[0.9]], [0.1], every: 0.01, states: [\"level\"], inputs: [\"inflow\"], outputs: [\"level\"])",
