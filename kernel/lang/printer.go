@@ -5,6 +5,12 @@ import (
 	"strings"
 )
 
+// quote writes a string literal with the language's escapes only.
+func quote(s string) string {
+	r := strings.NewReplacer("\\", "\\\\", "\"", "\\\"", "\n", "\\n", "\t", "\\t")
+	return "\"" + r.Replace(s) + "\""
+}
+
 // ExprString writes an expression back as source text (normalised
 // spacing), for messages and summaries.
 func ExprString(e Expr) string {
@@ -41,7 +47,7 @@ func writeExpr(b *strings.Builder, e Expr, outer int) {
 			b.WriteByte('j')
 		}
 	case *StringLit:
-		b.WriteString(strconv.Quote(x.Value))
+		b.WriteString(quote(x.Value))
 	case *BoolLit:
 		b.WriteString(strconv.FormatBool(x.Value))
 	case *ListLit:
@@ -88,6 +94,9 @@ func writeExpr(b *strings.Builder, e Expr, outer int) {
 			b.WriteByte('(')
 		}
 		left, right := prec, prec+1
+		if prec == 4 { // comparisons do not chain
+			left = prec + 1
+		}
 		if x.Op == POW {
 			left, right = prec+1, 7 // right associative; unary minus allowed in the exponent
 		}

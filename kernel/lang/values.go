@@ -116,7 +116,7 @@ func FormatComplex(c complex128) string {
 func inlineString(v any) string {
 	switch x := v.(type) {
 	case string:
-		return strconv.Quote(x)
+		return quote(x)
 	case *mat.Dense:
 		r, c := x.Dims()
 		if c == 1 && r <= 8 {

@@ -1,0 +1,183 @@
+package lang
+
+import (
+	"context"
+	"flag"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+	"time"
+	"unicode/utf8"
+)
+
+// Seeds shared by the fuzzers; the committed corpus in testdata/fuzz holds
+// more (cells from the tests and the examples of the registry).
+var fuzzSeeds = []string{
+	"1 + 2*3",
+	"x = [[0, 1], [-2, -3]]\nx[2, 1]",
+	"G = system([[0, 1], [-2, -3]], [0, 1], [1, 0])\nmodes(G)",
+	"f(k) = if k <= 1 then 1 else k*f(k - 1)\nf(5)",
+	"r = {angle: 0.1, rate: 0}\nr.angle",
+	"H = 5 / (s^2 + 2*s + 5)\nsystem(H)",
+	"system every 0.1 {\n  states level\n  inputs inflow\n  next level = 0.9*level + 0.1*inflow\n}",
+	pendulumCell + "linearize(pendulum, at: {angle: pi, rate: 0, torque: 0})",
+	"\"unterminated",
+	"x = (1 +",
+	"a.b.c[1, 2](3)",
+	"system { states x; x' = -x*x }",
+	"1e999 + 2j ** 3",
+	"# only a comment",
+}
+
+func seedFuzz(f *testing.F) {
+	for _, s := range fuzzSeeds {
+		f.Add(s)
+	}
+	for _, b := range Builtins() {
+		for _, ex := range b.Examples {
+			f.Add(ex)
+		}
+	}
+}
+
+// checkErrPositions: every error is positioned inside the cell.
+func checkErrPositions(t *testing.T, src string, errs ErrorList) {
+	lines := strings.Count(src, "\n") + 1
+	for _, e := range errs {
+		if e.Pos.Line < 1 || e.Pos.Line > lines || e.Pos.Column < 1 {
+			t.Fatalf("error outside the cell (%d lines): %d:%d %s", lines, e.Pos.Line, e.Pos.Column, e.Msg)
+		}
+		if e.Pos.Offset < 0 || e.Pos.Offset > len(src) {
+			t.Fatalf("offset %d outside the cell of %d bytes", e.Pos.Offset, len(src))
+		}
+	}
+}
+
+func FuzzScan(f *testing.F) {
+	seedFuzz(f)
+	f.Fuzz(func(t *testing.T, src string) {
+		var s Scanner
+		s.Init(src)
+		for n := 0; ; n++ {
+			tok, pos, _ := s.Scan()
+			if tok == EOF {
+				break
+			}
+			if n > len(src)+1 {
+				t.Fatalf("scanner does not advance: %d tokens from %d bytes", n, len(src))
+			}
+			if pos.Line < 1 || pos.Column < 1 || pos.Offset > len(src) {
+				t.Fatalf("bad position %+v", pos)
+			}
+		}
+		checkErrPositions(t, src, s.Errors)
+	})
+}
+
+func FuzzParse(f *testing.F) {
+	seedFuzz(f)
+	f.Fuzz(func(t *testing.T, src string) {
+		stmts, err := ParseCell(src)
+		if err != nil {
+			l, ok := err.(ErrorList)
+			if !ok || len(l) == 0 {
+				t.Fatalf("parse error is not a positioned list: %T %v", err, err)
+			}
+			checkErrPositions(t, src, l)
+			return
+		}
+		// What parses prints back to something that parses.
+		for _, s := range stmts {
+			var text string
+			switch x := s.(type) {
+			case *ExprStmt:
+				if _, blk := x.X.(*SystemBlock); blk {
+					continue
+				}
+				text = ExprString(x.X)
+			default:
+				continue
+			}
+			if _, err := ParseCell(text); err != nil && utf8.ValidString(src) {
+				t.Fatalf("%q printed as %q, which does not parse: %v", src, text, err)
+			}
+		}
+	})
+}
+
+func FuzzEval(f *testing.F) {
+	seedFuzz(f)
+	f.Fuzz(func(t *testing.T, src string) {
+		s := NewSession("")
+		ctx, cancel := context.WithTimeout(context.Background(), 200*time.Millisecond)
+		defer cancel()
+		_, err := s.Run(ctx, src, nil)
+		if err == nil {
+			return
+		}
+		text := err.Error()
+		if strings.Contains(text, "internal error") || strings.Contains(text, "failed inside") {
+			t.Fatalf("panic inside the evaluator for %q:\n%s", src, text)
+		}
+		if _, ok := Position(err); !ok {
+			t.Fatalf("error without a position for %q: %v", src, err)
+		}
+	})
+}
+
+var writeCorpus = flag.Bool("writecorpus", false, "write the seed corpus into testdata/fuzz")
+
+// TestWriteFuzzCorpus writes the seeds, the cells of the test tables and the
+// registry's examples as the committed seed corpus (run with -writecorpus).
+func TestWriteFuzzCorpus(t *testing.T) {
+	if !*writeCorpus {
+		t.Skip("run with -writecorpus to rewrite testdata/fuzz")
+	}
+	seeds := append([]string(nil), fuzzSeeds...)
+	for _, c := range corpusCells {
+		seeds = append(seeds, c)
+	}
+	for _, b := range Builtins() {
+		seeds = append(seeds, b.Examples...)
+	}
+	for _, name := range []string{"FuzzScan", "FuzzParse", "FuzzEval"} {
+		dir := filepath.Join("testdata", "fuzz", name)
+		if err := os.MkdirAll(dir, 0o755); err != nil {
+			t.Fatal(err)
+		}
+		for i, s := range seeds {
+			body := "go test fuzz v1\nstring(" + strconv.Quote(s) + ")\n"
+			if err := os.WriteFile(filepath.Join(dir, fmt.Sprintf("seed%03d", i)), []byte(body), 0o644); err != nil {
+				t.Fatal(err)
+			}
+		}
+	}
+}
+
+// corpusCells are cells that reach the corners of the language.
+var corpusCells = []string{
+	"torqe = 1\ntorque",
+	"[[1, 2], [3]]",
+	"v = [1, 2]\nv[0]",
+	"system([[0, 1], [0, 0]], [1, 2, 3])",
+	"h(n) = h(n + 1)\nh(1)",
+	"x' = 1",
+	"1 < 2 < 3",
+	"10^400",
+	"(1 + 2j) < 3",
+	"[[2, 0], [0, 4]]^-1",
+	"{a: 1, a: 2}",
+	"system {\n  states x, v\n  x' = v\n}",
+	"system {\n  states x, y\n  x' = y\n  next y = x\n}",
+	"m = system {\n  states x\n  inputs u\n  x' = -x*u\n}\nlinearize(m, at: {x: 1, u: 2})",
+	"m = system {\n  states x\n  x' = -log(x)\n}\nequilibrium(m, guess: {x: 2})",
+	"f(k) = system([[-k]])\nlocus(f, k: linear(1, 2, n: 3))",
+	"1/(s + 1) + 2/(s^2 + s + 1)",
+	"system(0.1/(z - 0.9), every: 0.1)",
+	"a = 1 + \\\n 2",
+	"if true then [1] else \"no\"",
+	"\"a\\n\\t\\\"b\" + \"c\"",
+}
