@@ -394,7 +394,7 @@ func (ev *evaluator) evalCall(x *CallExpr) (any, error) {
 					return nil, ev.errorAt(a.Name.NamePos, fmt.Sprintf("argument '%s' is given twice", a.Name.Name), "Give each named argument once.")
 				}
 			}
-			named = append(named, NamedValue{Name: a.Name.Name, Value: v, Pos: a.Name.NamePos})
+			named = append(named, NamedValue{Name: a.Name.Name, Value: v, Pos: a.Name.NamePos, ValuePos: a.Value.Pos()})
 		} else {
 			vals = append(vals, v)
 			pos = append(pos, a.Value.Pos())
@@ -468,7 +468,7 @@ func (ev *evaluator) callBuiltin(b *Builtin, vals []any, poss []Pos, named []Nam
 		if c.given[i] {
 			return nil, ev.errorAt(nv.Pos, fmt.Sprintf("argument '%s' of %s is given twice (by position and by name)", nv.Name, b.Name), "Usage: "+b.Signature())
 		}
-		c.vals[i], c.poss[i], c.given[i] = nv.Value, nv.Pos, true
+		c.vals[i], c.poss[i], c.given[i] = nv.Value, nv.ValuePos, true
 	}
 	for i, p := range b.Params {
 		if !c.given[i] && p.Default == nil && !p.Optional && !p.Variadic {

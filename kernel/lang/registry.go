@@ -55,7 +55,9 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"path/filepath"
 	"reflect"
+	"runtime"
 	"sort"
 	"strings"
 	"sync"
@@ -102,6 +104,8 @@ type Builtin struct {
 	// Fn computes the result. For a constant leave Fn nil and set Value.
 	Fn    func(c *Call) (any, error)
 	Value any
+
+	file string // the Go file that registered it (for tests)
 }
 
 // Signature is name(p1, p2: default, ...) as shown by inspect.
@@ -159,6 +163,14 @@ func Register(b *Builtin) {
 	}
 	if b.Group == "" {
 		b.Group = GroupMath
+	}
+	// The registering file: Register is called from an init function or a
+	// helper in the file that owns the built-in.
+	for skip := 1; skip < 4; skip++ {
+		if _, file, _, ok := runtime.Caller(skip); ok && !strings.HasSuffix(file, "registry.go") {
+			b.file = filepath.Base(file)
+			break
+		}
 	}
 	registry[b.Name] = b
 }
@@ -251,9 +263,10 @@ type Call struct {
 
 // NamedValue is a named argument.
 type NamedValue struct {
-	Name  string
-	Value any
-	Pos   Pos
+	Name     string
+	Value    any
+	Pos      Pos // of the name
+	ValuePos Pos // of the value
 }
 
 func (c *Call) index(name string) int {
