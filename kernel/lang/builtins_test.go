@@ -130,7 +130,7 @@ func TestPauseInterrupted(t *testing.T) {
 	}
 }
 
-// A standard second-order system: x'' + 2 zeta wn x' + wn^2 x = wn^2 u with
+// A standard second-order system: x” + 2 zeta wn x' + wn^2 x = wn^2 u with
 // wn = 2, zeta = 0.1 (A = [[0, 1], [-4, -0.4]]): natural frequency 2 rad/s,
 // damping ratio 0.1 (textbook second-order form, common practice).
 func TestSystemAndModes(t *testing.T) {
