@@ -359,8 +359,28 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 			} else {
 				// six markers along the curve, shifted per series so that
 				// markers of overlapping curves do not hide each other
+				// (by arc length on charts with equal axes, by sample
+				// index otherwise)
+				pos := make([]float64, len(x))
+				for k := 1; k < len(x); k++ {
+					if pn.Equal {
+						// only the part inside a fixed frame counts
+						in := !ok(pn.XMin) || (x[k] >= pn.XMin && x[k] <= pn.XMax && y[k] >= pn.YMin && y[k] <= pn.YMax)
+						pos[k] = pos[k-1]
+						if in {
+							pos[k] += math.Hypot(x[k]-x[k-1], y[k]-y[k-1])
+						}
+					} else {
+						pos[k] = float64(k)
+					}
+				}
+				total := pos[len(pos)-1]
+				k := 0
 				for j := 0; j < 6; j++ {
-					k := int((float64(j) + 0.3 + 0.11*float64(si%5)) / 6 * float64(len(x)-1))
+					target := (float64(j) + 0.3 + 0.11*float64(si%5)) / 6 * total
+					for k < len(x)-1 && pos[k] < target {
+						k++
+					}
 					gx, gy = append(gx, x[k]), append(gy, y[k])
 				}
 			}

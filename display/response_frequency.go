@@ -138,11 +138,15 @@ func renderPolar(v any, opt Options) Bundle {
 				rpSeries{Name: "ω < 0", X: mre, Y: mim, Style: 1, Width: 1},
 				rpMark("-1", []complex128{-1}, -1, draw.CrossGlyph{}, 4),
 			)
-			// Near an integrator |G| runs off to infinity: frame the part
-			// of the curve within the 85th percentile of |G| (and -1).
+			// Near an integrator |G| runs off to infinity: then frame the
+			// part of the curve within the 85th percentile of |G| (and -1);
+			// otherwise frame the whole curve.
 			sorted := append([]float64(nil), mags...)
 			sort.Float64s(sorted)
-			R := math.Max(1.2, sorted[int(0.85*float64(n-1))]*1.1)
+			R := math.Inf(1)
+			if _, finite := lsys.DCGain(f.System); !finite {
+				R = math.Max(1.2, sorted[int(0.85*float64(n-1))]*1.1)
+			}
 			xmin, xmax, ymin, ymax := -1.2, 0.2, -0.2, 0.2
 			for k := range re {
 				if mags[k] <= R {
