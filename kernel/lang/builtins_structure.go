@@ -405,7 +405,7 @@ func stModalBuiltin() *Builtin {
 		Params: []Param{stSystemParam},
 		Help:   "The system in real modal coordinates (1x1 and 2x2 [[sigma, omega], [-omega, sigma]] blocks), with the transformation.",
 		Doc: "The modal coordinates q = T x come from the right eigenvectors (unit mode shapes). When an eigenvalue is " +
-			"defective or the eigenvector basis is ill-conditioned (condition above 1e6), a block-diagonal form from the " +
+			"defective or the eigenvector basis is ill-conditioned (condition above 1e4), a block-diagonal form from the " +
 			"ordered real Schur form with Sylvester decoupling (Bavely & Stewart 1979) is returned instead, and the " +
 			"display says so. Fields: system, T, shapes (the columns of T^-1), block_diagonal, cond.",
 		Examples: []string{msd + "modal(G)", "modal(system([[-1, 1], [0, -1]], [0, 1], [1, 0]))"},
