@@ -14,8 +14,8 @@ import (
 // ModalResponse splits a time response into the contributions of the modes:
 // Parts[q][output][channel][k] over the same grid as Response, with
 // sum over q of Parts[q] equal to Response.Y (up to rounding). The last part
-// is the direct feedthrough D u when the system has one and the input is
-// not an impulse.
+// is the direct feedthrough D u when the system has one (for an impulse
+// only in sampled systems, where the pulse response starts with D).
 type ModalResponse struct {
 	Response *Response
 	Labels   []string     // the eigenvalue of each part ("-1 ± 2j"), or "direct"
@@ -108,7 +108,7 @@ func ByMode(ctx context.Context, g *System, kind string, x0 []float64, u *Signal
 			mr.Labels = append(mr.Labels, label)
 		}
 	}
-	if kind != "impulse" && kind != "initial" && g.D != nil && mat.Norm(g.D, 1) > 0 {
+	if kind != "initial" && !(kind == "impulse" && !g.Sampled()) && g.D != nil && mat.Norm(g.D, 1) > 0 {
 		direct, err := NewSystem(0, g.M(), p, nil, nil, nil, g.D, g.Ts)
 		if err != nil {
 			return nil, err

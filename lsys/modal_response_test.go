@@ -83,3 +83,28 @@ func TestByModeSumsAndFirstOrderParts(t *testing.T) {
 		t.Errorf("Jordan parts worst error %g (%v)", worst, mr.Labels)
 	}
 }
+
+func TestByModeSampledImpulseWithFeedthrough(t *testing.T) {
+	// A sampled unit-pulse response starts with D at k = 0; the direct
+	// part must carry it so the parts still sum to the response.
+	g := siso(t, []float64{1, 2}, []float64{3, 4, 1})
+	d, err := Sample(g, 0.1, "tustin", 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mr, err := ByMode(context.Background(), d, "impulse", nil, nil, ResponseOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	worst := 0.0
+	for k := range mr.Response.T {
+		var acc float64
+		for q := range mr.Parts {
+			acc += mr.Parts[q][0][0][k]
+		}
+		worst = math.Max(worst, math.Abs(acc-mr.Response.Y[0][0][k]))
+	}
+	if worst > 1e-12 || mr.Labels[len(mr.Labels)-1] != "direct" {
+		t.Errorf("sum error %g, labels %v", worst, mr.Labels)
+	}
+}
