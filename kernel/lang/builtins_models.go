@@ -590,7 +590,7 @@ func locusFn(c *Call) (any, error) {
 			"Use linear(a, b, n: 50) or logarithmic(a, b).")
 	}
 	if len(values) > MaxLocusSteps {
-		return nil, c.ev.errorAt(nv.Pos, fmt.Sprintf("%d values are more than the limit of %d", len(values), MaxLocusSteps), "")
+		return nil, c.ev.errorAt(nv.Pos, fmt.Sprintf("%d values are more than the limit of %d", len(values), MaxLocusSteps), "Use fewer values: linear(a, b, n: 200) is usually enough.")
 	}
 	progress := len(values) >= 50
 	const id = "locus-progress"

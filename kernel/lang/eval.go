@@ -160,7 +160,7 @@ func (ev *evaluator) eval(e Expr) (v any, err error) {
 				return nil, err
 			}
 			if v == nil {
-				return nil, ev.errorAt(f.Value.Pos(), fmt.Sprintf("field '%s' has no value", f.Name.Name), "")
+				return nil, ev.errorAt(f.Value.Pos(), fmt.Sprintf("field '%s' has no value", f.Name.Name), "print, warn and show give nothing back; give the field a value.")
 			}
 			r.Names = append(r.Names, f.Name.Name)
 			r.Values = append(r.Values, v)
@@ -174,7 +174,7 @@ func (ev *evaluator) eval(e Expr) (v any, err error) {
 		if x.Op == NOT {
 			b, ok := v.(bool)
 			if !ok {
-				return nil, ev.errorAt(x.OpPos, fmt.Sprintf("'not' needs true or false, not %s", typeName(v)), "")
+				return nil, ev.errorAt(x.OpPos, fmt.Sprintf("'not' needs true or false, not %s", typeName(v)), "Use a comparison, such as not (k > 0).")
 			}
 			return !b, nil
 		}
@@ -219,7 +219,7 @@ func (ev *evaluator) eval(e Expr) (v any, err error) {
 	case *SystemBlock:
 		return ev.evalSystemBlock(x)
 	}
-	return nil, ev.errorAt(e.Pos(), "cannot evaluate this expression", "")
+	return nil, ev.errorAt(e.Pos(), "cannot evaluate this expression", "This is a bug in lsys; please report it with this cell.")
 }
 
 func (ev *evaluator) logic(x *BinaryExpr) (any, error) {
@@ -229,7 +229,7 @@ func (ev *evaluator) logic(x *BinaryExpr) (any, error) {
 	}
 	ab, ok := a.(bool)
 	if !ok {
-		return nil, ev.errorAt(x.X.Pos(), fmt.Sprintf("'%s' needs true or false on both sides, not %s", x.Op, typeName(a)), "")
+		return nil, ev.errorAt(x.X.Pos(), fmt.Sprintf("'%s' needs true or false on both sides, not %s", x.Op, typeName(a)), "Use comparisons: k > 0 and b < 1.")
 	}
 	if (x.Op == AND && !ab) || (x.Op == OR && ab) {
 		return ab, nil
@@ -240,7 +240,7 @@ func (ev *evaluator) logic(x *BinaryExpr) (any, error) {
 	}
 	bb, ok := b.(bool)
 	if !ok {
-		return nil, ev.errorAt(x.Y.Pos(), fmt.Sprintf("'%s' needs true or false on both sides, not %s", x.Op, typeName(b)), "")
+		return nil, ev.errorAt(x.Y.Pos(), fmt.Sprintf("'%s' needs true or false on both sides, not %s", x.Op, typeName(b)), "Use comparisons: k > 0 and b < 1.")
 	}
 	return bb, nil
 }
@@ -255,7 +255,7 @@ func (ev *evaluator) evalList(x *ListLit) (any, error) {
 			return nil, err
 		}
 		if v == nil {
-			return nil, ev.errorAt(el.Pos(), "this item has no value", "")
+			return nil, ev.errorAt(el.Pos(), "this item has no value", "print, warn and show give nothing back; put values in lists.")
 		}
 		vals[i] = v
 	}
@@ -291,7 +291,7 @@ func (ev *evaluator) evalList(x *ListLit) (any, error) {
 		}
 		for i, v := range vals {
 			if !finite(v) {
-				return nil, ev.errorAt(x.Elems[i].Pos(), fmt.Sprintf("entry %d is %s; matrices hold finite numbers only", i+1, FormatValue(v)), "")
+				return nil, ev.errorAt(x.Elems[i].Pos(), fmt.Sprintf("entry %d is %s; matrices hold finite numbers only", i+1, FormatValue(v)), "Check how the entry was computed; inf and nan cannot enter a matrix or a system.")
 			}
 		}
 		if anyComplex {
@@ -516,7 +516,7 @@ func (ev *evaluator) callFunction(f *Function, vals []any, poss []Pos, named []N
 				fmt.Sprintf("It is defined as %s.", f))
 		}
 		if _, dup := frame[nv.Name]; dup {
-			return nil, ev.errorAt(nv.Pos, fmt.Sprintf("parameter '%s' of %s is given twice", nv.Name, f.Name), "")
+			return nil, ev.errorAt(nv.Pos, fmt.Sprintf("parameter '%s' of %s is given twice", nv.Name, f.Name), fmt.Sprintf("It is defined as %s.", f))
 		}
 		frame[nv.Name] = nv.Value
 	}
@@ -544,7 +544,7 @@ func (ev *evaluator) callFunction(f *Function, vals []any, poss []Pos, named []N
 		return nil, err
 	}
 	if v == nil {
-		return nil, ev.errorAt(pos, fmt.Sprintf("%s gave no value", f.Name), "")
+		return nil, ev.errorAt(pos, fmt.Sprintf("%s gave no value", f.Name), "A function must end in a value; print, warn and show give none.")
 	}
 	return v, nil
 }
@@ -637,7 +637,7 @@ func (ev *evaluator) field(v any, name *Ident) (any, error) {
 	case *lsys.System:
 		if f, ok, err := systemField(t, name.Name); ok {
 			if err != nil {
-				return nil, ev.errorAt(name.NamePos, err.Error(), "")
+				return nil, ev.errorAt(name.NamePos, err.Error(), "Fields of a system: A, B, C, D, states, inputs, outputs, every, and its signal names.")
 			}
 			return f, nil
 		}
@@ -654,7 +654,7 @@ func (ev *evaluator) field(v any, name *Ident) (any, error) {
 			}
 			fields = fieldNames(v)
 		} else {
-			return nil, ev.errorAt(name.NamePos, fmt.Sprintf("%s has no fields", typeName(v)), "")
+			return nil, ev.errorAt(name.NamePos, fmt.Sprintf("%s has no fields", typeName(v)), "Records, systems, models and results of analysis have fields; completion after '.' lists them.")
 		}
 	}
 	hint := ""
@@ -871,7 +871,7 @@ func (ev *evaluator) realize(rows [][]*lsys.Rational, pos Pos) (*lsys.System, er
 	}
 	g, err := lsys.Realize(rows, ts)
 	if err != nil {
-		return nil, ev.errorAt(pos, "cannot turn this transfer function into a system: "+err.Error(), "")
+		return nil, ev.errorAt(pos, "cannot turn this transfer function into a system: "+err.Error(), "A transfer function must be proper (numerator degree at most the denominator's) to be a state-space system.")
 	}
 	return g, nil
 }

@@ -48,6 +48,9 @@ func runCells(t *testing.T, cells []cell) {
 			if !strings.Contains(err.Error(), c.err) {
 				t.Errorf("%q: error\n%s\ndoes not contain %q", c.src, err, c.err)
 			}
+			if h := hintOf(err); h == "" {
+				t.Errorf("%q: the error says nothing about what to do:\n%v", c.src, err)
+			}
 			pos, ok := Position(err)
 			if !ok {
 				t.Errorf("%q: error without a position: %v", c.src, err)
@@ -359,4 +362,17 @@ func TestRegistryEntries(t *testing.T) {
 			t.Errorf("%s: built-in names are lower case", b.Name)
 		}
 	}
+}
+
+// hintOf returns the "what to do" line of the first error.
+func hintOf(err error) string {
+	var l ErrorList
+	if errors.As(err, &l) && len(l) > 0 {
+		return l[0].Hint
+	}
+	var e *Error
+	if errors.As(err, &e) {
+		return e.Hint
+	}
+	return ""
 }

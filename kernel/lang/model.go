@@ -185,7 +185,7 @@ func (me *meval) lookup(id *Ident) (mval, error) {
 				me.bs.paramOrder = append(me.bs.paramOrder, id.Name)
 				return mval{x: lsys.Const(t)}, nil
 			case *Function:
-				return mval{}, me.ev.errorAt(id.NamePos, fmt.Sprintf("'%s' is a function; call it: %s(...)", id.Name, id.Name), "")
+				return mval{}, me.ev.errorAt(id.NamePos, fmt.Sprintf("'%s' is a function; call it: %s(...)", id.Name, id.Name), "Equations use numbers: call the function with arguments.")
 			}
 			return mval{}, me.ev.errorAt(id.NamePos, fmt.Sprintf("'%s' is %s; a parameter in an equation must be a real number", id.Name, typeName(v)),
 				"Bind a number to it before the block, or declare it as a state or input.")
@@ -248,7 +248,7 @@ func (me *meval) eval(e Expr) (mval, error) {
 		return mval{x: lsys.Const(x.Value)}, nil
 	case *UnaryExpr:
 		if x.Op != SUB {
-			return mval{}, me.ev.errorAt(x.OpPos, "'not' cannot appear in an equation outside an if condition", "")
+			return mval{}, me.ev.errorAt(x.OpPos, "'not' cannot appear in an equation outside an if condition", "Write if not (x > 0) then ... else ...")
 		}
 		v, err := me.eval(x.X)
 		v.x = v.x.Neg()
@@ -294,7 +294,7 @@ func (me *meval) eval(e Expr) (mval, error) {
 				me.bs.paramOrder = append(me.bs.paramOrder, key)
 				return mval{x: lsys.Const(f)}, nil
 			}
-			return mval{}, me.ev.errorAt(x.Name.NamePos, fmt.Sprintf("%s is %s; equations need real numbers", key, typeName(v)), "")
+			return mval{}, me.ev.errorAt(x.Name.NamePos, fmt.Sprintf("%s is %s; equations need real numbers", key, typeName(v)), "Use a field that holds a number.")
 		}
 	}
 	return mval{}, me.ev.errorAt(e.Pos(), fmt.Sprintf("%s cannot appear in an equation", ExprString(e)),
@@ -411,7 +411,7 @@ func (me *meval) binary(x *BinaryExpr) (mval, error) {
 func (me *meval) call(x *CallExpr) (mval, error) {
 	id, ok := x.Fun.(*Ident)
 	if !ok {
-		return mval{}, me.ev.errorAt(x.Pos(), "only named functions can be called in an equation", "")
+		return mval{}, me.ev.errorAt(x.Pos(), "only named functions can be called in an equation", "Call sin, cos, tan, exp, log, sqrt, abs or a function you defined with f(x) = ...")
 	}
 	// A user function: bound in the session when the block is compiled.
 	var f *Function
@@ -443,7 +443,7 @@ func (me *meval) call(x *CallExpr) (mval, error) {
 			frame[f.Params[i]] = v
 		}
 		if me.depth >= MaxDepth {
-			return mval{}, me.ev.errorAt(x.Pos(), fmt.Sprintf("functions call each other more than %d levels deep", MaxDepth), "")
+			return mval{}, me.ev.errorAt(x.Pos(), fmt.Sprintf("functions call each other more than %d levels deep", MaxDepth), "Look for a function that calls itself without reaching its end case.")
 		}
 		me.depth++
 		me.frames = append(me.frames, frame)
@@ -463,7 +463,7 @@ func (me *meval) call(x *CallExpr) (mval, error) {
 			"Equations may call sin, cos, tan, exp, log, sqrt, abs and user functions of numbers.")
 	}
 	if len(x.Args) != 1 || x.Args[0].Name != nil {
-		return mval{}, me.ev.errorAt(x.Lparen, fmt.Sprintf("%s takes one argument", id.Name), "")
+		return mval{}, me.ev.errorAt(x.Lparen, fmt.Sprintf("%s takes one argument", id.Name), fmt.Sprintf("Write %s(x).", id.Name))
 	}
 	a, err := me.eval(x.Args[0].Value)
 	if err != nil {
@@ -747,7 +747,7 @@ func (ev *evaluator) compileBlock(b *SystemBlock) (*blockSource, error) {
 				case "input":
 					return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is an input; inputs come from outside and have no equation", name), "Declare it as a state if the system computes it.")
 				case "output":
-					return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is an output; write %s = ...", name, name), "")
+					return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is an output; write %s = ...", name, name), "Outputs are defined by plain equations; only states have x' = ... or next x = ...")
 				}
 				return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is not a declared state%s", name, didYouMean(name, bs.states)),
 					fmt.Sprintf("Declare it: states %s, ...", name))
@@ -764,9 +764,9 @@ func (ev *evaluator) compileBlock(b *SystemBlock) (*blockSource, error) {
 				if bs.ts > 0 {
 					d = "next " + name + " = ..."
 				}
-				return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is a state; its equation is written %s", name, d), "")
+				return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is a state; its equation is written %s", name, d), "To output a state, declare an output with another name: outputs measured; measured = "+name+".")
 			case "input":
-				return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is an input; inputs come from outside and have no equation", name), "")
+				return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is an input; inputs come from outside and have no equation", name), "Declare it as a state or a helper if the system computes it.")
 			}
 			if prev, dup := helpers[name]; dup {
 				return nil, ev.errorAt(eq.Start, fmt.Sprintf("'%s' is defined twice (first at line %d)", name, prev.Start.Line), "Give it one equation.")

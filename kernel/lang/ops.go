@@ -61,7 +61,7 @@ func (ev *evaluator) negate(v any, pos Pos) (any, error) {
 	case *lsys.System:
 		return ev.binary(MUL, -1.0, x, pos, nil)
 	}
-	return nil, ev.errorAt(pos, fmt.Sprintf("cannot negate %s", typeName(v)), "")
+	return nil, ev.errorAt(pos, fmt.Sprintf("cannot negate %s", typeName(v)), "Numbers, matrices, transfer functions and systems can be negated.")
 }
 
 var opVerb = map[Token]string{ADD: "add", SUB: "subtract", MUL: "multiply", DIV: "divide", POW: "raise"}
@@ -148,12 +148,12 @@ func (ev *evaluator) scalar(op Token, a, b any, pos Pos) (any, error) {
 			r = fa * fb
 		case DIV:
 			if fb == 0 {
-				return nil, ev.errorAt(pos, "division by zero", "")
+				return nil, ev.errorAt(pos, "division by zero", "The divisor is zero here; check the values it is made of.")
 			}
 			r = fa / fb
 		case POW:
 			if fa == 0 && fb < 0 {
-				return nil, ev.errorAt(pos, "zero to a negative power is division by zero", "")
+				return nil, ev.errorAt(pos, "zero to a negative power is division by zero", "The base is zero here; check the values it is made of.")
 			}
 			if fa < 0 && fb != math.Trunc(fb) {
 				r = number(cmplx.Pow(complex(fa, 0), complex(fb, 0)))
@@ -172,12 +172,12 @@ func (ev *evaluator) scalar(op Token, a, b any, pos Pos) (any, error) {
 			r = number(ca * cb)
 		case DIV:
 			if cb == 0 {
-				return nil, ev.errorAt(pos, "division by zero", "")
+				return nil, ev.errorAt(pos, "division by zero", "The divisor is zero here; check the values it is made of.")
 			}
 			r = number(ca / cb)
 		case POW:
 			if ca == 0 && real(cb) < 0 {
-				return nil, ev.errorAt(pos, "zero to a negative power is division by zero", "")
+				return nil, ev.errorAt(pos, "zero to a negative power is division by zero", "The base is zero here; check the values it is made of.")
 			}
 			if imag(cb) == 0 && real(cb) == math.Trunc(real(cb)) && math.Abs(real(cb)) <= 64 {
 				r = number(cpowInt(ca, int(real(cb))))
@@ -315,7 +315,7 @@ func (ev *evaluator) matrixOp(op Token, a, b any, pos Pos) (any, error) {
 			out.Scale(fb, ma)
 		case DIV:
 			if fb == 0 {
-				return nil, ev.errorAt(pos, "division by zero", "")
+				return nil, ev.errorAt(pos, "division by zero", "The divisor is zero here; check the values it is made of.")
 			}
 			out.Scale(1/fb, ma)
 		case POW:
@@ -344,7 +344,7 @@ func (ev *evaluator) matrixOp(op Token, a, b any, pos Pos) (any, error) {
 func (ev *evaluator) matrixPow(m *mat.Dense, k float64, pos Pos) (any, error) {
 	r, c := m.Dims()
 	if r != c {
-		return nil, ev.errorAt(pos, fmt.Sprintf("only a square matrix has powers, not a %dx%d one", r, c), "")
+		return nil, ev.errorAt(pos, fmt.Sprintf("only a square matrix has powers, not a %dx%d one", r, c), "For the product of M with its transpose write M * transpose(M).")
 	}
 	if k != math.Trunc(k) || math.Abs(k) > 1e6 {
 		return nil, ev.errorAt(pos, fmt.Sprintf("a matrix power must be a whole number, not %s", FormatNumber(k)), "For exp(A t) use exp(t*A).")
@@ -378,7 +378,7 @@ func (ev *evaluator) matrixPow(m *mat.Dense, k float64, pos Pos) (any, error) {
 		n >>= 1
 	}
 	if err := lsys.CheckFinite("the result", out); err != nil {
-		return nil, ev.errorAt(pos, err.Error(), "")
+		return nil, ev.errorAt(pos, err.Error(), "Check the operands of this operator.")
 	}
 	return out, nil
 }
@@ -392,7 +392,7 @@ func (ev *evaluator) rationalOp(op Token, a, b any, pos Pos) (any, error) {
 		}
 		r, err := ra.Pow(int(k))
 		if err != nil {
-			return nil, ev.errorAt(pos, err.Error(), "")
+			return nil, ev.errorAt(pos, err.Error(), "Check the operands of this operator.")
 		}
 		return simplifyRational(r), nil
 	}
@@ -414,7 +414,7 @@ func (ev *evaluator) rationalOp(op Token, a, b any, pos Pos) (any, error) {
 		r, err = ra.Div(rb)
 	}
 	if err != nil {
-		return nil, ev.errorAt(pos, err.Error(), "")
+		return nil, ev.errorAt(pos, err.Error(), "Check the operands of this operator.")
 	}
 	return simplifyRational(r), nil
 }
@@ -459,16 +459,16 @@ func (ev *evaluator) systemOp(op Token, a, b any, pos Pos) (any, error) {
 	} else if f, ok := a.(float64); ok {
 		ga, err = scalarGain(f, gb.P(), gb.Ts)
 		if err == nil && gb.M() != gb.P() {
-			return nil, ev.errorAt(pos, "adding a number to a system needs as many inputs as outputs", "")
+			return nil, ev.errorAt(pos, "adding a number to a system needs as many inputs as outputs", "Add a static gain system of the right size instead: system(..., D).")
 		}
 	} else if f, ok := b.(float64); ok {
 		gb, err = scalarGain(f, ga.P(), ga.Ts)
 		if err == nil && ga.M() != ga.P() {
-			return nil, ev.errorAt(pos, "adding a number to a system needs as many inputs as outputs", "")
+			return nil, ev.errorAt(pos, "adding a number to a system needs as many inputs as outputs", "Add a static gain system of the right size instead: system(..., D).")
 		}
 	}
 	if err != nil {
-		return nil, ev.errorAt(pos, err.Error(), "")
+		return nil, ev.errorAt(pos, err.Error(), "Check the operands of this operator.")
 	}
 	var g *lsys.System
 	switch op {
@@ -492,7 +492,7 @@ func (ev *evaluator) systemOp(op Token, a, b any, pos Pos) (any, error) {
 		g, err = lsys.Parallel(ga, gb, sign)
 	}
 	if err != nil {
-		return nil, ev.errorAt(pos, err.Error(), "")
+		return nil, ev.errorAt(pos, err.Error(), "Check the operands of this operator.")
 	}
 	return g, nil
 }

@@ -180,7 +180,7 @@ func (p *parser) parseStmt() Stmt {
 		case *CallExpr:
 			name, ok := lhs.Fun.(*Ident)
 			if !ok {
-				p.errorAt(lhs.Pos(), "a function is defined as name(parameters) = expression", "")
+				p.errorAt(lhs.Pos(), "a function is defined as name(parameters) = expression", "Write it like f(k) = k^2 + 1.")
 				panic(bailout{})
 			}
 			var params []*Ident

@@ -325,6 +325,9 @@ func (c *Call) Errorf(name, hint, format string, args ...any) error {
 	if name != "" {
 		pos = c.ArgPos(name)
 	}
+	if hint == "" {
+		hint = c.helpHint()
+	}
 	return c.ev.errorAt(pos, fmt.Sprintf(format, args...), hint)
 }
 
