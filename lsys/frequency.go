@@ -39,11 +39,11 @@ type FrequencyOptions struct {
 // response computations", IEEE TAC 26(2)).
 //
 // Grid rule, when no grid is given: the range runs from a decade below the
-// slowest nonzero mode to a decade above the fastest (|s|, sampled systems
-// through s = log(z)/Ts), widened to whole decades, at least 3 decades;
-// sampled systems stop at the Nyquist frequency pi/Ts. The base grid has 20
-// points per decade plus the natural frequency of every mode with damping
-// below 0.5; then every interval across which some channel's magnitude
+// slowest nonzero pole or zero to a decade above the fastest (|s|, sampled
+// systems through s = log(z)/Ts; zeros for models up to 200 states),
+// widened to whole decades, at least 3 decades; sampled systems stop at the
+// Nyquist frequency pi/Ts. The base grid has 20 points per decade plus the
+// natural frequency of every pole and zero with damping below 0.5; then every interval across which some channel's magnitude
 // changes by more than 1 dB or its phase by more than 5 degrees is bisected
 // (geometrically), up to 8 times and 5,000 points in all.
 func Frequency(ctx context.Context, g *System, opt FrequencyOptions) (*FrequencyResponse, error) {
@@ -206,7 +206,24 @@ func coarse(a, b []complex128) bool {
 // autoRange picks the frequency range from the modes (see Frequency).
 func autoRange(g *System) (lo, hi float64, extra []float64, rule string) {
 	var wmin, wmax float64
-	for _, s := range continuousPoles(g) {
+	pts := continuousPoles(g)
+	// Zeros matter too: a lightly damped pair of zeros is an
+	// anti-resonance the grid must resolve. They are computed for models up
+	// to 200 states (the pencil reduction is cubic).
+	if g.N() > 0 && g.N() <= 200 {
+		if zs, err := Zeros(g, 0); err == nil {
+			for _, z := range zs.Invariant {
+				if g.Sampled() {
+					if z == 0 {
+						continue
+					}
+					z = cmplx.Log(z) / complex(g.Ts, 0)
+				}
+				pts = append(pts, z)
+			}
+		}
+	}
+	for _, s := range pts {
 		w := cmplx.Abs(s)
 		if w == 0 || math.IsInf(w, 0) || math.IsNaN(w) {
 			continue
@@ -219,7 +236,7 @@ func autoRange(g *System) (lo, hi float64, extra []float64, rule string) {
 			extra = append(extra, w, math.Abs(imag(s)))
 		}
 	}
-	rule = "range: a decade beyond the slowest and fastest modes"
+	rule = "range: a decade beyond the slowest and fastest poles and zeros"
 	if wmax == 0 {
 		wmin, wmax = 1, 1
 		rule = "range: no nonzero mode, 0.01 to 100 rad/s"
