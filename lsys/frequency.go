@@ -239,7 +239,7 @@ func autoRange(g *System) (lo, hi float64, extra []float64, rule string) {
 	rule = "range: a decade beyond the slowest and fastest poles and zeros"
 	if wmax == 0 {
 		wmin, wmax = 1, 1
-		rule = "range: no nonzero mode, 0.01 to 100 rad/s"
+		rule = "range: no nonzero pole or zero, 0.1 to 100 rad/s"
 	}
 	lo = math.Pow(10, math.Floor(math.Log10(wmin/10)))
 	hi = math.Pow(10, math.Ceil(math.Log10(wmax*10)))
