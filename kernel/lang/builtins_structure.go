@@ -133,6 +133,41 @@ func structureBuiltins() []*Builtin {
 			},
 		},
 		{
+			Name: "transfer", Group: GroupAnalysis,
+			Params: []Param{stSystemParam, stTolParam},
+			Help:   "The transfer function of each input/output pair (a transfer matrix for several inputs or outputs).",
+			Doc: "Each channel is reduced to a minimal realization; its poles, zeros and gain give numerator and " +
+				"denominator (Varga & Sima 1981), so hidden modes cancel. A single-input single-output system gives one " +
+				"transfer function; otherwise a list of rows (outputs) of entries (inputs).",
+			Examples: []string{msd + "transfer(G)"},
+			Fn: func(c *Call) (any, error) {
+				g, err := c.System("system")
+				if err != nil {
+					return nil, err
+				}
+				tol, err := stTol(c)
+				if err != nil {
+					return nil, err
+				}
+				tf, err := lsys.TransferFunctions(g, tol)
+				if err != nil {
+					return nil, err
+				}
+				if len(tf) == 1 && len(tf[0]) == 1 {
+					return tf[0][0], nil
+				}
+				rows := &List{}
+				for _, r := range tf {
+					row := &List{}
+					for _, q := range r {
+						row.Items = append(row.Items, q)
+					}
+					rows.Items = append(rows.Items, row)
+				}
+				return rows, nil
+			},
+		},
+		{
 			Name: "zeros", Group: GroupAnalysis,
 			Params: []Param{stSystemParam, stTolParam},
 			Help:   "Invariant zeros of a system (MIMO too), with transmission and input-/output-decoupling zeros listed separately.",

@@ -154,3 +154,21 @@ func TestModalBuiltinReady(t *testing.T) {
 		t.Fatal(err)
 	}
 }
+
+func TestBuiltinTransfer(t *testing.T) {
+	// Controllable canonical form of (s + 2)/(s^2 + 4s + 3) read back.
+	v := stRun(t, "transfer(system([[0, 1], [-3, -4]], [0, 1], [2, 1]))")
+	r, ok := v.(*lsys.Rational)
+	if !ok {
+		t.Fatalf("transfer gave %T", v)
+	}
+	for _, x := range []complex128{1i, 2 + 1i} {
+		want := (x + 2) / (x*x + 4*x + 3)
+		if cmplx.Abs(r.Eval(x)-want) > 1e-12 {
+			t.Errorf("G(%v) = %v, want %v", x, r.Eval(x), want)
+		}
+	}
+	if l, ok := stRun(t, "transfer(system([[-1, 0], [0, -2]], [[1, 0], [0, 1]], [[1, 1]]))").(*List); !ok || len(l.Items) != 1 {
+		t.Errorf("MIMO transfer: %v", l)
+	}
+}

@@ -1,0 +1,176 @@
+package lsys
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// TransferFunctions returns the transfer function of every input/output
+// pair: rows are outputs, columns inputs, in s (or z when sampled). Each
+// entry comes from a minimal realization of the single channel (the
+// staircase forms), its poles (eigenvalues), its zeros (the reduced system
+// pencil and QZ) and its gain, matched at one point away from all poles and
+// zeros: G(x) = k prod(x - z_i) / prod(x - p_i) (Varga & Sima 1981,
+// Numerically stable algorithm for transfer function matrix evaluation,
+// Int. J. Control 33(6), use the same pole-zero-gain route). Coefficients of
+// conjugate factors are real by construction.
+func TransferFunctions(s *System, relTol float64) ([][]*Rational, error) {
+	p, m := s.P(), s.M()
+	out := make([][]*Rational, p)
+	for i := 0; i < p; i++ {
+		out[i] = make([]*Rational, m)
+		for j := 0; j < m; j++ {
+			r, err := tfChannel(s, i, j, relTol)
+			if err != nil {
+				return nil, fmt.Errorf("transfer function from %s to %s: %v", s.InputNames[j], s.OutputNames[i], err)
+			}
+			out[i][j] = r
+		}
+	}
+	return out, nil
+}
+
+func tfChannel(s *System, i, j int, relTol float64) (*Rational, error) {
+	d := 0.0
+	if s.D != nil {
+		d = s.D.At(i, j)
+	}
+	n := s.N()
+	if n == 0 {
+		return &Rational{Num: Poly{d}, Den: Poly{1}, Ts: s.Ts}, nil
+	}
+	b := mat.NewDense(n, 1, nil)
+	c := mat.NewDense(1, n, nil)
+	for k := 0; k < n; k++ {
+		b.Set(k, 0, s.B.At(k, j))
+		c.Set(0, k, s.C.At(i, k))
+	}
+	siso, err := NewSystem(n, 1, 1, s.A, b, c, mat.NewDense(1, 1, []float64{d}), s.Ts)
+	if err != nil {
+		return nil, err
+	}
+	mr, err := Minimal(siso, relTol)
+	if err != nil {
+		return nil, err
+	}
+	if mr.N() == 0 {
+		return &Rational{Num: Poly{d}, Den: Poly{1}, Ts: s.Ts}, nil
+	}
+	poles, err := eigOrdered(mr.A, 0)
+	if err != nil {
+		return nil, err
+	}
+	zs, _, _, err := invariantZeros(mr, relTol)
+	if err != nil {
+		return nil, err
+	}
+	// Match the gain at a point clear of every pole and zero.
+	scale := 1.0
+	for _, v := range append(append([]complex128{}, poles...), zs...) {
+		scale = math.Max(scale, cmplx.Abs(v))
+	}
+	var x, g complex128
+	found := false
+	for _, ang := range []float64{1.1, 0.7, 1.9, 2.6, 0.3} {
+		x = cmplx.Rect(2*scale, ang)
+		if s.Ts > 0 && scale <= 1 {
+			x = cmplx.Rect(1.5, ang)
+		}
+		g, err = tfSisoEval(mr, x)
+		if err == nil && !math.IsNaN(real(g)) {
+			found = true
+			break
+		}
+	}
+	if !found {
+		return nil, fmt.Errorf("could not evaluate the channel away from its poles")
+	}
+	num := tfPolyFromRoots(zs)
+	den := tfPolyFromRoots(poles)
+	var nx, dx complex128 = 1, 1
+	for _, z := range zs {
+		nx *= x - z
+	}
+	for _, p := range poles {
+		dx *= x - p
+	}
+	kc := g * dx / nx
+	k := real(kc)
+	if math.Abs(imag(kc)) > 1e-6*cmplx.Abs(kc) {
+		// The matched gain of a real system is real; a large imaginary
+		// part means the poles or zeros are too inaccurate to trust.
+		return nil, fmt.Errorf("the pole-zero-gain form does not reproduce the channel (gain %v); the channel is ill-conditioned", kc)
+	}
+	for q := range num {
+		num[q] *= k
+	}
+	return &Rational{Num: num, Den: den, Ts: s.Ts}, nil
+}
+
+// tfPolyFromRoots returns prod(x - r) in ascending coefficients, real parts
+// kept (conjugate roots give real coefficients).
+func tfPolyFromRoots(roots []complex128) Poly {
+	c := []complex128{1}
+	for _, r := range roots {
+		next := make([]complex128, len(c)+1)
+		for q, a := range c {
+			next[q+1] += a
+			next[q] -= r * a
+		}
+		c = next
+	}
+	out := make(Poly, len(c))
+	for q, a := range c {
+		out[q] = real(a)
+	}
+	return out
+}
+
+// tfSisoEval returns c (x I - A)^-1 b + d for a single-input single-output
+// system, by Gaussian elimination with partial pivoting.
+func tfSisoEval(s *System, x complex128) (complex128, error) {
+	n := s.N()
+	M := make([][]complex128, n)
+	for i := range M {
+		M[i] = make([]complex128, n+1)
+		for j := 0; j < n; j++ {
+			M[i][j] = complex(-s.A.At(i, j), 0)
+		}
+		M[i][i] += x
+		M[i][n] = complex(s.B.At(i, 0), 0)
+	}
+	for k := 0; k < n; k++ {
+		piv := k
+		for i := k + 1; i < n; i++ {
+			if cmplx.Abs(M[i][k]) > cmplx.Abs(M[piv][k]) {
+				piv = i
+			}
+		}
+		if M[piv][k] == 0 {
+			return 0, fmt.Errorf("singular at %v", x)
+		}
+		M[k], M[piv] = M[piv], M[k]
+		for i := k + 1; i < n; i++ {
+			f := M[i][k] / M[k][k]
+			for j := k; j <= n; j++ {
+				M[i][j] -= f * M[k][j]
+			}
+		}
+	}
+	sol := make([]complex128, n)
+	for i := n - 1; i >= 0; i-- {
+		v := M[i][n]
+		for l := i + 1; l < n; l++ {
+			v -= M[i][l] * sol[l]
+		}
+		sol[i] = v / M[i][i]
+	}
+	g := complex(s.D.At(0, 0), 0)
+	for l := 0; l < n; l++ {
+		g += complex(s.C.At(0, l), 0) * sol[l]
+	}
+	return g, nil
+}
