@@ -153,3 +153,17 @@ func TestStructureRenderers(t *testing.T) {
 		}
 	}
 }
+
+func TestSystemCardLarge(t *testing.T) {
+	// A 40-state chain: the card stays small (no matrices, names elided).
+	A := mat.NewDense(40, 40, nil)
+	for i := 0; i < 40; i++ {
+		A.Set(i, i, -1)
+	}
+	s, _ := lsys.FromMatrices(A, nil, nil, nil, 0)
+	b := Render(s, Options{})
+	txt := b.Data[Text].(string)
+	if !strings.Contains(txt, "matrices not shown") || !strings.Contains(txt, "(27 more)") || len(txt) > 2000 {
+		t.Errorf("large card (%d bytes):\n%s", len(txt), txt)
+	}
+}

@@ -283,6 +283,21 @@ func sxAllZero(a *mat.Dense) bool {
 	return true
 }
 
+// Displays stay readable and small: matrices are printed up to sxMaxShown
+// rows/columns and carried in JSON up to sxMaxJSON.
+const (
+	sxMaxShown = 16
+	sxMaxJSON  = 60
+)
+
+// sxNameList joins names, eliding the middle of long lists.
+func sxNameList(names []string) string {
+	if len(names) <= 24 {
+		return strings.Join(names, ", ")
+	}
+	return strings.Join(names[:10], ", ") + fmt.Sprintf(", ... (%d more) ..., ", len(names)-13) + strings.Join(names[len(names)-3:], ", ")
+}
+
 func renderSystem(v any, _ Options) Bundle {
 	s := v.(*lsys.System)
 	if s == nil {
@@ -293,13 +308,13 @@ func renderSystem(v any, _ Options) Bundle {
 	t.WriteString(sxHeadline(s) + "\n")
 	sig := [][]string{}
 	if n > 0 {
-		sig = append(sig, []string{"states", strings.Join(s.StateNames, ", ")})
+		sig = append(sig, []string{"states", sxNameList(s.StateNames)})
 	}
 	if m > 0 {
-		sig = append(sig, []string{"inputs", strings.Join(s.InputNames, ", ")})
+		sig = append(sig, []string{"inputs", sxNameList(s.InputNames)})
 	}
 	if p > 0 {
-		sig = append(sig, []string{"outputs", strings.Join(s.OutputNames, ", ")})
+		sig = append(sig, []string{"outputs", sxNameList(s.OutputNames)})
 	}
 	for _, r := range sig {
 		fmt.Fprintf(&t, "  %-8s %s\n", r[0], r[1])
@@ -314,6 +329,12 @@ func renderSystem(v any, _ Options) Bundle {
 		{"B", s.B, s.StateNames, s.InputNames},
 		{"C", s.C, s.OutputNames, s.StateNames},
 		{"D", s.D, s.OutputNames, s.InputNames},
+	}
+	// Large models: matrices are not printed (read them with G.A etc.).
+	showMatrices := n <= sxMaxShown && m <= sxMaxShown && p <= sxMaxShown
+	if !showMatrices {
+		blocks = nil
+		fmt.Fprintf(&t, "  (matrices not shown above %d states, inputs or outputs; read them as G.A, G.B, G.C, G.D)\n", sxMaxShown)
 	}
 	for _, bl := range blocks {
 		if len(bl.rows) == 0 || len(bl.cols) == 0 {
@@ -336,6 +357,9 @@ func renderSystem(v any, _ Options) Bundle {
 	eq := sxStateEquations(s)
 	if eq != "" {
 		fmt.Fprintf(&h, "<div style=\"margin:4px 0\">$$%s$$</div>", html.EscapeString(eq))
+	}
+	if !showMatrices {
+		fmt.Fprintf(&h, "<div style=\"color:#555\">Matrices not shown above %d states, inputs or outputs; read them as G.A, G.B, G.C, G.D.</div>", sxMaxShown)
 	}
 	h.WriteString("<div>")
 	for _, bl := range blocks {
@@ -370,6 +394,9 @@ func sxMatrixJSON(a *mat.Dense, r, c int) [][]float64 {
 
 func sxSystemJSON(s *lsys.System) map[string]any {
 	n, m, p := s.N(), s.M(), s.P()
+	if n > sxMaxJSON || m > sxMaxJSON || p > sxMaxJSON {
+		return map[string]any{"kind": "system", "sample_time": s.Ts, "states": s.StateNames, "inputs": s.InputNames, "outputs": s.OutputNames, "sizes": []int{n, m, p}}
+	}
 	return map[string]any{
 		"kind":        "system",
 		"sample_time": s.Ts,
