@@ -31,6 +31,9 @@ type FrequencyOptions struct {
 	Points   int       // points of the base grid (default 20 per decade)
 	Grid     []float64 // explicit grid (rad/s, increasing); no refinement
 	Hz       bool
+	// Progress, when set, is called with the fraction of an explicit grid
+	// done (0 to 1) about every 64 frequencies.
+	Progress func(done float64)
 }
 
 // Frequency evaluates the frequency response of g. A = Q H Q^T is reduced
@@ -71,6 +74,9 @@ func Frequency(ctx context.Context, g *System, opt FrequencyOptions) (*Frequency
 			if k&63 == 0 {
 				if err := ctx.Err(); err != nil {
 					return nil, fmt.Errorf("frequency: interrupted: %w", err)
+				}
+				if opt.Progress != nil {
+					opt.Progress(float64(k) / float64(len(f.W)))
 				}
 			}
 			v, err := ev.at(w)

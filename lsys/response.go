@@ -152,6 +152,9 @@ type Response struct {
 type ResponseOptions struct {
 	Until float64 // horizon in s
 	Step  float64 // step in s (continuous systems; sampled ones use Ts)
+	// Progress, when set, is called with the fraction done (0 to 1) about
+	// every 256 samples, for progress displays of long runs.
+	Progress func(done float64)
 }
 
 // AutoHorizon chooses the horizon and step of a time response from the
@@ -403,6 +406,9 @@ func freeOrForced(ctx context.Context, g *System, kind string, x0 []float64, opt
 			if err := ctx.Err(); err != nil {
 				return nil, fmt.Errorf("response: interrupted: %w", err)
 			}
+			if opt.Progress != nil {
+				opt.Progress(float64(k) / float64(N))
+			}
 		}
 		for c := 0; c < nch; c++ {
 			if n > 0 {
@@ -532,6 +538,9 @@ func Simulate(ctx context.Context, g *System, u Signal, x0 []float64, opt Respon
 		if k&255 == 0 {
 			if err := ctx.Err(); err != nil {
 				return nil, fmt.Errorf("response: interrupted: %w", err)
+			}
+			if opt.Progress != nil {
+				opt.Progress(float64(k) / float64(N))
 			}
 		}
 		for j := 0; j < m; j++ {
