@@ -218,3 +218,23 @@ func TestFeedbackMIMOAgainstFormula(t *testing.T) {
 		}
 	}
 }
+
+func TestConnectSharedInputAndAllOutputs(t *testing.T) {
+	// Two sensors read the same external signal "force"; with outputs nil
+	// every block output is kept, in block order.
+	a, _ := siso(t, []float64{1}, []float64{1, 1}).WithNames(nil, []string{"force"}, []string{"accel"})
+	b, _ := siso(t, []float64{2}, []float64{3, 1}).WithNames(nil, []string{"force"}, []string{"strain"})
+	c, err := Connect([]*System{a, b}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c.M() != 1 || c.InputNames[0] != "force" || c.P() != 2 || c.OutputNames[1] != "strain" {
+		t.Fatalf("inputs %v outputs %v", c.InputNames, c.OutputNames)
+	}
+	for _, s := range testPoints {
+		got := evalSys(t, c, s)
+		if !closeC(got[0], 1/(s+1), 1e-13) || !closeC(got[1], 2/(s+3), 1e-13) {
+			t.Errorf("at %v: %v", s, got)
+		}
+	}
+}

@@ -341,3 +341,49 @@ func stackTwo(g *System) *System {
 	s, _ := Stack(g, g)
 	return s
 }
+
+func TestAutoHorizonSampledAndUnstable(t *testing.T) {
+	// sampled pole z = 0.9, Ts = 0.1: s = ln(0.9)/0.1 = -1.054, 6/1.054 =
+	// 5.69 s -> 10 s; the step is the sample time.
+	d, _ := FromMatrices(mat.NewDense(1, 1, []float64{0.9}), mat.NewDense(1, 1, []float64{1}), nil, nil, 0.1)
+	until, step, _ := AutoHorizon(d)
+	if math.Abs(until-10) > 1e-12 || step != 0.1 {
+		t.Errorf("sampled: horizon %g step %g, want 10 and 0.1", until, step)
+	}
+	// a growing mode at +2 caps the horizon at 5/2 = 2.5 s -> 5 s, even
+	// with a slow stable mode at -0.01 beside it
+	u, _ := Stack(first(-2), first(0.01))
+	until, _, rule := AutoHorizon(u)
+	if until != 5 {
+		t.Errorf("unstable: horizon %g (%s), want 5", until, rule)
+	}
+}
+
+func TestSimulateTablePerInput(t *testing.T) {
+	// two decoupled lags 1/(s+1), 1/(s+2) driven by their own table
+	// columns (held): y1 = 1 - e^{-t}, y2 = (1 - e^{-2t})/2 * 3 for a
+	// height-3 step on input 2 (common practice).
+	g, _ := Stack(first(1), first(2))
+	y, _ := Series(mustSystem(NewSystem(0, 2, 1, nil, nil, nil, mat.NewDense(1, 2, []float64{1, 1}), 0)), g)
+	tab, err := TableSignal([]float64{0, 5}, [][]float64{{1, 3}, {1, 3}}, "two")
+	if err != nil {
+		t.Fatal(err)
+	}
+	tab.Hold = "zoh"
+	r, err := Simulate(context.Background(), y, tab, nil, ResponseOptions{Until: 2, Step: 0.01})
+	if err != nil {
+		t.Fatal(err)
+	}
+	k := 100 // t = 1
+	want := (1 - math.Exp(-1)) + 3*(1-math.Exp(-2))/2
+	if e := math.Abs(r.Y[0][0][k] - want); e > 1e-13 {
+		t.Errorf("y(1) = %g want %g", r.Y[0][0][k], want)
+	}
+}
+
+func mustSystem(s *System, err error) *System {
+	if err != nil {
+		panic(err)
+	}
+	return s
+}
