@@ -33,6 +33,9 @@ func Schur(A *mat.Dense) (*SchurForm, error) {
 	if err := CheckFinite("matrix", A); err != nil {
 		return nil, err
 	}
+	if n == 1 {
+		return &SchurForm{T: mat.DenseCopyOf(A), Z: identity(1), Values: []complex128{complex(A.At(0, 0), 0)}}, nil
+	}
 	impl := gonum.Implementation{}
 	h := mat.DenseCopyOf(A)
 	hr := h.RawMatrix()

@@ -175,3 +175,102 @@ func TestQZMatchesStandardEigen(t *testing.T) {
 	}
 	_ = cmplx.Abs
 }
+
+func TestZerosInvertibleFeedthrough(t *testing.T) {
+	// With D square and invertible, the invariant zeros are the
+	// eigenvalues of A - B D^-1 C (Schur complement of the system pencil;
+	// Rosenbrock 1970, ch. 3). Random systems of several sizes.
+	rng := rand.New(rand.NewPCG(1982, 18))
+	worst := 0.0
+	for trial := 0; trial < 30; trial++ {
+		n, m := 2+trial%12, 1+trial%3
+		A, B, C := randDense(rng, n, n), randDense(rng, n, m), randDense(rng, m, n)
+		D := randDense(rng, m, m)
+		for i := 0; i < m; i++ {
+			D.Set(i, i, D.At(i, i)+3)
+		}
+		s := sysOf(t, A, B, C, D)
+		z, err := Zeros(s, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var X, BD mat.Dense
+		if err := X.Solve(D, C); err != nil {
+			t.Fatal(err)
+		}
+		BD.Mul(B, &X)
+		BD.Sub(A, &BD)
+		es, _ := Eigen(&BD)
+		w, ok := matchWorst(z.Invariant, es.Values)
+		if !ok || w > 1e-8 {
+			t.Errorf("n=%d m=%d: zeros %v vs %v (worst %.3g)", n, m, z.Invariant, es.Values, w)
+		}
+		worst = math.Max(worst, w)
+	}
+	t.Logf("worst relative difference %.3g", worst)
+}
+
+func TestZerosStrictlyProperRandom(t *testing.T) {
+	// D = 0, square: a random n-state m x m system generically has n - m
+	// finite zeros when C B is invertible (Davison & Wang 1974, Properties
+	// and calculation of transmission zeros of linear multivariable
+	// systems, Automatica 10; from memory). Each zero makes the pencil
+	// lose rank: check the smallest singular value there.
+	rng := rand.New(rand.NewPCG(1974, 10))
+	for trial := 0; trial < 20; trial++ {
+		n, m := 3+trial%8, 1+trial%2
+		s := sysOf(t, randDense(rng, n, n), randDense(rng, n, m), randDense(rng, m, n), nil)
+		z, err := Zeros(s, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(z.Invariant) != n-m {
+			t.Errorf("n=%d m=%d: %d zeros, want %d", n, m, len(z.Invariant), n-m)
+		}
+		for _, zz := range z.Invariant {
+			sv := pencilSmallest(s, zz)
+			if sv > 1e-8 {
+				t.Errorf("n=%d m=%d: pencil at zero %v has smallest singular value %.3g", n, m, zz, sv)
+			}
+		}
+	}
+}
+
+// pencilSmallest is the smallest singular value of [[A - zI, B], [C, D]]
+// (real embedding of the complex matrix; each value appears twice).
+func pencilSmallest(s *System, z complex128) float64 {
+	n, m, p := s.N(), s.M(), s.P()
+	N := n + p
+	M := n + m
+	E := mat.NewDense(2*N, 2*M, nil)
+	set := func(i, j int, v complex128) {
+		E.Set(i, j, real(v))
+		E.Set(N+i, M+j, real(v))
+		E.Set(i, M+j, -imag(v))
+		E.Set(N+i, j, imag(v))
+	}
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			v := complex(s.A.At(i, j), 0)
+			if i == j {
+				v -= z
+			}
+			set(i, j, v)
+		}
+		for j := 0; j < m; j++ {
+			set(i, n+j, complex(s.B.At(i, j), 0))
+		}
+	}
+	for i := 0; i < p; i++ {
+		for j := 0; j < n; j++ {
+			set(n+i, j, complex(s.C.At(i, j), 0))
+		}
+		for j := 0; j < m; j++ {
+			set(n+i, n+j, complex(s.D.At(i, j), 0))
+		}
+	}
+	var svd mat.SVD
+	svd.Factorize(E, mat.SVDNone)
+	v := svd.Values(nil)
+	return v[len(v)-1] / v[0]
+}
