@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"strings"
 
 	"gonum.org/v1/gonum/lapack"
 	"gonum.org/v1/gonum/lapack/gonum"
@@ -219,11 +220,10 @@ func stableValue(v complex128, ts float64) bool {
 	return real(v) < 0
 }
 
-// SpectralAt returns the invariant subspace of the eigenvalues of A nearest
-// to those listed: each listed value selects every eigenvalue within
-// relTol*max(1,|value|)... of it, widened to 1e-6 relative so that values
-// typed with a few digits still match. Listing one member of a conjugate
-// pair selects the pair (a real subspace must hold both).
+// SpectralAt returns the invariant subspace of the listed eigenvalues of
+// A: each listed value selects every eigenvalue within 1e-6 relative of it
+// (so values typed with six digits still match). Listing one member of a
+// conjugate pair selects the pair (a real subspace must hold both).
 func SpectralAt(s *System, values []complex128) (*Subspace, error) {
 	if s.N() == 0 {
 		return &Subspace{What: "spectral subspace"}, nil
@@ -241,7 +241,11 @@ func SpectralAt(s *System, values []complex128) (*Subspace, error) {
 			}
 		}
 		if !found {
-			return nil, fmt.Errorf("spectral: %v is not an eigenvalue of A (within 1e-6 relative); the eigenvalues are %v", want, es.Values)
+			var list []string
+			for _, v := range es.Values {
+				list = append(list, fmtComplex(v))
+			}
+			return nil, fmt.Errorf("spectral: %s is not an eigenvalue of A (within 1e-6 relative); the eigenvalues are %s", fmtComplex(want), strings.Join(list, ", "))
 		}
 	}
 	sel := func(v complex128) bool {
