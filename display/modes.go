@@ -92,7 +92,7 @@ func renderModes(v any, _ Options) Bundle {
 
 	// Reach and visibility per signal.
 	if s != nil && (s.M() > 0 || s.P() > 0) {
-		b.WriteString("\nmodal gains: |input reach| per input, |output visibility| per output\n")
+		b.WriteString("\nreach |w^H b_j| per input, visibility |c_i v| per output, PBH margins against the tolerance\n")
 		head := []string{"#"}
 		for _, u := range s.InputNames {
 			head = append(head, "<- "+u)
@@ -100,6 +100,7 @@ func renderModes(v any, _ Options) Bundle {
 		for _, y := range s.OutputNames {
 			head = append(head, "-> "+y)
 		}
+		head = append(head, "reach margin", "seen margin", "tol")
 		g := [][]string{head}
 		for i, m := range t.Modes {
 			row := []string{strconv.Itoa(i + 1)}
@@ -109,6 +110,7 @@ func renderModes(v any, _ Options) Bundle {
 			for _, o := range m.Visibility {
 				row = append(row, sxNum(o))
 			}
+			row = append(row, sxNum(m.ReachMargin), sxNum(m.ObserveMargin), sxNum(m.Tol))
 			g = append(g, row)
 		}
 		sxWriteColumns(&b, g, "  ")
@@ -201,10 +203,18 @@ func sxModesHTML(t *lsys.ModeTable) string {
 		fmt.Fprintf(&h, "<tr%s>", bg)
 		for k, c := range sxModeRow(i, m) {
 			style := "padding:2px 6px;text-align:right;font-family:monospace"
-			if (k == 9 || k == 10) && c == "NO" {
-				style += ";font-weight:bold"
+			title := ""
+			if k == 9 || k == 10 {
+				if c == "NO" {
+					style += ";font-weight:bold"
+				}
+				mg := m.ReachMargin
+				if k == 10 {
+					mg = m.ObserveMargin
+				}
+				title = fmt.Sprintf(" title=\"PBH margin %s against tolerance %s\"", sxNum(mg), sxNum(m.Tol))
 			}
-			fmt.Fprintf(&h, "<td style=\"%s\">%s</td>", style, html.EscapeString(c))
+			fmt.Fprintf(&h, "<td style=\"%s\"%s>%s</td>", style, title, html.EscapeString(c))
 		}
 		for j, r := range m.Reach {
 			h.WriteString(sxBarCell(r, maxReach[j]))
@@ -218,7 +228,7 @@ func sxModesHTML(t *lsys.ModeTable) string {
 		h.WriteString("</tr>")
 	}
 	h.WriteString("</table>")
-	fmt.Fprintf(&h, "<div style=\"color:#555;margin-top:4px\">reached / seen: PBH test per mode, margin against %s &times; the norm of [A B] / [A; C]. Shaded rows do not decay. Bars: modal gain relative to the largest in its column. Shape: one bar per state, magnitude relative to the largest; bars below the line are in antiphase (phase beyond &plusmn;90&deg;).</div>", sxNum(t.RelTol))
+	fmt.Fprintf(&h, "<div style=\"color:#555;margin-top:4px\">reached / seen: PBH test per mode, margin against %s &times; the norm of [A B] / [A; C]. Shaded rows do not decay. Bars: reach |w<sup>H</sup> b<sub>j</sub>| and visibility |c<sub>i</sub> v| (unit left and right eigenvectors w, v) relative to the largest in the column; hover a verdict for its margin. Shape: one bar per state, magnitude relative to the largest; bars below the line are in antiphase (phase beyond &plusmn;90&deg;).</div>", sxNum(t.RelTol))
 	h.WriteString("</div>")
 	return h.String()
 }
