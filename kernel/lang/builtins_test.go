@@ -93,6 +93,9 @@ func TestBuiltinErrors(t *testing.T) {
 		{src: "s + z", err: "cannot combine a transfer function in s with one in z", line: 1, col: 3},
 		{src: "modes(\"G\")", err: "modes: the argument 'system' must be a system, not a string", line: 1, col: 7},
 		{src: "1/(s - s)", err: "division by zero", line: 1, col: 2},
+		{src: "(s + 1)^300", err: "A transfer function can be raised to a whole power up to 100", line: 1, col: 8},
+		{src: "(s^3 + 1)^90", err: "degree above the limit of 200", line: 1, col: 10},
+		{src: "h = (s + 1)^100\nh*h*h", err: "a transfer function of degree 300 is beyond the limit of 200", line: 2, col: 4},
 	})
 }
 

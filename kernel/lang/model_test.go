@@ -420,3 +420,31 @@ system {
 		t.Errorf("dl/dk = %v, want %v", sens.D[0][0], want)
 	}
 }
+
+// A sampled logistic growth model, next x = x + r x (1 - x/K) + u: its
+// steady state for u = 0 is x = K, where the linearization is
+// 1 + r - 2 r x/K = 1 - r (logistic map, common practice).
+func TestSampledNonlinearModel(t *testing.T) {
+	s := NewSession(t.TempDir())
+	run(t, s, `r = 0.3; K = 50
+growth = system every 1 {
+  states x
+  inputs u
+  next x = x + r*x*(1 - x/K) + u
+}`)
+	e := run(t, s, "equilibrium(growth, inputs: {u: 0}, guess: {x: 40})").(*Equilibrium)
+	if x, _ := e.States.Get("x"); math.Abs(x.(float64)-50) > 1e-10 || e.Residual >= 1e-10 {
+		t.Errorf("x = %v, want 50 (residual %v)", x, e.Residual)
+	}
+	lin := run(t, s, "linearize(growth, at: equilibrium(growth, inputs: {u: 0}, guess: {x: 40}))").(*lsys.System)
+	if lin.Ts != 1 || math.Abs(lin.A.At(0, 0)-0.7) > 1e-14 || lin.B.At(0, 0) != 1 {
+		t.Errorf("linearized: Ts %v A %v B %v", lin.Ts, lin.A.At(0, 0), lin.B.At(0, 0))
+	}
+	m := run(t, s, "growth").(*NonlinearModel)
+	if !strings.Contains(m.String(), "sampled every 1 s") || !strings.Contains(m.String(), "next x = x + r*x*(1 - x/K) + u") {
+		t.Errorf("model text:\n%s", m)
+	}
+	if p := run(t, s, "growth.parameters").(*Record); FormatValue(p) != "{r: 0.3, K: 50}" {
+		t.Errorf("parameters %s", FormatValue(p))
+	}
+}

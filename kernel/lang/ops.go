@@ -364,8 +364,8 @@ func (ev *evaluator) matrixPow(m *mat.Dense, k float64, pos Pos) (any, error) {
 	}
 	n := int(k)
 	for n > 0 {
-		if err := ev.step(pos); err != nil {
-			return nil, err
+		if err := ev.ctx.Err(); err != nil {
+			return nil, ev.interrupted(pos, err)
 		}
 		if n&1 == 1 {
 			var t mat.Dense
@@ -390,9 +390,13 @@ func (ev *evaluator) rationalOp(op Token, a, b any, pos Pos) (any, error) {
 		if !ok || !okk || k != math.Trunc(k) || math.Abs(k) > 100 {
 			return nil, ev.opError(op, a, b, pos, "A transfer function can be raised to a whole power up to 100: (s + 1)^2.")
 		}
+		if nd, dd := ra.Degree(); float64(max(nd, dd))*math.Abs(k) > MaxDegree {
+			return nil, ev.errorAt(pos, fmt.Sprintf("this power would give a transfer function of degree above the limit of %d", MaxDegree),
+				"High-order models are better written as systems (state-space) than as polynomials.")
+		}
 		r, err := ra.Pow(int(k))
 		if err != nil {
-			return nil, ev.errorAt(pos, err.Error(), "Check the operands of this operator.")
+			return nil, ev.errorAt(pos, err.Error(), "Check the base of the power.")
 		}
 		return simplifyRational(r), nil
 	}
@@ -416,7 +420,21 @@ func (ev *evaluator) rationalOp(op Token, a, b any, pos Pos) (any, error) {
 	if err != nil {
 		return nil, ev.errorAt(pos, err.Error(), "Check the operands of this operator.")
 	}
+	if err := ev.checkDegree(r, pos); err != nil {
+		return nil, err
+	}
 	return simplifyRational(r), nil
+}
+
+// MaxDegree bounds the degree of polynomials in transfer functions.
+const MaxDegree = 200
+
+func (ev *evaluator) checkDegree(r *lsys.Rational, pos Pos) error {
+	if n, d := r.Degree(); n > MaxDegree || d > MaxDegree {
+		return ev.errorAt(pos, fmt.Sprintf("a transfer function of degree %d is beyond the limit of %d", max(n, d), MaxDegree),
+			"High-order models are better written as systems (state-space) than as polynomials.")
+	}
+	return nil
 }
 
 // simplifyRational turns a constant rational into a plain number.

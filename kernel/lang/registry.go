@@ -289,7 +289,12 @@ func (c *Call) Pos() Pos { return c.pos }
 
 // Check returns an error when the cell was interrupted or ran out of its
 // evaluation budget. Call it in long loops.
-func (c *Call) Check() error { return c.ev.step(c.pos) }
+func (c *Call) Check() error {
+	if err := c.ev.ctx.Err(); err != nil {
+		return c.ev.interrupted(c.pos, err)
+	}
+	return c.ev.step(c.pos)
+}
 
 // Has reports whether the argument was given (or has a default).
 func (c *Call) Has(name string) bool {
