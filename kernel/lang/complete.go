@@ -59,6 +59,7 @@ type openContext struct {
 	block    bool   // a system block
 	declared []string
 	given    []string // named arguments already written in the call
+	recordIn string   // inside a record that is an argument of a call whose first argument is this name
 }
 
 // contextAt scans src[:off] (byte offset) for the innermost open bracket.
@@ -71,6 +72,7 @@ func contextAt(src string) openContext {
 		block    bool
 		declared []string
 		given    []string
+		firstArg string // a name written as the first argument of a call
 	}
 	var stack []*frame
 	prev, prevLit := EOF, ""
@@ -105,6 +107,9 @@ func contextAt(src string) openContext {
 				top.given = append(top.given, prevLit)
 			}
 		case IDENT:
+			if top != nil && top.tok == LPAREN && prev == LPAREN {
+				top.firstArg = lit
+			}
 			if lit == "every" && prev == IDENT && prevLit == "system" {
 				pendingBlock = true
 			}
@@ -126,6 +131,11 @@ func contextAt(src string) openContext {
 	}
 	f := stack[len(stack)-1]
 	oc := openContext{tok: f.tok, callee: f.callee, block: f.block, given: f.given}
+	if len(stack) > 1 && f.tok == LBRACE && !f.block {
+		if p := stack[len(stack)-2]; p.tok == LPAREN {
+			oc.recordIn = p.firstArg
+		}
+	}
 	// Names declared in any enclosing block.
 	for _, fr := range stack {
 		oc.declared = append(oc.declared, fr.declared...)
@@ -199,6 +209,19 @@ func (s *Session) Complete(src string, cursor int) (matches []string, start, end
 	}
 	if oc.block {
 		add(oc.declared, "")
+	}
+	// Inside a record passed to a call on a model (at: {...}, inputs: {...}):
+	// the model's states and inputs.
+	if oc.recordIn != "" {
+		if v, ok := s.Get(oc.recordIn); ok {
+			var names []string
+			if bs, ok := s.sourceOf(v); ok {
+				names = append(append(names, bs.states...), bs.inputs...)
+			} else if g, ok := v.(*lsys.System); ok {
+				names = append(append(names, g.StateNames...), g.InputNames...)
+			}
+			add(names, ": ")
+		}
 	}
 	if prefix == "" && oc.tok != LPAREN && !oc.block {
 		return matches, start, cursor

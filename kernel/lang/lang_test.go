@@ -294,6 +294,8 @@ func TestComplete(t *testing.T) {
 		{"ab", 2, []string{"abs"}, 0, 2},
 		{"π = gai", 7, []string{"gain_k"}, 4, 7},
 		{"system {\n  states angle, rate\n  ang", 35, []string{"angle"}, 32, 35},
+		{"linearize(gimbal, at: {angle: 0, ra", 35, []string{"rate: "}, 33, 35},
+		{"linearize(gimbal, at: {", 23, []string{"angle: ", "rate: ", "torque: "}, 23, 23},
 	} {
 		m, st, en := s.Complete(c.src, c.cursor)
 		if strings.Join(m, ",") != strings.Join(c.want, ",") || st != c.start || en != c.end {
