@@ -194,14 +194,12 @@ func mathBuiltins() []*Builtin {
 				if r != cc {
 					return nil, true, c.Errorf("x", "", "exp of a matrix needs a square matrix, not a %dx%d one", r, cc)
 				}
-				// gonum's Exp: scaling and squaring with Pade approximants,
-				// Higham, Functions of Matrices (2008), Algorithm 10.20.
-				var e mat.Dense
-				e.Exp(m)
-				if err := lsys.CheckFinite("exp", &e); err != nil {
+				// Scaling and squaring with Pade approximants (lsys.Expm).
+				e, err := lsys.Expm(m)
+				if err != nil {
 					return nil, true, c.Errorf("x", "The matrix is too large in norm; scale time down.", "%v", err)
 				}
-				return &e, true, nil
+				return e, true, nil
 			}),
 		elementary("log", "Natural logarithm (of a negative number: complex).", "log(exp(2))",
 			func(x float64) (float64, bool) { return math.Log(x), x > 0 }, cmplx.Log, nil),
