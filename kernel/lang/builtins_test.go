@@ -242,8 +242,8 @@ func TestTransferFunctionsAndConnections(t *testing.T) {
 
 func TestMatrixSizeLimit(t *testing.T) {
 	runCells(t, []cell{
-		{src: "identity(3000)", err: "the size must be between 1 and 2000", line: 1, col: 10},
-		{src: "diagonal(linear(0, 1, n: 3000))", err: "larger than the limit of 4000000 entries", line: 1, col: 10},
+		{src: "identity(3000)", err: "the size must be between 1 and 1000", line: 1, col: 10},
+		{src: "diagonal(linear(0, 1, n: 3000))", err: "larger than the limit of 1000000 entries", line: 1, col: 10},
 		{src: "v = linear(0, 1, n: 3000)\nv * transpose(v)", err: "a 3000x3000 matrix is larger than the limit", line: 2, col: 3},
 	})
 }

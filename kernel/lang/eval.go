@@ -21,7 +21,7 @@ const (
 	// MaxDepth is how deeply user functions may call each other.
 	MaxDepth = 200
 	// MaxEntries is the largest number of entries of one matrix.
-	MaxEntries = 4_000_000
+	MaxEntries = 1_000_000
 )
 
 type evaluator struct {

@@ -166,7 +166,7 @@ func TestCellsErrors(t *testing.T) {
 		{src: "(1 + 2j) < 3", err: "Complex numbers have no order", line: 1, col: 10},
 		{src: "[1, 2] / [1, 2]", err: "cannot divide by a matrix", line: 1, col: 8},
 		{src: "x = print(1)", err: "gives no value to bind", line: 1, col: 5},
-		{src: "identity(1e9)", err: "the size must be between 1 and 2000", line: 1, col: 10},
+		{src: "identity(1e9)", err: "the size must be between 1 and 1000", line: 1, col: 10},
 		{src: "{a: 1, a: 2}", err: "field 'a' appears twice", line: 1, col: 8},
 		{src: "x = 1\n)", err: "found ')'", line: 2, col: 1},
 		{src: "ok = 1\nbad = 1 +\nalso = (", err: "expected a value", line: 2, col: 10},
