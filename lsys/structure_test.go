@@ -408,3 +408,36 @@ func TestSpectralAndInvariant(t *testing.T) {
 		t.Fatalf("%+v %v", ic, err)
 	}
 }
+
+func TestStructureSampled(t *testing.T) {
+	// Sampled: a mode no input reaches is harmless inside the unit circle
+	// and fatal outside it (stabilizability, |z| < 1; Franklin, Powell &
+	// Workman 1998, ch. 8).
+	for _, c := range []struct {
+		z    float64
+		stab bool
+	}{{0.5, true}, {1.5, false}, {-1.2, false}} {
+		A := mat.NewDense(2, 2, []float64{0.9, 0, 0, c.z})
+		s, _ := FromMatrices(A, mat.NewDense(2, 1, []float64{1, 0}), mat.NewDense(1, 2, []float64{1, 1}), nil, 0.01)
+		st, err := StructureOf(s, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if st.Controllable || st.Stabilizable != c.stab || !st.Detectable {
+			t.Errorf("z=%v: %+v", c.z, st)
+		}
+	}
+}
+
+func TestInvariantRankDeficientV(t *testing.T) {
+	// Two equal columns span one direction: rank 1 (closed form).
+	A := mat.NewDense(2, 2, []float64{1, 2, 0, 3})
+	V := mat.NewDense(2, 2, []float64{1, 1, 0, 0})
+	ic, err := Invariant(A, V, 0)
+	if err != nil || ic.Rank != 1 || !ic.Subspace.Invariant {
+		t.Errorf("%+v %v", ic, err)
+	}
+	if _, err := Invariant(A, mat.NewDense(3, 1, nil), 0); err == nil {
+		t.Error("V with 3 rows accepted for a 2x2 A")
+	}
+}
