@@ -61,7 +61,7 @@ func TestSystemCardUnstableSampled(t *testing.T) {
 		t.Fatal(err)
 	}
 	txt := Render(s, Options{}).Data[Text].(string)
-	if !strings.Contains(txt, "sampled system, every 0.1 s") || !strings.Contains(txt, "unstable: 1 pole with |z| >= 1") {
+	if !strings.Contains(txt, "sampled system, every 0.1 s") || !strings.Contains(txt, "unstable: 1 pole beyond the boundary") {
 		t.Errorf("got:\n%s", txt)
 	}
 }

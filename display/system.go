@@ -81,11 +81,14 @@ func sxStability(s *lsys.System) string {
 	if st.Stable {
 		return "stable"
 	}
-	where := "Re(s) >= 0"
+	where := "Re(s)"
 	if s.Sampled() {
-		where = "|z| >= 1"
+		where = "|z|"
 	}
-	return fmt.Sprintf("unstable: %d %s with %s", st.Unstable, sxPlural(st.Unstable, "pole", "poles"), where)
+	if st.Marginal {
+		return fmt.Sprintf("marginally stable: %d %s on the boundary (%s within %s of it), none defective", st.Boundary, sxPlural(st.Boundary, "pole", "poles"), where, sxNum(st.Tol))
+	}
+	return fmt.Sprintf("unstable: %d %s beyond the boundary or defective on it", st.Unstable, sxPlural(st.Unstable, "pole", "poles"))
 }
 
 func sxPlural(n int, one, many string) string {

@@ -82,23 +82,57 @@ const DefaultRelTol = 1e-10
 
 // Stability describes whether every mode decays.
 type Stability struct {
-	Stable   bool // asymptotically stable: every eigenvalue in the open left half plane (inside the unit circle when sampled)
-	Unstable int  // number of eigenvalues with Re(s) >= 0 (|z| >= 1), counted with multiplicity
+	Stable bool // asymptotically stable: every eigenvalue in the open left half plane (inside the unit circle when sampled)
+	// Marginal: not asymptotically stable, but no eigenvalue beyond the
+	// boundary and those on it (within Tol) non-defective, so free
+	// responses stay bounded (an integrator, an undamped oscillator).
+	Marginal bool
+	Unstable int // eigenvalues beyond the boundary, or on it in a Jordan block larger than 1
+	Boundary int // eigenvalues on the boundary (|Re s| <= Tol, or ||z| - 1| <= Tol)
+	Tol      float64
 }
 
-// StabilityOf reports the stability of s from its poles.
+// StabilityOf reports the stability of s from its poles (Lyapunov's
+// eigenvalue criterion; a defective eigenvalue on the boundary grows like a
+// power of t). Tol = 1000 u max(1, ||A||_F) decides "on the boundary".
 func StabilityOf(s *System) (Stability, error) {
-	p, err := Poles(s)
+	st := Stability{Stable: true}
+	if s.N() == 0 {
+		return st, nil
+	}
+	es, err := Eigen(s.A)
 	if err != nil {
 		return Stability{}, err
 	}
-	st := Stability{Stable: true}
-	for _, v := range p {
-		if (s.Ts > 0 && cmplx.Abs(v) >= 1) || (s.Ts == 0 && real(v) >= 0) {
-			st.Stable = false
-			st.Unstable++
+	js, err := jordanFrom(s.A, es, 0, DefaultRelTol, s.Ts)
+	if err != nil {
+		return Stability{}, err
+	}
+	st.Tol = 1e3 * dlamchE * math.Max(1, mat.Norm(s.A, 2))
+	for _, c := range js.Clusters {
+		// A cluster off the real axis stands for its conjugate too.
+		w := 1
+		if imag(c.Value) > 0 {
+			w = 2
+		}
+		for _, v := range c.Members {
+			d := real(v) // distance beyond the boundary
+			if s.Ts > 0 {
+				d = cmplx.Abs(v) - 1
+			}
+			switch {
+			case d > st.Tol:
+				st.Unstable += w
+			case d >= -st.Tol:
+				st.Boundary += w
+				if c.Defective() {
+					st.Unstable += w
+				}
+			}
 		}
 	}
+	st.Stable = st.Unstable == 0 && st.Boundary == 0
+	st.Marginal = st.Unstable == 0 && st.Boundary > 0
 	return st, nil
 }
 

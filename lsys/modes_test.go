@@ -194,3 +194,30 @@ func TestEigenRefusesNonSquare(t *testing.T) {
 		t.Fatal("want an error for a 2x3 matrix")
 	}
 }
+
+func TestStabilityBoundary(t *testing.T) {
+	// Lyapunov's eigenvalue criterion (facts of the trade): an integrator and
+	// an undamped oscillator stay bounded (marginally stable); a double
+	// integrator (a Jordan block at 0) grows like t: unstable.
+	cases := []struct {
+		name     string
+		A        []float64
+		n        int
+		marginal bool
+		unstable int
+	}{
+		{"integrator and lag", []float64{0, 0, 0, -1}, 2, true, 0},
+		{"undamped oscillator", []float64{0, 1, -4, 0}, 2, true, 0},
+		{"double integrator", []float64{0, 1, 0, 0}, 2, false, 2},
+	}
+	for _, c := range cases {
+		s, _ := FromMatrices(mat.NewDense(c.n, c.n, c.A), nil, nil, nil, 0)
+		st, err := StabilityOf(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if st.Stable || st.Marginal != c.marginal || st.Unstable != c.unstable {
+			t.Errorf("%s: %+v", c.name, st)
+		}
+	}
+}
