@@ -810,6 +810,28 @@ func (ev *evaluator) compileBlock(b *SystemBlock) (*blockSource, error) {
 	if len(bs.states) == 0 && len(bs.outputs) == 0 {
 		return nil, ev.errorAt(b.SystemPos, "the system has no states and no outputs", "Declare them: states angle, rate / outputs angle.")
 	}
+	// A signal named like a number bound in the session hides it inside
+	// the block; say so, since the number may have been meant as a
+	// parameter.
+	var hidden []string
+	seenHidden := map[string]bool{}
+	for _, names := range [][]string{bs.states, bs.inputs, bs.outputs} {
+		for _, n := range names {
+			if seenHidden[n] {
+				continue
+			}
+			seenHidden[n] = true
+			if v, ok := ev.s.Get(n); ok {
+				if _, num := v.(float64); num {
+					hidden = append(hidden, fmt.Sprintf("'%s' (= %s)", n, FormatValue(v)))
+				}
+			}
+		}
+	}
+	if len(hidden) > 0 && ev.out != nil {
+		ev.out.Stderr(fmt.Sprintf("note (line %d): inside this system block the signal names %s hide numbers bound in the session; they are signals here, not parameters\n",
+			b.SystemPos.Line, strings.Join(hidden, ", ")))
+	}
 	// Structural pass at the origin: resolves every name (copying the
 	// parameters from the session) and finds the first nonlinear term.
 	me := &meval{ev: ev, bs: bs, vars: map[string]mval{}, later: map[string]*Equation{}, structural: true, compiling: true, params: bs.params}

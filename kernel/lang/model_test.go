@@ -448,3 +448,20 @@ growth = system every 1 {
 		t.Errorf("parameters %s", FormatValue(p))
 	}
 }
+
+// A signal named like a session number is a signal inside the block, and
+// the cell says so on stderr.
+func TestSignalHidesSessionNumber(t *testing.T) {
+	s := NewSession(t.TempDir())
+	r := &recorder{}
+	v, err := s.Run(context.Background(), "x = 5\nsystem {\n  states x\n  x' = -2*x\n}", r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if g := v.(*lsys.System); g.A.At(0, 0) != -2 {
+		t.Errorf("A = %v", g.A.At(0, 0))
+	}
+	if !strings.Contains(r.stderr.String(), "note (line 2): inside this system block the signal names 'x' (= 5) hide numbers bound in the session") {
+		t.Errorf("stderr %q", r.stderr.String())
+	}
+}
