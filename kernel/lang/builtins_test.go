@@ -58,6 +58,10 @@ func TestBuiltinValues(t *testing.T) {
 		{src: "2/(2*s + 4)", want: "1 / (s + 2)"},
 		{src: "(s + 1)/(s + 1)", want: "(s + 1) / (s + 1)"}, // no silent cancellation
 		{src: "0.1/(z - 0.9)", want: "0.1 / (z - 0.9)"},
+		{src: "H = 5/(s^2 + 2*s + 5)\nH(0)", want: "1"},   // steady-state gain
+		{src: "H = 1/(s + 1)\nH(1j)", want: "0.5 - 0.5j"}, // 1/(1 + j) by hand
+		{src: "x = [1, 2j]\nx[2]", want: "2j"},
+		{src: "[[1, 2j], [3, 4]][2, 1]", want: "3"},
 		{src: "pause(0)", want: "(nothing)"},
 		{src: "clear()", want: "(nothing)"},
 		{src: "clear(wait: true)", want: "(nothing)"},
@@ -93,6 +97,8 @@ func TestBuiltinErrors(t *testing.T) {
 		{src: "s + z", err: "cannot combine a transfer function in s with one in z", line: 1, col: 3},
 		{src: "modes(\"G\")", err: "modes: the argument 'system' must be a system, not a string", line: 1, col: 7},
 		{src: "1/(s - s)", err: "division by zero", line: 1, col: 2},
+		{src: "H = 1/(s + 1)\nH(-1)", err: "-1 is a pole of the transfer function", line: 2, col: 3},
+		{src: "H = 1/(s + 1)\nH(1, 2)", err: "a transfer function is evaluated at one number", line: 2, col: 2},
 		{src: "(s + 1)^300", err: "A transfer function can be raised to a whole power up to 100", line: 1, col: 8},
 		{src: "(s^3 + 1)^90", err: "degree above the limit of 200", line: 1, col: 10},
 		{src: "h = (s + 1)^100\nh*h*h", err: "a transfer function of degree 300 is beyond the limit of 200", line: 2, col: 4},
@@ -277,5 +283,22 @@ func TestEveryBuiltinTested(t *testing.T) {
 		} else {
 			t.Logf("built-in %s (from %s) has no test in this package yet", b.Name, b.file)
 		}
+	}
+}
+
+func TestTextFormatter(t *testing.T) {
+	type opaque struct{ a int }
+	if got := FormatValue(&opaque{1}); !strings.Contains(got, "show(x) displays it") {
+		t.Errorf("without a formatter: %q", got)
+	}
+	SetTextFormatter(func(v any) (string, bool) {
+		if _, ok := v.(*opaque); ok {
+			return "opaque text", true
+		}
+		return "", false
+	})
+	defer SetTextFormatter(nil)
+	if got := FormatValue(&opaque{1}); got != "opaque text" {
+		t.Errorf("with a formatter: %q", got)
 	}
 }

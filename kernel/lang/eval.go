@@ -405,6 +405,18 @@ func (ev *evaluator) evalCall(x *CallExpr) (any, error) {
 		return ev.callBuiltin(f, vals, pos, named, x.Fun.Pos())
 	case *Function:
 		return ev.callFunction(f, vals, pos, named, x.Fun.Pos())
+	case *lsys.Rational:
+		// H(x): the transfer function evaluated at a (complex) point.
+		if len(vals) != 1 || len(named) > 0 || !isNumber(vals[0]) {
+			return nil, ev.errorAt(x.Lparen, "a transfer function is evaluated at one number: H(2j)",
+				"For the frequency response at w rad/s write H(w*1j).")
+		}
+		v := f.Eval(toComplex(vals[0]))
+		if !finite(v) {
+			return nil, ev.errorAt(pos[0], fmt.Sprintf("%s is a pole of the transfer function", FormatValue(vals[0])),
+				"Evaluate it at another point.")
+		}
+		return number(v), nil
 	}
 	hint := "Only functions can be called; to index a matrix use M[2, 1]."
 	if id, ok := x.Fun.(*Ident); ok {
@@ -587,7 +599,12 @@ func (ev *evaluator) evalIndex(x *IndexExpr) (any, error) {
 		}
 		return t.Items[i], nil
 	case *mat.Dense, *mat.CDense:
-		r, c := v.(mat.Matrix).Dims()
+		var r, c int
+		if d, ok := v.(*mat.Dense); ok {
+			r, c = d.Dims()
+		} else {
+			r, c = v.(*mat.CDense).Dims()
+		}
 		at := func(i, j int) any {
 			if d, ok := v.(*mat.Dense); ok {
 				return d.At(i, j)

@@ -544,6 +544,11 @@ func (p *parser) parseSystemBlock(pos Pos) Expr {
 			panic(bailout{})
 		}
 	}
+	if p.tok != RBRACE {
+		p.errorAt(p.pos, fmt.Sprintf("expected '}' to close the system block, found %s", p.describe()),
+			"Close the block with '}' on a line of its own.")
+		panic(bailout{})
+	}
 	b.Rbrace = p.expect(RBRACE, "'}' to close the system block")
 	return b
 }

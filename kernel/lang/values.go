@@ -101,6 +101,9 @@ func FormatComplex(c complex128) string {
 	if cmplx.IsNaN(c) {
 		return "nan"
 	}
+	if im == 0 {
+		return FormatNumber(re)
+	}
 	if re == 0 {
 		return FormatNumber(im) + "j"
 	}
@@ -157,8 +160,21 @@ func FormatValue(v any) string {
 	case fmt.Stringer:
 		return x.String()
 	}
-	return fmt.Sprintf("%v", v)
+	if textFormatter != nil {
+		if t, ok := textFormatter(v); ok {
+			return t
+		}
+	}
+	return "(" + typeName(v) + "; show(x) displays it)"
 }
+
+var textFormatter func(v any) (string, bool)
+
+// SetTextFormatter installs the text form used by print and inspect for
+// values the language does not format itself (the results of analysis).
+// The kernel and the runner set it to the text/plain rendering of package
+// display, which the language cannot import.
+func SetTextFormatter(f func(v any) (string, bool)) { textFormatter = f }
 
 func formatMatrix(dims func() (int, int), at func(i, j int) string) string {
 	r, c := dims()
