@@ -26,7 +26,8 @@ type JordanCluster struct {
 	// clustering tolerance that merged them; RankTol the relative
 	// tolerance of the rank decisions on the powers.
 	Spread, Tol, RankTol float64
-	// Cond is the largest eigenvalue condition number in the cluster.
+	// Cond is the largest eigenvalue condition number in the cluster; +Inf
+	// when the cluster is defective.
 	Cond float64
 
 	idx []int // indices of the members in the EigenStructure
@@ -124,6 +125,11 @@ func jordanFrom(A *mat.Dense, es *EigenStructure, absTol, relTol, ts float64) (*
 				return nil, err
 			}
 			jc.Geometric = len(jc.Blocks)
+			if jc.Defective() {
+				// No eigenvector basis: the eigenvalue is infinitely
+				// sensitive (its perturbations grow like eps^(1/k)).
+				jc.Cond = math.Inf(1)
+			}
 		}
 		js.Clusters = append(js.Clusters, jc)
 	}
