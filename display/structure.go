@@ -249,8 +249,8 @@ func renderJordan(v any, _ Options) Bundle {
 		rows = append(rows, []string{sxComplex(c.Value, pair), strconv.Itoa(c.Algebraic), strconv.Itoa(c.Geometric), sxInts(c.Blocks), verdict, ranks, sxNum(c.Spread), sxNum(c.Tol), sxNum(c.Cond)})
 	}
 	sxGrid(&t, &h, []string{"eigenvalue", "alg.", "geom.", "blocks", "verdict", "ranks of powers", "spread", "cluster tol", "cond"}, rows)
-	sxNote(&t, &h, fmt.Sprintf("Eigenvalues i, j are one cluster when |l_i - l_j| <= %s u ||A|| max(cond_i, cond_j) (at most %s%s); block sizes from the ranks of (A - l I)^k, singular values below %s of the largest counted as zero. %d defective.",
-		sxNum(js.ClusterFactor), sxNum(js.CapTol), map[bool]string{true: ", or closer than " + sxNum(js.AbsTol), false: ""}[js.AbsTol > 0], sxNum(js.RankTol), defective))
+	sxNote(&t, &h, fmt.Sprintf("Eigenvalues i, j are one cluster when |l_i - l_j| <= %s u ||A|| max(cond_i, cond_j) (at most %s%s); block sizes from the ranks of (A - l I)^k, singular values below %s of the largest counted as zero; real parts within %s of zero shown as 0. %d defective.",
+		sxNum(js.ClusterFactor), sxNum(js.CapTol), map[bool]string{true: ", or closer than " + sxNum(js.AbsTol), false: ""}[js.AbsTol > 0], sxNum(js.RankTol), sxNum(js.ZeroTol), defective))
 	h.WriteString("</div>")
 	b := NewBundle(t.String())
 	b.Data[HTML] = h.String()

@@ -47,6 +47,9 @@ type JordanStructure struct {
 	// absolute tolerance.
 	ClusterFactor, CapTol, AbsTol float64
 	RankTol                       float64
+	// ZeroTol = 1000 u ||A||_F: a cluster whose mean has a smaller real
+	// part is reported with real part exactly 0.
+	ZeroTol float64
 }
 
 // Jordan computes the Jordan structure of A: eigenvalues are clustered by
@@ -85,7 +88,7 @@ func jordanFrom(A *mat.Dense, es *EigenStructure, absTol, relTol, ts float64) (*
 		absTol = 0
 	}
 	normA := mat.Norm(A, 2)
-	js := &JordanStructure{N: n, ClusterFactor: jordanClusterFactor, CapTol: 1e-3 * math.Max(normA, dlamchE), AbsTol: absTol, RankTol: relTol}
+	js := &JordanStructure{N: n, ClusterFactor: jordanClusterFactor, CapTol: 1e-3 * math.Max(normA, dlamchE), AbsTol: absTol, RankTol: relTol, ZeroTol: 1e3 * dlamchE * normA}
 	groups := clusterEigenvalues(es.Values, es.Cond, normA, js.CapTol, absTol)
 	var err error
 	for _, g := range groups {
@@ -105,6 +108,11 @@ func jordanFrom(A *mat.Dense, es *EigenStructure, absTol, relTol, ts float64) (*
 		// pairs of the same cluster.
 		if g.real {
 			mean = complex(real(mean), 0)
+		}
+		// A real part within 1000 u ||A|| of zero is below what the
+		// computation resolves (rigid-body modes, integrators): say 0.
+		if math.Abs(real(mean)) <= js.ZeroTol {
+			mean = complex(0, imag(mean))
 		}
 		spread := 0.0
 		for _, v := range members {

@@ -110,24 +110,23 @@ func StabilityOf(s *System) (Stability, error) {
 	}
 	st.Tol = 1e3 * dlamchE * math.Max(1, mat.Norm(s.A, 2))
 	for _, c := range js.Clusters {
-		// A cluster off the real axis stands for its conjugate too.
-		w := 1
+		// A cluster off the real axis stands for its conjugate too; a
+		// cluster is judged by its mean (its members straddle it).
+		w := len(c.Members)
 		if imag(c.Value) > 0 {
-			w = 2
+			w *= 2
 		}
-		for _, v := range c.Members {
-			d := real(v) // distance beyond the boundary
-			if s.Ts > 0 {
-				d = cmplx.Abs(v) - 1
-			}
-			switch {
-			case d > st.Tol:
+		d := real(c.Value) // distance beyond the boundary
+		if s.Ts > 0 {
+			d = cmplx.Abs(c.Value) - 1
+		}
+		switch {
+		case d > st.Tol:
+			st.Unstable += w
+		case d >= -st.Tol:
+			st.Boundary += w
+			if c.Defective() {
 				st.Unstable += w
-			case d >= -st.Tol:
-				st.Boundary += w
-				if c.Defective() {
-					st.Unstable += w
-				}
 			}
 		}
 	}
