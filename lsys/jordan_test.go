@@ -2,6 +2,7 @@ package lsys
 
 import (
 	"math"
+	"math/cmplx"
 	"math/rand/v2"
 	"reflect"
 	"testing"
@@ -167,5 +168,32 @@ func TestModesDefective(t *testing.T) {
 	mt3, _ := Modes(s3)
 	if mt3.Modes[0].Reachable || !reflect.DeepEqual(mt3.Modes[0].Blocks, []int{1, 1}) {
 		t.Errorf("uncoupled lags: %+v", mt3.Modes[0])
+	}
+}
+
+func TestModesDefectiveShape(t *testing.T) {
+	// A two-mass drive with a rigid-body double eigenvalue at 0 (a Jordan
+	// block: position grows like t under a constant speed): its shape is
+	// both angles equal, rates zero (fact of the trade: rigid rotation).
+	A := mat.NewDense(4, 4, []float64{0, 1, 0, 0, -15500, -20, 15500, 20, 0, 0, 0, 1, 5167, 6.67, -5167, -6.67})
+	s, _ := FromMatrices(A, mat.NewDense(4, 1, []float64{0, 5000, 0, 0}), mat.NewDense(1, 4, []float64{0, 0, 0, 1}), nil, 0)
+	mt, err := Modes(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := mt.Modes[0]
+	if m.Eigenvalue != 0 || m.Multiplicity != 2 || !reflect.DeepEqual(m.Blocks, []int{2}) {
+		t.Fatalf("rigid mode %+v", m)
+	}
+	want := []complex128{1, 0, 1, 0}
+	for i := range want {
+		if cmplx.Abs(m.Shape[i]-want[i]) > 1e-10 {
+			t.Errorf("shape %v, want %v", m.Shape, want)
+			break
+		}
+	}
+	// Speed does not see the rigid position: PBH fails for the output.
+	if m.Observable || !m.Reachable {
+		t.Errorf("rigid mode reachable %v observable %v", m.Reachable, m.Observable)
 	}
 }

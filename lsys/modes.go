@@ -222,7 +222,17 @@ func ModesTol(s *System, relTol float64) (*ModeTable, error) {
 		}
 		m.Reachable = m.ReachMargin > relTol*normAB
 		m.Observable = m.ObserveMargin > relTol*normAC
-		m.Shape = modeShape(es.Right[first])
+		if cl.Algebraic > 1 {
+			// The members' eigenvectors of a cluster are only accurate to
+			// about the cluster's spread; the null vector of A - lambda I
+			// at the cluster mean is the accurate mode shape.
+			if v := nullVectorAt(s.A, lam); v != nil {
+				m.Shape = modeShape(v)
+			}
+		}
+		if m.Shape == nil {
+			m.Shape = modeShape(es.Right[first])
+		}
 		mt.Modes = append(mt.Modes, m)
 	}
 	return mt, nil
@@ -329,4 +339,47 @@ func stackedNorm(a, b *mat.Dense) float64 {
 		nb = mat.Norm(b, 2)
 	}
 	return math.Hypot(na, nb)
+}
+
+// nullVectorAt returns the right singular vector of the smallest singular
+// value of A - lambda I (real embedding for complex lambda), or nil.
+func nullVectorAt(A *mat.Dense, lam complex128) []complex128 {
+	n, _ := A.Dims()
+	var M *mat.Dense
+	if imag(lam) == 0 {
+		M = mat.DenseCopyOf(A)
+		for i := 0; i < n; i++ {
+			M.Set(i, i, M.At(i, i)-real(lam))
+		}
+	} else {
+		// (X + iY)(x + iy) with X = A - Re(lambda) I, Y = -Im(lambda) I
+		// is [[X, -Y], [Y, X]] [x; y].
+		M = mat.NewDense(2*n, 2*n, nil)
+		for i := 0; i < n; i++ {
+			for j := 0; j < n; j++ {
+				M.Set(i, j, A.At(i, j))
+				M.Set(n+i, n+j, A.At(i, j))
+			}
+			M.Set(i, i, M.At(i, i)-real(lam))
+			M.Set(n+i, n+i, M.At(n+i, n+i)-real(lam))
+			M.Set(i, n+i, imag(lam))
+			M.Set(n+i, i, -imag(lam))
+		}
+	}
+	var svd mat.SVD
+	if !svd.Factorize(M, mat.SVDFull) {
+		return nil
+	}
+	var V mat.Dense
+	svd.VTo(&V)
+	_, c := V.Dims()
+	v := make([]complex128, n)
+	for i := 0; i < n; i++ {
+		if imag(lam) == 0 {
+			v[i] = complex(V.At(i, c-1), 0)
+		} else {
+			v[i] = complex(V.At(i, c-1), V.At(n+i, c-1))
+		}
+	}
+	return v
 }
