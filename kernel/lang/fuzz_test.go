@@ -180,4 +180,11 @@ var corpusCells = []string{
 	"a = 1 + \\\n 2",
 	"if true then [1] else \"no\"",
 	"\"a\\n\\t\\\"b\" + \"c\"",
+	"x = [1, 2j]\nx[2]",
+	"[[1, 2j], [3, 4]][2, 1] + [[1j]][1]",
+	"H = 1/(s + 1)\nH(1j) + H(-1)",
+	"G = system(1/(s + 1))\nG.A + G.u1.B",
+	"e = equilibrium(system {\n  states x\n  inputs u\n  x' = u - x^3\n}, inputs: {u: 8})\ne.x",
+	"sensitivity(system {\n  states x\n  x' = -k*x\n}, [\"k\"])",
+	"p = {k: 2}\nsystem every 0.1 {\n  states x\n  next x = x/p.k\n}",
 }
