@@ -159,7 +159,35 @@ func writeExpr(b *strings.Builder, e Expr, outer int) {
 			b.WriteString(" every ")
 			writeExpr(b, x.Every, 0)
 		}
-		b.WriteString(" { ... }")
+		b.WriteString(" {")
+		for i, it := range x.Items {
+			if i > 0 {
+				b.WriteString(";")
+			}
+			b.WriteString(" ")
+			switch d := it.(type) {
+			case *Decl:
+				b.WriteString(d.Kind + " ")
+				for k, n := range d.Names {
+					if k > 0 {
+						b.WriteString(", ")
+					}
+					b.WriteString(n.Name)
+				}
+			case *Equation:
+				switch d.Kind {
+				case EqNext:
+					b.WriteString("next " + d.Name.Name)
+				case EqDerivative:
+					b.WriteString(d.Name.Name + "'")
+				default:
+					b.WriteString(d.Name.Name)
+				}
+				b.WriteString(" = ")
+				writeExpr(b, d.Rhs, 0)
+			}
+		}
+		b.WriteString(" }")
 	default:
 		b.WriteString("?")
 	}
