@@ -54,8 +54,13 @@ func rpResponseText(r *lsys.Response) string {
 		b.WriteString(" (sampled)")
 	}
 	b.WriteString("\n" + r.Rule + "\n")
+	lines := 0
 	for i, o := range r.Outputs {
 		for c, ch := range r.Channels {
+			if lines++; lines > 36 {
+				fmt.Fprintf(&b, "  ... (%d pairs in all)\n", len(r.Outputs)*len(r.Channels))
+				return strings.TrimRight(b.String(), "\n")
+			}
 			y := r.Y[i][c]
 			fmt.Fprintf(&b, "  %s", o)
 			if r.Kind == "step" || r.Kind == "impulse" {
