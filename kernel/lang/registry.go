@@ -284,6 +284,10 @@ func (c *Call) Context() context.Context { return c.ev.ctx }
 // Out is the cell's output.
 func (c *Call) Out() Output { return c.ev.out }
 
+// Dir is the folder data files are read from (the notebook's folder), for
+// built-ins such as load.
+func (c *Call) Dir() string { return c.ev.s.dir }
+
 // Pos is the position of the call.
 func (c *Call) Pos() Pos { return c.pos }
 
