@@ -94,7 +94,7 @@ func modelBuiltins() []*Builtin {
 		{
 			Name: "equilibrium", Group: GroupModels,
 			Params: []Param{
-				{Name: "model", Doc: "an equation block (nonlinear model or linear system)"},
+				{Name: "model", Doc: "an equation block (nonlinear model or linear system), or a system in matrix form"},
 				{Name: "inputs", Optional: true, Doc: "a record with the constant input values; inputs left out are 0"},
 				{Name: "guess", Optional: true, Doc: "a record with starting values for the states; states left out start at 0"},
 			},
@@ -265,7 +265,13 @@ func equilibriumFn(c *Call) (any, error) {
 	v := c.Value("model")
 	bs, ok := c.ev.s.sourceOf(v)
 	if !ok {
-		return nil, c.typeError("model", "an equation block (system { ... })", v)
+		if g, isSys := v.(*lsys.System); isSys {
+			return linearEquilibrium(c, g)
+		}
+		if g, err := c.ev.toSystem(v, c.ArgPos("model")); err == nil && g != nil {
+			return linearEquilibrium(c, g)
+		}
+		return nil, c.typeError("model", "a model or a system", v)
 	}
 	n := len(bs.states)
 	if n == 0 {
@@ -431,6 +437,81 @@ func equilibriumFn(c *Call) (any, error) {
 		e.States.Values = append(e.States.Values, x[i])
 	}
 	for j, s := range bs.inputs {
+		e.Inputs.Names = append(e.Inputs.Names, s)
+		e.Inputs.Values = append(e.Inputs.Values, u[j])
+	}
+	return e, nil
+}
+
+// linearEquilibrium solves A x + B u = 0 (continuous) or A x + B u = x
+// (sampled) for a system given by its matrices.
+func linearEquilibrium(c *Call, g *lsys.System) (any, error) {
+	n, m := g.N(), g.M()
+	if n == 0 {
+		return nil, c.Errorf("model", "", "the system has no states")
+	}
+	u := make([]float64, m)
+	if c.Has("inputs") {
+		r, ok := c.Value("inputs").(*Record)
+		if !ok {
+			return nil, c.typeError("inputs", "a record such as {torque: 0}", c.Value("inputs"))
+		}
+		for i, name := range r.Names {
+			j := -1
+			for k, in := range g.InputNames {
+				if in == name {
+					j = k
+				}
+			}
+			if j < 0 {
+				return nil, c.Errorf("inputs", "", "'%s' is not an input of this system%s", name, didYouMean(name, g.InputNames))
+			}
+			f, ok := r.Values[i].(float64)
+			if !ok || math.IsInf(f, 0) {
+				return nil, c.Errorf("inputs", "", "the value of '%s' must be a finite real number", name)
+			}
+			u[j] = f
+		}
+	}
+	J := mat.DenseCopyOf(g.A)
+	if g.Ts > 0 {
+		for i := 0; i < n; i++ {
+			J.Set(i, i, J.At(i, i)-1)
+		}
+	}
+	F := make([]float64, n)
+	for i := 0; i < n; i++ {
+		for j := 0; j < m; j++ {
+			F[i] += g.B.At(i, j) * u[j]
+		}
+	}
+	x := make([]float64, n)
+	if maxAbs(F) > 0 {
+		dx, ok := newtonStep(J, F)
+		if !ok {
+			return nil, c.Errorf("inputs", "A system with an integrator has a steady state only for inputs that leave it at rest.",
+				"no steady state for these inputs: the state matrix is zero, every state integrates its inputs")
+		}
+		x = dx
+	}
+	res := 0.0
+	for i := 0; i < n; i++ {
+		r := F[i]
+		for j := 0; j < n; j++ {
+			r += J.At(i, j) * x[j]
+		}
+		res = math.Max(res, math.Abs(r))
+	}
+	if res > 1e-9*math.Max(1, maxAbs(x)) {
+		return nil, c.Errorf("inputs", "A system with an integrator has a steady state only for inputs that leave it at rest.",
+			"no steady state for these inputs: the closest state leaves a residual of %.3g (the state matrix is singular)", res)
+	}
+	e := &Equilibrium{States: &Record{}, Inputs: &Record{}, Residual: res, Iterations: 1}
+	for i, s := range g.StateNames {
+		e.States.Names = append(e.States.Names, s)
+		e.States.Values = append(e.States.Values, x[i])
+	}
+	for j, s := range g.InputNames {
 		e.Inputs.Names = append(e.Inputs.Names, s)
 		e.Inputs.Values = append(e.Inputs.Values, u[j])
 	}

@@ -465,3 +465,24 @@ func TestSignalHidesSessionNumber(t *testing.T) {
 		t.Errorf("stderr %q", r.stderr.String())
 	}
 }
+
+// The steady state of a linear system in matrix form: for x' = A x + B u,
+// x = -A^-1 B u; with A = [[0, 1], [-4, -0.4]], B = [0, 4], u = 2 the
+// position settles at 2 (static gain 1, second-order form, common practice).
+func TestLinearEquilibrium(t *testing.T) {
+	s := NewSession(t.TempDir())
+	e := run(t, s, "G = system([[0, 1], [-4, -0.4]], [0, 4], [1, 0])\nequilibrium(G, inputs: {u1: 2})").(*Equilibrium)
+	if x, _ := e.States.Get("x1"); math.Abs(x.(float64)-2) > 1e-14 {
+		t.Errorf("x1 = %v, want 2", x)
+	}
+	// Sampled: x = a x + (1 - a) u settles at x = u.
+	d := run(t, s, "equilibrium(system([[0.9]], [0.1], every: 1), inputs: {u1: 3})").(*Equilibrium)
+	if x, _ := d.States.Get("x1"); math.Abs(x.(float64)-3) > 1e-13 {
+		t.Errorf("sampled x1 = %v, want 3", x)
+	}
+	// An integrator driven by a constant input has no steady state.
+	_, err := s.Run(context.Background(), "equilibrium(system([[0]], [1]), inputs: {u1: 1})", nil)
+	if err == nil || !strings.Contains(err.Error(), "no steady state for these inputs") {
+		t.Errorf("integrator: %v", err)
+	}
+}
