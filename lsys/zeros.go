@@ -2,6 +2,7 @@ package lsys
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"math/cmplx"
 
@@ -127,9 +128,10 @@ func invariantZeros(s *System, relTol float64) ([]complex128, int, float64, erro
 		k = wc - stRank(stHcat(f.p, f.C, f.D), tol)
 	}
 	if k != nf {
-		// Not a square pencil: the system has no isolated zeros here
-		// (a degenerate, rank-deficient transfer matrix).
-		return nil, nf, tol, nil
+		// The reductions leave D invertible (Emami-Naeini & Van Dooren
+		// 1982, sec. 3), so this pencil is square unless a rank decision
+		// was borderline.
+		return nil, nf, tol, fmt.Errorf("zeros: the reduced pencil is %dx%d, not square: a rank decision is borderline at tolerance %.3g; try another tolerance", nf, k, tol)
 	}
 	W1 := W.Slice(0, nf+mf, 0, nf)
 	var Af, Ef mat.Dense

@@ -274,3 +274,86 @@ func pencilSmallest(s *System, z complex128) float64 {
 	v := svd.Values(nil)
 	return v[len(v)-1] / v[0]
 }
+
+// pencilValues returns the singular values of the real embedding of
+// [[A - zI, B], [C, D]] (each singular value of the complex pencil twice).
+func pencilValues(s *System, z complex128) []float64 {
+	n, m, p := s.N(), s.M(), s.P()
+	N, M := n+p, n+m
+	E := mat.NewDense(2*N, 2*M, nil)
+	set := func(i, j int, v complex128) {
+		E.Set(i, j, real(v))
+		E.Set(N+i, M+j, real(v))
+		E.Set(i, M+j, -imag(v))
+		E.Set(N+i, j, imag(v))
+	}
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			v := complex(s.A.At(i, j), 0)
+			if i == j {
+				v -= z
+			}
+			set(i, j, v)
+		}
+		for j := 0; j < m; j++ {
+			set(i, n+j, complex(s.B.At(i, j), 0))
+		}
+	}
+	for i := 0; i < p; i++ {
+		for j := 0; j < n; j++ {
+			set(n+i, j, complex(s.C.At(i, j), 0))
+		}
+		for j := 0; j < m; j++ {
+			set(n+i, n+j, complex(s.D.At(i, j), 0))
+		}
+	}
+	var svd mat.SVD
+	svd.Factorize(E, mat.SVDNone)
+	return svd.Values(nil)
+}
+
+func TestZerosNonSquareAndDegenerate(t *testing.T) {
+	// Definition (Rosenbrock 1970; Emami-Naeini & Van Dooren 1982): an
+	// invariant zero is where the system pencil loses rank below its
+	// normal rank. Random non-square systems, some with repeated input
+	// columns or output rows (rank-deficient transfer matrices): at every
+	// zero found the pencil's rank must drop.
+	rng := rand.New(rand.NewPCG(1982, 4))
+	found := 0
+	for trial := 0; trial < 120; trial++ {
+		n, m, p := 2+trial%6, 1+trial%3, 1+(trial/3)%3
+		A, B, C := randDense(rng, n, n), randDense(rng, n, m), randDense(rng, p, n)
+		var D *mat.Dense
+		if trial%3 == 0 {
+			D = randDense(rng, p, m)
+		}
+		if trial%4 == 0 && m > 1 {
+			for i := 0; i < n; i++ {
+				B.Set(i, 1, B.At(i, 0))
+			}
+		}
+		s := sysOf(t, A, B, C, D)
+		z, err := Zeros(s, 0)
+		if err != nil {
+			t.Fatalf("n=%d m=%d p=%d: %v", n, m, p, err)
+		}
+		// Normal rank at a generic point.
+		gen := pencilValues(s, complex(0.37, 1.91))
+		r := 0
+		for _, v := range gen {
+			if v > 1e-9*gen[0] {
+				r++
+			}
+		}
+		for _, zz := range z.Invariant {
+			sv := pencilValues(s, zz)
+			if sv[r-1] > 1e-7*sv[0] {
+				t.Errorf("n=%d m=%d p=%d: no rank drop at zero %v (sigma %.3g of %.3g)", n, m, p, zz, sv[r-1], sv[0])
+			}
+			found++
+		}
+	}
+	if found == 0 {
+		t.Error("no zeros found at all: the test checks nothing")
+	}
+}
