@@ -7,6 +7,7 @@ import (
 	"sort"
 	"strings"
 
+	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/plot/vg/draw"
 
 	"lsys/lsys"
@@ -314,6 +315,27 @@ func interpAt(x, y []float64, at float64) float64 {
 func renderPoleZero(v any, opt Options) Bundle {
 	pz := v.(*lsys.PoleZeroMap)
 	g := pz.System
+	// parts below 1000 u ||A||_1 are rounding (a rigid-body pole computed
+	// as 1e-16): show them as 0
+	thr := 0.0
+	if g.A != nil {
+		thr = 1e3 * 1.1102230246251565e-16 * mat.Norm(g.A, 1)
+	}
+	clean := func(v []complex128) []complex128 {
+		out := make([]complex128, len(v))
+		for i, z := range v {
+			re, im := real(z), imag(z)
+			if math.Abs(re) <= thr {
+				re = 0
+			}
+			if math.Abs(im) <= thr {
+				im = 0
+			}
+			out[i] = complex(re, im)
+		}
+		return out
+	}
+	pz = &lsys.PoleZeroMap{System: g, Poles: clean(pz.Poles), Zeros: clean(pz.Zeros), ZerosKnown: pz.ZerosKnown, Note: pz.Note}
 	var b strings.Builder
 	plane := "s-plane"
 	if g.Sampled() {

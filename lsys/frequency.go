@@ -218,11 +218,14 @@ func autoRange(g *System) (lo, hi float64, extra []float64, rule string) {
 	// to 200 states (the pencil reduction is cubic).
 	if g.N() > 0 && g.N() <= 200 {
 		if zs, err := Zeros(g, 0); err == nil {
+			thr := negligible(g.A)
 			for _, z := range zs.Invariant {
-				if g.Sampled() {
-					if z == 0 {
-						continue
-					}
+				switch {
+				case g.Sampled() && z == 0:
+					continue
+				case g.Sampled() && cmplx.Abs(z-1) <= thr, !g.Sampled() && cmplx.Abs(z) <= thr:
+					z = 0
+				case g.Sampled():
 					z = cmplx.Log(z) / complex(g.Ts, 0)
 				}
 				pts = append(pts, z)

@@ -241,7 +241,9 @@ func niceCeil(x float64) float64 {
 
 // continuousPoles returns the eigenvalues of A, mapped to the s-plane
 // through s = log(z)/Ts for sampled systems (z = 0 is skipped: it settles
-// in finite time).
+// in finite time). Eigenvalues within 1000 u ||A||_1 of s = 0 (of z = 1),
+// u the unit roundoff, are set to exactly 0: rigid-body modes computed as
+// 1e-16 must not ask for a horizon of 1e16 s.
 func continuousPoles(g *System) []complex128 {
 	if g.N() == 0 {
 		return nil
@@ -250,18 +252,38 @@ func continuousPoles(g *System) []complex128 {
 	if !ev.Factorize(g.A, mat.EigenNone) {
 		return nil
 	}
+	thr := negligible(g.A)
 	vals := ev.Values(nil)
 	if !g.Sampled() {
+		for i, v := range vals {
+			if cmplx.Abs(v) <= thr {
+				vals[i] = 0
+			}
+		}
 		return vals
 	}
 	var out []complex128
 	for _, z := range vals {
-		if z == 0 {
+		switch {
+		case z == 0:
 			continue
+		case cmplx.Abs(z-1) <= thr:
+			out = append(out, 0)
+		default:
+			out = append(out, cmplx.Log(z)/complex(g.Ts, 0))
 		}
-		out = append(out, cmplx.Log(z)/complex(g.Ts, 0))
 	}
 	return out
+}
+
+// negligible is 1000 u ||A||_1: eigenvalue differences below it are
+// rounding (Golub & Van Loan, Matrix Computations, 4th ed., Section 7.2:
+// backward-stable eigenvalues are exact for A + E with ||E|| ~ u ||A||).
+func negligible(A *mat.Dense) float64 {
+	if A == nil {
+		return 0
+	}
+	return 1e3 * 1.1102230246251565e-16 * mat.Norm(A, 1)
 }
 
 func (o ResponseOptions) grid(g *System) ([]float64, float64, string, error) {

@@ -387,3 +387,29 @@ func mustSystem(s *System, err error) *System {
 	}
 	return s
 }
+
+func TestRigidBodyModesDoNotStretchHorizon(t *testing.T) {
+	// Two inertias joined by a spring: a double eigenvalue at 0 (rigid
+	// body, computed as ~1e-16) and a pair at +-j sqrt(k(1/J1 + 1/J2)).
+	// The horizon and frequency range must come from the flexible pair
+	// (common practice: rigid-body modes do not settle and ask nothing).
+	k, J1, J2 := 3.1, 2e-4, 6e-4
+	A := mat.NewDense(4, 4, []float64{
+		0, 1, 0, 0,
+		-k / J1, -0.004 / J1, k / J1, 0.004 / J1,
+		0, 0, 0, 1,
+		k / J2, 0.004 / J2, -k / J2, -0.004 / J2,
+	})
+	g, _ := FromMatrices(A, mat.NewDense(4, 1, []float64{0, 1 / J1, 0, 0}), mat.NewDense(1, 4, []float64{0, 0, 0, 1}), nil, 0)
+	until, _, _ := AutoHorizon(g)
+	if until > 10 {
+		t.Errorf("horizon %g s: stretched by a rigid-body mode", until)
+	}
+	f, err := Frequency(context.Background(), g, FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if f.W[0] < 1e-3 || len(f.W) >= 5000 {
+		t.Errorf("frequency grid from %g with %d points: stretched by a rigid-body mode", f.W[0], len(f.W))
+	}
+}
