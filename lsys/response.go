@@ -626,7 +626,8 @@ func DCGain(g *System) (*mat.Dense, bool) {
 }
 
 // Stable reports whether every pole lies strictly in the stable region
-// (Re s < 0, or |z| < 1).
+// (Re s < 0, or |z| < 1), by more than 1000 u ||A||_1 so that a rigid-body
+// mode computed as -1e-17 does not pass for a stable one.
 func Stable(g *System) bool {
 	if g.N() == 0 {
 		return true
@@ -635,8 +636,9 @@ func Stable(g *System) bool {
 	if !ev.Factorize(g.A, mat.EigenNone) {
 		return false
 	}
+	thr := negligible(g.A)
 	for _, l := range ev.Values(nil) {
-		if g.Sampled() && cmplx.Abs(l) >= 1 || !g.Sampled() && real(l) >= 0 {
+		if g.Sampled() && cmplx.Abs(l) >= 1-thr || !g.Sampled() && real(l) >= -thr {
 			return false
 		}
 	}
