@@ -62,6 +62,11 @@ func TestBuiltinValues(t *testing.T) {
 		{src: "H = 1/(s + 1)\nH(1j)", want: "0.5 - 0.5j"}, // 1/(1 + j) by hand
 		{src: "x = [1, 2j]\nx[2]", want: "2j"},
 		{src: "[[1, 2j], [3, 4]][2, 1]", want: "3"},
+		{src: "[1, 2j] + [1, -2j]", want: "2\n0"}, // real again: exact zeros
+		{src: "[[1, 1j]] * [1j, 1]", want: "2j"},  // 1*1j + 1j*1 (by hand)
+		{src: "1j * [[1, 2]]", want: "1j  2j"},
+		{src: "[[2j, 4]] / 2", want: "1j  2"},
+		{src: "x = [1j, 1]\nx - x", want: "0\n0"},
 		{src: "pause(0)", want: "(nothing)"},
 		{src: "clear()", want: "(nothing)"},
 		{src: "clear(wait: true)", want: "(nothing)"},
@@ -97,6 +102,8 @@ func TestBuiltinErrors(t *testing.T) {
 		{src: "s + z", err: "cannot combine a transfer function in s with one in z", line: 1, col: 3},
 		{src: "modes(\"G\")", err: "modes: the argument 'system' must be a system, not a string", line: 1, col: 7},
 		{src: "1/(s - s)", err: "division by zero", line: 1, col: 2},
+		{src: "[1j, 2] + [1, 2, 3]", err: "cannot add a 2x1 and a 3x1 matrix", line: 1, col: 9},
+		{src: "[1j, 2] / [1, 2]", err: "cannot divide a complex vector of 2 by a vector of 2", line: 1, col: 9},
 		{src: "H = 1/(s + 1)\nH(-1)", err: "-1 is a pole of the transfer function", line: 2, col: 3},
 		{src: "H = 1/(s + 1)\nH(1, 2)", err: "a transfer function is evaluated at one number", line: 2, col: 2},
 		{src: "(s + 1)^300", err: "A transfer function can be raised to a whole power up to 100", line: 1, col: 8},

@@ -122,13 +122,15 @@ func (ev *evaluator) binary(op Token, a, b any, pos Pos, node *BinaryExpr) (any,
 	// Matrices.
 	_, ma := a.(*mat.Dense)
 	_, mb := b.(*mat.Dense)
-	if ma || mb {
-		return ev.matrixOp(op, a, b, pos)
-	}
 	_, ca := a.(*mat.CDense)
 	_, cb := b.(*mat.CDense)
-	if ca || cb {
-		return nil, ev.opError(op, a, b, pos, "Arithmetic on complex matrices is not supported; work with real matrices or with their entries.")
+	_, za := a.(complex128)
+	_, zb := b.(complex128)
+	if ca || cb || (ma && zb) || (za && mb) {
+		return ev.complexMatrixOp(op, a, b, pos)
+	}
+	if ma || mb {
+		return ev.matrixOp(op, a, b, pos)
 	}
 	return nil, ev.opError(op, a, b, pos, "")
 }
@@ -524,4 +526,125 @@ func scalarGain(k float64, n int, ts float64) (*lsys.System, error) {
 		return lsys.NewSystem(0, 0, 0, nil, nil, nil, nil, ts)
 	}
 	return staticGain(d, ts)
+}
+
+// asCMatrix returns v as a complex matrix (real matrices are copied).
+func asCMatrix(v any) (*mat.CDense, bool) {
+	switch t := v.(type) {
+	case *mat.CDense:
+		return t, true
+	case *mat.Dense:
+		r, c := t.Dims()
+		m := mat.NewCDense(r, c, nil)
+		for i := 0; i < r; i++ {
+			for j := 0; j < c; j++ {
+				m.Set(i, j, complex(t.At(i, j), 0))
+			}
+		}
+		return m, true
+	}
+	return nil, false
+}
+
+// realIfPossible turns a complex matrix whose imaginary parts are all
+// exactly zero into a real one.
+func realIfPossible(m *mat.CDense) any {
+	r, c := m.Dims()
+	for i := 0; i < r; i++ {
+		for j := 0; j < c; j++ {
+			if imag(m.At(i, j)) != 0 {
+				return m
+			}
+		}
+	}
+	d := mat.NewDense(r, c, nil)
+	for i := 0; i < r; i++ {
+		for j := 0; j < c; j++ {
+			d.Set(i, j, real(m.At(i, j)))
+		}
+	}
+	return d
+}
+
+// complexMatrixOp: + - * between complex (or mixed) matrices, and scaling
+// by complex numbers, entry by entry in complex arithmetic.
+func (ev *evaluator) complexMatrixOp(op Token, a, b any, pos Pos) (any, error) {
+	ma, aMat := asCMatrix(a)
+	mb, bMat := asCMatrix(b)
+	var out *mat.CDense
+	switch {
+	case aMat && bMat:
+		ar, ac := ma.Dims()
+		br, bc := mb.Dims()
+		switch op {
+		case ADD, SUB:
+			if ar != br || ac != bc {
+				return nil, ev.errorAt(pos, fmt.Sprintf("cannot %s a %dx%d and a %dx%d matrix: the shapes differ", opVerb[op], ar, ac, br, bc),
+					"Both sides of + and - need the same number of rows and columns.")
+			}
+			out = mat.NewCDense(ar, ac, nil)
+			for i := 0; i < ar; i++ {
+				for j := 0; j < ac; j++ {
+					if op == ADD {
+						out.Set(i, j, ma.At(i, j)+mb.At(i, j))
+					} else {
+						out.Set(i, j, ma.At(i, j)-mb.At(i, j))
+					}
+				}
+			}
+		case MUL:
+			if ac != br {
+				return nil, ev.errorAt(pos, fmt.Sprintf("cannot multiply a %dx%d by a %dx%d matrix: %d columns against %d rows", ar, ac, br, bc, ac, br),
+					"In A*B the columns of A must match the rows of B.")
+			}
+			if ar*bc > MaxEntries {
+				return nil, ev.tooBig(pos, ar, bc)
+			}
+			out = mat.NewCDense(ar, bc, nil)
+			for i := 0; i < ar; i++ {
+				for j := 0; j < bc; j++ {
+					var sum complex128
+					for k := 0; k < ac; k++ {
+						sum += ma.At(i, k) * mb.At(k, j)
+					}
+					out.Set(i, j, sum)
+				}
+			}
+		default:
+			return nil, ev.opError(op, a, b, pos, "Complex matrices support +, - and *.")
+		}
+	case aMat && isNumber(b) && (op == MUL || op == DIV):
+		k := toComplex(b)
+		if op == DIV {
+			if k == 0 {
+				return nil, ev.errorAt(pos, "division by zero", "The divisor is zero here; check the values it is made of.")
+			}
+			k = 1 / k
+		}
+		out = scaleC(ma, k)
+	case isNumber(a) && bMat && op == MUL:
+		out = scaleC(mb, toComplex(a))
+	default:
+		return nil, ev.opError(op, a, b, pos, "Matrices combine with matrices (+, -, *) and are scaled by numbers (*, /).")
+	}
+	r, c := out.Dims()
+	for i := 0; i < r; i++ {
+		for j := 0; j < c; j++ {
+			if !finite(out.At(i, j)) {
+				return nil, ev.errorAt(pos, "the result has entries that are not finite numbers", "Rescale the quantities (other units).")
+			}
+		}
+	}
+	return realIfPossible(out), nil
+}
+
+func scaleC(m *mat.CDense, k complex128) *mat.CDense {
+	r, c := m.Dims()
+	out := mat.NewCDense(r, c, nil)
+	for i := 0; i < r; i++ {
+		for j := 0; j < c; j++ {
+			out.Set(i, j, k*m.At(i, j))
+		}
+	}
+	return out
 }

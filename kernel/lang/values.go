@@ -266,6 +266,9 @@ func typeName(v any) string {
 		return fmt.Sprintf("a %dx%d matrix", r, c)
 	case *mat.CDense:
 		r, c := x.Dims()
+		if c == 1 {
+			return fmt.Sprintf("a complex vector of %d", r)
+		}
 		return fmt.Sprintf("a complex %dx%d matrix", r, c)
 	case *Record:
 		return "a record"
