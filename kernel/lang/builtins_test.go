@@ -102,6 +102,7 @@ func TestBuiltinErrors(t *testing.T) {
 		{src: "s + z", err: "cannot combine a transfer function in s with one in z", line: 1, col: 3},
 		{src: "modes(\"G\")", err: "modes: the argument 'system' must be a system, not a string", line: 1, col: 7},
 		{src: "1/(s - s)", err: "division by zero", line: 1, col: 2},
+		{src: "system([[]])", err: "a transfer matrix needs at least one column", line: 1, col: 8},
 		{src: "[1j, 2] + [1, 2, 3]", err: "cannot add a 2x1 and a 3x1 matrix", line: 1, col: 9},
 		{src: "[1j, 2] / [1, 2]", err: "cannot divide a complex vector of 2 by a vector of 2", line: 1, col: 9},
 		{src: "H = 1/(s + 1)\nH(-1)", err: "-1 is a pole of the transfer function", line: 2, col: 3},

@@ -886,7 +886,11 @@ func (ev *evaluator) realize(rows [][]*lsys.Rational, pos Pos) (*lsys.System, er
 		return nil, ev.errorAt(pos, "this transfer function in z has no sample time yet",
 			"Give it one: system(H, every: 0.01).")
 	}
-	g, err := lsys.Realize(rows, ts)
+	if len(rows[0]) == 0 {
+		return nil, ev.errorAt(pos, "a transfer matrix needs at least one column", "Write it as rows of transfer functions: [[1/(s + 1), 0], [0, 2/(s + 3)]].")
+	}
+	var g *lsys.System
+	err := guard(func() (err error) { g, err = lsys.Realize(rows, ts); return })
 	if err != nil {
 		return nil, ev.errorAt(pos, "cannot turn this transfer function into a system: "+err.Error(), "A transfer function must be proper (numerator degree at most the denominator's) to be a state-space system.")
 	}
@@ -928,4 +932,15 @@ func entries(k int) string {
 		return "1 entry"
 	}
 	return fmt.Sprintf("%d entries", k)
+}
+
+// guard runs a library call and turns a panic into an error, for library
+// calls made by operators (built-ins are guarded by callBuiltin).
+func guard(f func() error) (err error) {
+	defer func() {
+		if r := recover(); r != nil {
+			err = fmt.Errorf("internal failure of the library (%v); please report it with this cell", r)
+		}
+	}()
+	return f()
 }

@@ -116,7 +116,7 @@ func FuzzEval(f *testing.F) {
 			return
 		}
 		text := err.Error()
-		if strings.Contains(text, "internal error") || strings.Contains(text, "failed inside") {
+		if strings.Contains(text, "internal error") || strings.Contains(text, "failed inside") || strings.Contains(text, "internal failure") {
 			t.Fatalf("panic inside the evaluator for %q:\n%s", src, text)
 		}
 		if _, ok := Position(err); !ok {

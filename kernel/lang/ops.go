@@ -498,7 +498,7 @@ func (ev *evaluator) systemOp(op Token, a, b any, pos Pos) (any, error) {
 				plural(ga.M(), "input"), plural(gb.P(), "output")),
 				"In G * K the outputs of K feed the inputs of G, so their numbers must match.")
 		}
-		g, err = lsys.Series(ga, gb)
+		err = guard(func() (err error) { g, err = lsys.Series(ga, gb); return })
 	case ADD, SUB:
 		if ga.M() != gb.M() || ga.P() != gb.P() {
 			return nil, ev.errorAt(pos, fmt.Sprintf("cannot connect in parallel a system with %s and %s to one with %s and %s",
@@ -509,7 +509,7 @@ func (ev *evaluator) systemOp(op Token, a, b any, pos Pos) (any, error) {
 		if op == SUB {
 			sign = -1
 		}
-		g, err = lsys.Parallel(ga, gb, sign)
+		err = guard(func() (err error) { g, err = lsys.Parallel(ga, gb, sign); return })
 	}
 	if err != nil {
 		return nil, ev.errorAt(pos, err.Error(), "Check the operands of this operator.")
