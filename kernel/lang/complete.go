@@ -12,6 +12,11 @@ import (
 // IsComplete reports "complete", "incomplete" (open bracket or block; indent
 // is the suggested indent for the next line) or "invalid".
 func (s *Session) IsComplete(src string) (status, indent string) {
+	defer func() {
+		if r := recover(); r != nil {
+			status, indent = "invalid", ""
+		}
+	}()
 	var sc Scanner
 	sc.Init(src)
 	var stack []Token
@@ -146,6 +151,11 @@ func contextAt(src string) openContext {
 // Complete returns candidates for the word ending at cursor (a rune offset
 // into src) and the rune range [start, end) they replace.
 func (s *Session) Complete(src string, cursor int) (matches []string, start, end int) {
+	defer func() {
+		if r := recover(); r != nil {
+			matches, start, end = nil, cursor, cursor
+		}
+	}()
 	runes := []rune(src)
 	if cursor < 0 {
 		cursor = 0
@@ -308,6 +318,11 @@ func (s *Session) valueBefore(runes []rune) (any, bool) {
 // signature, doc and example for a built-in, a summary for a binding.
 // found is false when there is nothing to say.
 func (s *Session) Inspect(src string, cursor int) (text string, found bool) {
+	defer func() {
+		if r := recover(); r != nil {
+			text, found = "", false
+		}
+	}()
 	runes := []rune(src)
 	if cursor < 0 {
 		cursor = 0

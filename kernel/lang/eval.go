@@ -661,7 +661,12 @@ func (ev *evaluator) field(v any, name *Ident) (any, error) {
 		fields = fieldNames(t)
 	default:
 		if ti, ok := typeNames.info(v); ok && ti.Field != nil {
-			if f, ok := ti.Field(v, name.Name); ok {
+			var f any
+			var found bool
+			if err := guard(func() error { f, found = ti.Field(v, name.Name); return nil }); err != nil {
+				return nil, ev.errorAt(name.NamePos, err.Error(), "This is a bug in lsys, not in your cell; please report it.")
+			}
+			if found {
 				return f, nil
 			}
 			fields = ti.Fields
