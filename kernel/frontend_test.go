@@ -1,16 +1,23 @@
 package kernel_test
 
 import (
+	"encoding/json"
+	"fmt"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 )
 
 // TestNotebooksExecute runs every notebook in notebooks/ through Jupyter
-// (nbconvert --execute) to HTML, as ./install does, and fails on any error
-// output.
+// (nbconvert --execute, as ./install does), checks that each stored output
+// is what a fresh run gives byte for byte (notebooks are stored executed,
+// and same input must give same output), then renders the HTML report.
+// Regenerate a notebook after a deliberate display change with
+// jupyter nbconvert --to notebook --execute --inplace
+// --ExecutePreprocessor.record_timing=False notebooks/NAME.ipynb
 func TestNotebooksExecute(t *testing.T) {
 	needJupyter(t, "nbconvert", "nbclient", "jupyter_client")
 	_, env := buildKernel(t)
@@ -21,26 +28,87 @@ func TestNotebooksExecute(t *testing.T) {
 	out := t.TempDir()
 	for _, nb := range nbs {
 		nb := nb
-		t.Run(filepath.Base(nb), func(t *testing.T) {
-			cmd := exec.Command(python, "-m", "nbconvert", "--to", "html", "--execute",
-				"--ExecutePreprocessor.kernel_name=lsys", "--ExecutePreprocessor.timeout=600",
-				"--output-dir", out, nb)
-			cmd.Env = env
-			b, err := cmd.CombinedOutput()
-			if err != nil {
-				t.Fatalf("nbconvert --execute %s: %v\n%s", nb, err, b)
+		base := strings.TrimSuffix(filepath.Base(nb), ".ipynb")
+		t.Run(base, func(t *testing.T) {
+			run := func(args ...string) {
+				t.Helper()
+				cmd := exec.Command(python, append([]string{"-m", "nbconvert"}, args...)...)
+				cmd.Env = env
+				if b, err := cmd.CombinedOutput(); err != nil {
+					t.Fatalf("nbconvert %v: %v\n%s", args, err, b)
+				}
 			}
-			html, err := os.ReadFile(filepath.Join(out, strings.TrimSuffix(filepath.Base(nb), ".ipynb")+".html"))
+			fresh := filepath.Join(out, base+".ipynb")
+			run("--to", "notebook", "--execute", "--ExecutePreprocessor.kernel_name=lsys",
+				"--ExecutePreprocessor.timeout=600", "--ExecutePreprocessor.record_timing=False",
+				"--output-dir", out, nb)
+			compareOutputs(t, nb, fresh)
+			run("--to", "html", "--output-dir", out, fresh)
+			html, err := os.ReadFile(filepath.Join(out, base+".html"))
 			if err != nil {
 				t.Fatal(err)
 			}
-			// nbconvert stops at the first error unless told otherwise, so
-			// reaching here means every cell ran; check something rendered.
 			if !strings.Contains(string(html), "jp-OutputArea") {
 				t.Errorf("%s: rendered HTML has no output areas", nb)
 			}
 		})
 	}
+}
+
+type notebook struct {
+	Cells []struct {
+		CellType string           `json:"cell_type"`
+		Source   any              `json:"source"`
+		Outputs  []map[string]any `json:"outputs"`
+	} `json:"cells"`
+}
+
+func readNotebook(t *testing.T, path string) notebook {
+	t.Helper()
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var nb notebook
+	if err := json.Unmarshal(b, &nb); err != nil {
+		t.Fatalf("%s: %v", path, err)
+	}
+	return nb
+}
+
+// compareOutputs checks stored outputs against a fresh run's, cell by cell.
+func compareOutputs(t *testing.T, storedPath, freshPath string) {
+	t.Helper()
+	stored, fresh := readNotebook(t, storedPath), readNotebook(t, freshPath)
+	if len(stored.Cells) != len(fresh.Cells) {
+		t.Fatalf("cell counts differ: %d stored, %d fresh", len(stored.Cells), len(fresh.Cells))
+	}
+	for i, c := range stored.Cells {
+		if c.CellType != "code" {
+			continue
+		}
+		f := fresh.Cells[i]
+		for _, o := range f.Outputs {
+			if o["output_type"] == "error" {
+				t.Errorf("cell %d raised an error: %v", i+1, o["evalue"])
+			}
+		}
+		if !reflect.DeepEqual(c.Outputs, f.Outputs) {
+			sb, _ := json.MarshalIndent(c.Outputs, "", " ")
+			fb, _ := json.MarshalIndent(f.Outputs, "", " ")
+			t.Errorf("cell %d: stored outputs differ from a fresh run; re-execute the notebook if the change is deliberate\n%s", i+1, firstDiff(string(sb), string(fb)))
+		}
+	}
+}
+
+func firstDiff(a, b string) string {
+	la, lb := strings.Split(a, "\n"), strings.Split(b, "\n")
+	for i := 0; i < len(la) && i < len(lb); i++ {
+		if la[i] != lb[i] {
+			return fmt.Sprintf("line %d:\n  stored: %.300s\n  fresh:  %.300s", i+1, la[i], lb[i])
+		}
+	}
+	return fmt.Sprintf("lengths differ: %d stored lines, %d fresh", len(la), len(lb))
 }
 
 // TestConsoleSession drives `jupyter console --kernel lsys` as a person
