@@ -20,7 +20,6 @@ func (s *Session) IsComplete(src string) (status, indent string) {
 	var sc Scanner
 	sc.Init(src)
 	var stack []Token
-	lastTok := EOF
 	for {
 		tok, _, _ := sc.Scan()
 		if tok == EOF {
@@ -36,7 +35,6 @@ func (s *Session) IsComplete(src string) (status, indent string) {
 			}
 			stack = stack[:len(stack)-1]
 		}
-		lastTok = tok
 	}
 	// A line ending in a backslash continues.
 	if strings.HasSuffix(strings.TrimRight(src, " \t\r"), "\\") {
@@ -48,7 +46,6 @@ func (s *Session) IsComplete(src string) (status, indent string) {
 	if len(stack) > 0 {
 		return "incomplete", strings.Repeat("  ", len(stack))
 	}
-	_ = lastTok
 	if _, err := ParseCell(src); err != nil {
 		return "invalid", ""
 	}

@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"math"
 	"runtime/debug"
-	"sort"
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
@@ -900,16 +899,6 @@ func (ev *evaluator) realize(rows [][]*lsys.Rational, pos Pos) (*lsys.System, er
 		return nil, ev.errorAt(pos, "cannot turn this transfer function into a system: "+err.Error(), "A transfer function must be proper (numerator degree at most the denominator's) to be a state-space system.")
 	}
 	return g, nil
-}
-
-// sortedKeys returns the keys of m in order (deterministic messages).
-func sortedKeys[V any](m map[string]V) []string {
-	out := make([]string, 0, len(m))
-	for k := range m {
-		out = append(out, k)
-	}
-	sort.Strings(out)
-	return out
 }
 
 // fielder is implemented by language values with fields (r.name).

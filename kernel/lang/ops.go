@@ -271,11 +271,6 @@ func (ev *evaluator) compare(op Token, a, b any, pos Pos) (any, error) {
 	return fa >= fb, nil
 }
 
-func shape(m mat.Matrix) string {
-	r, c := m.Dims()
-	return fmt.Sprintf("%dx%d", r, c)
-}
-
 func (ev *evaluator) matrixOp(op Token, a, b any, pos Pos) (any, error) {
 	ma, aMat := a.(*mat.Dense)
 	mb, bMat := b.(*mat.Dense)
