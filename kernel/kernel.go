@@ -18,6 +18,7 @@ import (
 
 	"github.com/go-zeromq/zmq4"
 
+	"lsys/display"
 	"lsys/kernel/lang"
 )
 
@@ -53,6 +54,15 @@ type Kernel struct {
 	stop     context.CancelFunc
 	stopOnce sync.Once
 	restart  bool
+}
+
+// print and inspect in the language show analysis results by their text
+// form, which package display owns and the language cannot import.
+func init() {
+	lang.SetTextFormatter(func(v any) (string, bool) {
+		s, ok := display.Render(v, display.Options{}).Data[display.Text].(string)
+		return s, ok
+	})
 }
 
 // New prepares a kernel; Serve binds its sockets and runs it.
