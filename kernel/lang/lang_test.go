@@ -378,3 +378,23 @@ func hintOf(err error) string {
 	}
 	return ""
 }
+
+// Completion and inspection while a cell runs (the kernel answers them
+// from another goroutine); run with -race to check.
+func TestConcurrentHelpWhileRunning(t *testing.T) {
+	s := NewSession(t.TempDir())
+	done := make(chan error)
+	go func() {
+		_, err := s.Run(context.Background(), "f(n) = if n <= 0 then 0 else 1 + f(n - 1)\nfor_k = 3\nG = system([[0, 1], [-2, -3]], [0, 1], [1, 0])\nx = f(150)", nil)
+		done <- err
+	}()
+	for i := 0; i < 200; i++ {
+		s.Complete("G.", 2)
+		s.Inspect("G", 1)
+		s.Names()
+		s.IsComplete("x = [1,")
+	}
+	if err := <-done; err != nil {
+		t.Fatal(err)
+	}
+}
