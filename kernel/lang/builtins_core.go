@@ -140,7 +140,7 @@ func elementary(name, help, example string, real func(float64) (float64, bool), 
 		Name: name, Group: GroupMath,
 		Params:   []Param{{Name: "x", Doc: "a number"}},
 		Help:     help,
-		Doc:      "Also allowed on the right-hand sides of equation blocks, where it makes the model nonlinear when its argument depends on a state or an input.",
+		Doc:      elementaryDoc(name),
 		Examples: []string{example},
 		Fn: func(c *Call) (any, error) {
 			v := c.Value("x")
@@ -175,6 +175,57 @@ func elementary(name, help, example string, real func(float64) (float64, bool), 
 	}
 }
 
+// entrywise applies abs, real, imag, phase and conjugate to every entry of
+// a real or complex matrix (handy on mode shapes and eigenvectors).
+func entrywise(c *Call, v any) (any, bool, error) {
+	var r, cc int
+	var at func(i, j int) complex128
+	switch m := v.(type) {
+	case *mat.Dense:
+		r, cc = m.Dims()
+		at = func(i, j int) complex128 { return complex(m.At(i, j), 0) }
+	case *mat.CDense:
+		r, cc = m.Dims()
+		at = m.At
+	default:
+		return nil, false, nil
+	}
+	var f func(complex128) complex128
+	switch c.Builtin.Name {
+	case "abs":
+		f = func(x complex128) complex128 { return complex(cmplx.Abs(x), 0) }
+	case "real":
+		f = func(x complex128) complex128 { return complex(real(x), 0) }
+	case "imag":
+		f = func(x complex128) complex128 { return complex(imag(x), 0) }
+	case "phase":
+		f = func(x complex128) complex128 { return complex(cmplx.Phase(x), 0) }
+	case "conjugate":
+		f = cmplx.Conj
+	}
+	out := mat.NewCDense(r, cc, nil)
+	for i := 0; i < r; i++ {
+		for j := 0; j < cc; j++ {
+			out.Set(i, j, f(at(i, j)))
+		}
+	}
+	return realIfPossible(out), true, nil
+}
+
+func elementaryDoc(name string) string {
+	var parts []string
+	if equationFuncs[name] {
+		parts = append(parts, "Also allowed on the right-hand sides of equation blocks, where it makes the model nonlinear when its argument depends on a state or an input.")
+	}
+	switch name {
+	case "abs", "real", "imag", "phase", "conjugate":
+		parts = append(parts, "On a matrix or vector it applies to every entry.")
+	case "exp":
+		parts = append(parts, "On a square matrix it is the matrix exponential (scaling and squaring with Pade approximants, Higham 2005).")
+	}
+	return strings.Join(parts, " ")
+}
+
 func mathBuiltins() []*Builtin {
 	always := func(f func(float64) float64) func(float64) (float64, bool) {
 		return func(x float64) (float64, bool) { return f(x), true }
@@ -206,15 +257,15 @@ func mathBuiltins() []*Builtin {
 		elementary("sqrt", "Square root (of a negative number: imaginary).", "sqrt(2)\nsqrt(-4)",
 			func(x float64) (float64, bool) { return math.Sqrt(x), x >= 0 }, cmplx.Sqrt, nil),
 		elementary("abs", "Absolute value; the modulus of a complex number.", "abs(-3)\nabs(3 + 4j)",
-			always(math.Abs), func(x complex128) complex128 { return complex(cmplx.Abs(x), 0) }, nil),
+			always(math.Abs), func(x complex128) complex128 { return complex(cmplx.Abs(x), 0) }, entrywise),
 		elementary("real", "Real part of a complex number.", "real(-1 + 2j)",
-			always(func(x float64) float64 { return x }), func(x complex128) complex128 { return complex(real(x), 0) }, nil),
+			always(func(x float64) float64 { return x }), func(x complex128) complex128 { return complex(real(x), 0) }, entrywise),
 		elementary("imag", "Imaginary part of a complex number.", "imag(-1 + 2j)",
-			always(func(float64) float64 { return 0 }), func(x complex128) complex128 { return complex(imag(x), 0) }, nil),
+			always(func(float64) float64 { return 0 }), func(x complex128) complex128 { return complex(imag(x), 0) }, entrywise),
 		elementary("phase", "Phase (angle) of a complex number in radians, from -pi to pi.", "phase(1j)",
-			always(func(x float64) float64 { return math.Atan2(0, x) }), func(x complex128) complex128 { return complex(cmplx.Phase(x), 0) }, nil),
+			always(func(x float64) float64 { return math.Atan2(0, x) }), func(x complex128) complex128 { return complex(cmplx.Phase(x), 0) }, entrywise),
 		elementary("conjugate", "Complex conjugate.", "conjugate(-1 + 2j)",
-			always(func(x float64) float64 { return x }), cmplx.Conj, nil),
+			always(func(x float64) float64 { return x }), cmplx.Conj, entrywise),
 	}
 }
 
@@ -290,9 +341,19 @@ func matrixBuiltins() []*Builtin {
 		{
 			Name: "transpose", Group: GroupMatrices,
 			Params:   []Param{{Name: "M", Doc: "a matrix or vector"}},
-			Help:     "The transpose: rows become columns (a column vector becomes a row).",
+			Help:     "The transpose: rows become columns (a column vector becomes a row); complex entries are not conjugated.",
 			Examples: []string{"transpose([[1, 2], [3, 4]])", "transpose([1, 2, 3])"},
 			Fn: func(c *Call) (any, error) {
+				if z, ok := c.Value("M").(*mat.CDense); ok {
+					r, cc := z.Dims()
+					t := mat.NewCDense(cc, r, nil)
+					for i := 0; i < r; i++ {
+						for j := 0; j < cc; j++ {
+							t.Set(j, i, z.At(i, j))
+						}
+					}
+					return t, nil
+				}
 				m, err := c.Matrix("M")
 				if err != nil {
 					return nil, err
