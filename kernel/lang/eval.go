@@ -545,7 +545,11 @@ func (ev *evaluator) callFunction(f *Function, vals []any, poss []Pos, named []N
 	oldSrc, oldWhere := ev.src, ev.where
 	ev.src = f.src
 	if oldWhere == "" {
-		ev.where = fmt.Sprintf("in %s(%s), called at line %d, column %d", f.Name, strings.Join(f.Params, ", "), pos.Line, pos.Column)
+		defined := ""
+		if f.src != oldSrc {
+			defined = ", defined in an earlier cell"
+		}
+		ev.where = fmt.Sprintf("in %s(%s)%s, called at line %d, column %d", f.Name, strings.Join(f.Params, ", "), defined, pos.Line, pos.Column)
 	}
 	v, err := ev.eval(f.Body)
 	ev.src, ev.where = oldSrc, oldWhere

@@ -398,3 +398,17 @@ func TestConcurrentHelpWhileRunning(t *testing.T) {
 		t.Fatal(err)
 	}
 }
+
+func TestErrorInFunctionFromEarlierCell(t *testing.T) {
+	s := NewSession(t.TempDir())
+	if _, err := s.Run(context.Background(), "# helpers\nratio(a, b) = a / b", nil); err != nil {
+		t.Fatal(err)
+	}
+	_, err := s.Run(context.Background(), "x = 1\nratio(x, 0)", nil)
+	want := "line 2, column 17: division by zero (in ratio(a, b), defined in an earlier cell, called at line 2, column 1)\n" +
+		"    ratio(a, b) = a / b\n" +
+		"                    ^"
+	if err == nil || !strings.HasPrefix(err.Error(), want) {
+		t.Errorf("error:\n%v\nwant it to start with:\n%s", err, want)
+	}
+}
