@@ -169,6 +169,7 @@ func TestCellsErrors(t *testing.T) {
 		{src: "identity(1e9)", err: "the size must be between 1 and 1000", line: 1, col: 10},
 		{src: "{a: 1, a: 2}", err: "field 'a' appears twice", line: 1, col: 8},
 		{src: "x = 1\n)", err: "found ')'", line: 2, col: 1},
+		{src: "[1; 2]", err: "expected ']' to close the list, found ';'", line: 1, col: 3},
 		{src: "ok = 1\nbad = 1 +\nalso = (", err: "expected a value", line: 2, col: 10},
 	})
 }

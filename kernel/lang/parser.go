@@ -59,7 +59,9 @@ func (p *parser) init(src string) {
 func (p *parser) next() {
 	for {
 		p.tok, p.pos, p.lit = p.sc.Scan()
-		if p.tok == NEWLINE && len(p.nlFree) > 0 && p.nlFree[len(p.nlFree)-1] {
+		// Newlines are free inside brackets; a ';' is not (it would hide a
+		// mistake such as [1; 2]).
+		if p.tok == NEWLINE && p.lit != ";" && len(p.nlFree) > 0 && p.nlFree[len(p.nlFree)-1] {
 			continue
 		}
 		return
