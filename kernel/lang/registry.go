@@ -48,6 +48,11 @@ package lang
 //   - Go types handed out that the language should know by name (for
 //     messages) or whose fields r.name reads are described with
 //     RegisterType, also from an init function in your file.
+//   - Named arguments beyond the parameters (locus(f, k: ...)): set AnyNamed
+//     and read c.Extra. Variadic last parameters: c.Rest. Files beside the
+//     notebook: c.Dir(). Calling a user function: c.Apply(f, args...).
+//   - After adding or changing a built-in, regenerate the reference in the
+//     README: go test ./kernel/lang -run Reference -update.
 
 import (
 	"context"
