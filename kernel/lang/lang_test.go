@@ -124,6 +124,8 @@ func TestCellsValues(t *testing.T) {
 		{src: "{a: 1}", want: "{a: 1}"},
 		{src: "f = 50\n2*pi*f", want: "314.1592654"},
 		{src: "g(x) = [x, 2*x]\ng(3)[2]", want: "6"},
+		{src: "5 \u2212 3", want: "2"}, // a typographic minus, as pasted
+		{src: "system {\n  states x\n  x\u2032 = \u22122*x\n}.A", want: "-2"},
 	})
 }
 
@@ -156,6 +158,8 @@ func TestCellsErrors(t *testing.T) {
 		{src: "\"abc", err: "string not closed", line: 1, col: 1},
 		{src: "x = 2k", err: "a number runs into a name", line: 1, col: 6},
 		{src: "x = 1 $ 2", err: "unexpected character '$'", line: 1, col: 7},
+		{src: "x = \u201ctext\u201d", err: "Strings use straight double quotes", line: 1, col: 5},
+		{src: "k = 2 \u00d7 3", err: "Write multiplication with '*'", line: 1, col: 7},
 		{src: "a.b = 1", err: "the left side of '=' must be a name", line: 1, col: 5},
 		{src: "x' = 1", err: "derivative x' can only be written inside system", line: 1, col: 2},
 		{src: "f(1) = 2", err: "parameters of a function definition must be plain names", line: 1, col: 3},

@@ -266,12 +266,17 @@ func (s *Scanner) Scan() (tok Token, pos Pos, lit string) {
 		return COLON, pos, ""
 	case '.':
 		return DOT, pos, ""
-	case '\'':
+	case '\'', '\u2032': // ' and the typographic prime, as pasted from documents
 		return PRIME, pos, ""
+	case '\u2212': // the typographic minus sign
+		return SUB, pos, ""
 	}
 	hint := "Remove it; names are letters, digits and '_', strings use double quotes."
-	if ch == '`' {
-		hint = "Strings use double quotes: \"text\"."
+	switch ch {
+	case '`', '\u201c', '\u201d', '\u2018', '\u2019':
+		hint = "Strings use straight double quotes: \"text\"."
+	case '\u00d7', '\u22c5', '\u00b7':
+		hint = "Write multiplication with '*'."
 	}
 	s.error(pos, fmt.Sprintf("unexpected character %q", ch), hint)
 	return ILLEGAL, pos, string(ch)
