@@ -106,6 +106,7 @@ func init() {
 	for _, b := range structureBuiltins() {
 		Register(b)
 	}
+	Register(stModalBuiltin())
 	registerStructureTypes()
 }
 
@@ -430,9 +431,7 @@ func structureBuiltins() []*Builtin {
 	}
 }
 
-// stModalBuiltin is the modal built-in. It is not registered yet: the
-// completion test in lang_test.go expects "mod" to complete to "modes"
-// alone; once that case changes, register it in init with the others.
+// stModalBuiltin is the modal built-in.
 func stModalBuiltin() *Builtin {
 	const msd = "G = system([[0, 1], [-4, -0.8]], [0, 0.5], [1, 0], states: [\"position\", \"velocity\"], inputs: [\"force\"], outputs: [\"position\"])\n"
 	return &Builtin{

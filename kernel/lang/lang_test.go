@@ -289,7 +289,8 @@ func TestComplete(t *testing.T) {
 		want       []string
 		start, end int
 	}{
-		{"mod", 3, []string{"modes"}, 0, 3},
+		{"mode", 4, []string{"modes"}, 0, 4},
+		{"moda", 4, []string{"modal"}, 0, 4},
 		{"x = gim", 7, []string{"gimbal"}, 4, 7},
 		{"gimbal.ra", 9, []string{"rate"}, 7, 9},
 		{"gimbal.tor", 10, []string{"torque"}, 7, 10},
