@@ -132,8 +132,12 @@ func (k *Kernel) execute(r *Request) {
 	if store {
 		k.history = append(k.history, historyEntry{line: count, input: req.Code, output: histOut})
 	}
+	payload := []any{}
+	for _, text := range out.pages {
+		payload = append(payload, map[string]any{"source": "page", "data": map[string]any{display.Text: text}, "start": 0})
+	}
 	r.Reply("execute_reply", map[string]any{
-		"status": "ok", "execution_count": count, "payload": []any{},
+		"status": "ok", "execution_count": count, "payload": payload,
 		"user_expressions": k.userExpressions(req.UserExpressions),
 	})
 }
@@ -371,10 +375,19 @@ func (k *Kernel) historyRequest(r *Request) {
 	r.Reply("history_reply", map[string]any{"status": "ok", "history": rows})
 }
 
-// cellOutput forwards what a cell produces to iopub.
+// cellOutput forwards what a cell produces to iopub; help text goes to the
+// front end's pager through the reply's page payload.
 type cellOutput struct {
 	r      *Request
 	silent bool
+	pages  []string
+}
+
+// Page implements lang.Pager.
+func (o *cellOutput) Page(text string) {
+	if !o.silent {
+		o.pages = append(o.pages, text)
+	}
 }
 
 func (o *cellOutput) Stdout(text string) { o.stream("stdout", text) }

@@ -2,7 +2,7 @@
 
 Run by kernel/conformance_test.go with /usr/bin/python3 (Debian's Jupyter),
 with JUPYTER_PATH pointing at a kernelspec for the freshly built binary.
-Every sample family the suite offers is filled in except the pager.
+Every sample family the suite offers is filled in.
 """
 import unittest
 
@@ -41,6 +41,8 @@ class LsysKernelTests(jupyter_kernel_test.KernelTests):
     supported_history_operations = ("tail", "range", "search")
 
     code_clear_output = "clear()"
+
+    code_page_something = "help(modes)"
 
 
 if __name__ == "__main__":
