@@ -111,7 +111,11 @@ func fmtC(c complex128) string {
 	if cmplx.IsNaN(c) {
 		return "undefined"
 	}
-	re := fmt.Sprintf("%.6g", real(c))
+	r := real(c)
+	if r == 0 {
+		r = 0 // no "-0"
+	}
+	re := fmt.Sprintf("%.6g", r)
 	if imag(c) == 0 {
 		return re
 	}

@@ -18,7 +18,7 @@ func init() {
 		Register(b)
 	}
 	RegisterType((*lsys.Sensitivity)(nil), TypeInfo{Name: "an eigenvalue sensitivity table",
-		Fields: []string{"eigenvalues", "parameters", "values"},
+		Fields: []string{"eigenvalues", "parameters", "values", "derivatives", "relative", "condition"},
 		Field: func(v any, name string) (any, bool) {
 			s := v.(*lsys.Sensitivity)
 			switch name {
@@ -28,6 +28,23 @@ func init() {
 				return namesList(s.Parameters), true
 			case "values":
 				return floatVector(s.Values), true
+			case "derivatives", "relative":
+				if len(s.Eigenvalues) == 0 || len(s.Parameters) == 0 {
+					return nil, false
+				}
+				m := mat.NewCDense(len(s.Eigenvalues), len(s.Parameters), nil)
+				for k := range s.Eigenvalues {
+					for j := range s.Parameters {
+						if name == "relative" {
+							m.Set(k, j, s.Relative(k, j))
+						} else {
+							m.Set(k, j, s.D[k][j])
+						}
+					}
+				}
+				return m, true
+			case "condition":
+				return floatVector(s.Cond), true
 			}
 			return nil, false
 		}})
@@ -111,15 +128,20 @@ func modelBuiltins() []*Builtin {
 			Name: "sensitivity", Group: GroupModels,
 			Params: []Param{
 				{Name: "model", Doc: "an equation block: a system built from one, or a nonlinear model"},
-				{Name: "parameters", Doc: `names of parameters used in the block, as strings: ["k", "b"]`},
+				{Name: "parameters", Optional: true, Doc: `names of parameters used in the block, as strings: ["k", "b"]; left out: every parameter of the block`},
 				{Name: "at", Optional: true, Doc: "operating point (nonlinear models only)"},
 			},
 			Help: "How fast each eigenvalue moves with each named parameter: d(eigenvalue)/d(parameter).",
 			Doc: "For each mode, d lambda/dp = w^H (dA/dp) v / (w^H v) with v, w the right and left eigenvectors of A. dA/dp is " +
 				"exact: second derivatives of the equations by hyper-dual numbers (Fike & Alonso 2011). A defective eigenvalue has no " +
-				"derivative and is marked undefined. The parameters are the values the block used when it was evaluated.",
-			Examples: []string{"k = 4; b = 0.4; mass = 1\naxis = system {\n  states position, velocity\n  inputs force\n  position' = velocity\n  velocity' = (force - k*position - b*velocity) / mass\n}\nsensitivity(axis, [\"k\", \"b\"])"},
-			Fn:       sensitivityFn,
+				"derivative and is marked undefined. The parameters are the values the block used when it was evaluated: numbers bound " +
+				"in the session and the parameters of the function whose body holds the block. So for a family f(k) = system { ... } " +
+				"write sensitivity(f(5), [\"k\"]): the sensitivities at k = 5. Left out, the list is every parameter of the block. " +
+				"The table also gives the relative sensitivity (p/|lambda|) d lambda/dp, the relative change of the eigenvalue per " +
+				"relative change of the parameter, which ranks parameters whatever their units.",
+			Examples: []string{"k = 4; b = 0.4; mass = 1\naxis = system {\n  states position, velocity\n  inputs force\n  position' = velocity\n  velocity' = (force - k*position - b*velocity) / mass\n}\nsensitivity(axis, [\"k\", \"b\"])",
+				"mass = 1; b = 0.4\nmount(k) = system {\n  states position, velocity\n  inputs force\n  position' = velocity\n  velocity' = (force - k*position - b*velocity) / mass\n}\nsensitivity(mount(5))"},
+			Fn: sensitivityFn,
 		},
 		{
 			Name: "locus", Group: GroupModels,
@@ -130,9 +152,12 @@ func modelBuiltins() []*Builtin {
 			Help:     "How the modes of f(k) move as the parameter k runs over values: locus(f, k: linear(0, 10)).",
 			Doc: "The named argument gives the parameter's name (that of the function's parameter) and its values. At each value the " +
 				"eigenvalues of the system are matched to those of the previous value by a minimum-distance assignment (Kuhn 1955), so " +
-				"each branch follows one mode, even where modes cross. Long sweeps show their progress.",
-			Examples: []string{"axis(k) = system([[0, 1], [-k, -0.4]], [0, 1], [1, 0])\nlocus(axis, k: linear(1, 10, n: 20))"},
-			Fn:       locusFn,
+				"each branch follows one mode, even where modes cross. Long sweeps show their progress. The function's body may be an " +
+				"equation block: its parameter counts as a parameter of the block. The chart draws each branch from a cross at the " +
+				"first value to a dot at the last, with arrows for the direction and the parameter value at a few points.",
+			Examples: []string{"axis(k) = system([[0, 1], [-k, -0.4]], [0, 1], [1, 0])\nlocus(axis, k: linear(1, 10, n: 20))",
+				"mass = 1; b = 0.4\nmount(k) = system {\n  states position, velocity\n  inputs force\n  position' = velocity\n  velocity' = (force - k*position - b*velocity) / mass\n}\nlocus(mount, k: linear(0.01, 1, n: 40))"},
+			Fn: locusFn,
 		},
 	}
 }
@@ -580,14 +605,31 @@ func sensitivityFn(c *Call) (any, error) {
 			return nil, c.Errorf("model", "Write the model as an equation block, system { ... }, using named parameters bound before it.",
 				"sensitivity needs a system written as an equation block, so that its parameters are known; this one was built from matrices")
 		}
+		if f, isFn := v.(*Function); isFn {
+			ex := f.Name + "(...)"
+			if len(f.Params) == 1 {
+				ex = f.Name + "(5)"
+			}
+			return nil, c.Errorf("model", fmt.Sprintf("Evaluate the family at the parameter values you want: sensitivity(%s, [\"%s\"]); the function's parameters count as parameters of its block.", ex, strings.Join(f.Params, "\", \"")),
+				"sensitivity needs a model, not the function %s; sensitivities are taken at one value of the parameters", f.Name)
+		}
 		return nil, c.typeError("model", "an equation block", v)
 	}
-	names, err := c.Strings("parameters")
-	if err != nil {
-		return nil, err
-	}
-	if len(names) == 0 {
-		return nil, c.Errorf("parameters", "", "give at least one parameter name")
+	var names []string
+	if c.Has("parameters") {
+		var err error
+		if names, err = c.Strings("parameters"); err != nil {
+			return nil, err
+		}
+		if len(names) == 0 {
+			return nil, c.Errorf("parameters", "Leave the list out to take every parameter of the model.", "give at least one parameter name")
+		}
+	} else {
+		names = append(names, bs.paramOrder...)
+		if len(names) == 0 {
+			return nil, c.Errorf("model", "Write the coefficients as named parameters bound before the block (k = 4), or as parameters of a function: family(k) = system { ... }.",
+				"this model uses no named parameters: its equations have numbers only")
+		}
 	}
 	for _, p := range names {
 		if _, ok := bs.params[p]; !ok {
@@ -605,6 +647,7 @@ func sensitivityFn(c *Call) (any, error) {
 			return nil, c.Errorf("", "Give the operating point: sensitivity(model, [...], at: {...}).",
 				"a nonlinear model needs the operating point 'at'")
 		}
+		var err error
 		if x, u, err = operatingPoint(c, "at", bs, true); err != nil {
 			return nil, err
 		}

@@ -178,7 +178,7 @@ func (me *meval) lookup(id *Ident) (mval, error) {
 		return mval{x: x}, nil
 	}
 	if me.compiling {
-		if v, ok := me.ev.s.Get(id.Name); ok {
+		if v, ok := me.ev.scopeGet(id.Name); ok {
 			switch t := v.(type) {
 			case float64:
 				me.bs.params[id.Name] = t
@@ -187,8 +187,11 @@ func (me *meval) lookup(id *Ident) (mval, error) {
 			case *Function:
 				return mval{}, me.ev.errorAt(id.NamePos, fmt.Sprintf("'%s' is a function; call it: %s(...)", id.Name, id.Name), "Equations use numbers: call the function with arguments.")
 			}
-			return mval{}, me.ev.errorAt(id.NamePos, fmt.Sprintf("'%s' is %s; a parameter in an equation must be a real number", id.Name, typeName(v)),
-				"Bind a number to it before the block, or declare it as a state or input.")
+			hint := "Bind a number to it before the block, or declare it as a state or input."
+			if me.ev.isLocal(id.Name) {
+				hint = fmt.Sprintf("'%s' is a parameter of the function being called: call it with a number for '%s'.", id.Name, id.Name)
+			}
+			return mval{}, me.ev.errorAt(id.NamePos, fmt.Sprintf("'%s' is %s; a parameter in an equation must be a real number", id.Name, typeName(v)), hint)
 		}
 	}
 	if b, ok := Lookup(id.Name); ok && b.Fn == nil {
@@ -207,6 +210,11 @@ func (me *meval) lookup(id *Ident) (mval, error) {
 	}
 	if me.compiling {
 		cands = append(cands, me.ev.s.Names()...)
+		if n := len(me.ev.frames); n > 0 {
+			for k := range me.ev.frames[n-1] {
+				cands = append(cands, k)
+			}
+		}
 	}
 	msg := fmt.Sprintf("'%s' is not a state, input or parameter of this system", id.Name)
 	if c := closest(id.Name, cands); c != "" {
@@ -418,7 +426,7 @@ func (me *meval) call(x *CallExpr) (mval, error) {
 	if fn, ok := me.bs.funcs[id.Name]; ok {
 		f = fn
 	} else if me.compiling {
-		if v, ok := me.ev.s.Get(id.Name); ok {
+		if v, ok := me.ev.scopeGet(id.Name); ok {
 			if fn, ok := v.(*Function); ok {
 				f = fn
 				me.bs.funcs[id.Name] = fn
@@ -821,7 +829,7 @@ func (ev *evaluator) compileBlock(b *SystemBlock) (*blockSource, error) {
 				continue
 			}
 			seenHidden[n] = true
-			if v, ok := ev.s.Get(n); ok {
+			if v, ok := ev.scopeGet(n); ok {
 				if _, num := v.(float64); num {
 					hidden = append(hidden, fmt.Sprintf("'%s' (= %s)", n, FormatValue(v)))
 				}
@@ -876,6 +884,26 @@ func article(kind string) string {
 		return "an " + kind
 	}
 	return "a " + kind
+}
+
+// scopeGet looks a name up where the block is evaluated: the parameters of
+// the user function being called (so family(k) = system { ... k ... }
+// works), then the session.
+func (ev *evaluator) scopeGet(name string) (any, bool) {
+	if n := len(ev.frames); n > 0 {
+		if v, ok := ev.frames[n-1][name]; ok {
+			return v, true
+		}
+	}
+	return ev.s.Get(name)
+}
+
+func (ev *evaluator) isLocal(name string) bool {
+	if n := len(ev.frames); n > 0 {
+		_, ok := ev.frames[n-1][name]
+		return ok
+	}
+	return false
 }
 
 // sourceOf returns the compiled block behind v: a nonlinear model, or a
