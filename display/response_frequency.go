@@ -221,6 +221,22 @@ func rpList(ws []float64, hz bool) string {
 	return strings.Join(parts, ", ")
 }
 
+// rpListWith lists frequencies each with a figure in brackets.
+func rpListWith(ws, vals []float64, hz bool, what, unit string) string {
+	if len(ws) == 0 {
+		return "none"
+	}
+	var parts []string
+	for i, w := range ws {
+		s := rpFreq(w, hz)
+		if i < len(vals) {
+			s += " (" + what + " " + sxNum(vals[i]) + unit + ")"
+		}
+		parts = append(parts, s)
+	}
+	return strings.Join(parts, ", ")
+}
+
 func renderMargins(v any, opt Options) Bundle {
 	mg := v.(*lsys.Margins)
 	f := mg.Loop
@@ -239,17 +255,24 @@ func renderMargins(v any, opt Options) Bundle {
 	if mg.ClosedChecked {
 		verdict = sxVerdictText(mg.ClosedStable, "closed loop (negative unity feedback) is stable", "closed loop (negative unity feedback) is UNSTABLE: the margins do not describe a working loop")
 	}
+	bw := rpFreq(mg.Bandwidth, hz)
+	if math.IsNaN(mg.Bandwidth) {
+		bw = "not within the range (see the notes)"
+	}
 	head := []string{"figure", "value"}
 	rows := [][]string{
 		{"gain margin", gm},
 		{"phase margin", pm},
 		{"delay margin", dm},
-		{"gain crossovers (|L| = 1)", rpList(mg.GainCrossovers, hz)},
-		{"phase crossovers (angle L = -180 deg)", rpList(mg.PhaseCrossovers, hz)},
-		{"closed-loop bandwidth (-3 dB)", rpFreq(mg.Bandwidth, hz)},
+		{"gain crossovers (|L| = 1)", rpListWith(mg.GainCrossovers, mg.PhaseMargins, hz, "PM", " deg")},
+		{"phase crossovers (angle L = -180 deg)", rpListWith(mg.PhaseCrossovers, mg.GainMarginsDB, hz, "GM", " dB")},
+		{"closed-loop bandwidth (-3 dB)", bw},
 		{"closed-loop resonant peak", fmt.Sprintf("%s dB at %s", sxNum(mg.ResonantPeak), rpFreq(mg.ResonantFreq, hz))},
 	}
 	text := rpTextTable("loop margins", head, rows) + "\n" + verdict
+	for _, n := range mg.Notes {
+		text += "\nnote: " + n
+	}
 	x, xl, sc := rpFreqAxis(f)
 	mag := newPanel("loop gain with margins", xl, "magnitude (dB)")
 	mag.LogX = true
@@ -261,36 +284,73 @@ func renderMargins(v any, opt Options) Bundle {
 	ph.PhaseTicks = true
 	phase := f.Phase(0, 0)
 	ph.Series = []rpSeries{{X: x, Y: phase, Style: 0}}
-	// the -180 line nearest the phase curve at the crossover (or its start)
-	ref := -180.0
-	if len(phase) > 0 {
+	// -180 + k 360 lines: the one nearest the phase at each crossover (or
+	// at the start of the curve when there is none)
+	refAt := func(w float64) float64 {
 		probe := phase[0]
-		if ok(mg.GainCrossover) {
-			probe = interpAt(f.W, phase, mg.GainCrossover)
+		if ok(w) {
+			probe = interpAt(f.W, phase, w)
 		}
-		ref = -180 + 360*math.Round((probe+180)/360)
+		return -180 + 360*math.Round((probe+180)/360)
 	}
-	ph.Lines = []rpLine{{At: ref, Dashed: true}}
-	if ok(mg.PhaseCrossover) {
-		mag.Lines = append(mag.Lines, rpLine{At: mg.PhaseCrossover * sc, Vertical: true, Dashed: true})
-		mag.Texts = append(mag.Texts, rpText{X: mg.PhaseCrossover * sc, Y: -mg.GainMarginDB, Text: "GM " + sxNum(mg.GainMarginDB) + " dB"})
-		mag.Series = append(mag.Series, rpSeries{X: []float64{mg.PhaseCrossover * sc, mg.PhaseCrossover * sc}, Y: []float64{-mg.GainMarginDB, 0}, Style: 1, Width: 2.5, Color: rpPalette[1]})
+	refs := map[float64]bool{}
+	addRef := func(r float64) {
+		if !refs[r] {
+			refs[r] = true
+			ph.Lines = append(ph.Lines, rpLine{At: r, Dashed: true})
+		}
 	}
-	if ok(mg.GainCrossover) && !math.IsInf(mg.PhaseMargin, 0) {
-		ph.Lines = append(ph.Lines, rpLine{At: mg.GainCrossover * sc, Vertical: true, Dashed: true})
-		ph.Texts = append(ph.Texts, rpText{X: mg.GainCrossover * sc, Y: ref + mg.PhaseMargin, Text: "PM " + sxNum(mg.PhaseMargin) + " deg"})
-		ph.Series = append(ph.Series, rpSeries{X: []float64{mg.GainCrossover * sc, mg.GainCrossover * sc}, Y: []float64{ref, ref + mg.PhaseMargin}, Style: 2, Width: 2.5, Color: rpPalette[2]})
+	if len(phase) > 0 && len(mg.GainCrossovers) == 0 {
+		addRef(refAt(math.NaN()))
+	}
+	// every phase crossover: a bar from |L| up to 0 dB on the magnitude
+	// chart, labelled with its gain margin
+	for i, w := range mg.PhaseCrossovers {
+		if i >= len(mg.GainMarginsDB) || !ok(mg.GainMarginsDB[i]) {
+			continue
+		}
+		g := mg.GainMarginsDB[i]
+		mag.Lines = append(mag.Lines, rpLine{At: w * sc, Vertical: true, Dashed: true})
+		mag.Texts = append(mag.Texts, rpText{X: w * sc, Y: -g, Text: "GM " + sxNum(g) + " dB"})
+		mag.Series = append(mag.Series, rpSeries{X: []float64{w * sc, w * sc}, Y: []float64{-g, 0}, Style: 1, Width: 2.5, Color: rpPalette[1]})
+	}
+	// every gain crossover: a bar from the -180 line to the phase on the
+	// phase chart, labelled with its phase margin
+	for i, w := range mg.GainCrossovers {
+		if i >= len(mg.PhaseMargins) || len(phase) == 0 {
+			continue
+		}
+		p := mg.PhaseMargins[i]
+		ref := refAt(w)
+		addRef(ref)
+		ph.Lines = append(ph.Lines, rpLine{At: w * sc, Vertical: true, Dashed: true})
+		ph.Texts = append(ph.Texts, rpText{X: w * sc, Y: ref + p, Text: "PM " + sxNum(p) + "°"})
+		ph.Series = append(ph.Series, rpSeries{X: []float64{w * sc, w * sc}, Y: []float64{ref, ref + p}, Style: 2, Width: 2.5, Color: rpPalette[2]})
 	}
 	fig := &rpFigure{Rows: 2, Cols: 1, Panels: []*rpPanel{mag, ph}, W: 16 * cmLen, H: 14 * cmLen}
 	b := rpBundle(text, fig, opt)
-	b.Data[HTML] = rpHTMLTable("Loop margins", head, rows, verdict)
+	b.Data[HTML] = rpHTMLTable("Loop margins", head, rows, strings.Join(append([]string{verdict}, mg.Notes...), "; "))
+	notes := mg.Notes
+	if notes == nil {
+		notes = []string{}
+	}
 	b.Data[JSON] = map[string]any{
 		"gain_margin": jsNum(mg.GainMargin), "gain_margin_db": jsNum(mg.GainMarginDB), "phase_crossover": jsNum(mg.PhaseCrossover),
 		"phase_margin_deg": jsNum(mg.PhaseMargin), "gain_crossover": jsNum(mg.GainCrossover), "delay_margin": jsNum(mg.DelayMargin),
-		"gain_crossovers": mg.GainCrossovers, "phase_crossovers": mg.PhaseCrossovers, "bandwidth": jsNum(mg.Bandwidth),
+		"gain_crossovers": mg.GainCrossovers, "phase_crossovers": mg.PhaseCrossovers,
+		"phase_margins_deg": rpJSNums(mg.PhaseMargins), "gain_margins_db": rpJSNums(mg.GainMarginsDB), "bandwidth": jsNum(mg.Bandwidth),
 		"resonant_peak_db": jsNum(mg.ResonantPeak), "resonant_freq": jsNum(mg.ResonantFreq), "closed_loop_stable": mg.ClosedStable,
+		"notes": notes,
 	}
 	return b
+}
+
+func rpJSNums(v []float64) []any {
+	out := make([]any, len(v))
+	for i, x := range v {
+		out[i] = jsNum(x)
+	}
+	return out
 }
 
 func sxVerdictText(okv bool, yes, no string) string {

@@ -7,6 +7,7 @@ import (
 	"math"
 	"math/cmplx"
 	"sort"
+	"strings"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -45,11 +46,20 @@ type FrequencyOptions struct {
 // slowest nonzero pole or zero to a decade above the fastest (|s|, sampled
 // systems through s = log(z)/Ts; zeros for models up to 200 states),
 // widened to whole decades, at least 3 decades; sampled systems stop at the
-// Nyquist frequency pi/Ts. The base grid has 20 points per decade plus the
+// Nyquist frequency pi/Ts. Where some channel's gain still heads toward
+// 0 dB at an edge (as beside an integrator), the range is widened by whole
+// decades, at most 3 each way, until the crossing is in it (see
+// bracketRange). The base grid has 20 points per decade plus the
 // natural frequency of every pole and zero with damping below 0.5; then every interval across which some channel's magnitude
 // changes by more than 1 dB or its phase by more than 5 degrees is bisected
 // (geometrically), up to 8 times and 5,000 points in all.
 func Frequency(ctx context.Context, g *System, opt FrequencyOptions) (*FrequencyResponse, error) {
+	return frequency(ctx, g, opt, false)
+}
+
+// frequency is Frequency; loop asks the automatic range to bracket the
+// phase crossovers of a SISO loop too (see bracketRange).
+func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) (*FrequencyResponse, error) {
 	if g == nil {
 		return nil, errors.New("frequency: the system is missing")
 	}
@@ -88,6 +98,15 @@ func Frequency(ctx context.Context, g *System, opt FrequencyOptions) (*Frequency
 		return f, nil
 	}
 	lo, hi, extra, rule := autoRange(g)
+	if opt.From == 0 && opt.To == 0 {
+		maxDec := 3
+		if loop {
+			maxDec = 6
+		}
+		var down, up int
+		lo, hi, down, up = bracketRange(ev, lo, hi, f.Nyquist, loop, maxDec)
+		rule += widenedRule(down, up, loop)
+	}
 	if opt.From != 0 || opt.To != 0 {
 		if opt.From > 0 {
 			lo = opt.From
@@ -250,8 +269,10 @@ func autoRange(g *System) (lo, hi float64, extra []float64, rule string) {
 		wmin, wmax = 1, 1
 		rule = "range: no nonzero pole or zero, 0.1 to 100 rad/s"
 	}
-	lo = math.Pow(10, math.Floor(math.Log10(wmin/10)))
-	hi = math.Pow(10, math.Ceil(math.Log10(wmax*10)))
+	// the 1e-9 keeps a pole computed a rounding below 1 rad/s from
+	// costing a whole decade
+	lo = math.Pow(10, math.Floor(math.Log10(wmin/10)+1e-9))
+	hi = math.Pow(10, math.Ceil(math.Log10(wmax*10)-1e-9))
 	if hi/lo < 1000 {
 		hi = lo * 1000
 		for hi < wmax*10 {
@@ -267,6 +288,90 @@ func autoRange(g *System) (lo, hi float64, extra []float64, rule string) {
 		rule += "; up to the Nyquist frequency"
 	}
 	return lo, hi, extra, rule
+}
+
+// bracketRange widens [lo, hi] by whole decades, at most maxDec each way,
+// while something of interest lies beyond an edge: some channel's gain
+// heads toward 0 dB there (at more than 1 dB per decade, as beside an
+// integrator, where |G| grows without bound), or, with phase set, the
+// phase of a SISO loop still moves toward the next odd multiple of 180
+// degrees fast enough to reach it. Beyond its last corner the slope of a
+// rational function's phase falls about tenfold per decade, so what is
+// left to come is about slope/ln(10); we widen while the distance is below
+// the slope (degrees per decade, measured over the last tenth of a decade).
+// Sampled systems never go above the Nyquist frequency.
+func bracketRange(ev *freqEval, lo, hi, nyquist float64, phase bool, maxDec int) (float64, float64, int, int) {
+	down, up := 0, 0
+	for down < maxDec && beyondEdge(ev, lo, -1, phase) {
+		lo /= 10
+		down++
+	}
+	for up < maxDec && (nyquist == 0 || hi < nyquist) && beyondEdge(ev, hi, 1, phase) {
+		hi *= 10
+		up++
+	}
+	if nyquist > 0 && hi > nyquist {
+		hi = nyquist
+	}
+	return lo, hi, down, up
+}
+
+func widenedRule(down, up int, loop bool) string {
+	if down == 0 && up == 0 {
+		return ""
+	}
+	what := "the 0 dB crossings"
+	if loop {
+		what = "the gain and phase crossovers"
+	}
+	var parts []string
+	if down > 0 {
+		parts = append(parts, fmt.Sprintf("%d decade(s) lower", down))
+	}
+	if up > 0 {
+		parts = append(parts, fmt.Sprintf("%d decade(s) higher", up))
+	}
+	return "; widened " + strings.Join(parts, " and ") + " to take in " + what
+}
+
+// beyondEdge reports whether a 0 dB crossing (or, with phase, a phase
+// crossover of channel (0,0)) seems to lie beyond w in direction dir (-1
+// below, +1 above): see bracketRange.
+func beyondEdge(ev *freqEval, w float64, dir float64, phase bool) bool {
+	const step = 0.1 // decades
+	a, err1 := ev.at(w)
+	b, err2 := ev.at(w * math.Pow(10, dir*step))
+	if err1 != nil || err2 != nil || !(w > 0) {
+		return false
+	}
+	for i := range a {
+		ma, mb := cabs(a[i]), cabs(b[i])
+		if ma == 0 || mb == 0 || math.IsInf(ma, 0) || math.IsInf(mb, 0) {
+			continue
+		}
+		m0 := 20 * math.Log10(ma)
+		s := (20*math.Log10(mb) - m0) / step
+		if m0*s < 0 && math.Abs(s) > 1 {
+			return true
+		}
+	}
+	if !phase || cabs(a[0]) == 0 || cabs(b[0]) == 0 {
+		return false
+	}
+	p0 := cmplx.Phase(a[0]) * 180 / math.Pi
+	p1 := p0 + cmplx.Phase(b[0]/a[0])*180/math.Pi
+	ps := (p1 - p0) / step
+	if math.Abs(ps) <= 1 {
+		return false
+	}
+	// distance from p0 to the next odd multiple of 180 in the direction of travel
+	var target float64
+	if ps > 0 {
+		target = 360*math.Floor((p0+180)/360) + 180
+	} else {
+		target = 360*math.Ceil((p0-180)/360) - 180
+	}
+	return math.Abs(target-p0) < math.Abs(ps)
 }
 
 // freqEval evaluates G at angular frequencies through the Hessenberg form.

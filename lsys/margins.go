@@ -3,6 +3,7 @@ package lsys
 import (
 	"context"
 	"errors"
+	"fmt"
 	"math"
 	"math/cmplx"
 	"sort"
@@ -23,12 +24,18 @@ type Margins struct {
 
 	GainCrossovers  []float64 // every w with |L| = 1
 	PhaseCrossovers []float64 // every w with angle L = -180 + k 360
+	PhaseMargins    []float64 // degrees, in [-180, 180), at each of GainCrossovers
+	GainMarginsDB   []float64 // dB, -20 log10 |L|, at each of PhaseCrossovers
 
 	Bandwidth     float64 // rad/s: first w where |T| falls 3 dB below |T(0)|; NaN if not within the grid
 	ResonantPeak  float64 // max |T| in dB (refined between grid points by golden-section search)
 	ResonantFreq  float64 // rad/s
 	ClosedStable  bool    // whether T is stable (from its poles)
 	ClosedChecked bool    // whether the closed-loop poles could be computed
+
+	// Notes say where a figure rests on the edge of the range rather than
+	// on a true crossing or extremum, and what may lie beyond a range given.
+	Notes []string
 }
 
 // LoopMargins computes the margins of the SISO loop L. Crossovers are
@@ -39,6 +46,15 @@ type Margins struct {
 // PM_i (in rad, taken in [0, 2 pi)) / w_i minimised over gain crossovers.
 // Margins describe the loop only if the closed loop is stable; ClosedStable
 // says whether it is.
+//
+// The automatic range is the one of Frequency, widened by whole decades
+// (at most 6 each way) until the crossovers are bracketed: downward while
+// |L| still heads toward 1 (beside integrators |L| grows without bound as
+// w -> 0) or the phase still moves toward -180 + k 360 fast enough to
+// reach it; upward likewise (see bracketRange). A range or grid given is
+// kept, and Notes say when a crossover seems to lie beyond it. Bandwidth
+// and resonant peak are searched on the same range; a figure found at an
+// edge is not reported as a crossing or extremum: Notes say so.
 func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins, error) {
 	if L == nil {
 		return nil, errors.New("margins: the loop is missing")
@@ -46,11 +62,21 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 	if L.M() != 1 || L.P() != 1 {
 		return nil, errors.New("margins: the loop must have one input and one output; pick one channel of a MIMO loop")
 	}
-	f, err := Frequency(ctx, L, opt)
+	f, err := frequency(ctx, L, opt, true)
 	if err != nil {
 		return nil, err
 	}
 	ev := newFreqEval(L)
+	var notes []string
+	unit := func(w float64) string { return fmt.Sprintf("%.4g rad/s", w) }
+	if len(f.W) > 0 && (opt.Grid != nil || opt.From != 0 || opt.To != 0) {
+		if lo := f.W[0]; lo > 0 && beyondEdge(ev, lo, -1, true) {
+			notes = append(notes, "a crossover seems to lie below "+unit(lo)+", outside the range given; widen it or leave the range automatic")
+		}
+		if hi := f.W[len(f.W)-1]; (f.Nyquist == 0 || hi < f.Nyquist) && beyondEdge(ev, hi, 1, true) {
+			notes = append(notes, "a crossover seems to lie above "+unit(hi)+", outside the range given; widen it or leave the range automatic")
+		}
+	}
 	val := func(w float64) complex128 {
 		v, err := ev.at(w)
 		if err != nil {
@@ -112,19 +138,20 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 		}
 		mg.PhaseCrossovers = append(mg.PhaseCrossovers, bisect(f.W[k], f.W[k+1], ph[k]-target, fn))
 	}
+	sort.Float64s(mg.GainCrossovers)
+	sort.Float64s(mg.PhaseCrossovers)
 	for _, w := range mg.PhaseCrossovers {
 		m := cabs(val(w))
-		if m == 0 {
-			continue
-		}
-		gm := 1 / m
-		if db := 20 * math.Log10(gm); math.Abs(db) < math.Abs(mg.GainMarginDB) {
-			mg.GainMargin, mg.GainMarginDB, mg.PhaseCrossover = gm, db, w
+		gm := -20 * math.Log10(m) // +Inf where |L| = 0
+		mg.GainMarginsDB = append(mg.GainMarginsDB, gm)
+		if m > 0 && math.Abs(gm) < math.Abs(mg.GainMarginDB) {
+			mg.GainMargin, mg.GainMarginDB, mg.PhaseCrossover = 1/m, gm, w
 		}
 	}
 	for _, w := range mg.GainCrossovers {
 		p := cmplx.Phase(val(w)) * 180 / math.Pi
 		pm := math.Mod(180+p+540, 360) - 180 // in [-180, 180)
+		mg.PhaseMargins = append(mg.PhaseMargins, pm)
 		if math.Abs(pm) < math.Abs(mg.PhaseMargin) || math.IsInf(mg.PhaseMargin, 1) {
 			mg.PhaseMargin, mg.GainCrossover = pm, w
 		}
@@ -135,8 +162,6 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 			}
 		}
 	}
-	sort.Float64s(mg.GainCrossovers)
-	sort.Float64s(mg.PhaseCrossovers)
 	// closed loop T = L/(1+L) on the same grid
 	mg.ResonantPeak = math.Inf(-1)
 	t0 := math.NaN()
@@ -152,6 +177,7 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 		return cabs(l / (1 + l))
 	}
 	kPeak := -1
+	bwBelow := false
 	lim := t0 / math.Sqrt2
 	for k, w := range f.W {
 		l := f.G[k][0]
@@ -160,9 +186,10 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 		if db > mg.ResonantPeak {
 			mg.ResonantPeak, mg.ResonantFreq, kPeak = db, w, k
 		}
-		if math.IsNaN(mg.Bandwidth) && t0 > 0 && T < lim {
+		if math.IsNaN(mg.Bandwidth) && !bwBelow && t0 > 0 && T < lim {
 			if k == 0 {
-				mg.Bandwidth = w
+				// already below: the -3 dB point lies under the range
+				bwBelow = true
 			} else {
 				// refine |T| = |T(0)|/sqrt(2) by bisection in log w
 				mg.Bandwidth = bisect(f.W[k-1], w, math.Log(cabs(f.G[k-1][0]/(1+f.G[k-1][0]))/lim),
@@ -192,6 +219,25 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 			mg.ResonantPeak, mg.ResonantFreq = db, w
 		}
 	}
+	if n := len(f.W); n > 0 {
+		switch {
+		case bwBelow:
+			notes = append(notes, "closed-loop bandwidth: |T| is already 3 dB below |T(0)| at "+unit(f.W[0])+", the lower edge of the range; the -3 dB point lies below it")
+		case math.IsNaN(mg.Bandwidth) && t0 > 0:
+			notes = append(notes, "closed-loop bandwidth: |T| stays within 3 dB of |T(0)| up to "+unit(f.W[n-1])+", the upper edge of the range")
+		}
+		switch {
+		case kPeak == 0 && !math.IsNaN(t0) && 20*math.Log10(t0) >= mg.ResonantPeak-1e-9:
+			// |T| falls from its value at w = 0: no resonance
+			mg.ResonantPeak, mg.ResonantFreq = 20*math.Log10(t0), 0
+			notes = append(notes, "closed loop: |T| is largest at zero frequency; there is no resonant peak")
+		case kPeak == 0:
+			notes = append(notes, "closed-loop peak: the largest |T| found lies at "+unit(f.W[0])+", the lower edge of the range, not at a true maximum")
+		case kPeak == n-1:
+			notes = append(notes, "closed-loop peak: the largest |T| found lies at "+unit(f.W[n-1])+", the upper edge of the range, not at a true maximum")
+		}
+	}
+	mg.Notes = notes
 	one, err := NewSystem(0, 1, 1, nil, nil, nil, nil, L.Ts)
 	if err == nil {
 		one.D.Set(0, 0, 1)

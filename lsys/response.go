@@ -260,6 +260,7 @@ func continuousPoles(g *System) []complex128 {
 				vals[i] = 0
 			}
 		}
+		zeroCluster(vals, 0, thr, mat.Norm(g.A, 1))
 		return vals
 	}
 	var out []complex128
@@ -279,6 +280,45 @@ func continuousPoles(g *System) []complex128 {
 // negligible is 1000 u ||A||_1: eigenvalue differences below it are
 // rounding (Golub & Van Loan, Matrix Computations, 4th ed., Section 7.2:
 // backward-stable eigenvalues are exact for A + E with ||E|| ~ u ||A||).
+// zeroCluster sets to c the eigenvalues that are a multiple eigenvalue c
+// split by rounding. A k-fold defective eigenvalue moves by up to about
+// (u ||A||)^(1/k) ||A||^(1-1/k) under rounding, into k values of about
+// equal distance from c around it, while their mean stays within rounding
+// of c (the mean of a cluster is well conditioned: Kato 1966, Perturbation
+// Theory for Linear Operators, II-2.2, from memory). So: the k >= 2
+// values nearest c (not already equal to c), within a factor 2 of each
+// other in distance, inside that bound, with a mean within thr of c, and
+// the next value over 100 times farther, are c. A triple integrator
+// otherwise reads as poles near 4e-6 and drags frequency ranges down.
+func zeroCluster(vals []complex128, c complex128, thr, norm float64) {
+	idx := make([]int, 0, len(vals))
+	for i, v := range vals {
+		if v != c {
+			idx = append(idx, i)
+		}
+	}
+	sort.Slice(idx, func(a, b int) bool { return cmplx.Abs(vals[idx[a]]-c) < cmplx.Abs(vals[idx[b]]-c) })
+	const u = 1.1102230246251565e-16
+	for k := min(len(idx), 8); k >= 2; k-- {
+		var sum complex128
+		for _, i := range idx[:k] {
+			sum += vals[i] - c
+		}
+		lo, hi := cmplx.Abs(vals[idx[0]]-c), cmplx.Abs(vals[idx[k-1]]-c)
+		bound := math.Pow(1e3*u*norm, 1/float64(k)) * math.Pow(norm, 1-1/float64(k))
+		next := math.Inf(1)
+		if k < len(idx) {
+			next = cmplx.Abs(vals[idx[k]] - c)
+		}
+		if hi <= 2*lo && hi <= bound && cmplx.Abs(sum)/float64(k) <= thr && next > 100*hi {
+			for _, i := range idx[:k] {
+				vals[i] = c
+			}
+			return
+		}
+	}
+}
+
 func negligible(A *mat.Dense) float64 {
 	if A == nil {
 		return 0

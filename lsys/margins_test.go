@@ -1,0 +1,182 @@
+package lsys
+
+import (
+	"context"
+	"math"
+	"math/cmplx"
+	"testing"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+func TestMarginsIntegratorAnyGain(t *testing.T) {
+	// L = K/s: |L(jw)| = K/w crosses 1 at w = K with the phase at -90
+	// degrees, so the phase margin is 90 degrees and the delay margin
+	// (pi/2)/K (common practice). Gains far outside the automatic range
+	// 0.1..100 rad/s of a loop with no nonzero pole must still be found.
+	for _, K := range []float64{1e-3, 0.5, 30, 2e5} {
+		mg, err := LoopMargins(context.Background(), siso(t, []float64{K}, []float64{0, 1}), FrequencyOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(mg.GainCrossovers) != 1 || math.Abs(mg.GainCrossover-K)/K > 1e-12 {
+			t.Errorf("K=%g: gain crossovers %v, want one at %g", K, mg.GainCrossovers, K)
+			continue
+		}
+		if math.Abs(mg.PhaseMargin-90) > 1e-9 {
+			t.Errorf("K=%g: PM %g want 90", K, mg.PhaseMargin)
+		}
+		if want := math.Pi / 2 / K; math.Abs(mg.DelayMargin-want)/want > 1e-12 {
+			t.Errorf("K=%g: delay margin %g want %g", K, mg.DelayMargin, want)
+		}
+		// T = K/(s+K): bandwidth K, |T| largest at w = 0 (common practice)
+		if math.Abs(mg.Bandwidth-K)/K > 1e-9 {
+			t.Errorf("K=%g: bandwidth %g want %g", K, mg.Bandwidth, K)
+		}
+		if mg.ResonantFreq != 0 || math.Abs(mg.ResonantPeak) > 1e-12 || len(mg.Notes) != 1 {
+			t.Errorf("K=%g: resonant peak %g dB at %g, notes %q; want 0 dB at 0 with one note", K, mg.ResonantPeak, mg.ResonantFreq, mg.Notes)
+		}
+	}
+}
+
+// buckLoop is a buck converter's output filter (inductor L with
+// resistance Rl, capacitor C, load R; duty-cycle voltage in, capacitor
+// voltage out) in series with the PI controller 0.05 (1 + 2000/s)
+// (invented demo values).
+const (
+	bkL, bkC, bkR, bkRl = 22e-6, 100e-6, 2.0, 0.02
+)
+
+func buckLoop(t *testing.T) *System {
+	t.Helper()
+	A := mat.NewDense(2, 2, []float64{-bkRl / bkL, -1 / bkL, 1 / bkC, -1 / (bkR * bkC)})
+	B := mat.NewDense(2, 1, []float64{1 / bkL, 0})
+	C := mat.NewDense(1, 2, []float64{0, 1})
+	plant, err := FromMatrices(A, B, C, nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	loop, err := Series(plant, siso(t, []float64{0.05 * 2000, 0.05}, []float64{0, 1}))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return loop
+}
+
+// buckExact is L(jw) from the circuit by hand: V/U =
+// 1/((L s + Rl)(C s + 1/R) + 1), times 0.05 (1 + 2000/s).
+func buckExact(w float64) complex128 {
+	s := complex(0, w)
+	return 1 / ((complex(bkL, 0)*s+complex(bkRl, 0))*(complex(bkC, 0)*s+complex(1/bkR, 0)) + 1) * 0.05 * (1 + 2000/s)
+}
+
+// bisectLog finds where f changes sign between a and b (geometric bisection).
+func bisectLog(a, b float64, f func(float64) float64) float64 {
+	fa := f(a)
+	for i := 0; i < 200; i++ {
+		m := math.Sqrt(a * b)
+		if (f(m) > 0) == (fa > 0) {
+			a = m
+		} else {
+			b = m
+		}
+	}
+	return math.Sqrt(a * b)
+}
+
+func TestMarginsConverterCrossoverBelowModes(t *testing.T) {
+	// The crossover (|L| = 0.99 at 100 rad/s) lies below the decade under
+	// the slowest pole or zero (the PI zero at 2000 rad/s), where the
+	// unwidened range used to start. Reference: bisection on the exact
+	// |L(jw)| of buckExact.
+	mg, err := LoopMargins(context.Background(), buckLoop(t), FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	wc := bisectLog(10, 1000, func(w float64) float64 { return cmplx.Abs(buckExact(w)) - 1 })
+	pm := 180 + cmplx.Phase(buckExact(wc))*180/math.Pi
+	if len(mg.GainCrossovers) != 1 || math.Abs(mg.GainCrossover-wc)/wc > 1e-9 {
+		t.Fatalf("gain crossovers %v, want %g", mg.GainCrossovers, wc)
+	}
+	if math.Abs(mg.PhaseMargin-pm) > 1e-7 {
+		t.Errorf("PM %g want %g", mg.PhaseMargin, pm)
+	}
+	if len(mg.PhaseCrossovers) != 0 {
+		t.Errorf("phase crossovers %v, want none (the phase stays above -180)", mg.PhaseCrossovers)
+	}
+	absT := func(w float64) float64 { l := buckExact(w); return cmplx.Abs(l / (1 + l)) }
+	bw := bisectLog(10, 1000, func(w float64) float64 { return absT(w) - 1/math.Sqrt2 })
+	if math.Abs(mg.Bandwidth-bw)/bw > 1e-9 {
+		t.Errorf("bandwidth %g want %g", mg.Bandwidth, bw)
+	}
+	if mg.ResonantFreq != 0 || len(mg.Notes) != 1 {
+		t.Errorf("resonant peak %g dB at %g, notes %q; want |T| largest at 0 and said so", mg.ResonantPeak, mg.ResonantFreq, mg.Notes)
+	}
+	if mg.Loop.W[0] > wc/3 {
+		t.Errorf("chart starts at %g rad/s, above a third of the crossover %g", mg.Loop.W[0], wc)
+	}
+	// frequency(G) of the same loop takes the crossover in too
+	f, err := Frequency(context.Background(), buckLoop(t), FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if f.W[0] > wc {
+		t.Errorf("frequency range starts at %g rad/s, above the 0 dB crossing %g", f.W[0], wc)
+	}
+	// a range given is kept, and the notes say a crossover lies below it
+	mg, err = LoopMargins(context.Background(), buckLoop(t), FrequencyOptions{From: 200, To: 1e6})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(mg.GainCrossovers) != 0 || len(mg.Notes) == 0 || mg.Loop.W[0] != 200 {
+		t.Errorf("range given: crossovers %v, notes %q, from %g", mg.GainCrossovers, mg.Notes, mg.Loop.W[0])
+	}
+}
+
+func TestFrequencyRangeWithIntegrator(t *testing.T) {
+	// 0.002/s and 5e4/s cross 0 dB at 0.002 and 5e4 rad/s (common
+	// practice), outside 0.1..100 rad/s, the range of a system with no
+	// nonzero pole or zero: the automatic range widens to take them in.
+	for _, K := range []float64{0.002, 5e4} {
+		f, err := Frequency(context.Background(), siso(t, []float64{K}, []float64{0, 1}), FrequencyOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if lo, hi := f.W[0], f.W[len(f.W)-1]; lo > K || hi < K {
+			t.Errorf("K=%g: range %g..%g misses the crossing (%s)", K, lo, hi, f.Rule)
+		}
+	}
+}
+
+func TestMarginsConditionallyStableTripleIntegrator(t *testing.T) {
+	// L = 10 (s+1)^2 / (s^3 (s/100+1)^2): the phase -270 + 2 atan w -
+	// 2 atan(w/100) is -180 where 0.99 w / (1 + w^2/100) = 1, that is at
+	// w = (99 -+ sqrt(9401))/2, and |L| = 10 (1+w^2) / (w^3 (1+w^2/1e4))
+	// (by hand). The triple pole at 0 is computed as a cluster of radius
+	// about 4e-6 and must not drag the range down to where the
+	// evaluation loses all digits.
+	L := siso(t, []float64{10, 20, 10}, []float64{0, 0, 0, 1, 2e-2, 1e-4})
+	mg, err := LoopMargins(context.Background(), L, FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []float64{(99 - math.Sqrt(9401)) / 2, (99 + math.Sqrt(9401)) / 2}
+	if len(mg.PhaseCrossovers) != 2 {
+		t.Fatalf("phase crossovers %v, want %v", mg.PhaseCrossovers, want)
+	}
+	for i, w := range want {
+		if math.Abs(mg.PhaseCrossovers[i]-w)/w > 1e-9 {
+			t.Errorf("phase crossover %d: %g want %g", i, mg.PhaseCrossovers[i], w)
+		}
+		gm := -20 * math.Log10(10*(1+w*w)/(w*w*w*(1+w*w/1e4)))
+		if math.Abs(mg.GainMarginsDB[i]-gm) > 1e-7 {
+			t.Errorf("gain margin %d: %g dB want %g", i, mg.GainMarginsDB[i], gm)
+		}
+	}
+	if !mg.ClosedStable {
+		t.Error("conditionally stable loop reported unstable")
+	}
+	if lo := mg.Loop.W[0]; lo < 1e-3 {
+		t.Errorf("range starts at %g rad/s", lo)
+	}
+}
