@@ -118,11 +118,19 @@ func (rpLogTicks) Ticks(min, max float64) []plot.Tick {
 	}
 	lo := int(math.Floor(math.Log10(min) + 1e-9))
 	hi := int(math.Ceil(math.Log10(max) - 1e-9))
+	// the decades that get a label
+	first, last := lo, hi
+	if math.Pow10(first) < min*(1-1e-9) {
+		first++
+	}
+	if math.Pow10(last) > max*(1+1e-9) {
+		last--
+	}
 	var out []plot.Tick
 	for e := lo; e <= hi; e++ {
 		v := math.Pow10(e)
 		if v >= min*(1-1e-9) && v <= max*(1+1e-9) {
-			out = append(out, plot.Tick{Value: v, Label: strconv.FormatFloat(v, 'g', -1, 64)})
+			out = append(out, plot.Tick{Value: v, Label: rpDecadeLabel(e, first, last)})
 		}
 		for i := 2; i < 10 && e < hi; i++ {
 			if w := v * float64(i); w >= min && w <= max {
@@ -131,6 +139,19 @@ func (rpLogTicks) Ticks(min, max float64) []plot.Tick {
 		}
 	}
 	return out
+}
+
+// rpDecadeLabel labels the decade 10^e on an axis whose labelled decades
+// run from lo to hi: plain numbers (0.01 ... 1000) when they all fit in
+// five characters, otherwise every decade as 1eN (1e-3, 1e0, 1e6), one
+// style per axis instead of 'g' formatting's mix of "100000" and "1e+06".
+// Superscript exponents (10⁶) would read best, but the chart font lacks
+// ⁰, ⁹ and the superscript minus, so a PNG would drop them.
+func rpDecadeLabel(e, lo, hi int) string {
+	if lo >= -2 && hi <= 3 {
+		return strconv.FormatFloat(math.Pow10(e), 'f', -1, 64)
+	}
+	return "1e" + strconv.Itoa(e)
 }
 
 // rpStepTicker puts ticks at multiples of the first step that gives at
@@ -152,6 +173,9 @@ func (tk rpStepTicker) Ticks(min, max float64) []plot.Tick {
 	}
 	var out []plot.Tick
 	for v := math.Ceil(min/step) * step; v <= max; v += step {
+		if v == 0 {
+			v = 0 // not "-0" when the range starts just below zero
+		}
 		out = append(out, plot.Tick{Value: v, Label: strconv.FormatFloat(v, 'f', -1, 64)})
 	}
 	return out

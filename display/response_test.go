@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/plot"
 
 	"lsys/lsys"
 )
@@ -208,5 +209,37 @@ func TestMarginsChartAnnotatesEveryCrossover(t *testing.T) {
 	txt, _ := b.Data[Text].(string)
 	if strings.Count(txt, "(PM ") != 3 {
 		t.Errorf("text lists fewer than 3 phase margins:\n%s", txt)
+	}
+}
+
+func TestAxisTickLabels(t *testing.T) {
+	labels := func(ticks []plot.Tick) []string {
+		var out []string
+		for _, tk := range ticks {
+			if tk.Label != "" {
+				out = append(out, tk.Label)
+			}
+		}
+		return out
+	}
+	// one style per axis: plain numbers while all are short, else 1eN
+	for _, c := range []struct {
+		lo, hi float64
+		want   string
+	}{
+		{0.1, 100, "0.1 1 10 100"},
+		{0.01, 1000, "0.01 0.1 1 10 100 1000"},
+		{100, 1e6, "1e2 1e3 1e4 1e5 1e6"},
+		{3e-4, 20, "1e-3 1e-2 1e-1 1e0 1e1"},
+	} {
+		if got := strings.Join(labels(rpLogTicks{}.Ticks(c.lo, c.hi)), " "); got != c.want {
+			t.Errorf("log ticks %g..%g: %q want %q", c.lo, c.hi, got, c.want)
+		}
+	}
+	// a dB axis starting just below zero labels 0, not -0
+	for _, l := range labels(rpDBTicker.Ticks(-1e-9, 30)) {
+		if l == "-0" {
+			t.Error(`dB axis labels "-0"`)
+		}
 	}
 }
