@@ -430,10 +430,16 @@ func freeOrForced(ctx context.Context, g *System, kind string, x0 []float64, opt
 	if n > 0 {
 		if g.Sampled() {
 			Phi, Gam = g.A, g.B
-		} else if m > 0 {
-			Phi, Gam = zohPair(g.A, g.B, h)
 		} else {
-			Phi = expm(scale(h, g.A))
+			var err error
+			if m > 0 {
+				Phi, Gam, err = zohPair(g.A, g.B, h)
+			} else {
+				Phi, err = Expm(scale(h, g.A))
+			}
+			if err != nil {
+				return nil, fmt.Errorf("response: the transition over one step: %w", err)
+			}
 		}
 	}
 	// One state vector per channel; matrix-vector products (BLAS Dgemv)
@@ -578,9 +584,12 @@ func Simulate(ctx context.Context, g *System, u Signal, x0 []float64, opt Respon
 		case g.Sampled():
 			Phi, G1 = g.A, g.B
 		case linear:
-			Phi, G1, G2 = fohTriple(g.A, g.B, h)
+			Phi, G1, G2, err = fohTriple(g.A, g.B, h)
 		default:
-			Phi, G1 = zohPair(g.A, g.B, h)
+			Phi, G1, err = zohPair(g.A, g.B, h)
+		}
+		if err != nil {
+			return nil, fmt.Errorf("response: the transition over one step: %w", err)
 		}
 	}
 	x := make([]float64, n)

@@ -70,17 +70,23 @@ func Sample(g *System, T float64, method string, prewarp float64) (*System, erro
 	switch method {
 	case MethodZOH, "":
 		if n == 0 || m == 0 {
-			out, err = NewSystem(n, m, p, expm(scale(T, g.A)), nil, g.C, g.D, T)
+			out, err = sampleFree(g, T)
 			break
 		}
-		Phi, Gam := zohPair(g.A, g.B, T)
+		Phi, Gam, xerr := zohPair(g.A, g.B, T)
+		if xerr != nil {
+			return nil, fmt.Errorf("sample: %w", xerr)
+		}
 		out, err = NewSystem(n, m, p, Phi, Gam, g.C, g.D, T)
 	case MethodFOH:
 		if n == 0 || m == 0 {
-			out, err = NewSystem(n, m, p, expm(scale(T, g.A)), nil, g.C, g.D, T)
+			out, err = sampleFree(g, T)
 			break
 		}
-		Phi, G1, G2 := fohTriple(g.A, g.B, T)
+		Phi, G1, G2, xerr := fohTriple(g.A, g.B, T)
+		if xerr != nil {
+			return nil, fmt.Errorf("sample: %w", xerr)
+		}
 		var PmI mat.Dense
 		PmI.Sub(Phi, identity(n))
 		Bd := add(G1, mul(&PmI, G2))
@@ -193,7 +199,10 @@ func Continuous(gd *System, method string, prewarp float64) (*System, error) {
 			return nil, fmt.Errorf("continuous: %w", lerr)
 		}
 		A := scale(1/T, L)
-		_, M1, M2 := fohTriple(A, identity(n), T)
+		_, M1, M2, xerr := fohTriple(A, identity(n), T)
+		if xerr != nil {
+			return nil, fmt.Errorf("continuous: %w", xerr)
+		}
 		N := add(M1, mul(add(gd.A, scale(-1, identity(n))), M2))
 		var lu mat.LU
 		lu.Factorize(N)
@@ -243,28 +252,34 @@ func bilinear(g *System, h, T float64) (*System, error) {
 	return NewSystem(n, m, p, Ad, Bd, Cd, Dd, T)
 }
 
-// expm is the matrix exponential (gonum: Higham's scaling and squaring).
-func expm(a *mat.Dense) *mat.Dense {
-	if a == nil {
-		return nil
+// sampleFree samples a system without states or without inputs: only
+// A changes, to e^{AT}.
+func sampleFree(g *System, T float64) (*System, error) {
+	var Ad *mat.Dense
+	if g.N() > 0 {
+		var err error
+		if Ad, err = Expm(scale(T, g.A)); err != nil {
+			return nil, fmt.Errorf("sample: %w", err)
+		}
 	}
-	var e mat.Dense
-	e.Exp(a)
-	return &e
+	return NewSystem(g.N(), g.M(), g.P(), Ad, nil, g.C, g.D, T)
 }
 
 // zohPair returns Phi = e^{AT} and Gamma = int_0^T e^{As} ds B (Van Loan 1978).
-func zohPair(A, B *mat.Dense, T float64) (*mat.Dense, *mat.Dense) {
+func zohPair(A, B *mat.Dense, T float64) (*mat.Dense, *mat.Dense, error) {
 	n, _ := A.Dims()
 	_, m := B.Dims()
 	M := blocks([]int{n, m}, []int{n, m}, [][]*mat.Dense{{scale(T, A), scale(T, B)}, {nil, nil}})
-	E := expm(M)
-	return mat.DenseCopyOf(E.Slice(0, n, 0, n)), mat.DenseCopyOf(E.Slice(0, n, n, n+m))
+	E, err := Expm(M)
+	if err != nil {
+		return nil, nil, err
+	}
+	return mat.DenseCopyOf(E.Slice(0, n, 0, n)), mat.DenseCopyOf(E.Slice(0, n, n, n+m)), nil
 }
 
 // fohTriple returns Phi, Gamma1 = int_0^T e^{As} ds B and
 // Gamma2 = int_0^T e^{A(T-t)} B t/T dt from one block exponential (Van Loan 1978).
-func fohTriple(A, B *mat.Dense, T float64) (*mat.Dense, *mat.Dense, *mat.Dense) {
+func fohTriple(A, B *mat.Dense, T float64) (*mat.Dense, *mat.Dense, *mat.Dense, error) {
 	n, _ := A.Dims()
 	_, m := B.Dims()
 	M := blocks([]int{n, m, m}, []int{n, m, m}, [][]*mat.Dense{
@@ -272,8 +287,11 @@ func fohTriple(A, B *mat.Dense, T float64) (*mat.Dense, *mat.Dense, *mat.Dense) 
 		{nil, nil, identity(m)},
 		{nil, nil, nil},
 	})
-	E := expm(M)
-	return mat.DenseCopyOf(E.Slice(0, n, 0, n)), mat.DenseCopyOf(E.Slice(0, n, n, n+m)), mat.DenseCopyOf(E.Slice(0, n, n+m, n+2*m))
+	E, err := Expm(M)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	return mat.DenseCopyOf(E.Slice(0, n, 0, n)), mat.DenseCopyOf(E.Slice(0, n, n, n+m)), mat.DenseCopyOf(E.Slice(0, n, n+m, n+2*m)), nil
 }
 
 // logm is the principal logarithm by inverse scaling and squaring: take
