@@ -21,9 +21,16 @@ type Sensitivity struct {
 	// D[k][j] = d Eigenvalues[k] / d Parameters[j].
 	D [][]complex128
 	// Cond[k] = 1/|w^H v| for unit left and right eigenvectors; +Inf for a
-	// defective eigenvalue, whose derivative does not exist (D is then NaN).
+	// defective eigenvalue.
 	Cond []float64
-	Ts   float64 // sample time of the model (0: continuous)
+	// Multiplicity[k] is 1 for a simple eigenvalue. A repeated one (a
+	// cluster found by Jordan, with its tolerances) is listed once, at the
+	// mean of its computed members, with D NaN: it has no derivative
+	// (defective, Defective[k] true) or one that depends on the direction
+	// of the change (semisimple).
+	Multiplicity []int
+	Defective    []bool
+	Ts           float64 // sample time of the model (0: continuous)
 }
 
 // EigenvalueSensitivity returns d lambda / d p_j for every simple eigenvalue
@@ -33,7 +40,8 @@ type Sensitivity struct {
 //
 // with v and w the right and left eigenvectors (Wilkinson, The Algebraic
 // Eigenvalue Problem, 1965, ch. 2; also Jacobi 1846). names and values
-// label the parameters.
+// label the parameters. Repeated eigenvalues, found as clusters of the
+// Jordan structure, are listed once with an undefined (NaN) derivative.
 func EigenvalueSensitivity(A *mat.Dense, dA []*mat.Dense, names []string, values []float64, ts float64) (*Sensitivity, error) {
 	if A == nil {
 		return nil, fmt.Errorf("the model has no states, so no eigenvalues")
@@ -57,14 +65,43 @@ func EigenvalueSensitivity(A *mat.Dense, dA []*mat.Dense, names []string, values
 	if err != nil {
 		return nil, err
 	}
+	// Repeated eigenvalues: clusters of the Jordan structure (Golub &
+	// Wilkinson 1976), with the default tolerances of Jordan.
+	js, err := jordanFrom(A, es, 0, 0, 0)
+	if err != nil {
+		return nil, err
+	}
+	cluster := map[int]*JordanCluster{}
+	for c := range js.Clusters {
+		jc := &js.Clusters[c]
+		if jc.Algebraic > 1 {
+			for _, i := range jc.idx {
+				cluster[i] = jc
+			}
+		}
+	}
 	var idx []int
+	listed := map[*JordanCluster]bool{}
 	for k, l := range es.Values {
+		if jc := cluster[k]; jc != nil {
+			if !listed[jc] {
+				listed[jc] = true
+				idx = append(idx, k)
+			}
+			continue
+		}
 		if imag(l) >= 0 {
 			idx = append(idx, k)
 		}
 	}
+	value := func(k int) complex128 {
+		if jc := cluster[k]; jc != nil {
+			return jc.Value
+		}
+		return es.Values[k]
+	}
 	sort.SliceStable(idx, func(a, b int) bool {
-		la, lb := es.Values[idx[a]], es.Values[idx[b]]
+		la, lb := value(idx[a]), value(idx[b])
 		if ma, mb := cmplx.Abs(la), cmplx.Abs(lb); ma != mb {
 			return ma < mb
 		}
@@ -72,6 +109,18 @@ func EigenvalueSensitivity(A *mat.Dense, dA []*mat.Dense, names []string, values
 	})
 	out := &Sensitivity{Parameters: append([]string(nil), names...), Values: append([]float64(nil), values...), Ts: ts}
 	for _, k := range idx {
+		if jc := cluster[k]; jc != nil {
+			row := make([]complex128, len(dA))
+			for j := range row {
+				row[j] = cmplx.NaN()
+			}
+			out.Eigenvalues = append(out.Eigenvalues, jc.Value)
+			out.D = append(out.D, row)
+			out.Cond = append(out.Cond, jc.Cond)
+			out.Multiplicity = append(out.Multiplicity, jc.Algebraic)
+			out.Defective = append(out.Defective, jc.Defective())
+			continue
+		}
 		v, w := es.Right[k], es.Left[k]
 		whv := dotH(w, v)
 		row := make([]complex128, len(dA))
@@ -94,6 +143,8 @@ func EigenvalueSensitivity(A *mat.Dense, dA []*mat.Dense, names []string, values
 		out.Eigenvalues = append(out.Eigenvalues, es.Values[k])
 		out.D = append(out.D, row)
 		out.Cond = append(out.Cond, es.Cond[k])
+		out.Multiplicity = append(out.Multiplicity, 1)
+		out.Defective = append(out.Defective, false)
 	}
 	return out, nil
 }
@@ -135,6 +186,14 @@ func (s *Sensitivity) String() string {
 		fmt.Fprintf(&b, "\n  %s = %.6g", p, s.Values[j])
 	}
 	for k, l := range s.Eigenvalues {
+		if k < len(s.Multiplicity) && s.Multiplicity[k] > 1 {
+			kind := "semisimple: the derivative depends on the direction of the change"
+			if s.Defective[k] {
+				kind = "defective: no derivative"
+			}
+			fmt.Fprintf(&b, "\neigenvalue %s, repeated %d times (%s)", fmtC(l), s.Multiplicity[k], kind)
+			continue
+		}
 		fmt.Fprintf(&b, "\neigenvalue %s (condition %.3g):", fmtC(l), s.Cond[k])
 		for j, p := range s.Parameters {
 			fmt.Fprintf(&b, "\n  d/d%s = %s", p, fmtC(s.D[k][j]))
