@@ -80,12 +80,21 @@ type (
 		Name  *Ident
 		Value Expr
 	}
-	// IndexExpr is x[i] or x[i, j] (1-based).
+	// IndexExpr is x[i] or x[i, j] (1-based); an index may be a
+	// RangeExpr.
 	IndexExpr struct {
 		X       Expr
 		Lbrack  Pos
 		Indices []Expr
 		Rbrack  Pos
+	}
+	// RangeExpr is lo:hi inside an index (positions lo to hi, both
+	// included); Lo or Hi is nil when left out (from the first, to the
+	// last).
+	RangeExpr struct {
+		Lo    Expr
+		Colon Pos
+		Hi    Expr
 	}
 	// FieldExpr is x.name.
 	FieldExpr struct {
@@ -163,17 +172,23 @@ type (
 	}
 )
 
-func (x *Ident) Pos() Pos       { return x.NamePos }
-func (x *NumberLit) Pos() Pos   { return x.LitPos }
-func (x *StringLit) Pos() Pos   { return x.LitPos }
-func (x *BoolLit) Pos() Pos     { return x.LitPos }
-func (x *ListLit) Pos() Pos     { return x.Lbrack }
-func (x *RecordLit) Pos() Pos   { return x.Lbrace }
-func (x *UnaryExpr) Pos() Pos   { return x.OpPos }
-func (x *BinaryExpr) Pos() Pos  { return x.X.Pos() }
-func (x *CallExpr) Pos() Pos    { return x.Fun.Pos() }
-func (x *IndexExpr) Pos() Pos   { return x.X.Pos() }
-func (x *FieldExpr) Pos() Pos   { return x.X.Pos() }
+func (x *Ident) Pos() Pos      { return x.NamePos }
+func (x *NumberLit) Pos() Pos  { return x.LitPos }
+func (x *StringLit) Pos() Pos  { return x.LitPos }
+func (x *BoolLit) Pos() Pos    { return x.LitPos }
+func (x *ListLit) Pos() Pos    { return x.Lbrack }
+func (x *RecordLit) Pos() Pos  { return x.Lbrace }
+func (x *UnaryExpr) Pos() Pos  { return x.OpPos }
+func (x *BinaryExpr) Pos() Pos { return x.X.Pos() }
+func (x *CallExpr) Pos() Pos   { return x.Fun.Pos() }
+func (x *IndexExpr) Pos() Pos  { return x.X.Pos() }
+func (x *FieldExpr) Pos() Pos  { return x.X.Pos() }
+func (x *RangeExpr) Pos() Pos {
+	if x.Lo != nil {
+		return x.Lo.Pos()
+	}
+	return x.Colon
+}
 func (x *IfExpr) Pos() Pos      { return x.IfPos }
 func (x *SystemBlock) Pos() Pos { return x.SystemPos }
 func (x *Decl) Pos() Pos        { return x.KindPos }
@@ -193,6 +208,7 @@ func (*BinaryExpr) exprNode()  {}
 func (*CallExpr) exprNode()    {}
 func (*IndexExpr) exprNode()   {}
 func (*FieldExpr) exprNode()   {}
+func (*RangeExpr) exprNode()   {}
 func (*IfExpr) exprNode()      {}
 func (*SystemBlock) exprNode() {}
 

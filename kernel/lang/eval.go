@@ -586,6 +586,36 @@ func (ev *evaluator) index1(e Expr, size int, what string) (int, error) {
 	return int(f) - 1, nil
 }
 
+// span reads one index: a position or a range lo:hi. It returns the
+// 0-based first and last positions (both included) and whether it was a
+// range.
+func (ev *evaluator) span(e Expr, size int, what string) (lo, hi int, isRange bool, err error) {
+	r, ok := e.(*RangeExpr)
+	if !ok {
+		i, err := ev.index1(e, size, what)
+		return i, i, false, err
+	}
+	lo, hi = 0, size-1
+	if size == 0 {
+		return 0, 0, true, ev.errorAt(r.Pos(), fmt.Sprintf("%s is empty: there is nothing to take", what), "Index something with entries.")
+	}
+	if r.Lo != nil {
+		if lo, err = ev.index1(r.Lo, size, what); err != nil {
+			return 0, 0, true, err
+		}
+	}
+	if r.Hi != nil {
+		if hi, err = ev.index1(r.Hi, size, what); err != nil {
+			return 0, 0, true, err
+		}
+	}
+	if hi < lo {
+		return 0, 0, true, ev.errorAt(r.Colon, fmt.Sprintf("the range %d:%d is empty (it counts upwards)", lo+1, hi+1),
+			fmt.Sprintf("Write the first position first: [%d:%d].", hi+1, lo+1))
+	}
+	return lo, hi, true, nil
+}
+
 func (ev *evaluator) evalIndex(x *IndexExpr) (any, error) {
 	v, err := ev.eval(x.X)
 	if err != nil {
@@ -594,13 +624,16 @@ func (ev *evaluator) evalIndex(x *IndexExpr) (any, error) {
 	switch t := v.(type) {
 	case *List:
 		if len(x.Indices) != 1 {
-			return nil, ev.errorAt(x.Lbrack, "a list takes one index", "Write l[2].")
+			return nil, ev.errorAt(x.Lbrack, "a list takes one index", "Write l[2] or l[2:3].")
 		}
-		i, err := ev.index1(x.Indices[0], len(t.Items), typeName(t))
+		lo, hi, isRange, err := ev.span(x.Indices[0], len(t.Items), typeName(t))
 		if err != nil {
 			return nil, err
 		}
-		return t.Items[i], nil
+		if isRange {
+			return &List{Items: append([]any(nil), t.Items[lo:hi+1]...)}, nil
+		}
+		return t.Items[lo], nil
 	case *mat.Dense, *mat.CDense:
 		var r, c int
 		if d, ok := v.(*mat.Dense); ok {
@@ -614,31 +647,58 @@ func (ev *evaluator) evalIndex(x *IndexExpr) (any, error) {
 			}
 			return v.(*mat.CDense).At(i, j)
 		}
+		// sub copies rows r0..r1 and columns c0..c1 (both included).
+		sub := func(r0, r1, c0, c1 int) any {
+			if d, ok := v.(*mat.Dense); ok {
+				return mat.DenseCopyOf(d.Slice(r0, r1+1, c0, c1+1))
+			}
+			d := v.(*mat.CDense)
+			out := mat.NewCDense(r1-r0+1, c1-c0+1, nil)
+			for i := r0; i <= r1; i++ {
+				for j := c0; j <= c1; j++ {
+					out.Set(i-r0, j-c0, d.At(i, j))
+				}
+			}
+			return realIfPossible(out)
+		}
 		switch len(x.Indices) {
 		case 1:
 			if r != 1 && c != 1 {
-				return nil, ev.errorAt(x.Lbrack, fmt.Sprintf("%s needs a row and a column", typeName(v)), "Write M[2, 1] (row 2, column 1).")
+				return nil, ev.errorAt(x.Lbrack, fmt.Sprintf("%s needs a row and a column", typeName(v)), "Write M[2, 1] (row 2, column 1), M[2, :] (row 2) or M[:, 1] (column 1).")
 			}
-			i, err := ev.index1(x.Indices[0], r*c, typeName(v))
+			lo, hi, isRange, err := ev.span(x.Indices[0], r*c, typeName(v))
 			if err != nil {
 				return nil, err
 			}
-			if c == 1 {
-				return at(i, 0), nil
+			switch {
+			case !isRange && c == 1:
+				return at(lo, 0), nil
+			case !isRange:
+				return at(0, lo), nil
+			case c == 1:
+				return sub(lo, hi, 0, 0), nil
 			}
-			return at(0, i), nil
+			return sub(0, 0, lo, hi), nil
 		case 2:
-			i, err := ev.index1(x.Indices[0], r, fmt.Sprintf("the rows of %s", typeName(v)))
+			r0, r1, rr, err := ev.span(x.Indices[0], r, fmt.Sprintf("the rows of %s", typeName(v)))
 			if err != nil {
 				return nil, err
 			}
-			j, err := ev.index1(x.Indices[1], c, fmt.Sprintf("the columns of %s", typeName(v)))
+			c0, c1, cr, err := ev.span(x.Indices[1], c, fmt.Sprintf("the columns of %s", typeName(v)))
 			if err != nil {
 				return nil, err
 			}
-			return at(i, j), nil
+			if !rr && !cr {
+				return at(r0, c0), nil
+			}
+			return sub(r0, r1, c0, c1), nil
 		}
 		return nil, ev.errorAt(x.Lbrack, "a matrix takes one or two indices", "Write v[3] or M[2, 1].")
+	}
+	for _, e := range x.Indices {
+		if r, ok := e.(*RangeExpr); ok {
+			return nil, ev.errorAt(r.Colon, fmt.Sprintf("%s cannot be sliced", typeName(v)), "Ranges a:b select entries of vectors, matrices and lists.")
+		}
 	}
 	return nil, ev.errorAt(x.Lbrack, fmt.Sprintf("%s cannot be indexed", typeName(v)), "Index vectors, matrices and lists: v[3], M[2, 1].")
 }

@@ -111,3 +111,34 @@ func TestFamilyLocusAndSensitivityClosedForm(t *testing.T) {
 		t.Errorf("parameter values %v, want [5 0.4]", sens.Values)
 	}
 }
+
+// Slicing with ranges lo:hi (both ends included, 1-based): values follow
+// from the definition in SPEC.md section 5.
+func TestSlicing(t *testing.T) {
+	const M = "M = [[1, 2, 3], [4, 5, 6], [7, 8, 9]]\n"
+	runCells(t, []cell{
+		{src: M + "M[1, :]", want: "1  2  3"},
+		{src: M + "M[:, 2]", want: "2\n5\n8"},
+		{src: M + "M[2:3, 1:2]", want: "4  5\n7  8"},
+		{src: M + "M[2:, :2]", want: "4  5\n7  8"},
+		{src: M + "M[:, :] == M", want: "true"},
+		{src: M + "M[2, 3]", want: "6"},
+		{src: M + "M[3, 2:2]", want: "8"},
+		{src: "v = [10, 20, 30, 40]\nv[2:3]", want: "20\n30"},
+		{src: "v = [10, 20, 30, 40]\nv[3:]", want: "30\n40"},
+		{src: "r = [[10, 20, 30]]\nr[:2]", want: "10  20"},
+		{src: "[\"k\", \"b\", \"m\"][2:3]", want: "[\"b\", \"m\"]"},
+		{src: "C = [[1 + 2j, 3], [4, 5j]]\nC[2, :]", want: "4  5j"},
+		{src: "C = [[1 + 2j, 3], [4, 5j]]\nC[:, 1]", want: "1 + 2j\n     4"},
+		{src: "C = [[1 + 2j, 3], [4, 5j]]\nC[2, 1:1]", want: "4"},
+		{src: "G = system([[0, 1], [-2, -3]], [0, 1], [1, 0])\nG.A[2, :]", want: "-2  -3"},
+	})
+	runCells(t, []cell{
+		{src: "v = [1, 2, 3]\nv[3:2]", err: "the range 3:2 is empty", line: 2, col: 4},
+		{src: "v = [1, 2, 3]\nv[2:5]", err: "index 5 is out of range", line: 2, col: 5},
+		{src: "M = [[1, 2], [3, 4]]\nM[1:2]", err: "needs a row and a column", line: 2, col: 2},
+		{src: "M = [[1, 2], [3, 4]]\nM[:, 0]", err: "index 0 is out of range for the columns", line: 2, col: 6},
+		{src: "x = 3\nx[1:2]", err: "a number cannot be sliced", line: 2, col: 4},
+		{src: "v = [1, 2]\nv[1:1.5]", err: "an index must be a whole number", line: 2, col: 5},
+	})
+}

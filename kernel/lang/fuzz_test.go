@@ -30,6 +30,8 @@ var fuzzSeeds = []string{
 	"system { states x; x' = -x*x }",
 	"1e999 + 2j ** 3",
 	"# only a comment",
+	"M = [[1, 2], [3, 4]]\nM[:, 2] + M[1:, :1]\n[1, 2, 3][2:][:1]",
+	"f(k) = system {\n  states x\n  x' = -k*x\n}\nlocus(f, k: [1, 2])",
 }
 
 func seedFuzz(f *testing.F) {

@@ -352,6 +352,24 @@ func (p *parser) parsePow() Expr {
 	return x
 }
 
+// parseIndexItem parses a position or a range lo:hi (either end may be
+// left out) inside [ ].
+func (p *parser) parseIndexItem() Expr {
+	var lo Expr
+	if p.tok != COLON {
+		lo = p.parseExpr()
+		if p.tok != COLON {
+			return lo
+		}
+	}
+	r := &RangeExpr{Lo: lo, Colon: p.pos}
+	p.next()
+	if p.tok != COMMA && p.tok != RBRACK {
+		r.Hi = p.parseExpr()
+	}
+	return r
+}
+
 func (p *parser) parsePostfix() Expr {
 	x := p.parsePrimary()
 	for {
@@ -364,7 +382,7 @@ func (p *parser) parsePostfix() Expr {
 			p.next()
 			var idx []Expr
 			for p.tok != RBRACK && p.tok != EOF {
-				idx = append(idx, p.parseExpr())
+				idx = append(idx, p.parseIndexItem())
 				if p.tok != COMMA {
 					break
 				}

@@ -136,6 +136,14 @@ func writeExpr(b *strings.Builder, e Expr, outer int) {
 			writeExpr(b, a, 0)
 		}
 		b.WriteByte(']')
+	case *RangeExpr:
+		if x.Lo != nil {
+			writeExpr(b, x.Lo, 0)
+		}
+		b.WriteByte(':')
+		if x.Hi != nil {
+			writeExpr(b, x.Hi, 0)
+		}
 	case *FieldExpr:
 		writeExpr(b, x.X, 9)
 		b.WriteByte('.')
