@@ -150,3 +150,41 @@ func TestLocusDisplayDeterministic(t *testing.T) {
 		t.Errorf("20,000 values give %d bytes of SVG against %d for 2,000", len(svg), len(short))
 	}
 }
+
+// Unity feedback around k/(s(s+1)(s+2)): the closed-loop polynomial
+// s^3 + 3 s^2 + 2 s + k has a pair on the imaginary axis, at ±j sqrt(2),
+// when k = 3*2 = 6 (the Routh-Hurwitz condition a2 a1 = a0 of a cubic,
+// common practice; this plant is the classic root-locus textbook example,
+// from memory).
+func TestLocusDisplayRouthCrossing(t *testing.T) {
+	ks := lcLinear(0, 15, 301) // step 0.05: 6 is a grid value
+	ks[120] += 0.013           // move it off the grid so the crossing is interpolated
+	var eig [][]complex128
+	for _, k := range ks {
+		es, err := lsys.Eigen(mat.NewDense(3, 3, []float64{0, 1, 0, 0, 0, 1, -k, -2, -3}))
+		if err != nil {
+			t.Fatal(err)
+		}
+		eig = append(eig, es.Values)
+	}
+	l, err := lsys.NewLocus("gain", ks, eig, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cr := lcCrossings(l)
+	if len(cr) != 2 {
+		t.Fatalf("crossings %+v, want the two members of the pair", cr)
+	}
+	for _, c := range cr {
+		// linear interpolation over a step of 0.05: a few 1e-4 off
+		if math.Abs(c.At-6) > 1e-3 || !c.Unstable {
+			t.Errorf("crossing %+v, want into instability at gain = 6", c)
+		}
+	}
+	// the rigid-body pole at 0 for gain = 0 is on the boundary, not a
+	// crossing into stability
+	text := Render(l, Options{}).Data[Text].(string)
+	if strings.Contains(text, "becomes stable") || !strings.Contains(text, "becomes unstable near gain = 6") {
+		t.Errorf("text:\n%s", text)
+	}
+}

@@ -154,7 +154,7 @@ func modelBuiltins() []*Builtin {
 				"eigenvalues of the system are matched to those of the previous value by a minimum-distance assignment (Kuhn 1955), so " +
 				"each branch follows one mode, even where modes cross. Long sweeps show their progress. The function's body may be an " +
 				"equation block: its parameter counts as a parameter of the block. The chart draws each branch from a cross at the " +
-				"first value to a dot at the last, with arrows for the direction and the parameter value at a few points.",
+				"first value to a square at the last, over the damping and frequency grid, with arrowheads for the direction and the parameter value at a few points; the table says where a mode crosses the stability boundary.",
 			Examples: []string{"axis(k) = system([[0, 1], [-k, -0.4]], [0, 1], [1, 0])\nlocus(axis, k: linear(1, 10, n: 20))",
 				"mass = 1; b = 0.4\nmount(k) = system {\n  states position, velocity\n  inputs force\n  position' = velocity\n  velocity' = (force - k*position - b*velocity) / mass\n}\nlocus(mount, k: linear(0.01, 1, n: 40))"},
 			Fn: locusFn,
