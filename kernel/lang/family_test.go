@@ -4,7 +4,9 @@ import (
 	"context"
 	"math"
 	"math/cmplx"
+	"runtime"
 	"testing"
+	"time"
 
 	"lsys/lsys"
 )
@@ -141,4 +143,31 @@ func TestSlicing(t *testing.T) {
 		{src: "x = 3\nx[1:2]", err: "a number cannot be sliced", line: 2, col: 4},
 		{src: "v = [1, 2]\nv[1:1.5]", err: "an index must be a whole number", line: 2, col: 5},
 	})
+}
+
+// The systems a locus builds from a family are not kept by the session:
+// their block sources go with them (the session keeps sources under weak
+// keys), while a system still bound keeps its source for sensitivity.
+func TestLocusDoesNotKeepItsSystems(t *testing.T) {
+	s := NewSession(t.TempDir())
+	if _, err := s.Run(context.Background(), mountFamily+"kept = family(2)\nl = locus(family, k: linear(1, 10, n: 2000))", &recorder{}); err != nil {
+		t.Fatal(err)
+	}
+	n := 0
+	for try := 0; try < 200; try++ {
+		runtime.GC()
+		s.mu.RLock()
+		n = len(s.sources)
+		s.mu.RUnlock()
+		if n <= 1 {
+			break
+		}
+		time.Sleep(2 * time.Millisecond)
+	}
+	if n > 1 {
+		t.Errorf("%d block sources kept after a locus of 2000 values; want only the bound system's", n)
+	}
+	if _, err := s.Run(context.Background(), `sensitivity(kept, ["k"])`, &recorder{}); err != nil {
+		t.Errorf("the bound system lost its source: %v", err)
+	}
 }

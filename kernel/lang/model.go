@@ -16,6 +16,7 @@ import (
 	"fmt"
 	"math"
 	"strings"
+	"weak"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -558,9 +559,7 @@ func (ev *evaluator) evalSystemBlock(b *SystemBlock) (any, error) {
 	if err != nil {
 		return nil, ev.errorAt(b.SystemPos, err.Error(), "Check the parameters: a coefficient is not a finite number.")
 	}
-	ev.s.mu.Lock()
-	ev.s.sources[g] = bs
-	ev.s.mu.Unlock()
+	ev.s.remember(g, bs)
 	return g, nil
 }
 
@@ -915,7 +914,7 @@ func (s *Session) sourceOf(v any) (*blockSource, bool) {
 	case *lsys.System:
 		s.mu.RLock()
 		defer s.mu.RUnlock()
-		bs, ok := s.sources[t]
+		bs, ok := s.sources[weak.Make(t)]
 		return bs, ok
 	}
 	return nil, false

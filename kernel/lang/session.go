@@ -8,9 +8,13 @@ package lang
 import (
 	"context"
 	"fmt"
+	"runtime"
 	"runtime/debug"
 	"sort"
 	"sync"
+	"weak"
+
+	"lsys/lsys"
 )
 
 // Output receives what a cell produces besides its final value. The kernel
@@ -37,14 +41,30 @@ type Session struct {
 	mu      sync.RWMutex
 	globals map[string]any
 	// sources remembers, for systems built from equation blocks, the block
-	// they came from, so parameter sensitivities can be taken later.
-	sources map[any]*blockSource
+	// they came from, so parameter sensitivities can be taken later. The
+	// keys are weak: a system nobody holds any more (the thousands a
+	// locus builds) takes its entry with it (see remember).
+	sources map[weak.Pointer[lsys.System]]*blockSource
 }
 
 // NewSession starts an empty session; dir is the folder that load() reads
 // data files from (the notebook's folder).
 func NewSession(dir string) *Session {
-	return &Session{dir: dir, globals: map[string]any{}, sources: map[any]*blockSource{}}
+	return &Session{dir: dir, globals: map[string]any{}, sources: map[weak.Pointer[lsys.System]]*blockSource{}}
+}
+
+// remember records the block behind a system built from it; the entry
+// goes when the system is garbage collected.
+func (s *Session) remember(g *lsys.System, bs *blockSource) {
+	wp := weak.Make(g)
+	s.mu.Lock()
+	s.sources[wp] = bs
+	s.mu.Unlock()
+	runtime.AddCleanup(g, func(wp weak.Pointer[lsys.System]) {
+		s.mu.Lock()
+		delete(s.sources, wp)
+		s.mu.Unlock()
+	}, wp)
 }
 
 // Dir is the folder data files are read from.
