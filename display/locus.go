@@ -97,7 +97,7 @@ func lcFreqCell(l complex128, ts float64) (string, string) {
 	if !ok {
 		return "n/a", "n/a"
 	}
-	return sxNum(wn), sxNum(zeta)
+	return fmtNum(wn), fmtNum(zeta)
 }
 
 // lcTable is the start/end table shared by the text and HTML forms.
@@ -106,24 +106,24 @@ func lcTable(l *lsys.Locus) (title string, head []string, rows [][]string, notes
 	p := l.Parameter
 	kind := "continuous time"
 	if l.Ts > 0 {
-		kind = "sampled every " + sxNum(l.Ts) + " s"
+		kind = "sampled every " + fmtNum(l.Ts) + " s"
 	}
 	title = fmt.Sprintf("locus of %d mode(s) as %s runs from %s to %s (%d values), %s",
-		len(l.Branches), p, sxNum(l.Values[0]), sxNum(l.Values[last]), len(l.Values), kind)
-	a, b := sxNum(l.Values[0]), sxNum(l.Values[last])
+		len(l.Branches), p, fmtNum(l.Values[0]), fmtNum(l.Values[last]), len(l.Values), kind)
+	a, b := fmtNum(l.Values[0]), fmtNum(l.Values[last])
 	head = []string{"mode", "at " + p + " = " + a, "at " + p + " = " + b,
 		"ωn (rad/s) at " + a, "ωn (rad/s) at " + b, "ζ at " + a, "ζ at " + b}
 	for i, br := range l.Branches {
 		w0, z0 := lcFreqCell(br[0], l.Ts)
 		w1, z1 := lcFreqCell(br[last], l.Ts)
-		rows = append(rows, []string{fmt.Sprint(i + 1), sxComplex(br[0], false), sxComplex(br[last], false), w0, w1, z0, z1})
+		rows = append(rows, []string{fmt.Sprint(i + 1), fmtComplex(br[0], false), fmtComplex(br[last], false), w0, w1, z0, z1})
 	}
 	for _, c := range lcCrossings(l) {
 		verb := "becomes unstable"
 		if !c.Unstable {
 			verb = "becomes stable"
 		}
-		notes = append(notes, fmt.Sprintf("mode %d %s near %s = %s (interpolated between neighbouring values)", c.Mode, verb, p, sxNum(c.At)))
+		notes = append(notes, fmt.Sprintf("mode %d %s near %s = %s (interpolated between neighbouring values)", c.Mode, verb, p, fmtNum(c.At)))
 	}
 	if len(notes) == 0 {
 		st := 0
@@ -151,16 +151,16 @@ func renderLocus(v any, opt Options) Bundle {
 		return NewBundle("empty locus")
 	}
 	title, head, rows, notes := lcTable(l)
-	text := rpTextTable(title, head, rows) + "\n" + strings.Join(notes, "\n")
+	text := textTable(title, head, rows) + "\n" + strings.Join(notes, "\n")
 	b := rpBundle(text, lcFigure(l), opt)
-	b.Data[HTML] = rpHTMLTable(title, head, rows, strings.Join(notes, "; ")+".")
+	b.Data[HTML] = htmlTableCard("lsys-locus", title, head, rows, 2, strings.Join(notes, "; ")+".")
 	var branches [][][2]float64
 	for _, br := range l.Branches {
 		branches = append(branches, rpComplexJSON(br))
 	}
 	vals := make([]any, len(l.Values))
 	for i, x := range l.Values {
-		vals[i] = jsNum(x)
+		vals[i] = jsonNum(x)
 	}
 	b.Data[JSON] = map[string]any{"parameter": l.Parameter, "values": vals, "branches": branches, "sampled": l.Ts > 0, "sample_time": l.Ts}
 	return b
@@ -251,7 +251,7 @@ func lcFigure(l *lsys.Locus) *rpFigure {
 			if imag(z) < 0 || cmplx.IsNaN(z) || cmplx.IsInf(z) {
 				continue
 			}
-			txt := p + " = " + sxNum(l.Values[k])
+			txt := p + " = " + fmtNum(l.Values[k])
 			nb := box{real(z), imag(z), view / 100 * float64(len([]rune(txt))+1)}
 			free := cmplx.Abs(z-br[0]) > view/50 && cmplx.Abs(z-br[last]) > view/50
 			for _, o := range boxes {
@@ -279,8 +279,8 @@ func lcFigure(l *lsys.Locus) *rpFigure {
 	for i, br := range l.Branches {
 		starts[i], ends[i] = br[0], br[last]
 	}
-	st := rpMark("start, "+p+" = "+sxNum(l.Values[0]), starts, -1, draw.CrossGlyph{}, 4.5)
-	en := rpMark("end, "+p+" = "+sxNum(l.Values[last]), ends, -1, draw.BoxGlyph{}, 3)
+	st := rpMark("start, "+p+" = "+fmtNum(l.Values[0]), starts, -1, draw.CrossGlyph{}, 4.5)
+	en := rpMark("end, "+p+" = "+fmtNum(l.Values[last]), ends, -1, draw.BoxGlyph{}, 3)
 	pn.Series = append(pn.Series, st, en)
 	pn.Texts = texts
 	return &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}}
@@ -359,7 +359,7 @@ func lcGrid(R, ts float64) ([]rpSeries, []rpText) {
 				}
 				ss = append(ss, rpSeries{X: x, Y: y, Style: -1, Width: 0.6, Color: col})
 				if sgn > 0 {
-					texts = append(texts, rpText{X: x[50], Y: y[50], Text: "ζ " + sxNum(zeta)})
+					texts = append(texts, rpText{X: x[50], Y: y[50], Text: "ζ " + fmtNum(zeta)})
 				}
 			}
 		}
@@ -373,7 +373,7 @@ func lcGrid(R, ts float64) ([]rpSeries, []rpText) {
 				x, y = append(x, real(z)), append(y, imag(z))
 			}
 			ss = append(ss, rpSeries{X: x, Y: y, Style: -1, Width: 0.6, Color: col})
-			texts = append(texts, rpText{X: x[0], Y: y[0], Text: sxNum(frac) + "π/T"})
+			texts = append(texts, rpText{X: x[0], Y: y[0], Text: fmtNum(frac) + "π/T"})
 		}
 		return ss, texts
 	}
@@ -383,7 +383,7 @@ func lcGrid(R, ts float64) ([]rpSeries, []rpText) {
 		ss = append(ss,
 			rpSeries{X: []float64{0, -zeta * R}, Y: []float64{0, wd * R}, Style: -1, Width: 0.6, Color: col},
 			rpSeries{X: []float64{-zeta * R, 0}, Y: []float64{-wd * R, 0}, Style: -1, Width: 0.6, Color: col})
-		texts = append(texts, rpText{X: -zeta * R * 0.95, Y: wd * R * 0.95, Text: "ζ " + sxNum(zeta)})
+		texts = append(texts, rpText{X: -zeta * R * 0.95, Y: wd * R * 0.95, Text: "ζ " + fmtNum(zeta)})
 	}
 	step := niceStep(R / 4)
 	for wn := step; wn <= R*1.0001; wn += step {
@@ -395,7 +395,7 @@ func lcGrid(R, ts float64) ([]rpSeries, []rpText) {
 		ss = append(ss, rpSeries{X: x, Y: y, Style: -1, Width: 0.6, Color: col})
 		// labelled below the real axis, where branches on the axis and
 		// the parameter labels (upper half-plane) leave room
-		texts = append(texts, rpText{X: -wn * math.Cos(0.35), Y: -wn * math.Sin(0.35), Text: sxNum(wn)})
+		texts = append(texts, rpText{X: -wn * math.Cos(0.35), Y: -wn * math.Sin(0.35), Text: fmtNum(wn)})
 	}
 	// the imaginary axis, the stability boundary
 	ss = append(ss, rpSeries{X: []float64{0, 0}, Y: []float64{-R, R}, Style: -1, Width: 0.8, Color: rpGrey})

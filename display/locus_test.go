@@ -53,10 +53,10 @@ func TestLocusDisplayClosedForm(t *testing.T) {
 	for _, k := range []float64{1, 10} {
 		wd := math.Sqrt(k/m - (c/(2*m))*(c/(2*m)))
 		for _, want := range []string{
-			sxComplex(complex(-c/(2*m), wd), false),
-			sxComplex(complex(-c/(2*m), -wd), false),
-			sxNum(math.Sqrt(k / m)),
-			sxNum(c / (2 * math.Sqrt(k*m))),
+			fmtComplex(complex(-c/(2*m), wd), false),
+			fmtComplex(complex(-c/(2*m), -wd), false),
+			fmtNum(math.Sqrt(k / m)),
+			fmtNum(c / (2 * math.Sqrt(k*m))),
 		} {
 			if !strings.Contains(text, want) {
 				t.Errorf("k = %g: text lacks %q:\n%s", k, want, text)

@@ -23,18 +23,11 @@ func sxBlocks(b []int) string {
 	return strings.Join(parts, "+")
 }
 
-func sxVerdict(ok bool, yes, no string) string {
-	if ok {
-		return yes
-	}
-	return no
-}
-
 // sxModeRow is the common columns of a mode, text and HTML alike.
 func sxModeRow(i int, m lsys.Mode) []string {
 	period := ""
 	if m.Period > 0 {
-		period = sxNum(m.Period)
+		period = fmtNum(m.Period)
 	}
 	mult := ""
 	if m.Multiplicity > 1 {
@@ -42,16 +35,16 @@ func sxModeRow(i int, m lsys.Mode) []string {
 	}
 	return []string{
 		strconv.Itoa(i + 1),
-		sxComplex(m.Eigenvalue, m.Pair),
-		sxNum(m.NaturalFreq),
-		sxNum(m.FreqHz),
-		sxNum(m.Damping),
-		sxNum(m.TimeConstant),
+		fmtComplex(m.Eigenvalue, m.Pair),
+		fmtNum(m.NaturalFreq),
+		fmtNum(m.FreqHz),
+		fmtNum(m.Damping),
+		fmtNum(m.TimeConstant),
 		period,
 		mult,
-		sxNum(m.Cond),
-		sxVerdict(m.Reachable, "yes", "NO"),
-		sxVerdict(m.Observable, "yes", "NO"),
+		fmtNum(m.Cond),
+		choose(m.Reachable, "yes", "NO"),
+		choose(m.Observable, "yes", "NO"),
 	}
 }
 
@@ -61,14 +54,14 @@ func sxModesTitle(t *lsys.ModeTable) string {
 	s := t.System
 	kind := "continuous-time"
 	if s != nil && s.Sampled() {
-		kind = "sampled (every " + sxNum(s.Ts) + " s; figures through s = log(z)/Ts)"
+		kind = "sampled (every " + fmtNum(s.Ts) + " s; figures through s = log(z)/Ts)"
 	}
 	n := 0
 	if s != nil {
 		n = s.N()
 	}
 	return fmt.Sprintf("modes of a %s system with %s: %s, by natural frequency then damping", kind,
-		sxCount(n, "state", "states"), sxCount(len(t.Modes), "mode", "modes"))
+		count(n, "state", "states"), count(len(t.Modes), "mode", "modes"))
 }
 
 func renderModes(v any, _ Options) Bundle {
@@ -87,8 +80,8 @@ func renderModes(v any, _ Options) Bundle {
 	for i, m := range t.Modes {
 		cells = append(cells, sxModeRow(i, m))
 	}
-	sxWriteColumns(&b, cells, "  ")
-	fmt.Fprintf(&b, "  verdicts: PBH test per mode, margin against %s x the norm of [A B] / [A; C]\n", sxNum(t.RelTol))
+	writeColumns(&b, cells, "  ", 1)
+	fmt.Fprintf(&b, "  verdicts: PBH test per mode, margin against %s x the norm of [A B] / [A; C]\n", fmtNum(t.RelTol))
 
 	// Reach and visibility per signal.
 	if s != nil && (s.M() > 0 || s.P() > 0) {
@@ -105,15 +98,15 @@ func renderModes(v any, _ Options) Bundle {
 		for i, m := range t.Modes {
 			row := []string{strconv.Itoa(i + 1)}
 			for _, r := range m.Reach {
-				row = append(row, sxNum(r))
+				row = append(row, fmtNum(r))
 			}
 			for _, o := range m.Visibility {
-				row = append(row, sxNum(o))
+				row = append(row, fmtNum(o))
 			}
-			row = append(row, sxNum(m.ReachMargin), sxNum(m.ObserveMargin), sxNum(m.Tol))
+			row = append(row, fmtNum(m.ReachMargin), fmtNum(m.ObserveMargin), fmtNum(m.Tol))
 			g = append(g, row)
 		}
-		sxWriteColumns(&b, g, "  ")
+		writeColumns(&b, g, "  ", 1)
 	}
 	// Mode shapes.
 	if s != nil && s.N() <= 12 {
@@ -130,7 +123,7 @@ func renderModes(v any, _ Options) Bundle {
 			}
 			g = append(g, row)
 		}
-		sxWriteColumns(&b, g, "  ")
+		writeColumns(&b, g, "  ", 1)
 	}
 
 	out := NewBundle(b.String())
@@ -143,26 +136,25 @@ func renderModes(v any, _ Options) Bundle {
 // magnitude and phase for oscillatory ones.
 func sxShapeEntry(z complex128, complexMode bool) string {
 	if !complexMode {
-		return sxNum(real(z))
+		return fmtNum(real(z))
 	}
 	a := cmplx.Abs(z)
 	if a == 0 {
 		return "0"
 	}
 	ph := cmplx.Phase(z) * 180 / math.Pi
-	return sxNum(a) + " ∠" + strconv.FormatFloat(math.Round(ph), 'f', 0, 64)
+	return fmtNum(a) + " ∠" + strconv.FormatFloat(math.Round(ph), 'f', 0, 64)
 }
 
 func sxModesHTML(t *lsys.ModeTable) string {
 	s := t.System
 	var h strings.Builder
-	fmt.Fprintf(&h, "<div class=\"lsys-modes\" %s>", sxCardStyle)
-	fmt.Fprintf(&h, "<div style=\"font-weight:bold;margin-bottom:4px\">%s</div>", html.EscapeString(sxModesTitle(t)))
+	htmlCard(&h, "lsys-modes", sxModesTitle(t))
 	if len(t.Modes) == 0 {
 		h.WriteString("<div style=\"color:#555\">a static gain has no modes</div></div>")
 		return h.String()
 	}
-	th := "<th style=\"padding:2px 6px;border-bottom:1px solid #999;text-align:right;font-weight:normal;color:#333\">"
+	th := "<th " + thStyle + ">"
 	h.WriteString("<table style=\"border-collapse:collapse\"><tr>")
 	for _, c := range sxModeHeads {
 		h.WriteString(th + html.EscapeString(c) + "</th>")
@@ -202,7 +194,7 @@ func sxModesHTML(t *lsys.ModeTable) string {
 		}
 		fmt.Fprintf(&h, "<tr%s>", bg)
 		for k, c := range sxModeRow(i, m) {
-			style := "padding:2px 6px;text-align:right;font-family:monospace"
+			style := tdNumStyle
 			title := ""
 			if k == 9 || k == 10 {
 				if c == "NO" {
@@ -212,7 +204,7 @@ func sxModesHTML(t *lsys.ModeTable) string {
 				if k == 10 {
 					mg = m.ObserveMargin
 				}
-				title = fmt.Sprintf(" title=\"PBH margin %s against tolerance %s\"", sxNum(mg), sxNum(m.Tol))
+				title = fmt.Sprintf(" title=\"PBH margin %s against tolerance %s\"", fmtNum(mg), fmtNum(m.Tol))
 			}
 			fmt.Fprintf(&h, "<td style=\"%s\"%s>%s</td>", style, title, html.EscapeString(c))
 		}
@@ -228,7 +220,7 @@ func sxModesHTML(t *lsys.ModeTable) string {
 		h.WriteString("</tr>")
 	}
 	h.WriteString("</table>")
-	fmt.Fprintf(&h, "<div style=\"color:#555;margin-top:4px\">reached / seen: PBH test per mode, margin against %s &times; the norm of [A B] / [A; C]. Shaded rows do not decay. Bars: reach |w<sup>H</sup> b<sub>j</sub>| and visibility |c<sub>i</sub> v| (unit left and right eigenvectors w, v) relative to the largest in the column; hover a verdict for its margin. Shape: one bar per state, magnitude relative to the largest; bars below the line are in antiphase (phase beyond &plusmn;90&deg;).</div>", sxNum(t.RelTol))
+	fmt.Fprintf(&h, "<div style=\"color:#555;margin-top:4px\">reached / seen: PBH test per mode, margin against %s &times; the norm of [A B] / [A; C]. Shaded rows do not decay. Bars: reach |w<sup>H</sup> b<sub>j</sub>| and visibility |c<sub>i</sub> v| (unit left and right eigenvectors w, v) relative to the largest in the column; hover a verdict for its margin. Shape: one bar per state, magnitude relative to the largest; bars below the line are in antiphase (phase beyond &plusmn;90&deg;).</div>", fmtNum(t.RelTol))
 	h.WriteString("</div>")
 	return h.String()
 }
@@ -242,7 +234,7 @@ func sxBarCell(v, max float64) string {
 	if math.IsInf(v, 1) {
 		w = 60
 	}
-	return fmt.Sprintf("<td style=\"padding:2px 6px;font-family:monospace;text-align:right;white-space:nowrap\"><span style=\"display:inline-block;width:%.0fpx;height:8px;background:#0072b2;margin-right:4px\"></span>%s</td>", w, sxNum(v))
+	return fmt.Sprintf("<td style=\"padding:2px 6px;font-family:monospace;text-align:right;white-space:nowrap\"><span style=\"display:inline-block;width:%.0fpx;height:8px;background:#0072b2;margin-right:4px\"></span>%s</td>", w, fmtNum(v))
 }
 
 // sxShapeBars draws the mode shape as a row of vertical bars, one per
@@ -256,7 +248,7 @@ func sxShapeBars(m lsys.Mode, names []string) string {
 		ph := cmplx.Phase(z) * 180 / math.Pi
 		hgt := math.Round(12 * a)
 		up := math.Abs(ph) <= 90
-		title := fmt.Sprintf("%s: %s at %.0f deg", names[k], sxNum(a), ph)
+		title := fmt.Sprintf("%s: %s at %.0f deg", names[k], fmtNum(a), ph)
 		if up {
 			fmt.Fprintf(&b, "<span title=\"%s\" style=\"display:inline-block;width:6px;height:28px;position:relative\"><span style=\"position:absolute;bottom:14px;left:0;width:6px;height:%.0fpx;background:#009e73\"></span></span>", html.EscapeString(title), hgt)
 		} else {
@@ -272,35 +264,35 @@ func sxModesJSON(t *lsys.ModeTable) map[string]any {
 	for i, m := range t.Modes {
 		shape := make([]any, len(m.Shape))
 		for k, z := range m.Shape {
-			shape[k] = sxJSONComplex(z)
+			shape[k] = jsonComplex(z)
 		}
 		reach := make([]any, len(m.Reach))
 		for j, r := range m.Reach {
-			reach[j] = sxJSONNum(r)
+			reach[j] = jsonNum(r)
 		}
 		vis := make([]any, len(m.Visibility))
 		for j, r := range m.Visibility {
-			vis[j] = sxJSONNum(r)
+			vis[j] = jsonNum(r)
 		}
 		modes[i] = map[string]any{
-			"eigenvalue":     sxJSONComplex(m.Eigenvalue),
-			"s":              sxJSONComplex(m.S),
+			"eigenvalue":     jsonComplex(m.Eigenvalue),
+			"s":              jsonComplex(m.S),
 			"pair":           m.Pair,
-			"natural_freq":   sxJSONNum(m.NaturalFreq),
-			"freq_hz":        sxJSONNum(m.FreqHz),
-			"damping":        sxJSONNum(m.Damping),
-			"time_constant":  sxJSONNum(m.TimeConstant),
-			"period":         sxJSONNum(m.Period),
+			"natural_freq":   jsonNum(m.NaturalFreq),
+			"freq_hz":        jsonNum(m.FreqHz),
+			"damping":        jsonNum(m.Damping),
+			"time_constant":  jsonNum(m.TimeConstant),
+			"period":         jsonNum(m.Period),
 			"multiplicity":   m.Multiplicity,
 			"blocks":         m.Blocks,
-			"cond":           sxJSONNum(m.Cond),
+			"cond":           jsonNum(m.Cond),
 			"reach":          reach,
 			"visibility":     vis,
 			"reachable":      m.Reachable,
 			"observable":     m.Observable,
-			"reach_margin":   sxJSONNum(m.ReachMargin),
-			"observe_margin": sxJSONNum(m.ObserveMargin),
-			"tol":            sxJSONNum(m.Tol),
+			"reach_margin":   jsonNum(m.ReachMargin),
+			"observe_margin": jsonNum(m.ObserveMargin),
+			"tol":            jsonNum(m.Tol),
 			"shape":          shape,
 		}
 	}

@@ -2,7 +2,6 @@ package display
 
 import (
 	"fmt"
-	"html"
 	"math"
 	"math/cmplx"
 	"strings"
@@ -49,7 +48,7 @@ func rpResponseText(r *lsys.Response) string {
 	if r.Kind == "input" && len(r.Channels) > 0 {
 		title += " to " + r.Channels[0]
 	}
-	fmt.Fprintf(&b, "%s: %d output(s) x %d channel(s), 0 to %s s, %d samples", title, len(r.Outputs), len(r.Channels), sxNum(r.T[len(r.T)-1]), len(r.T))
+	fmt.Fprintf(&b, "%s: %d output(s) x %d channel(s), 0 to %s s, %d samples", title, len(r.Outputs), len(r.Channels), fmtNum(r.T[len(r.T)-1]), len(r.T))
 	if r.Sampled {
 		b.WriteString(" (sampled)")
 	}
@@ -70,7 +69,7 @@ func rpResponseText(r *lsys.Response) string {
 			for _, v := range y {
 				lo, hi = math.Min(lo, v), math.Max(hi, v)
 			}
-			fmt.Fprintf(&b, ": final %s, range [%s, %s]\n", sxNum(y[len(y)-1]), sxNum(lo), sxNum(hi))
+			fmt.Fprintf(&b, ": final %s, range [%s, %s]\n", fmtNum(y[len(y)-1]), fmtNum(lo), fmtNum(hi))
 		}
 	}
 	return strings.TrimRight(b.String(), "\n")
@@ -141,84 +140,22 @@ func renderMetrics(v any, _ Options) Bundle {
 	var rows [][]string
 	var js []map[string]any
 	for _, r := range m.Rows {
-		steady := sxNum(r.Steady)
+		steady := fmtNum(r.Steady)
 		if !r.SteadyFromGain {
 			steady += " (last sample)"
 		}
-		rows = append(rows, []string{r.Output, r.Channel, sxNum(r.RiseTime), sxNum(r.SettlingTime), sxNum(r.Overshoot), sxNum(r.Peak), sxNum(r.PeakTime), steady})
+		rows = append(rows, []string{r.Output, r.Channel, fmtNum(r.RiseTime), fmtNum(r.SettlingTime), fmtNum(r.Overshoot), fmtNum(r.Peak), fmtNum(r.PeakTime), steady})
 		js = append(js, map[string]any{
-			"output": r.Output, "input": r.Channel, "rise_time": jsNum(r.RiseTime), "settling_time": jsNum(r.SettlingTime),
-			"overshoot_percent": jsNum(r.Overshoot), "peak": jsNum(r.Peak), "peak_time": jsNum(r.PeakTime), "steady": jsNum(r.Steady),
+			"output": r.Output, "input": r.Channel, "rise_time": jsonNum(r.RiseTime), "settling_time": jsonNum(r.SettlingTime),
+			"overshoot_percent": jsonNum(r.Overshoot), "peak": jsonNum(r.Peak), "peak_time": jsonNum(r.PeakTime), "steady": jsonNum(r.Steady),
 			"steady_from_gain": r.SteadyFromGain,
 		})
 	}
-	note := "n/a: not defined by this response (no change, or it leaves the 2 % band at the end of the horizon)."
-	b := NewBundle(rpTextTable("response metrics", head, rows) + "\n" + note)
-	b.Data[HTML] = rpHTMLTable("Response metrics", head, rows, note)
+	remark := "n/a: not defined by this response (no change, or it leaves the 2 % band at the end of the horizon)."
+	b := NewBundle(textTable("response metrics", head, rows) + "\n" + remark)
+	b.Data[HTML] = htmlTableCard("lsys-response", "Response metrics", head, rows, 2, remark)
 	b.Data[JSON] = js
 	return b
-}
-
-// jsNum keeps JSON valid: NaN and infinities become strings.
-func jsNum(v float64) any {
-	if ok(v) {
-		return v
-	}
-	return sxNum(v)
-}
-
-func rpTextTable(title string, head []string, rows [][]string) string {
-	w := make([]int, len(head))
-	for i, h := range head {
-		w[i] = len([]rune(h))
-	}
-	for _, r := range rows {
-		for i, c := range r {
-			w[i] = max(w[i], len([]rune(c)))
-		}
-	}
-	var b strings.Builder
-	b.WriteString(title + "\n")
-	line := func(cells []string) {
-		var l strings.Builder
-		for i, c := range cells {
-			if i > 0 {
-				l.WriteString("  ")
-			}
-			l.WriteString(c + strings.Repeat(" ", w[i]-len([]rune(c))))
-		}
-		b.WriteString(strings.TrimRight(l.String(), " ") + "\n")
-	}
-	line(head)
-	for _, r := range rows {
-		line(r)
-	}
-	return strings.TrimRight(b.String(), "\n")
-}
-
-func rpHTMLTable(caption string, head []string, rows [][]string, note string) string {
-	var b strings.Builder
-	b.WriteString(`<table class="lsys-response"><caption style="text-align:left;font-weight:bold">` + html.EscapeString(caption) + "</caption>\n<thead><tr>")
-	for _, h := range head {
-		b.WriteString(`<th style="text-align:left">` + html.EscapeString(h) + "</th>")
-	}
-	b.WriteString("</tr></thead>\n<tbody>\n")
-	for _, r := range rows {
-		b.WriteString("<tr>")
-		for i, c := range r {
-			align := "right"
-			if i < 2 {
-				align = "left"
-			}
-			b.WriteString(`<td style="text-align:` + align + `">` + html.EscapeString(c) + "</td>")
-		}
-		b.WriteString("</tr>\n")
-	}
-	b.WriteString("</tbody></table>")
-	if note != "" {
-		b.WriteString("\n<p><small>" + html.EscapeString(note) + "</small></p>")
-	}
-	return b.String()
 }
 
 func renderModalResponse(v any, opt Options) Bundle {
@@ -226,7 +163,7 @@ func renderModalResponse(v any, opt Options) Bundle {
 	r := mr.Response
 	var b strings.Builder
 	fmt.Fprintf(&b, "%s split by mode: %d part(s): %s\n", rpKindTitle[r.Kind], len(mr.Labels), strings.Join(mr.Labels, "; "))
-	fmt.Fprintf(&b, "condition number of the modal basis %s; the parts sum to the response", sxNum(mr.MaxCond))
+	fmt.Fprintf(&b, "condition number of the modal basis %s; the parts sum to the response", fmtNum(mr.MaxCond))
 	text := b.String()
 	rows, _ := rpClip(len(r.Outputs), rpMaxRows)
 	cols, _ := rpClip(len(r.Channels), rpMaxCols)
@@ -260,24 +197,24 @@ func renderSignal(v any, _ Options) Bundle {
 	var d string
 	switch s.Kind {
 	case "step":
-		d = fmt.Sprintf("step of height %s at t = %s s", sxNum(s.Amp), sxNum(s.Delay))
+		d = fmt.Sprintf("step of height %s at t = %s s", fmtNum(s.Amp), fmtNum(s.Delay))
 	case "sine":
-		d = fmt.Sprintf("sine: amplitude %s, %s rad/s (%s Hz), phase %s rad", sxNum(s.Amp), sxNum(s.Freq), sxNum(s.Freq/(2*math.Pi)), sxNum(s.Phase))
+		d = fmt.Sprintf("sine: amplitude %s, %s rad/s (%s Hz), phase %s rad", fmtNum(s.Amp), fmtNum(s.Freq), fmtNum(s.Freq/(2*math.Pi)), fmtNum(s.Phase))
 	case "ramp":
-		d = fmt.Sprintf("ramp of slope %s per second", sxNum(s.Amp))
+		d = fmt.Sprintf("ramp of slope %s per second", fmtNum(s.Amp))
 	case "table":
 		hold := "linear between rows"
 		if s.Hold == "zoh" {
 			hold = "held between rows"
 		}
-		d = fmt.Sprintf("table %s: %d rows x %d channel(s) from %s to %s s, %s", s.Name, len(s.T), s.Channels(), sxNum(s.T[0]), sxNum(s.T[len(s.T)-1]), hold)
+		d = fmt.Sprintf("table %s: %d rows x %d channel(s) from %s to %s s, %s", s.Name, len(s.T), s.Channels(), fmtNum(s.T[0]), fmtNum(s.T[len(s.T)-1]), hold)
 	case "function":
 		d = "signal " + s.Name + "(t)"
 	default:
 		d = "signal " + s.Name
 	}
 	if s.Delay != 0 && s.Kind != "step" {
-		d += fmt.Sprintf(", starting at t = %s s", sxNum(s.Delay))
+		d += fmt.Sprintf(", starting at t = %s s", fmtNum(s.Delay))
 	}
 	return NewBundle(d)
 }

@@ -47,9 +47,9 @@ func rpFreqText(f *lsys.FrequencyResponse, what string) string {
 		unit, sc = "Hz", 1/(2*math.Pi)
 	}
 	s := fmt.Sprintf("%s: %d output(s) x %d input(s), %d frequencies from %s to %s %s\n%s",
-		what, len(f.Outputs), len(f.Inputs), len(f.W), sxNum(f.W[0]*sc), sxNum(f.W[len(f.W)-1]*sc), unit, f.Rule)
+		what, len(f.Outputs), len(f.Inputs), len(f.W), fmtNum(f.W[0]*sc), fmtNum(f.W[len(f.W)-1]*sc), unit, f.Rule)
 	if f.Nyquist > 0 {
-		s += fmt.Sprintf("\nsampled: the Nyquist frequency is %s %s", sxNum(f.Nyquist*sc), unit)
+		s += fmt.Sprintf("\nsampled: the Nyquist frequency is %s %s", fmtNum(f.Nyquist*sc), unit)
 	}
 	return s
 }
@@ -183,7 +183,7 @@ func renderSingular(v any, opt Options) Bundle {
 	if f.Hz {
 		unit = "Hz"
 	}
-	text += fmt.Sprintf("%s dB at %s %s (on the grid)", sxNum(20*math.Log10(peak)), sxNum(at), unit)
+	text += fmt.Sprintf("%s dB at %s %s (on the grid)", fmtNum(20*math.Log10(peak)), fmtNum(at), unit)
 	pn := newPanel("singular values", xl, "singular value (dB)")
 	pn.LogX = true
 	pn.DBTicks = true
@@ -196,7 +196,7 @@ func renderSingular(v any, opt Options) Bundle {
 		pn.Series = append(pn.Series, rpSeries{Name: fmt.Sprintf("σ%d", i+1), X: x, Y: y, Style: i, Glyph: k > 1})
 	}
 	b := rpBundle(text, &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}}, opt)
-	b.Data[JSON] = map[string]any{"count": k, "points": len(f.W), "peak_db": jsNum(20 * math.Log10(peak)), "peak_at": at, "unit": unit}
+	b.Data[JSON] = map[string]any{"count": k, "points": len(f.W), "peak_db": jsonNum(20 * math.Log10(peak)), "peak_at": at, "unit": unit}
 	return b
 }
 
@@ -205,36 +205,21 @@ func rpFreq(w float64, hz bool) string {
 		return "n/a"
 	}
 	if hz {
-		return sxNum(w/(2*math.Pi)) + " Hz"
+		return fmtNum(w/(2*math.Pi)) + " Hz"
 	}
-	return sxNum(w) + " rad/s"
-}
-
-func rpList(ws []float64, hz bool) string {
-	if len(ws) == 0 {
-		return "none"
-	}
-	var parts []string
-	for _, w := range ws {
-		parts = append(parts, rpFreq(w, hz))
-	}
-	return strings.Join(parts, ", ")
+	return fmtNum(w) + " rad/s"
 }
 
 // rpListWith lists frequencies each with a figure in brackets.
 func rpListWith(ws, vals []float64, hz bool, what, unit string) string {
-	if len(ws) == 0 {
-		return "none"
-	}
-	var parts []string
-	for i, w := range ws {
-		s := rpFreq(w, hz)
+	i := -1
+	return joinList(ws, func(w float64) string {
+		i++
 		if i < len(vals) {
-			s += " (" + what + " " + sxNum(vals[i]) + unit + ")"
+			return rpFreq(w, hz) + " (" + what + " " + fmtNum(vals[i]) + unit + ")"
 		}
-		parts = append(parts, s)
-	}
-	return strings.Join(parts, ", ")
+		return rpFreq(w, hz)
+	})
 }
 
 func renderMargins(v any, opt Options) Bundle {
@@ -243,17 +228,17 @@ func renderMargins(v any, opt Options) Bundle {
 	hz := f.Hz
 	gm := "infinite (no phase crossover)"
 	if !math.IsInf(mg.GainMargin, 1) {
-		gm = fmt.Sprintf("%s dB (factor %s) at %s", sxNum(mg.GainMarginDB), sxNum(mg.GainMargin), rpFreq(mg.PhaseCrossover, hz))
+		gm = fmt.Sprintf("%s dB (factor %s) at %s", fmtNum(mg.GainMarginDB), fmtNum(mg.GainMargin), rpFreq(mg.PhaseCrossover, hz))
 	}
 	pm := "infinite (no gain crossover)"
 	dm := "infinite"
 	if !math.IsInf(mg.PhaseMargin, 1) {
-		pm = fmt.Sprintf("%s deg at %s", sxNum(mg.PhaseMargin), rpFreq(mg.GainCrossover, hz))
-		dm = sxNum(mg.DelayMargin) + " s"
+		pm = fmt.Sprintf("%s deg at %s", fmtNum(mg.PhaseMargin), rpFreq(mg.GainCrossover, hz))
+		dm = fmtNum(mg.DelayMargin) + " s"
 	}
 	verdict := "closed loop (negative unity feedback): stability not checked"
 	if mg.ClosedChecked {
-		verdict = sxVerdictText(mg.ClosedStable, "closed loop (negative unity feedback) is stable", "closed loop (negative unity feedback) is UNSTABLE: the margins do not describe a working loop")
+		verdict = choose(mg.ClosedStable, "closed loop (negative unity feedback) is stable", "closed loop (negative unity feedback) is UNSTABLE: the margins do not describe a working loop")
 	}
 	bw := rpFreq(mg.Bandwidth, hz)
 	if math.IsNaN(mg.Bandwidth) {
@@ -267,9 +252,9 @@ func renderMargins(v any, opt Options) Bundle {
 		{"gain crossovers (|L| = 1)", rpListWith(mg.GainCrossovers, mg.PhaseMargins, hz, "PM", " deg")},
 		{"phase crossovers (angle L = -180 deg)", rpListWith(mg.PhaseCrossovers, mg.GainMarginsDB, hz, "GM", " dB")},
 		{"closed-loop bandwidth (-3 dB)", bw},
-		{"closed-loop resonant peak", fmt.Sprintf("%s dB at %s", sxNum(mg.ResonantPeak), rpFreq(mg.ResonantFreq, hz))},
+		{"closed-loop resonant peak", fmt.Sprintf("%s dB at %s", fmtNum(mg.ResonantPeak), rpFreq(mg.ResonantFreq, hz))},
 	}
-	text := rpTextTable("loop margins", head, rows) + "\n" + verdict
+	text := textTable("loop margins", head, rows) + "\n" + verdict
 	for _, n := range mg.Notes {
 		text += "\nnote: " + n
 	}
@@ -311,7 +296,7 @@ func renderMargins(v any, opt Options) Bundle {
 		}
 		g := mg.GainMarginsDB[i]
 		mag.Lines = append(mag.Lines, rpLine{At: w * sc, Vertical: true, Dashed: true})
-		mag.Texts = append(mag.Texts, rpText{X: w * sc, Y: -g, Text: "GM " + sxNum(g) + " dB"})
+		mag.Texts = append(mag.Texts, rpText{X: w * sc, Y: -g, Text: "GM " + fmtNum(g) + " dB"})
 		mag.Series = append(mag.Series, rpSeries{X: []float64{w * sc, w * sc}, Y: []float64{-g, 0}, Style: 1, Width: 2.5, Color: rpPalette[1]})
 	}
 	// every gain crossover: a bar from the -180 line to the phase on the
@@ -324,40 +309,25 @@ func renderMargins(v any, opt Options) Bundle {
 		ref := refAt(w)
 		addRef(ref)
 		ph.Lines = append(ph.Lines, rpLine{At: w * sc, Vertical: true, Dashed: true})
-		ph.Texts = append(ph.Texts, rpText{X: w * sc, Y: ref + p, Text: "PM " + sxNum(p) + "°"})
+		ph.Texts = append(ph.Texts, rpText{X: w * sc, Y: ref + p, Text: "PM " + fmtNum(p) + "°"})
 		ph.Series = append(ph.Series, rpSeries{X: []float64{w * sc, w * sc}, Y: []float64{ref, ref + p}, Style: 2, Width: 2.5, Color: rpPalette[2]})
 	}
 	fig := &rpFigure{Rows: 2, Cols: 1, Panels: []*rpPanel{mag, ph}, W: 16 * cmLen, H: 14 * cmLen}
 	b := rpBundle(text, fig, opt)
-	b.Data[HTML] = rpHTMLTable("Loop margins", head, rows, strings.Join(append([]string{verdict}, mg.Notes...), "; "))
+	b.Data[HTML] = htmlTableCard("lsys-response", "Loop margins", head, rows, 2, append([]string{verdict}, mg.Notes...)...)
 	notes := mg.Notes
 	if notes == nil {
 		notes = []string{}
 	}
 	b.Data[JSON] = map[string]any{
-		"gain_margin": jsNum(mg.GainMargin), "gain_margin_db": jsNum(mg.GainMarginDB), "phase_crossover": jsNum(mg.PhaseCrossover),
-		"phase_margin_deg": jsNum(mg.PhaseMargin), "gain_crossover": jsNum(mg.GainCrossover), "delay_margin": jsNum(mg.DelayMargin),
+		"gain_margin": jsonNum(mg.GainMargin), "gain_margin_db": jsonNum(mg.GainMarginDB), "phase_crossover": jsonNum(mg.PhaseCrossover),
+		"phase_margin_deg": jsonNum(mg.PhaseMargin), "gain_crossover": jsonNum(mg.GainCrossover), "delay_margin": jsonNum(mg.DelayMargin),
 		"gain_crossovers": mg.GainCrossovers, "phase_crossovers": mg.PhaseCrossovers,
-		"phase_margins_deg": rpJSNums(mg.PhaseMargins), "gain_margins_db": rpJSNums(mg.GainMarginsDB), "bandwidth": jsNum(mg.Bandwidth),
-		"resonant_peak_db": jsNum(mg.ResonantPeak), "resonant_freq": jsNum(mg.ResonantFreq), "closed_loop_stable": mg.ClosedStable,
+		"phase_margins_deg": jsonNums(mg.PhaseMargins), "gain_margins_db": jsonNums(mg.GainMarginsDB), "bandwidth": jsonNum(mg.Bandwidth),
+		"resonant_peak_db": jsonNum(mg.ResonantPeak), "resonant_freq": jsonNum(mg.ResonantFreq), "closed_loop_stable": mg.ClosedStable,
 		"notes": notes,
 	}
 	return b
-}
-
-func rpJSNums(v []float64) []any {
-	out := make([]any, len(v))
-	for i, x := range v {
-		out[i] = jsNum(x)
-	}
-	return out
-}
-
-func sxVerdictText(okv bool, yes, no string) string {
-	if okv {
-		return yes
-	}
-	return no
 }
 
 // interpAt interpolates y(x) linearly in log x.
@@ -399,7 +369,7 @@ func renderPoleZero(v any, opt Options) Bundle {
 	var b strings.Builder
 	plane := "s-plane"
 	if g.Sampled() {
-		plane = "z-plane, sampled every " + sxNum(g.Ts) + " s"
+		plane = "z-plane, sampled every " + fmtNum(g.Ts) + " s"
 	}
 	fmt.Fprintf(&b, "pole-zero map (%s): %d pole(s)", plane, len(pz.Poles))
 	if pz.ZerosKnown {
@@ -456,7 +426,7 @@ func renderPoleZero(v any, opt Options) Bundle {
 				}
 				pn.Series = append(pn.Series, rpSeries{X: x, Y: y, Style: -1, Width: 0.6, Color: gridCol})
 				if sgn > 0 {
-					texts = append(texts, rpText{X: x[50], Y: y[50], Text: "ζ " + sxNum(zeta)})
+					texts = append(texts, rpText{X: x[50], Y: y[50], Text: "ζ " + fmtNum(zeta)})
 				}
 			}
 		}
@@ -470,7 +440,7 @@ func renderPoleZero(v any, opt Options) Bundle {
 				x, y = append(x, real(z)), append(y, imag(z))
 			}
 			pn.Series = append(pn.Series, rpSeries{X: x, Y: y, Style: -1, Width: 0.6, Color: gridCol})
-			texts = append(texts, rpText{X: x[0], Y: y[0], Text: sxNum(frac) + "π/T"})
+			texts = append(texts, rpText{X: x[0], Y: y[0], Text: fmtNum(frac) + "π/T"})
 		}
 	} else {
 		R *= 1.15
@@ -479,7 +449,7 @@ func renderPoleZero(v any, opt Options) Bundle {
 			pn.Series = append(pn.Series,
 				rpSeries{X: []float64{0, -zeta * R}, Y: []float64{0, wd * R}, Style: -1, Width: 0.6, Color: gridCol},
 				rpSeries{X: []float64{-zeta * R, 0}, Y: []float64{-wd * R, 0}, Style: -1, Width: 0.6, Color: gridCol})
-			texts = append(texts, rpText{X: -zeta * R * 0.95, Y: wd * R * 0.95, Text: "ζ " + sxNum(zeta)})
+			texts = append(texts, rpText{X: -zeta * R * 0.95, Y: wd * R * 0.95, Text: "ζ " + fmtNum(zeta)})
 		}
 		step := niceStep(R / 4)
 		for wn := step; wn <= R*1.0001; wn += step {
@@ -489,7 +459,7 @@ func renderPoleZero(v any, opt Options) Bundle {
 				x, y = append(x, wn*math.Cos(a)), append(y, wn*math.Sin(a))
 			}
 			pn.Series = append(pn.Series, rpSeries{X: x, Y: y, Style: -1, Width: 0.6, Color: gridCol})
-			texts = append(texts, rpText{X: -wn, Y: 0, Text: sxNum(wn)})
+			texts = append(texts, rpText{X: -wn, Y: 0, Text: fmtNum(wn)})
 		}
 		pn.Lines = append(pn.Lines, rpLine{At: 0, Vertical: true})
 	}
@@ -522,14 +492,7 @@ func niceStep(x float64) float64 {
 }
 
 func rpComplexList(v []complex128) string {
-	if len(v) == 0 {
-		return "none"
-	}
-	var parts []string
-	for _, z := range v {
-		parts = append(parts, sxComplex(z, false))
-	}
-	return strings.Join(parts, ", ")
+	return joinList(v, func(z complex128) string { return fmtComplex(z, false) })
 }
 
 func rpComplexJSON(v []complex128) [][2]float64 {

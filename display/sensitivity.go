@@ -24,7 +24,7 @@ func snComplex(z complex128) string {
 	if cmplx.IsNaN(z) {
 		return "undefined"
 	}
-	return sxComplex(z, false)
+	return fmtComplex(z, false)
 }
 
 // snRank names the parameter with the largest relative sensitivity of
@@ -40,17 +40,17 @@ func snRank(s *lsys.Sensitivity, k int) string {
 	if best < 0 {
 		return "n/a"
 	}
-	return fmt.Sprintf("%s (%s)", s.Parameters[best], sxNum(bestV))
+	return fmt.Sprintf("%s (%s)", s.Parameters[best], fmtNum(bestV))
 }
 
 func snTable(s *lsys.Sensitivity) (title string, head []string, rows [][]string, notes []string) {
 	var at []string
 	for j, p := range s.Parameters {
-		at = append(at, p+" = "+sxNum(s.Values[j]))
+		at = append(at, p+" = "+fmtNum(s.Values[j]))
 	}
 	title = "eigenvalue sensitivities at " + strings.Join(at, ", ")
 	if s.Ts > 0 {
-		title += " (sampled every " + sxNum(s.Ts) + " s)"
+		title += " (sampled every " + fmtNum(s.Ts) + " s)"
 	}
 	head = []string{"eigenvalue", "condition"}
 	for _, p := range s.Parameters {
@@ -61,11 +61,11 @@ func snTable(s *lsys.Sensitivity) (title string, head []string, rows [][]string,
 	}
 	head = append(head, "largest |relative|")
 	for k, l := range s.Eigenvalues {
-		ev := sxComplex(l, imag(l) != 0)
+		ev := fmtComplex(l, imag(l) != 0)
 		if snMult(s, k) > 1 {
 			ev += fmt.Sprintf(" (×%d)", snMult(s, k))
 		}
-		row := []string{ev, sxNum(s.Cond[k])}
+		row := []string{ev, fmtNum(s.Cond[k])}
 		for j := range s.Parameters {
 			row = append(row, snComplex(s.D[k][j]))
 		}
@@ -124,8 +124,8 @@ func renderSensitivity(v any, _ Options) Bundle {
 		return NewBundle("eigenvalue sensitivities: no eigenvalues")
 	}
 	title, head, rows, notes := snTable(s)
-	b := NewBundle(rpTextTable(title, head, rows) + "\n" + strings.Join(notes, "\n"))
-	b.Data[HTML] = rpHTMLTable(title, head, rows, strings.Join(notes, ". ")+".")
+	b := NewBundle(textTable(title, head, rows) + "\n" + strings.Join(notes, "\n"))
+	b.Data[HTML] = htmlTableCard("lsys-sensitivity", title, head, rows, 2, strings.Join(notes, ". ")+".")
 	cj := func(z complex128) any {
 		if cmplx.IsNaN(z) {
 			return "undefined"
@@ -140,11 +140,11 @@ func renderSensitivity(v any, _ Options) Bundle {
 			d[p] = cj(s.D[k][j])
 			r[p] = cj(s.Relative(k, j))
 		}
-		modes = append(modes, map[string]any{"eigenvalue": cj(l), "condition": jsNum(s.Cond[k]), "derivative": d, "relative": r, "multiplicity": snMult(s, k)})
+		modes = append(modes, map[string]any{"eigenvalue": cj(l), "condition": jsonNum(s.Cond[k]), "derivative": d, "relative": r, "multiplicity": snMult(s, k)})
 	}
 	vals := map[string]any{}
 	for j, p := range s.Parameters {
-		vals[p] = jsNum(s.Values[j])
+		vals[p] = jsonNum(s.Values[j])
 	}
 	b.Data[JSON] = map[string]any{"parameters": s.Parameters, "values": vals, "modes": modes, "sample_time": s.Ts}
 	return b

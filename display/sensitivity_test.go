@@ -33,8 +33,8 @@ func TestSensitivityDisplayClosedForm(t *testing.T) {
 	text := b.Data[Text].(string)
 	h := b.Data[HTML].(string)
 	for _, want := range []string{
-		sxComplex(complex(-c/(2*m), wd), true), sxComplex(dsdk, false), sxComplex(dsdc, false),
-		sxComplex(relk, false), sxComplex(relc, false), "at k = 10, c = 0.8",
+		fmtComplex(complex(-c/(2*m), wd), true), fmtComplex(dsdk, false), fmtComplex(dsdc, false),
+		fmtComplex(relk, false), fmtComplex(relc, false), "at k = 10, c = 0.8",
 	} {
 		if !strings.Contains(text, want) {
 			t.Errorf("text lacks %q:\n%s", want, text)
@@ -44,7 +44,7 @@ func TestSensitivityDisplayClosedForm(t *testing.T) {
 		}
 	}
 	// k moves the pole more, relative to the sizes, than c does
-	if !strings.Contains(text, "k ("+sxNum(math.Hypot(real(relk), imag(relk)))+")") {
+	if !strings.Contains(text, "k ("+fmtNum(math.Hypot(real(relk), imag(relk)))+")") {
 		t.Errorf("ranking column should name k:\n%s", text)
 	}
 	if Render(s, Options{}).Data[Text] != text || Render(s, Options{}).Data[HTML] != h {

@@ -48,9 +48,9 @@ func sxValues(vals []complex128) string {
 			}
 		}
 		if paired {
-			parts = append(parts, sxComplex(complex(real(v), math.Abs(imag(v))), true))
+			parts = append(parts, fmtComplex(complex(real(v), math.Abs(imag(v))), true))
 		} else {
-			parts = append(parts, sxComplex(v, false))
+			parts = append(parts, fmtComplex(v, false))
 		}
 	}
 	return strings.Join(parts, ", ")
@@ -59,7 +59,7 @@ func sxValues(vals []complex128) string {
 func sxValuesJSON(vals []complex128) []any {
 	out := make([]any, len(vals))
 	for i, v := range vals {
-		out[i] = sxJSONComplex(v)
+		out[i] = jsonComplex(v)
 	}
 	return out
 }
@@ -69,66 +69,9 @@ func sxKind(s *lsys.System) string {
 		return "system"
 	}
 	if s.Sampled() {
-		return "sampled system (every " + sxNum(s.Ts) + " s)"
+		return "sampled system (every " + fmtNum(s.Ts) + " s)"
 	}
 	return "continuous-time system"
-}
-
-// sxSection is a small bold heading in HTML.
-func sxSection(h *strings.Builder, title string) {
-	fmt.Fprintf(h, "<div style=\"font-weight:bold;margin:6px 0 2px 0\">%s</div>", html.EscapeString(title))
-}
-
-// sxKeyTable renders rows of (key, value) as a text block and an HTML table.
-func sxKeyTable(t, h *strings.Builder, rows [][2]string) {
-	// Text: left-aligned both columns.
-	w := 0
-	for _, r := range rows {
-		if l := len([]rune(r[0])); l > w {
-			w = l
-		}
-	}
-	for _, r := range rows {
-		fmt.Fprintf(t, "  %s%s  %s\n", r[0], strings.Repeat(" ", w-len([]rune(r[0]))), r[1])
-	}
-	h.WriteString("<table style=\"border-collapse:collapse\">")
-	for _, r := range rows {
-		fmt.Fprintf(h, "<tr><td style=\"padding:1px 10px 1px 0;color:#555;vertical-align:top\">%s</td><td style=\"padding:1px 0;font-family:monospace\">%s</td></tr>", html.EscapeString(r[0]), html.EscapeString(r[1]))
-	}
-	h.WriteString("</table>")
-}
-
-// sxGrid renders a header + rows as text columns and an HTML table.
-func sxGrid(t, h *strings.Builder, head []string, rows [][]string) {
-	cells := append([][]string{head}, rows...)
-	sxWriteColumns(t, cells, "  ")
-	th := "<th style=\"padding:2px 6px;border-bottom:1px solid #999;text-align:right;font-weight:normal;color:#333\">"
-	h.WriteString("<table style=\"border-collapse:collapse\"><tr>")
-	for _, c := range head {
-		h.WriteString(th + html.EscapeString(c) + "</th>")
-	}
-	h.WriteString("</tr>")
-	for _, r := range rows {
-		h.WriteString("<tr>")
-		for _, c := range r {
-			fmt.Fprintf(h, "<td style=\"padding:2px 6px;text-align:right;font-family:monospace\">%s</td>", html.EscapeString(c))
-		}
-		h.WriteString("</tr>")
-	}
-	h.WriteString("</table>")
-}
-
-func sxOpen(h *strings.Builder, class, title string) {
-	fmt.Fprintf(h, "<div class=\"%s\" %s>", class, sxCardStyle)
-	fmt.Fprintf(h, "<div style=\"font-weight:bold;margin-bottom:4px\">%s</div>", html.EscapeString(title))
-}
-
-func sxNote(t, h *strings.Builder, note string) {
-	if note == "" {
-		return
-	}
-	fmt.Fprintf(t, "  %s\n", note)
-	fmt.Fprintf(h, "<div style=\"color:#555;margin-top:4px;max-width:60em\">%s</div>", html.EscapeString(note))
 }
 
 func sxYesNo(b bool) string {
@@ -151,25 +94,22 @@ func sxInts(v []int) string {
 
 func renderZeros(v any, _ Options) Bundle {
 	z := v.(*lsys.ZeroSet)
-	var t, h strings.Builder
 	title := "zeros"
 	if z.System != nil {
-		title = fmt.Sprintf("zeros of a %s with %s, %s, %s", sxKind(z.System), sxCount(z.System.N(), "state", "states"),
-			sxCount(z.System.M(), "input", "inputs"), sxCount(z.System.P(), "output", "outputs"))
+		title = fmt.Sprintf("zeros of a %s with %s, %s, %s", sxKind(z.System), count(z.System.N(), "state", "states"),
+			count(z.System.M(), "input", "inputs"), count(z.System.P(), "output", "outputs"))
 	}
-	t.WriteString(title + "\n")
-	sxOpen(&h, "lsys-zeros", title)
-	sxKeyTable(&t, &h, [][2]string{
+	c := newCard("lsys-zeros", title)
+	t, h := &c.t, &c.h
+	keyTable(t, h, [][2]string{
 		{"invariant zeros", sxValues(z.Invariant)},
 		{"transmission zeros", sxValues(z.Transmission)},
 		{"input-decoupling (not reached)", sxValues(z.InputDecoupling)},
 		{"output-decoupling (not seen)", sxValues(z.OutputDecoupling)},
 	})
-	sxNote(&t, &h, fmt.Sprintf("System pencil reduced by orthogonal compressions, then QZ; rank decisions at %s (= %s x the norm of [[A, B], [C, D]]); regular pencil of order %d.",
-		sxNum(z.Tol), sxNum(z.RelTol), z.ReducedOrder))
-	h.WriteString("</div>")
-	b := NewBundle(t.String())
-	b.Data[HTML] = h.String()
+	note(t, h, fmt.Sprintf("System pencil reduced by orthogonal compressions, then QZ; rank decisions at %s (= %s x the norm of [[A, B], [C, D]]); regular pencil of order %d.",
+		fmtNum(z.Tol), fmtNum(z.RelTol), z.ReducedOrder))
+	b := c.bundle()
 	b.Data[JSON] = map[string]any{
 		"kind": "zeros", "invariant": sxValuesJSON(z.Invariant), "transmission": sxValuesJSON(z.Transmission),
 		"input_decoupling": sxValuesJSON(z.InputDecoupling), "output_decoupling": sxValuesJSON(z.OutputDecoupling),
@@ -195,41 +135,36 @@ func sxEmbedMatrix(t, h *strings.Builder, name string, a *mat.Dense, rows, cols 
 
 func renderModal(v any, _ Options) Bundle {
 	mf := v.(*lsys.ModalForm)
-	var t, h strings.Builder
 	title := "real modal form"
 	if mf.BlockDiagonal {
 		title = "block-diagonal modal form"
 	}
-	t.WriteString(title + "\n")
-	sxOpen(&h, "lsys-modal", title)
-	sxNote(&t, &h, mf.Note)
+	c := newCard("lsys-modal", title)
+	t, h := &c.t, &c.h
+	note(t, h, mf.Note)
 	rows := [][]string{}
 	for i, b := range mf.Blocks {
 		rows = append(rows, []string{strconv.Itoa(i + 1), b.Kind, fmt.Sprintf("%d-%d", b.Start+1, b.Start+b.Size), sxValues(b.Values)})
 	}
 	t.WriteString("\n")
-	sxGrid(&t, &h, []string{"block", "kind", "states", "eigenvalues"}, rows)
+	gridTable(t, h, []string{"block", "kind", "states", "eigenvalues"}, rows, 0)
 	if mf.System != nil {
-		sxEmbedSystem(&t, &h, mf.System)
+		sxEmbedSystem(t, h, mf.System)
 		if mf.T != nil && mf.System.N() <= 12 {
 			// Caller's state names are those of the original system; the
 			// modal ones index the rows.
 			orig := sxOrigNames(mf.From, mf.System.N())
-			sxEmbedMatrix(&t, &h, "T (modal coordinates q = T x)", mf.T, mf.System.StateNames, orig)
+			sxEmbedMatrix(t, h, "T (modal coordinates q = T x)", mf.T, mf.System.StateNames, orig)
 		}
 	}
-	h.WriteString("</div>")
-	b := NewBundle(t.String())
-	b.Data[HTML] = h.String()
-	return b
+	return c.bundle()
 }
 
 func renderJordan(v any, _ Options) Bundle {
 	js := v.(*lsys.JordanStructure)
-	var t, h strings.Builder
-	title := fmt.Sprintf("Jordan structure of a %dx%d matrix: %s", js.N, js.N, sxCount(len(js.Clusters), "distinct eigenvalue", "distinct eigenvalues"))
-	t.WriteString(title + "\n")
-	sxOpen(&h, "lsys-jordan", title)
+	title := fmt.Sprintf("Jordan structure of a %dx%d matrix: %s", js.N, js.N, count(len(js.Clusters), "distinct eigenvalue", "distinct eigenvalues"))
+	c := newCard("lsys-jordan", title)
+	t, h := &c.t, &c.h
 	rows := [][]string{}
 	defective := 0
 	for _, c := range js.Clusters {
@@ -246,45 +181,39 @@ func renderJordan(v any, _ Options) Bundle {
 		if len(c.Ranks) > 0 {
 			ranks = sxInts(c.Ranks)
 		}
-		rows = append(rows, []string{sxComplex(c.Value, pair), strconv.Itoa(c.Algebraic), strconv.Itoa(c.Geometric), sxInts(c.Blocks), verdict, ranks, sxNum(c.Spread), sxNum(c.Tol), sxNum(c.Cond)})
+		rows = append(rows, []string{fmtComplex(c.Value, pair), strconv.Itoa(c.Algebraic), strconv.Itoa(c.Geometric), sxInts(c.Blocks), verdict, ranks, fmtNum(c.Spread), fmtNum(c.Tol), fmtNum(c.Cond)})
 	}
-	sxGrid(&t, &h, []string{"eigenvalue", "alg.", "geom.", "blocks", "verdict", "ranks of powers", "spread", "cluster tol", "cond"}, rows)
-	sxNote(&t, &h, fmt.Sprintf("Eigenvalues i, j are one cluster when |l_i - l_j| <= %s u ||A|| max(cond_i, cond_j) (at most %s%s); block sizes from the ranks of (A - l I)^k, singular values below %s of the largest counted as zero; real parts within %s of zero shown as 0. %d defective.",
-		sxNum(js.ClusterFactor), sxNum(js.CapTol), map[bool]string{true: ", or closer than " + sxNum(js.AbsTol), false: ""}[js.AbsTol > 0], sxNum(js.RankTol), sxNum(js.ZeroTol), defective))
-	h.WriteString("</div>")
-	b := NewBundle(t.String())
-	b.Data[HTML] = h.String()
-	return b
+	gridTable(t, h, []string{"eigenvalue", "alg.", "geom.", "blocks", "verdict", "ranks of powers", "spread", "cluster tol", "cond"}, rows, 0)
+	note(t, h, fmt.Sprintf("Eigenvalues i, j are one cluster when |l_i - l_j| <= %s u ||A|| max(cond_i, cond_j) (at most %s%s); block sizes from the ranks of (A - l I)^k, singular values below %s of the largest counted as zero; real parts within %s of zero shown as 0. %d defective.",
+		fmtNum(js.ClusterFactor), fmtNum(js.CapTol), map[bool]string{true: ", or closer than " + fmtNum(js.AbsTol), false: ""}[js.AbsTol > 0], fmtNum(js.RankTol), fmtNum(js.ZeroTol), defective))
+	return c.bundle()
 }
 
 func renderStructure(v any, _ Options) Bundle {
 	st := v.(*lsys.Structure)
-	var t, h strings.Builder
 	title := "structure of a " + sxKind(st.System)
-	t.WriteString(title + "\n")
-	sxOpen(&h, "lsys-structure", title)
+	c := newCard("lsys-structure", title)
+	t, h := &c.t, &c.h
 	n := st.System.N()
 	margin := func(s *lsys.Staircase) string {
-		return fmt.Sprintf("staircase steps %s; rank tolerance %s, smallest kept singular value %s, largest dropped %s", sxInts(s.Steps), sxNum(s.Tol), sxNum(s.Kept), sxNum(s.Dropped))
+		return fmt.Sprintf("staircase steps %s; rank tolerance %s, smallest kept singular value %s, largest dropped %s", sxInts(s.Steps), fmtNum(s.Tol), fmtNum(s.Kept), fmtNum(s.Dropped))
 	}
-	sxKeyTable(&t, &h, [][2]string{
+	keyTable(t, h, [][2]string{
 		{"controllable", fmt.Sprintf("%s: %d of %d states reachable (%s)", sxYesNo(st.Controllable), st.Reach.Dim, n, margin(st.Reach))},
 		{"observable", fmt.Sprintf("%s: %d of %d states observable (%s)", sxYesNo(st.Observable), st.Observe.Dim, n, margin(st.Observe))},
 		{"stabilizable", fmt.Sprintf("%s: modes not reached: %s", sxYesNo(st.Stabilizable), sxValues(st.UncontrollableModes))},
 		{"detectable", fmt.Sprintf("%s: modes not seen: %s", sxYesNo(st.Detectable), sxValues(st.UnobservableModes))},
 	})
 	t.WriteString("\nKalman parts\n")
-	sxSection(&h, "Kalman parts")
+	htmlSection(h, "Kalman parts")
 	rows := [][]string{}
 	for _, p := range st.Parts {
 		rows = append(rows, []string{p.Name, strconv.Itoa(p.Dim), sxValues(p.Modes)})
 	}
-	sxGrid(&t, &h, []string{"part", "states", "modes"}, rows)
-	sxNote(&t, &h, fmt.Sprintf("Orthogonal staircase forms decide every rank at %s x the norm of [A B] (or [A; C]); the Krylov matrix is not used. Reachable and unobservable subspaces intersected at principal-angle tolerance %s; Kalman transformation condition number %s.",
-		sxNum(st.RelTol), sxNum(st.AngleTol), sxNum(st.Cond)))
-	h.WriteString("</div>")
-	b := NewBundle(t.String())
-	b.Data[HTML] = h.String()
+	gridTable(t, h, []string{"part", "states", "modes"}, rows, 0)
+	note(t, h, fmt.Sprintf("Orthogonal staircase forms decide every rank at %s x the norm of [A B] (or [A; C]); the Krylov matrix is not used. Reachable and unobservable subspaces intersected at principal-angle tolerance %s; Kalman transformation condition number %s.",
+		fmtNum(st.RelTol), fmtNum(st.AngleTol), fmtNum(st.Cond)))
+	b := c.bundle()
 	parts := make([]any, 4)
 	for i, p := range st.Parts {
 		parts[i] = map[string]any{"name": p.Name, "states": p.Dim, "modes": sxValuesJSON(p.Modes)}
@@ -296,28 +225,23 @@ func renderStructure(v any, _ Options) Bundle {
 
 func renderDecomposition(v any, _ Options) Bundle {
 	d := v.(*lsys.Decomposition)
-	var t, h strings.Builder
 	title := fmt.Sprintf("Kalman decomposition: %d reachable and observable, %d reachable only, %d observable only, %d neither", d.Sizes[0], d.Sizes[1], d.Sizes[2], d.Sizes[3])
-	t.WriteString(title + "\n")
-	sxOpen(&h, "lsys-decomposition", title)
-	sxNote(&t, &h, fmt.Sprintf("States ro* reachable and observable, rn* reachable not observable, uo* observable not reachable, un* neither; z = T x with condition number of T %s.", sxNum(d.Cond)))
-	sxEmbedSystem(&t, &h, d.System)
+	c := newCard("lsys-decomposition", title)
+	t, h := &c.t, &c.h
+	note(t, h, fmt.Sprintf("States ro* reachable and observable, rn* reachable not observable, uo* observable not reachable, un* neither; z = T x with condition number of T %s.", fmtNum(d.Cond)))
+	sxEmbedSystem(t, h, d.System)
 	if d.System.N() <= 12 {
 		orig := sxOrigNames(d.From, d.System.N())
-		sxEmbedMatrix(&t, &h, "T (z = T x)", d.T, d.System.StateNames, orig)
+		sxEmbedMatrix(t, h, "T (z = T x)", d.T, d.System.StateNames, orig)
 	}
-	h.WriteString("</div>")
-	b := NewBundle(t.String())
-	b.Data[HTML] = h.String()
-	return b
+	return c.bundle()
 }
 
 func renderSubspace(v any, _ Options) Bundle {
 	s := v.(*lsys.Subspace)
-	var t, h strings.Builder
 	title := fmt.Sprintf("%s: dimension %d of %d", s.What, s.Dim, s.N)
-	t.WriteString(title + "\n")
-	sxOpen(&h, "lsys-subspace", title)
+	c := newCard("lsys-subspace", title)
+	t, h := &c.t, &c.h
 	rows := [][2]string{}
 	if s.Dim > 0 {
 		inv := "yes"
@@ -325,13 +249,13 @@ func renderSubspace(v any, _ Options) Bundle {
 			inv = "NO"
 		}
 		rows = append(rows,
-			[2]string{"A-invariant", fmt.Sprintf("%s: relative residual %s (tolerance %s)", inv, sxNum(s.Residual), sxNum(s.Tol))},
+			[2]string{"A-invariant", fmt.Sprintf("%s: relative residual %s (tolerance %s)", inv, fmtNum(s.Residual), fmtNum(s.Tol))},
 			[2]string{"eigenvalues in it", sxValues(s.Values)})
 	}
 	if len(rows) > 0 {
-		sxKeyTable(&t, &h, rows)
+		keyTable(t, h, rows)
 	}
-	sxNote(&t, &h, s.Note)
+	note(t, h, s.Note)
 	if s.Basis != nil && s.N <= 24 {
 		cols := make([]string, s.Dim)
 		for i := range cols {
@@ -344,12 +268,9 @@ func renderSubspace(v any, _ Options) Bundle {
 				names[i] = "x" + strconv.Itoa(i+1)
 			}
 		}
-		sxEmbedMatrix(&t, &h, "orthonormal basis", s.Basis, names, cols)
+		sxEmbedMatrix(t, h, "orthonormal basis", s.Basis, names, cols)
 	}
-	h.WriteString("</div>")
-	b := NewBundle(t.String())
-	b.Data[HTML] = h.String()
-	return b
+	return c.bundle()
 }
 
 func renderInvariant(v any, _ Options) Bundle {
@@ -359,7 +280,7 @@ func renderInvariant(v any, _ Options) Bundle {
 	if !ic.Subspace.Invariant {
 		verdict = "span(V) is NOT A-invariant"
 	}
-	head := fmt.Sprintf("%s: relative residual %s against tolerance %s (V has rank %d)\n", verdict, sxNum(ic.Subspace.Residual), sxNum(ic.Tol), ic.Rank)
+	head := fmt.Sprintf("%s: relative residual %s against tolerance %s (V has rank %d)\n", verdict, fmtNum(ic.Subspace.Residual), fmtNum(ic.Tol), ic.Rank)
 	b := NewBundle(head + sb.Data[Text].(string))
 	b.Data[HTML] = "<div><div style=\"font-weight:bold\">" + html.EscapeString(strings.TrimSpace(head)) + "</div>" + sb.Data[HTML].(string) + "</div>"
 	return b
@@ -367,23 +288,22 @@ func renderInvariant(v any, _ Options) Bundle {
 
 func renderEigen(v any, _ Options) Bundle {
 	es := v.(*lsys.EigenStructure)
-	var t, h strings.Builder
 	n := len(es.Values)
 	title := fmt.Sprintf("eigen-structure of a %dx%d matrix", n, n)
-	t.WriteString(title + "\n")
-	sxOpen(&h, "lsys-eigen", title)
+	c := newCard("lsys-eigen", title)
+	t, h := &c.t, &c.h
 	rows := [][]string{}
 	for k, lam := range es.Values {
-		rows = append(rows, []string{strconv.Itoa(k + 1), sxComplex(lam, false), sxNum(es.Cond[k])})
+		rows = append(rows, []string{strconv.Itoa(k + 1), fmtComplex(lam, false), fmtNum(es.Cond[k])})
 	}
-	sxGrid(&t, &h, []string{"#", "eigenvalue", "condition"}, rows)
+	gridTable(t, h, []string{"#", "eigenvalue", "condition"}, rows, 0)
 	if n <= 12 {
 		for _, which := range []struct {
 			name string
 			vec  [][]complex128
 		}{{"right eigenvectors (columns, unit norm)", es.Right}, {"left eigenvectors (columns, unit norm)", es.Left}} {
 			t.WriteString("\n" + which.name + "\n")
-			sxSection(&h, which.name)
+			htmlSection(h, which.name)
 			head := []string{"row"}
 			for k := range es.Values {
 				head = append(head, "v"+strconv.Itoa(k+1))
@@ -392,18 +312,15 @@ func renderEigen(v any, _ Options) Bundle {
 			for i := 0; i < n; i++ {
 				row := []string{strconv.Itoa(i + 1)}
 				for k := range es.Values {
-					row = append(row, sxComplex(which.vec[k][i], false))
+					row = append(row, fmtComplex(which.vec[k][i], false))
 				}
 				rr = append(rr, row)
 			}
-			sxGrid(&t, &h, head, rr)
+			gridTable(t, h, head, rr, 0)
 		}
 	}
-	sxNote(&t, &h, "Condition 1/|w^H v| from unit left and right eigenvectors: a change of A of relative size e moves the eigenvalue by about e ||A|| times it.")
-	h.WriteString("</div>")
-	b := NewBundle(t.String())
-	b.Data[HTML] = h.String()
-	return b
+	note(t, h, "Condition 1/|w^H v| from unit left and right eigenvectors: a change of A of relative size e moves the eigenvalue by about e ||A|| times it.")
+	return c.bundle()
 }
 
 // sxOrigNames are the state names of the original system (x1.. if unknown).

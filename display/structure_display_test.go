@@ -95,8 +95,8 @@ func TestModeTableDisplay(t *testing.T) {
 func TestNumberFormat(t *testing.T) {
 	cases := map[float64]string{0: "0", 1: "1", -0.8: "-0.8", 12345.678: "12346", 99999: "99999", 0.0012345: "0.001234", 2.5e-3: "0.0025", 1e-4: "1e-04", 1.5e-7: "1.5e-07", 1234567: "1.235e+06", 0.5: "0.5"}
 	for v, want := range cases {
-		if got := sxNum(v); got != want {
-			t.Errorf("sxNum(%v) = %q, want %q", v, got, want)
+		if got := fmtNum(v); got != want {
+			t.Errorf("fmtNum(%v) = %q, want %q", v, got, want)
 		}
 	}
 }

@@ -3,8 +3,6 @@ package display
 import (
 	"fmt"
 	"html"
-	"math"
-	"strconv"
 	"strings"
 
 	"lsys/lsys"
@@ -14,59 +12,6 @@ import (
 
 func init() {
 	Register((*lsys.System)(nil), renderSystem)
-}
-
-// sxNum formats a real number for tables: four significant digits, plain
-// notation for moderate magnitudes, exponent notation otherwise, no "-0".
-func sxNum(v float64) string {
-	switch {
-	case math.IsNaN(v):
-		return "n/a"
-	case math.IsInf(v, 1):
-		return "inf"
-	case math.IsInf(v, -1):
-		return "-inf"
-	case v == 0:
-		return "0"
-	}
-	a := math.Abs(v)
-	if a >= 1e-3 && a < 1e5 {
-		// Four significant digits, trailing zeros trimmed.
-		dec := 3 - int(math.Floor(math.Log10(a)))
-		if dec < 0 {
-			dec = 0
-		}
-		s := strconv.FormatFloat(v, 'f', dec, 64)
-		if strings.Contains(s, ".") {
-			s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
-		}
-		if s == "-0" {
-			s = "0"
-		}
-		return s
-	}
-	s := strconv.FormatFloat(v, 'e', 3, 64)
-	if i := strings.IndexByte(s, 'e'); i > 0 {
-		mant := strings.TrimRight(strings.TrimRight(s[:i], "0"), ".")
-		s = mant + s[i:]
-	}
-	return s
-}
-
-// sxComplex formats an eigenvalue; pair == true writes "a ± bj".
-func sxComplex(z complex128, pair bool) string {
-	re, im := real(z), imag(z)
-	if pair {
-		return sxNum(re) + " ± " + sxNum(math.Abs(im)) + "j"
-	}
-	if im == 0 {
-		return sxNum(re)
-	}
-	sign := " + "
-	if im < 0 {
-		sign = " - "
-	}
-	return sxNum(re) + sign + sxNum(math.Abs(im)) + "j"
 }
 
 // sxStability is the one-line verdict for a system.
@@ -86,31 +31,20 @@ func sxStability(s *lsys.System) string {
 		where = "|z|"
 	}
 	if st.Marginal {
-		return fmt.Sprintf("marginally stable: %d %s on the boundary (%s within %s of it), none defective", st.Boundary, sxPlural(st.Boundary, "pole", "poles"), where, sxNum(st.Tol))
+		return fmt.Sprintf("marginally stable: %d %s on the boundary (%s within %s of it), none defective", st.Boundary, plural(st.Boundary, "pole", "poles"), where, fmtNum(st.Tol))
 	}
-	return fmt.Sprintf("unstable: %d %s beyond the boundary or defective on it", st.Unstable, sxPlural(st.Unstable, "pole", "poles"))
-}
-
-func sxPlural(n int, one, many string) string {
-	if n == 1 {
-		return one
-	}
-	return many
-}
-
-func sxCount(n int, one, many string) string {
-	return fmt.Sprintf("%d %s", n, sxPlural(n, one, many))
+	return fmt.Sprintf("unstable: %d %s beyond the boundary or defective on it", st.Unstable, plural(st.Unstable, "pole", "poles"))
 }
 
 // sxHeadline is e.g. "continuous-time system: 2 states, 1 input, 1 output; stable".
 func sxHeadline(s *lsys.System) string {
 	kind := "continuous-time system"
 	if s.Sampled() {
-		kind = "sampled system, every " + sxNum(s.Ts) + " s"
+		kind = "sampled system, every " + fmtNum(s.Ts) + " s"
 	}
 	return fmt.Sprintf("%s: %s, %s, %s; %s", kind,
-		sxCount(s.N(), "state", "states"), sxCount(s.M(), "input", "inputs"),
-		sxCount(s.P(), "output", "outputs"), sxStability(s))
+		count(s.N(), "state", "states"), count(s.M(), "input", "inputs"),
+		count(s.P(), "output", "outputs"), sxStability(s))
 }
 
 // sxMatrixText lays out a labelled matrix as right-aligned text columns.
@@ -126,70 +60,18 @@ func sxMatrixText(b *strings.Builder, name string, a *mat.Dense, rows, cols []st
 	for i := 0; i < r; i++ {
 		cells[i+1] = []string{rows[i]}
 		for j := 0; j < c; j++ {
-			cells[i+1] = append(cells[i+1], sxNum(a.At(i, j)))
+			cells[i+1] = append(cells[i+1], fmtNum(a.At(i, j)))
 		}
 	}
-	sxWriteColumns(b, cells, "  ")
+	writeColumns(b, cells, "  ", 1)
 }
-
-// sxWriteColumns writes a grid with the first column left-aligned and the
-// others right-aligned, each line prefixed by indent.
-func sxWriteColumns(b *strings.Builder, cells [][]string, indent string) {
-	width := map[int]int{}
-	for _, row := range cells {
-		for j, s := range row {
-			if l := len([]rune(s)); l > width[j] {
-				width[j] = l
-			}
-		}
-	}
-	for _, row := range cells {
-		line := indent
-		for j, s := range row {
-			pad := strings.Repeat(" ", width[j]-len([]rune(s)))
-			if j == 0 {
-				line += s + pad
-			} else {
-				line += "  " + pad + s
-			}
-		}
-		b.WriteString(strings.TrimRight(line, " "))
-		b.WriteByte('\n')
-	}
-}
-
-// sxCardStyle is the shared look of our HTML cards: a thin frame, a bold
-// title line, small monospace numbers.
-const sxCardStyle = `style="border:1px solid #bbb;border-radius:4px;padding:6px 10px;margin:2px 0;font-family:sans-serif;font-size:13px;display:inline-block"`
-
-const sxTableStyle = `style="border-collapse:collapse;margin:4px 12px 4px 0;display:inline-table;vertical-align:top"`
 
 // sxMatrixHTML renders a labelled matrix as an HTML table.
 func sxMatrixHTML(b *strings.Builder, name string, a *mat.Dense, rows, cols []string) {
-	r, c := len(rows), len(cols)
-	fmt.Fprintf(b, "<table %s><caption style=\"text-align:left;font-weight:bold\">%s <span style=\"font-weight:normal;color:#555\">%dx%d</span></caption>", sxTableStyle, html.EscapeString(name), r, c)
-	if r == 0 || c == 0 {
-		b.WriteString("<tr><td style=\"color:#555\">(empty)</td></tr></table>")
-		return
-	}
-	b.WriteString("<tr><th></th>")
-	for _, h := range cols {
-		fmt.Fprintf(b, "<th style=\"padding:1px 6px;color:#555;font-weight:normal;text-align:right\">%s</th>", html.EscapeString(h))
-	}
-	b.WriteString("</tr>")
-	for i := 0; i < r; i++ {
-		fmt.Fprintf(b, "<tr><th style=\"padding:1px 6px;color:#555;font-weight:normal;text-align:left\">%s</th>", html.EscapeString(rows[i]))
-		for j := 0; j < c; j++ {
-			v := a.At(i, j)
-			color := ""
-			if v == 0 {
-				color = "color:#aaa;"
-			}
-			fmt.Fprintf(b, "<td style=\"padding:1px 6px;text-align:right;font-family:monospace;%s\">%s</td>", color, sxNum(v))
-		}
-		b.WriteString("</tr>")
-	}
-	b.WriteString("</table>")
+	htmlMatrix(b, name, fmt.Sprintf("%dx%d", len(rows), len(cols)), rows, cols, func(i, j int) (string, bool) {
+		v := a.At(i, j)
+		return fmtNum(v), v == 0
+	})
 }
 
 // sxLatexMatrix writes a matrix as a LaTeX bmatrix.
@@ -204,7 +86,7 @@ func sxLatexMatrix(a *mat.Dense, r, c int) string {
 			if j > 0 {
 				b.WriteString(" & ")
 			}
-			b.WriteString(sxLatexNum(a.At(i, j)))
+			b.WriteString(latexNum(fmtNum(a.At(i, j))))
 		}
 		if i < r-1 {
 			b.WriteString(` \\ `)
@@ -212,15 +94,6 @@ func sxLatexMatrix(a *mat.Dense, r, c int) string {
 	}
 	b.WriteString(`\end{bmatrix}`)
 	return b.String()
-}
-
-func sxLatexNum(v float64) string {
-	s := sxNum(v)
-	if i := strings.Index(s, "e"); i >= 0 {
-		exp, _ := strconv.Atoi(s[i+1:])
-		return s[:i] + `\cdot 10^{` + strconv.Itoa(exp) + `}`
-	}
-	return s
 }
 
 func sxLatexVector(names []string) string {
@@ -348,8 +221,7 @@ func renderSystem(v any, _ Options) Bundle {
 	}
 
 	var h strings.Builder
-	fmt.Fprintf(&h, "<div class=\"lsys-system\" %s>", sxCardStyle)
-	fmt.Fprintf(&h, "<div style=\"font-weight:bold;margin-bottom:4px\">%s</div>", html.EscapeString(sxHeadline(s)))
+	htmlCard(&h, "lsys-system", sxHeadline(s))
 	if len(sig) > 0 {
 		h.WriteString("<table style=\"border-collapse:collapse;margin-bottom:4px\">")
 		for _, r := range sig {
@@ -411,21 +283,4 @@ func sxSystemJSON(s *lsys.System) map[string]any {
 		"C":           sxMatrixJSON(s.C, p, n),
 		"D":           sxMatrixJSON(s.D, p, m),
 	}
-}
-
-// sxJSONNum maps non-finite numbers, which JSON cannot carry, to strings.
-func sxJSONNum(v float64) any {
-	switch {
-	case math.IsNaN(v):
-		return "nan"
-	case math.IsInf(v, 1):
-		return "inf"
-	case math.IsInf(v, -1):
-		return "-inf"
-	}
-	return v
-}
-
-func sxJSONComplex(z complex128) []any {
-	return []any{sxJSONNum(real(z)), sxJSONNum(imag(z))}
 }

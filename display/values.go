@@ -2,9 +2,6 @@ package display
 
 import (
 	"fmt"
-	"html"
-	"math"
-	"math/cmplx"
 	"strconv"
 	"strings"
 
@@ -18,14 +15,14 @@ import (
 func init() {
 	Register(float64(0), func(v any, _ Options) Bundle {
 		x := v.(float64)
-		b := NewBundle(valNum(x))
-		b.Data[JSON] = map[string]any{"value": valJSON(x)}
+		b := NewBundle(fmtDigits(x, 10))
+		b.Data[JSON] = map[string]any{"value": jsonNum(x)}
 		return b
 	})
 	Register(complex128(0), func(v any, _ Options) Bundle {
 		z := v.(complex128)
-		b := NewBundle(valComplex(z, 10))
-		b.Data[JSON] = map[string]any{"re": valJSON(real(z)), "im": valJSON(imag(z))}
+		b := NewBundle(fmtComplexDigits(z, 10))
+		b.Data[JSON] = map[string]any{"re": jsonNum(real(z)), "im": jsonNum(imag(z))}
 		return b
 	})
 	Register(false, func(v any, _ Options) Bundle { return NewBundle(strconv.FormatBool(v.(bool))) })
@@ -40,50 +37,6 @@ func init() {
 		r, c := a.Dims()
 		return matrixBundle(r, c, a.At, true)
 	})
-}
-
-func valNum(v float64) string { return valDigits(v, 10) }
-
-// valDigits writes v with at most d significant digits, without "-0".
-func valDigits(v float64, d int) string {
-	switch {
-	case math.IsNaN(v):
-		return "nan"
-	case math.IsInf(v, 1):
-		return "inf"
-	case math.IsInf(v, -1):
-		return "-inf"
-	case v == 0:
-		return "0"
-	}
-	return strconv.FormatFloat(v, 'g', d, 64)
-}
-
-// valComplex writes a + bj in the language's notation.
-func valComplex(z complex128, d int) string {
-	if cmplx.IsNaN(z) {
-		return "nan"
-	}
-	re, im := real(z), imag(z)
-	if im == 0 {
-		return valDigits(re, d)
-	}
-	if re == 0 {
-		return valDigits(im, d) + "j"
-	}
-	sign := " + "
-	if im < 0 {
-		sign, im = " - ", -im
-	}
-	return valDigits(re, d) + sign + valDigits(im, d) + "j"
-}
-
-// valJSON is a JSON-safe number: non-finite values become strings.
-func valJSON(v float64) any {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return valNum(v)
-	}
-	return v
 }
 
 func matrixBundle(r, c int, at func(i, j int) complex128, isComplex bool) Bundle {
@@ -101,45 +54,22 @@ func matrixBundle(r, c int, at func(i, j int) complex128, isComplex bool) Bundle
 
 	// text/plain: right-aligned columns.
 	cells := make([][]string, r)
-	width := make([]int, c)
 	for i := range cells {
 		cells[i] = make([]string, c)
 		for j := range cells[i] {
-			cells[i][j] = valComplex(at(i, j), 10)
-			width[j] = max(width[j], len([]rune(cells[i][j])))
+			cells[i][j] = fmtComplexDigits(at(i, j), 10)
 		}
 	}
 	var t strings.Builder
-	t.WriteString(title)
-	for i := range cells {
-		t.WriteString("\n")
-		for j, s := range cells[i] {
-			t.WriteString(strings.Repeat(" ", width[j]-len([]rune(s))+2))
-			t.WriteString(s)
-		}
-	}
+	t.WriteString(title + "\n")
+	writeColumns(&t, cells, "  ", 0)
 
-	// text/html: a compact table with row and column numbers.
+	// text/html: our matrix table, rows and columns numbered.
 	var h strings.Builder
-	fmt.Fprintf(&h, `<table class="lsys-matrix" style="border-collapse:collapse;font-size:13px"><caption style="text-align:left;color:#555">%s</caption>`, html.EscapeString(title))
-	h.WriteString(`<tr><th></th>`)
-	for j := 0; j < c; j++ {
-		fmt.Fprintf(&h, `<th style="padding:1px 8px;color:#888;font-weight:normal;text-align:right">%d</th>`, j+1)
-	}
-	h.WriteString(`</tr>`)
-	for i := 0; i < r; i++ {
-		fmt.Fprintf(&h, `<tr><th style="padding:1px 8px;color:#888;font-weight:normal;text-align:right">%d</th>`, i+1)
-		for j := 0; j < c; j++ {
-			z := at(i, j)
-			grey := ""
-			if z == 0 {
-				grey = "color:#aaa;"
-			}
-			fmt.Fprintf(&h, `<td style="padding:1px 8px;text-align:right;font-family:monospace;%s">%s</td>`, grey, html.EscapeString(valComplex(z, 6)))
-		}
-		h.WriteString(`</tr>`)
-	}
-	h.WriteString(`</table>`)
+	htmlMatrix(&h, kind, fmt.Sprintf("%dx%d", r, c), numbered(r), numbered(c), func(i, j int) (string, bool) {
+		z := at(i, j)
+		return fmtComplexDigits(z, 6), z == 0
+	})
 
 	// text/latex: a bracketed matrix, exponents written as powers of ten.
 	var l strings.Builder
@@ -152,7 +82,7 @@ func matrixBundle(r, c int, at func(i, j int) complex128, isComplex bool) Bundle
 			if j > 0 {
 				l.WriteString(` & `)
 			}
-			l.WriteString(valLatex(valComplex(at(i, j), 6)))
+			l.WriteString(valLatex(fmtComplexDigits(at(i, j), 6)))
 		}
 	}
 	l.WriteString(`\end{bmatrix}$$`)
@@ -164,14 +94,14 @@ func matrixBundle(r, c int, at func(i, j int) complex128, isComplex bool) Bundle
 		for j := range row {
 			z := at(i, j)
 			if isComplex {
-				row[j] = []any{valJSON(real(z)), valJSON(imag(z))}
+				row[j] = []any{jsonNum(real(z)), jsonNum(imag(z))}
 			} else {
-				row[j] = valJSON(real(z))
+				row[j] = jsonNum(real(z))
 			}
 		}
 		rows[i] = row
 	}
-	b := NewBundle(t.String())
+	b := NewBundle(strings.TrimSuffix(t.String(), "\n"))
 	b.Data[HTML] = h.String()
 	b.Data[LaTeX] = l.String()
 	b.Data[JSON] = map[string]any{"rows": r, "cols": c, "complex": isComplex, "data": rows}
@@ -183,21 +113,11 @@ func valLatex(s string) string {
 	var out []string
 	for _, part := range strings.Fields(s) {
 		if strings.HasSuffix(part, "j") {
-			part = valLatexNum(strings.TrimSuffix(part, "j")) + `\,\mathrm{j}`
+			part = latexNum(strings.TrimSuffix(part, "j")) + `\,\mathrm{j}`
 		} else if part != "+" && part != "-" {
-			part = valLatexNum(part)
+			part = latexNum(part)
 		}
 		out = append(out, part)
 	}
 	return strings.Join(out, " ")
-}
-
-func valLatexNum(s string) string {
-	if i := strings.IndexByte(s, 'e'); i >= 0 {
-		exp, err := strconv.Atoi(s[i+1:])
-		if err == nil {
-			return s[:i] + `\cdot 10^{` + strconv.Itoa(exp) + `}`
-		}
-	}
-	return s
 }
