@@ -8,9 +8,12 @@
 package display
 
 import (
+	"encoding/base64"
 	"fmt"
+	"html"
 	"reflect"
 	"sort"
+	"strings"
 	"sync"
 )
 
@@ -89,10 +92,34 @@ func Render(v any, opt Options) Bundle {
 		if b.Metadata == nil {
 			b.Metadata = map[string]any{}
 		}
+		embedChart(&b)
 		return b
 	}
 	if s, ok := v.(fmt.Stringer); ok {
 		return NewBundle(s.String())
 	}
 	return NewBundle(fmt.Sprintf("%v", v))
+}
+
+// embedChart puts a bundle's SVG chart into its HTML part as an image.
+// Front ends show one representation of a bundle, and they prefer HTML to
+// SVG: without this a result with a table and a chart would show the table
+// only, and report converters that sanitise inline SVG would show an empty
+// frame. The image/svg+xml part stays for reuse downstream.
+func embedChart(b *Bundle) {
+	svg, ok := b.Data[SVG].(string)
+	if !ok || svg == "" {
+		return
+	}
+	alt, _ := b.Data[Text].(string)
+	if i := strings.IndexByte(alt, '\n'); i >= 0 {
+		alt = alt[:i]
+	}
+	img := `<div class="lsys-chart"><img style="max-width:100%" alt="` + html.EscapeString(alt) +
+		`" src="data:image/svg+xml;base64,` + base64.StdEncoding.EncodeToString([]byte(svg)) + `"></div>`
+	if h, ok := b.Data[HTML].(string); ok && h != "" {
+		b.Data[HTML] = img + h
+	} else {
+		b.Data[HTML] = img
+	}
 }
