@@ -299,6 +299,8 @@ func autoRange(g *System) (lo, hi float64, extra []float64, rule string) {
 // rational function's phase falls about tenfold per decade, so what is
 // left to come is about slope/ln(10); we widen while the distance is below
 // the slope (degrees per decade, measured over the last tenth of a decade).
+// For a loop, an edge where |L| is within 0.5 dB of 1 and still moving
+// also widens, so that no crossover sits on the frame of the chart.
 // Sampled systems never go above the Nyquist frequency.
 func bracketRange(ev *freqEval, lo, hi, nyquist float64, phase bool, maxDec int) (float64, float64, int, int) {
 	down, up := 0, 0
@@ -352,6 +354,11 @@ func beyondEdge(ev *freqEval, w float64, dir float64, phase bool) bool {
 		m0 := 20 * math.Log10(ma)
 		s := (20*math.Log10(mb) - m0) / step
 		if m0*s < 0 && math.Abs(s) > 1 {
+			return true
+		}
+		// a loop that crosses 0 dB right at the edge: widen once more so
+		// the chart shows the crossover inside, not on its frame
+		if phase && math.Abs(m0) < 0.5 && math.Abs(s) > 1 {
 			return true
 		}
 	}

@@ -92,6 +92,9 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 	mag := f.Magnitude(0, 0)
 	ph := f.Phase(0, 0)
 	bisect := func(a, b float64, fa float64, fn func(w float64) float64) float64 {
+		if fa == 0 {
+			return a // the grid point itself is the crossing
+		}
 		for i := 0; i < 60; i++ {
 			mid := math.Sqrt(a * b)
 			if a == 0 {

@@ -180,3 +180,43 @@ func TestMarginsConditionallyStableTripleIntegrator(t *testing.T) {
 		t.Errorf("range starts at %g rad/s", lo)
 	}
 }
+
+func TestMarginsResonantLoopAllCrossovers(t *testing.T) {
+	// L = (1/s) 100/(s^2 + 0.4 s + 100): the phase -90 - atan2(0.4 w,
+	// 100 - w^2) is -180 exactly at w = 10, where |L| = 100/(10*4) = 2.5,
+	// so GM = -20 log10 2.5 dB; |L| = 100/(w sqrt((100-w^2)^2 + 0.16 w^2))
+	// crosses 1 three times (by hand; the crossovers by bisection on that
+	// formula). The grid holds w = 10 itself, where the phase is -180 to
+	// the last digit: the crossover is that point, not the next one.
+	L := siso(t, []float64{100}, []float64{0, 100, 0.4, 1})
+	mg, err := LoopMargins(context.Background(), L, FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(mg.PhaseCrossovers) != 1 || math.Abs(mg.PhaseCrossovers[0]-10) > 1e-9 {
+		t.Fatalf("phase crossovers %v, want [10]", mg.PhaseCrossovers)
+	}
+	if want := -20 * math.Log10(2.5); math.Abs(mg.GainMarginDB-want) > 1e-9 {
+		t.Errorf("GM %g dB want %g", mg.GainMarginDB, want)
+	}
+	mag := func(w float64) float64 { return 100 / (w * math.Hypot(100-w*w, 0.4*w)) }
+	var want []float64
+	for _, br := range [][2]float64{{0.5, 5}, {5, 10}, {10, 20}} {
+		want = append(want, bisectLog(br[0], br[1], func(w float64) float64 { return mag(w) - 1 }))
+	}
+	if len(mg.GainCrossovers) != 3 {
+		t.Fatalf("gain crossovers %v, want %v", mg.GainCrossovers, want)
+	}
+	for i, w := range want {
+		pm := 90 - math.Atan2(0.4*w, 100-w*w)*180/math.Pi
+		if math.Abs(mg.GainCrossovers[i]-w)/w > 1e-9 || math.Abs(mg.PhaseMargins[i]-pm) > 1e-6 {
+			t.Errorf("crossover %d: %g (PM %g), want %g (PM %g)", i, mg.GainCrossovers[i], mg.PhaseMargins[i], w, pm)
+		}
+	}
+	if mg.ClosedStable {
+		t.Error("the loop with GM < 0 dB reported stable")
+	}
+	if mg.Loop.W[0] >= want[0]/2 {
+		t.Errorf("chart starts at %g rad/s: the first crossover %g sits on its frame", mg.Loop.W[0], want[0])
+	}
+}
