@@ -116,7 +116,7 @@ func lcTable(l *lsys.Locus) (title string, head []string, rows [][]string, notes
 	for i, br := range l.Branches {
 		w0, z0 := lcFreqCell(br[0], l.Ts)
 		w1, z1 := lcFreqCell(br[last], l.Ts)
-		rows = append(rows, []string{fmt.Sprint(i + 1), fmtComplex(br[0], false), fmtComplex(br[last], false), w0, w1, z0, z1})
+		rows = append(rows, []string{fmt.Sprint(i + 1), lcComplex(br[0]), lcComplex(br[last]), w0, w1, z0, z1})
 	}
 	for _, c := range lcCrossings(l) {
 		verb := "becomes unstable"

@@ -24,6 +24,24 @@ func snComplex(z complex128) string {
 	if cmplx.IsNaN(z) {
 		return "undefined"
 	}
+	return lcComplex(z)
+}
+
+// lcComplex is a complex number as the tables show it: a part below
+// 1e-13 of the modulus is rounding and shown as 0, and a purely imaginary
+// number without its zero real part ("0.2245j", not "0 + 0.2245j").
+func lcComplex(z complex128) string {
+	if a := cmplx.Abs(z); !math.IsInf(a, 0) {
+		if math.Abs(real(z)) <= 1e-13*a {
+			z = complex(0, imag(z))
+		}
+		if math.Abs(imag(z)) <= 1e-13*a {
+			z = complex(real(z), 0)
+		}
+	}
+	if real(z) == 0 && imag(z) != 0 {
+		return fmtNum(imag(z)) + "j"
+	}
 	return fmtComplex(z, false)
 }
 

@@ -33,8 +33,8 @@ func TestSensitivityDisplayClosedForm(t *testing.T) {
 	text := b.Data[Text].(string)
 	h := b.Data[HTML].(string)
 	for _, want := range []string{
-		fmtComplex(complex(-c/(2*m), wd), true), fmtComplex(dsdk, false), fmtComplex(dsdc, false),
-		fmtComplex(relk, false), fmtComplex(relc, false), "at k = 10, c = 0.8",
+		fmtComplex(complex(-c/(2*m), wd), true), lcComplex(dsdk), lcComplex(dsdc),
+		lcComplex(relk), lcComplex(relc), "at k = 10, c = 0.8",
 	} {
 		if !strings.Contains(text, want) {
 			t.Errorf("text lacks %q:\n%s", want, text)
@@ -42,6 +42,9 @@ func TestSensitivityDisplayClosedForm(t *testing.T) {
 		if !strings.Contains(h, want) {
 			t.Errorf("HTML lacks %q:\n%s", want, h)
 		}
+	}
+	if lcComplex(dsdk) != fmtNum(imag(dsdk))+"j" {
+		t.Errorf("a purely imaginary derivative is shown as %q", lcComplex(dsdk))
 	}
 	// k moves the pole more, relative to the sizes, than c does
 	if !strings.Contains(text, "k ("+fmtNum(math.Hypot(real(relk), imag(relk)))+")") {

@@ -42,3 +42,19 @@ func BenchmarkRecursion(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkLocusBlockFamily: a locus of 1000 values over a two-state
+// family written as an equation block in a function (each value compiles
+// the block, extracts A by automatic differentiation and takes its
+// eigenvalues).
+func BenchmarkLocusBlockFamily(b *testing.B) {
+	s := NewSession("")
+	if _, err := s.Run(context.Background(), mountFamily, nil); err != nil {
+		b.Fatal(err)
+	}
+	for i := 0; i < b.N; i++ {
+		if _, err := s.Run(context.Background(), "locus(family, k: linear(1, 10, n: 1000))", nil); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
