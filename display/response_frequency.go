@@ -173,17 +173,24 @@ func renderSingular(v any, opt Options) Bundle {
 	x, xl, _ := rpFreqAxis(f)
 	k := len(sv.S[0])
 	text := rpFreqText(f, "singular values") + fmt.Sprintf("\n%d singular value(s); the largest peaks at ", k)
-	peak, at := 0.0, 0.0
+	peak, at, kp := 0.0, 0.0, 0
 	for n := range f.W {
 		if sv.S[n][0] > peak {
-			peak, at = sv.S[n][0], x[n]
+			peak, at, kp = sv.S[n][0], x[n], n
 		}
 	}
 	unit := "rad/s"
 	if f.Hz {
 		unit = "Hz"
 	}
-	text += fmt.Sprintf("%s dB at %s %s (on the grid)", fmtNum(20*math.Log10(peak)), fmtNum(at), unit)
+	where := "on the grid"
+	switch {
+	case len(f.W) > 1 && kp == 0:
+		where = "the lower edge of the range: it may rise further below"
+	case len(f.W) > 1 && kp == len(f.W)-1:
+		where = "the upper edge of the range: it may rise further above"
+	}
+	text += fmt.Sprintf("%s dB at %s %s (%s)", fmtNum(20*math.Log10(peak)), fmtNum(at), unit, where)
 	pn := newPanel("singular values", xl, "singular value (dB)")
 	pn.LogX = true
 	pn.DBTicks = true
