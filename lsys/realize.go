@@ -4,51 +4,134 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/cmplx"
+	"sort"
 
 	"gonum.org/v1/gonum/lapack"
 	"gonum.org/v1/gonum/lapack/gonum"
 	"gonum.org/v1/gonum/mat"
 )
 
+// RealizeInfo tells how a realization was obtained and how far it can be
+// trusted.
+type RealizeInfo struct {
+	// Scales holds the frequency scale of each input column: a power of two
+	// near the geometric mean of the magnitudes of the column's nonzero
+	// poles (1 when there are none).
+	Scales []float64
+	// Order is the order of the column-wise companion realization before
+	// reduction; Removed is the number of states the staircase removed as
+	// pole-zero cancellations (SISO) or shared poles (MIMO).
+	Order, Removed int
+	// Tol is the relative rank tolerance of the staircase.
+	Tol float64
+	// Spread is the largest ratio between nonzero coefficients of a monic
+	// denominator as given (a measure of how badly scaled the input is).
+	Spread float64
+	// Check is the worst relative difference between the realization's
+	// transfer function and direct evaluation of the rational entries, at
+	// points on circles through every pole magnitude (relative to the
+	// entry's size there, sum |num_k| |s|^k / |den(s)|).
+	Check float64
+	// Warning is non-empty when something needs the reader's attention: a
+	// reduction refused because it would change the transfer function, or
+	// a realization that reproduces the transfer function only poorly.
+	Warning string
+}
+
+// Tolerances of realization (common practice, chosen by us):
+const (
+	// realizeRankTol is the default relative rank tolerance of the
+	// staircase: singular values at or below realizeRankTol * ||A||_F count
+	// as zero (A of the scaled, balanced realization).
+	realizeRankTol = 1e-10
+	// realizeCancelTol bounds the change of the transfer function a
+	// reduction may make, relative, at the check points: a pole and a zero
+	// cancel only when they agree to about this fraction of the pole's
+	// magnitude. A reduction that changes more is refused.
+	realizeCancelTol = 1e-8
+	// realizeFailTol: a realization that differs from the rational entries
+	// by more than this (relative) at the check points is an error, since
+	// its poles and gains cannot be trusted.
+	realizeFailTol = 1e-6
+)
+
 // Realize returns a minimal state-space realization of a transfer matrix
 // given as rows (outputs) of columns (inputs) of rational functions, all with
-// sample time ts (0 for functions of s, > 0 for functions of z).
-//
-// Method: each column is realized in controllable companion form over the
-// product of its distinct denominators (so the realization is controllable
-// by construction), the columns are stacked block-diagonally, and the
-// uncontrollable and unobservable parts are removed with the orthogonal
-// staircase reduction (Van Dooren 1981, "The generalized eigenstructure
-// problem in linear system theory", IEEE TAC 26(1)), which is where
-// pole-zero cancellations disappear. Rank decisions use the tolerance of
-// RealizeTol with tol = 0 (see there).
-//
-// Every entry must be proper (degree of numerator <= degree of
-// denominator); an improper entry is refused, since it has no state-space
-// form.
+// sample time ts (0 for functions of s, > 0 for functions of z). It is
+// RealizeWithInfo with the default tolerance; a realization whose transfer
+// function differs from the entries by more than 1e-6 (relative) at the
+// check points is refused with an error that gives the difference and the
+// coefficient spread.
 func Realize(tf [][]*Rational, ts float64) (*System, error) {
 	return RealizeTol(tf, ts, 0)
 }
 
-// RealizeTol is Realize with an explicit absolute tolerance for the rank
-// decisions of the staircase reduction: a singular value at or below tol
-// counts as zero. tol <= 0 selects the default
-// 1e-10 * max(1, ||[A B]||_F) of the non-minimal companion realization
-// (a pole and a zero closer than about this relative distance cancel).
+// RealizeTol is Realize with an explicit relative rank tolerance for the
+// staircase (see RealizeWithInfo).
 func RealizeTol(tf [][]*Rational, ts float64, tol float64) (*System, error) {
+	s, info, err := RealizeWithInfo(tf, ts, tol)
+	if err != nil {
+		return nil, err
+	}
+	if info.Check > realizeFailTol {
+		return nil, errors.New("realize: " + info.Warning)
+	}
+	return s, nil
+}
+
+// RealizeWithInfo returns a minimal state-space realization of a transfer
+// matrix and a report on how it was obtained and how well it reproduces
+// the entries.
+//
+// Method:
+//  1. Each entry is made monic; common roots at the origin (s^k or z^k
+//     factors of numerator and denominator) are cancelled exactly.
+//  2. Each column is realized in controllable companion form over the
+//     product of its distinct denominators, after scaling the variable by a
+//     power of two w near the geometric mean of the nonzero pole magnitudes
+//     (s = w*sigma: the coefficients of the scaled polynomial are near 1 for
+//     a cluster of poles, and the companion form is balanced, Parlett &
+//     Reinsch 1969). The scaling is undone exactly (powers of two) by
+//     A = w*A_sigma, B = w*B_sigma. The columns are stacked block-diagonally,
+//     so the realization is controllable by construction.
+//  3. Unobservable states (pole-zero cancellations, poles shared between
+//     columns) are removed by the orthogonal staircase reduction of
+//     (A^T, C^T) (Van Dooren 1981, "The generalized eigenstructure problem
+//     in linear system theory", IEEE TAC 26(1)), a singular value at or
+//     below tol*||A||_F counting as zero (tol <= 0 selects 1e-10). A single
+//     entry with a constant numerator cannot cancel and is not reduced.
+//  4. The reduced and the unreduced realizations are checked against direct
+//     evaluation of the entries at points on circles through every pole
+//     magnitude. A reduction that changes the transfer function by more than
+//     1e-8 relative is refused (never drop a pole that is there: a
+//     cancellation must hold to about 1e-8 of the pole's magnitude) and the
+//     Warning says so; the unreduced realization is returned.
+//
+// Every entry must be proper (degree of numerator <= degree of
+// denominator); an improper entry is refused, since it has no state-space
+// form.
+func RealizeWithInfo(tf [][]*Rational, ts float64, tol float64) (*System, *RealizeInfo, error) {
 	p := len(tf)
 	if p == 0 || len(tf[0]) == 0 {
-		return nil, errors.New("realize: the transfer matrix is empty")
+		return nil, nil, errors.New("realize: the transfer matrix is empty")
 	}
 	if math.IsNaN(ts) || math.IsInf(ts, 0) || ts < 0 {
-		return nil, fmt.Errorf("realize: sample time must be finite and >= 0, got %v", ts)
+		return nil, nil, fmt.Errorf("realize: sample time must be finite and >= 0, got %v", ts)
+	}
+	if math.IsNaN(tol) || math.IsInf(tol, 0) {
+		return nil, nil, fmt.Errorf("realize: the tolerance must be finite, got %v", tol)
+	}
+	if tol <= 0 {
+		tol = realizeRankTol
 	}
 	m := len(tf[0])
 	for i, row := range tf {
 		if len(row) != m {
-			return nil, fmt.Errorf("realize: row %d has %d entries but row 1 has %d; every output needs one entry per input", i+1, len(row), m)
+			return nil, nil, fmt.Errorf("realize: row %d has %d entries but row 1 has %d; every output needs one entry per input", i+1, len(row), m)
 		}
 	}
+	info := &RealizeInfo{Tol: tol, Scales: make([]float64, m), Spread: 1}
 	type entry struct{ num, den []float64 }
 	ent := make([][]entry, p)
 	for i := range tf {
@@ -56,25 +139,35 @@ func RealizeTol(tf [][]*Rational, ts float64, tol float64) (*System, error) {
 		for j, r := range tf[i] {
 			where := fmt.Sprintf("entry [%d, %d]", i+1, j+1)
 			if r == nil {
-				return nil, fmt.Errorf("realize: %s is missing", where)
+				return nil, nil, fmt.Errorf("realize: %s is missing", where)
 			}
 			if r.Ts != ts {
-				return nil, fmt.Errorf("realize: %s has sample time %s but the matrix is %s", where, tsText(r.Ts), tsText(ts))
+				return nil, nil, fmt.Errorf("realize: %s has sample time %s but the matrix is %s", where, tsText(r.Ts), tsText(ts))
 			}
 			num, den := polyTrim(r.Num), polyTrim(r.Den)
 			for _, c := range append(append([]float64(nil), num...), den...) {
 				if math.IsNaN(c) || math.IsInf(c, 0) {
-					return nil, fmt.Errorf("realize: %s has a coefficient %v; coefficients must be finite", where, c)
+					return nil, nil, fmt.Errorf("realize: %s has a coefficient %v; coefficients must be finite", where, c)
 				}
 			}
 			if len(den) == 0 {
-				return nil, fmt.Errorf("realize: %s has a zero denominator", where)
+				return nil, nil, fmt.Errorf("realize: %s has a zero denominator", where)
 			}
 			if len(num) > len(den) {
-				return nil, fmt.Errorf("realize: %s is improper (numerator degree %d above denominator degree %d); a state-space model needs a proper transfer function", where, len(num)-1, len(den)-1)
+				return nil, nil, fmt.Errorf("realize: %s is improper (numerator degree %d above denominator degree %d); a state-space model needs a proper transfer function", where, len(num)-1, len(den)-1)
 			}
+			if len(num) == 0 {
+				// A zero entry has no poles to realize.
+				ent[i][j] = entry{nil, []float64{1}}
+				continue
+			}
+			// Exact cancellation of common roots at the origin.
+			k := min(lowZeros(num), lowZeros(den))
+			num, den = num[k:], den[k:]
 			lead := den[len(den)-1]
-			ent[i][j] = entry{polyScale(1/lead, num), polyScale(1/lead, den)}
+			e := entry{polyScale(1/lead, num), polyScale(1/lead, den)}
+			ent[i][j] = e
+			info.Spread = math.Max(info.Spread, coefSpread(e.den))
 		}
 	}
 	var As, Bs, Cs []*mat.Dense
@@ -104,6 +197,8 @@ func RealizeTol(tf [][]*Rational, ts float64, tol float64) (*System, error) {
 		}
 		nj := len(d) - 1
 		ns[j] = nj
+		e := scaleExponent(d)
+		info.Scales[j] = math.Ldexp(1, e)
 		Cj := mat.NewDense(p, max(nj, 1), nil)
 		for i := 0; i < p; i++ {
 			num := ent[i][j].num
@@ -118,30 +213,39 @@ func RealizeTol(tf [][]*Rational, ts float64, tol float64) (*System, error) {
 			dij := full[nj]
 			D.Set(i, j, dij)
 			for k := 0; k < nj; k++ {
-				Cj.Set(i, k, full[k]-dij*d[k])
+				// coefficient of sigma^k of the scaled strictly proper part,
+				// divided by w^nj: exact (power of two).
+				Cj.Set(i, k, math.Ldexp(full[k]-dij*d[k], -e*(nj-k)))
 			}
 		}
 		if nj == 0 {
 			As, Bs, Cs = append(As, nil), append(Bs, nil), append(Cs, nil)
 			continue
 		}
+		// Companion form of the scaled monic denominator d(w sigma)/w^nj.
 		Aj := mat.NewDense(nj, nj, nil)
 		for k := 0; k+1 < nj; k++ {
 			Aj.Set(k, k+1, 1)
 		}
 		for k := 0; k < nj; k++ {
-			Aj.Set(nj-1, k, -d[k])
+			Aj.Set(nj-1, k, -math.Ldexp(d[k], -e*(nj-k)))
 		}
 		Bj := mat.NewDense(nj, 1, nil)
 		Bj.Set(nj-1, 0, 1)
+		balanceScale(Aj, Bj, Cj)
+		// Undo the scaling of the variable: s = w sigma.
+		Aj.Scale(info.Scales[j], Aj)
+		Bj.Scale(info.Scales[j], Bj)
 		As, Bs, Cs = append(As, Aj), append(Bs, Bj), append(Cs, Cj)
 	}
 	n := 0
 	for _, v := range ns {
 		n += v
 	}
+	info.Order = n
 	if n == 0 {
-		return NewSystem(0, m, p, nil, nil, nil, D, ts)
+		s, err := NewSystem(0, m, p, nil, nil, nil, D, ts)
+		return s, info, err
 	}
 	ones := make([]int, m)
 	for j := range ones {
@@ -160,27 +264,177 @@ func RealizeTol(tf [][]*Rational, ts float64, tol float64) (*System, error) {
 	A := blocks(ns, ns, Ab)
 	B := blocks(ns, ones, Bb)
 	C := blocks([]int{p}, ns, Cb)
-	balanceScale(A, B, C)
-	if tol <= 0 {
-		var AB mat.Dense
-		AB.Augment(A, B)
-		tol = 1e-10 * math.Max(1, mat.Norm(&AB, 2))
+	full, err := NewSystem(n, m, p, A, B, C, D, ts)
+	if err != nil {
+		return nil, nil, err
 	}
-	A, B, C = staircase(A, B, C, tol)
-	if A != nil {
-		var At, Ct, Bt *mat.Dense
-		At, Ct, Bt = staircase(mat.DenseCopyOf(A.T()), mat.DenseCopyOf(C.T()), mat.DenseCopyOf(B.T()), tol)
-		if At == nil {
-			A, B, C = nil, nil, nil
-		} else {
-			A, B, C = mat.DenseCopyOf(At.T()), mat.DenseCopyOf(Bt.T()), mat.DenseCopyOf(Ct.T())
+	points, err := checkPoints(A, ts)
+	if err != nil {
+		return nil, nil, err
+	}
+	rat := func(i, j int, s complex128) (val complex128, size float64) {
+		e := ent[i][j]
+		den := polyAtC(e.den, s)
+		return polyAtC(e.num, s) / den, polyAbsAt(e.num, cmplx.Abs(s)) / cmplx.Abs(den)
+	}
+	info.Check = realizeCheck(full, points, rat)
+	out := full
+	// A single entry with a constant numerator has no zeros, so nothing can
+	// cancel; the companion form is minimal.
+	reducible := p > 1 || m > 1 || len(ent[0][0].num) > 1
+	if reducible {
+		red := observablePart(A, B, C, D, tol, ts)
+		if red.N() < n {
+			chk := realizeCheck(red, points, rat)
+			if chk <= math.Max(realizeCancelTol, 10*info.Check) {
+				out, info.Removed, info.Check = red, n-red.N(), chk
+			} else {
+				info.Warning = fmt.Sprintf("the staircase (rank tolerance %.1e) would remove %d state(s), but that changes the transfer function by %.1e (relative) at the check points, more than %.0e: no pole-zero cancellation that close, so all %d states are kept (the realization may not be minimal)", tol, n-red.N(), chk, realizeCancelTol, n)
+			}
 		}
 	}
-	nr := 0
-	if A != nil {
-		nr, _ = A.Dims()
+	if info.Check > realizeFailTol {
+		info.Warning = fmt.Sprintf("the realization reproduces the transfer function only to %.1e (relative) at the check points; the denominator coefficients span a ratio of %.1e, too much for double precision: give the transfer function as a product of low-order sections (series connection) instead", info.Check, info.Spread)
 	}
-	return NewSystem(nr, m, p, A, B, C, D, ts)
+	return out, info, nil
+}
+
+// observablePart removes the unobservable part of (A, B, C) by the
+// staircase reduction of the dual pair (A^T, C^T). C is scaled by a power of
+// two to the size of A first so that one tolerance serves both.
+func observablePart(A, B, C, D *mat.Dense, tol float64, ts float64) *System {
+	na := mat.Norm(A, 2)
+	nc := mat.Norm(C, 2)
+	e := 0
+	if na > 0 && nc > 0 {
+		e = int(math.Round(math.Log2(na / nc)))
+	}
+	Cs := mat.DenseCopyOf(C)
+	Cs.Apply(func(_, _ int, v float64) float64 { return math.Ldexp(v, e) }, Cs)
+	abs := tol * math.Max(na, math.Ldexp(nc, e))
+	At, Ct, Bt := staircase(mat.DenseCopyOf(A.T()), mat.DenseCopyOf(Cs.T()), mat.DenseCopyOf(B.T()), abs)
+	_, m := B.Dims()
+	p, _ := C.Dims()
+	if At == nil {
+		s, _ := NewSystem(0, m, p, nil, nil, nil, D, ts)
+		return s
+	}
+	nr, _ := At.Dims()
+	Cr := mat.DenseCopyOf(Ct.T())
+	Cr.Apply(func(_, _ int, v float64) float64 { return math.Ldexp(v, -e) }, Cr)
+	s, _ := NewSystem(nr, m, p, mat.DenseCopyOf(At.T()), mat.DenseCopyOf(Bt.T()), Cr, D, ts)
+	return s
+}
+
+// checkPoints returns the points where a realization is compared with the
+// rational entries: on a circle through the magnitude of every distinct
+// nonzero eigenvalue of A (and radius 1 when there is none), at two angles
+// that avoid the real and imaginary axes, where poles of real systems
+// usually sit.
+func checkPoints(A *mat.Dense, ts float64) ([]complex128, error) {
+	es, err := Eigen(A)
+	if err != nil {
+		return nil, fmt.Errorf("realize: %w", err)
+	}
+	var radii []float64
+	for _, v := range es.Values {
+		if r := cmplx.Abs(v); r > 0 {
+			radii = append(radii, r)
+		}
+	}
+	if len(radii) == 0 {
+		radii = []float64{1}
+	}
+	sort.Float64s(radii)
+	var pts []complex128
+	last := 0.0
+	for _, r := range radii {
+		if last > 0 && r < last*1.01 {
+			continue
+		}
+		last = r
+		for _, th := range []float64{1.1, 1.9} {
+			pts = append(pts, cmplx.Rect(r, th))
+		}
+	}
+	return pts, nil
+}
+
+// realizeCheck is the worst relative difference between the transfer
+// function of s and the rational entries (rat gives the value and the size
+// sum |num_k| |x|^k / |den(x)| that the difference is measured against).
+// Points where either side is not finite are skipped.
+func realizeCheck(s *System, points []complex128, rat func(i, j int, x complex128) (complex128, float64)) float64 {
+	h := newHessenberg(s)
+	g := make([]complex128, s.P()*s.M())
+	worst := 0.0
+	for _, x := range points {
+		if err := h.at(x, g); err != nil {
+			continue
+		}
+		for i := 0; i < s.P(); i++ {
+			for j := 0; j < s.M(); j++ {
+				want, size := rat(i, j, x)
+				if cmplx.IsInf(want) || cmplx.IsNaN(want) || math.IsInf(size, 0) || size == 0 {
+					if size == 0 && g[i*s.M()+j] != 0 {
+						worst = math.Inf(1)
+					}
+					continue
+				}
+				worst = math.Max(worst, cmplx.Abs(g[i*s.M()+j]-want)/size)
+			}
+		}
+	}
+	return worst
+}
+
+// scaleExponent returns e such that 2^e is near the geometric mean of the
+// magnitudes of the nonzero roots of the monic polynomial d (ascending
+// coefficients): that mean is |d_l|^(1/(n-l)) for the lowest nonzero
+// coefficient d_l, since the product of the nonzero roots is +-d_l.
+func scaleExponent(d []float64) int {
+	n := len(d) - 1
+	l := lowZeros(d)
+	if n <= l {
+		return 0
+	}
+	g := math.Log2(math.Abs(d[l])) / float64(n-l)
+	return int(math.Round(g))
+}
+
+// lowZeros counts the leading zero coefficients of p (ascending order):
+// the multiplicity of the root at the origin.
+func lowZeros(p []float64) int {
+	k := 0
+	for k < len(p) && p[k] == 0 {
+		k++
+	}
+	return k
+}
+
+// coefSpread is the ratio of the largest to the smallest nonzero
+// coefficient magnitude of p.
+func coefSpread(p []float64) float64 {
+	lo, hi := math.Inf(1), 0.0
+	for _, c := range p {
+		if a := math.Abs(c); a > 0 {
+			lo, hi = math.Min(lo, a), math.Max(hi, a)
+		}
+	}
+	if hi == 0 {
+		return 1
+	}
+	return hi / lo
+}
+
+// polyAbsAt is sum |p_k| r^k, the size against which rounding in p(x),
+// |x| = r, is measured.
+func polyAbsAt(p []float64, r float64) float64 {
+	acc := 0.0
+	for i := len(p) - 1; i >= 0; i-- {
+		acc = acc*r + math.Abs(p[i])
+	}
+	return acc
 }
 
 // balanceScale applies the diagonal similarity of LAPACK's balancing
