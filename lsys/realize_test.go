@@ -357,3 +357,18 @@ func ExampleRealizeWithInfo() {
 	// pole -600000
 	// reproduces the transfer function to 1e-12: true
 }
+
+// BenchmarkRealizeOrder20: one SISO entry with 20 real poles 1..20 and two
+// zeros (the staircase and the check run).
+func BenchmarkRealizeOrder20(b *testing.B) {
+	den := Poly{1}
+	for i := 1; i <= 20; i++ {
+		den = den.Mul(Poly{float64(i), 1})
+	}
+	tf := [][]*Rational{{{Num: Poly{3, 4, 1}, Den: den}}}
+	for b.Loop() {
+		if _, err := Realize(tf, 0); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
