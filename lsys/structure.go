@@ -326,12 +326,16 @@ func Transform(s *System, T *mat.Dense) (*System, error) {
 
 // Minimal returns a minimal realization of s: the reachable part of the
 // controllability staircase, then the observable part of its dual staircase
-// (Van Dooren 1981). Both steps are orthogonal. States are named z1..zk.
+// (Van Dooren 1981). Both steps are orthogonal; before them the system is
+// balanced (states, inputs and outputs, by powers of two; see
+// balanceSystem) so the rank decisions do not depend on units, and the
+// input and output scalings are undone at the end. States are named z1..zk.
 func Minimal(s *System, relTol float64) (*System, error) {
 	if s.N() == 0 {
 		return s.Copy(), nil
 	}
-	rs, err := ControllabilityStaircase(s.A, s.B, relTol)
+	bA, bB, bC, _, su, sy := balanceSystem(s.A, s.B, s.C, nil)
+	rs, err := ControllabilityStaircase(bA, bB, relTol)
 	if err != nil {
 		return nil, err
 	}
@@ -346,9 +350,9 @@ func Minimal(s *System, relTol float64) (*System, error) {
 		Br = mat.DenseCopyOf(rs.B.Slice(0, k, 0, s.M()))
 	}
 	var Cr *mat.Dense
-	if s.C != nil {
+	if bC != nil {
 		var t mat.Dense
-		t.Mul(s.C, rs.Z.Slice(0, n, 0, k))
+		t.Mul(bC, rs.Z.Slice(0, n, 0, k))
 		Cr = &t
 	}
 	os, err := ObservabilityStaircase(Ar, Cr, relTol)
@@ -366,10 +370,20 @@ func Minimal(s *System, relTol float64) (*System, error) {
 	var Bp, Cp *mat.Dense
 	if Br != nil {
 		B.Mul(Z.T(), Br)
+		for j, f := range su {
+			for i := 0; i < q; i++ {
+				B.Set(i, j, B.At(i, j)/f)
+			}
+		}
 		Bp = &B
 	}
 	if Cr != nil {
 		C.Mul(Cr, Z)
+		for i, f := range sy {
+			for j := 0; j < q; j++ {
+				C.Set(i, j, C.At(i, j)/f)
+			}
+		}
 		Cp = &C
 	}
 	return NewSystemNamed(q, s.M(), s.P(), &A, Bp, Cp, s.D, s.Ts, defaultNames("z", q), s.InputNames, s.OutputNames)

@@ -22,9 +22,14 @@ type ZeroSet struct {
 	// InputDecoupling are the modes no input reaches (eigenvalues of the
 	// uncontrollable part); OutputDecoupling those no output sees.
 	InputDecoupling, OutputDecoupling []complex128
-	// Tol is the absolute rank tolerance of the pencil reduction,
-	// RelTol times the Frobenius norm of [[A, B], [C, D]].
+	// Tol is the absolute rank tolerance of the pencil reduction: RelTol
+	// times the 2-norm of the balanced system matrix [[A, B], [C, D]] (see
+	// balancePencil: states balanced, inputs and outputs scaled so every
+	// block has a comparable norm), so results do not depend on units.
 	Tol, RelTol float64
+	// MergeTol: zeros closer than MergeTol times their modulus are one
+	// multiple zero, listed (once per multiplicity) by the cluster's mean.
+	MergeTol float64
 	// ReducedOrder is the order of the regular pencil left by the
 	// reduction, whose generalized eigenvalues are the zeros.
 	ReducedOrder int
@@ -32,9 +37,12 @@ type ZeroSet struct {
 
 // Zeros computes the invariant zeros of s from the system pencil reduced as
 // in Emami-Naeini & Van Dooren (1982, Computation of zeros of linear
-// multivariable systems, Automatica 18(4)): orthogonal row and column
-// compressions, with every rank decided by singular values at
-// tol = relTol * ||[[A, B], [C, D]]||_F, remove the infinite zeros and the
+// multivariable systems, Automatica 18(4)): after a diagonal balancing of
+// the system matrix (states, inputs and outputs; it leaves the zeros
+// unchanged and makes them independent of the units), orthogonal row and
+// column compressions, with every rank decided by singular values at
+// tol = relTol * ||[[A, B], [C, D]]||_2 of the balanced matrix, remove the
+// infinite zeros and the
 // non-square part, leaving a regular pencil whose finite generalized
 // eigenvalues (by QZ) are the zeros. Transmission zeros come from the same
 // computation on a minimal realization; decoupling zeros from the staircase
@@ -44,7 +52,7 @@ func Zeros(s *System, relTol float64) (*ZeroSet, error) {
 	if relTol <= 0 || math.IsNaN(relTol) {
 		relTol = DefaultRelTol
 	}
-	zs := &ZeroSet{System: s, RelTol: relTol}
+	zs := &ZeroSet{System: s, RelTol: relTol, MergeTol: math.Sqrt(relTol)}
 	if s.N() == 0 {
 		return zs, nil
 	}
@@ -73,25 +81,27 @@ func Zeros(s *System, relTol float64) (*ZeroSet, error) {
 }
 
 func invariantZeros(s *System, relTol float64) ([]complex128, int, float64, error) {
+	if relTol <= 0 || math.IsNaN(relTol) {
+		relTol = DefaultRelTol
+	}
 	n, m, p := s.N(), s.M(), s.P()
-	P := mat.NewDense(n+p, n+m, nil)
-	P.Slice(0, n, 0, n).(*mat.Dense).Copy(s.A)
-	if m > 0 {
-		P.Slice(0, n, n, n+m).(*mat.Dense).Copy(s.B)
-	}
-	if p > 0 {
-		P.Slice(n, n+p, 0, n).(*mat.Dense).Copy(s.C)
-	}
-	if m > 0 && p > 0 {
-		P.Slice(n, n+p, n, n+m).(*mat.Dense).Copy(s.D)
-	}
-	tol := relTol * mat.Norm(P, 2)
 	if m == 0 || p == 0 {
 		// No inputs or no outputs: the pencil [A - sI; C] or [A - sI, B]
 		// loses rank exactly at the unobservable / uncontrollable modes.
-		return nil, 0, tol, nil
+		return nil, 0, 0, nil
 	}
-	r := &zsys{A: mat.DenseCopyOf(s.A), B: mat.DenseCopyOf(s.B), C: mat.DenseCopyOf(s.C), D: mat.DenseCopyOf(s.D), n: n, m: m, p: p}
+	D := s.D
+	if D == nil {
+		D = mat.NewDense(p, m, nil)
+	}
+	bA, bB, bC, bD := balancePencil(s.A, s.B, s.C, D)
+	P := mat.NewDense(n+p, n+m, nil)
+	P.Slice(0, n, 0, n).(*mat.Dense).Copy(bA)
+	P.Slice(0, n, n, n+m).(*mat.Dense).Copy(bB)
+	P.Slice(n, n+p, 0, n).(*mat.Dense).Copy(bC)
+	P.Slice(n, n+p, n, n+m).(*mat.Dense).Copy(bD)
+	tol := relTol * mat.Norm(P, 2)
+	r := &zsys{A: bA, B: bB, C: bC, D: bD, n: n, m: m, p: p}
 	r = zeroReduce(r, tol)
 	if r.n == 0 {
 		return nil, 0, tol, nil
@@ -147,7 +157,7 @@ func invariantZeros(s *System, relTol float64) ([]complex128, int, float64, erro
 			vals = append(vals, g.Value())
 		}
 	}
-	vals = realPencilValues(vals)
+	vals = mergeMultiple(realPencilValues(vals), math.Sqrt(relTol))
 	idx := orderEigenvalues(vals, 0)
 	out := make([]complex128, len(vals))
 	for i, j := range idx {
@@ -332,4 +342,204 @@ func zerosClose(a, b []complex128, rel float64) bool {
 		used[bj] = true
 	}
 	return true
+}
+
+// balancePencil returns copies of A, B, C, D scaled so that the blocks of
+// the system matrix [[A, B], [C, D]] have comparable norms:
+// A~ = T A T^-1, B~ = T B Su, C~ = Sy C T^-1, D~ = Sy D Su with T, Su, Sy
+// diagonal. The zeros are invariant under these scalings (they multiply the
+// pencil by nonsingular constant matrices on both sides), while the rank
+// decisions of the reduction are not: in SI units an actuator entry 1/m
+// = 1e-4 next to stiffness entries k/m = 1e3 falls below a tolerance
+// relative to the whole pencil. The state scaling T is the balancing
+// iteration of Osborne (1960, On pre-conditioning of matrices, J. ACM 7)
+// and Parlett & Reinsch (1969) applied to the rows of [A B] and columns of
+// [A; C] together; each input column of [B; D] and output row of [C D] is
+// then scaled to the root-mean-square column norm of A (1 if A = 0). All
+// factors are powers of two, so the scaling itself adds no rounding.
+func balancePencil(A, B, C, D *mat.Dense) (*mat.Dense, *mat.Dense, *mat.Dense, *mat.Dense) {
+	bA, bB, bC, bD, _, _ := balanceSystem(A, B, C, D)
+	return bA, bB, bC, bD
+}
+
+// balanceSystem is balancePencil that also returns the input and output
+// scalings su, sy (B~ = T B diag(su), C~ = diag(sy) C T^-1); D may be nil.
+func balanceSystem(A, B, C, D *mat.Dense) (bA, bB, bC, bD *mat.Dense, su, sy []float64) {
+	n, _ := A.Dims()
+	A = mat.DenseCopyOf(A)
+	m, p := 0, 0
+	if B != nil {
+		B = mat.DenseCopyOf(B)
+		_, m = B.Dims()
+	}
+	if C != nil {
+		C = mat.DenseCopyOf(C)
+		p, _ = C.Dims()
+	}
+	if D != nil {
+		D = mat.DenseCopyOf(D)
+	}
+	su, sy = make([]float64, m), make([]float64, p)
+	for j := range su {
+		su[j] = 1
+	}
+	for i := range sy {
+		sy[i] = 1
+	}
+	dAt := func(i, j int) float64 {
+		if D == nil {
+			return 0
+		}
+		return D.At(i, j)
+	}
+	pow2 := func(x float64) float64 { return math.Exp2(math.Round(math.Log2(x))) }
+	for sweep := 0; sweep < 40; sweep++ {
+		changed := false
+		for i := 0; i < n; i++ {
+			var r, c float64
+			for j := 0; j < n; j++ {
+				if j != i {
+					r = math.Hypot(r, A.At(i, j))
+					c = math.Hypot(c, A.At(j, i))
+				}
+			}
+			for j := 0; j < m; j++ {
+				r = math.Hypot(r, B.At(i, j))
+			}
+			for j := 0; j < p; j++ {
+				c = math.Hypot(c, C.At(j, i))
+			}
+			if r == 0 || c == 0 {
+				continue
+			}
+			f := pow2(math.Sqrt(r / c))
+			if f == 1 {
+				continue
+			}
+			// Only accept a step that reduces r + c noticeably, as in
+			// Parlett & Reinsch, so the sweeps end.
+			if r/f+c*f >= 0.95*(r+c) {
+				continue
+			}
+			changed = true
+			for j := 0; j < n; j++ {
+				A.Set(i, j, A.At(i, j)/f)
+				A.Set(j, i, A.At(j, i)*f)
+			}
+			for j := 0; j < m; j++ {
+				B.Set(i, j, B.At(i, j)/f)
+			}
+			for j := 0; j < p; j++ {
+				C.Set(j, i, C.At(j, i)*f)
+			}
+		}
+		ref := mat.Norm(A, 2) / math.Sqrt(float64(n))
+		if ref == 0 {
+			ref = 1
+		}
+		for j := 0; j < m; j++ {
+			nc := 0.0
+			for i := 0; i < n; i++ {
+				nc = math.Hypot(nc, B.At(i, j))
+			}
+			for i := 0; i < p; i++ {
+				nc = math.Hypot(nc, dAt(i, j))
+			}
+			if nc == 0 {
+				continue
+			}
+			if f := pow2(ref / nc); f != 1 && (f > 2 || f < 0.5) {
+				changed = true
+				su[j] *= f
+				for i := 0; i < n; i++ {
+					B.Set(i, j, B.At(i, j)*f)
+				}
+				for i := 0; D != nil && i < p; i++ {
+					D.Set(i, j, D.At(i, j)*f)
+				}
+			}
+		}
+		for i := 0; i < p; i++ {
+			nr := 0.0
+			for j := 0; j < n; j++ {
+				nr = math.Hypot(nr, C.At(i, j))
+			}
+			for j := 0; j < m; j++ {
+				nr = math.Hypot(nr, dAt(i, j))
+			}
+			if nr == 0 {
+				continue
+			}
+			if f := pow2(ref / nr); f != 1 && (f > 2 || f < 0.5) {
+				changed = true
+				sy[i] *= f
+				for j := 0; j < n; j++ {
+					C.Set(i, j, C.At(i, j)*f)
+				}
+				for j := 0; D != nil && j < m; j++ {
+					D.Set(i, j, D.At(i, j)*f)
+				}
+			}
+		}
+		if !changed {
+			break
+		}
+	}
+	return A, B, C, D, su, sy
+}
+
+// mergeMultiple replaces each cluster of values closer to one another than
+// rel*max(|a|, |b|) (single linkage) by the cluster's mean, repeated once per
+// member, so a multiple zero reads as one value. A k-fold zero perturbed by
+// rounding splits into k values about u^(1/k) apart (relative; u the unit
+// roundoff), so a double zero comes out as a close pair, real or complex,
+// while the mean of the cluster is accurate to about u (Wilkinson 1965, The
+// Algebraic Eigenvalue Problem, ch. 2, on multiple eigenvalues). A mean
+// whose imaginary part is below rel of its modulus is real.
+func mergeMultiple(vals []complex128, rel float64) []complex128 {
+	n := len(vals)
+	if n < 2 {
+		return vals
+	}
+	parent := make([]int, n)
+	for i := range parent {
+		parent[i] = i
+	}
+	var find func(int) int
+	find = func(i int) int {
+		for parent[i] != i {
+			i = parent[i]
+		}
+		return i
+	}
+	for i := 0; i < n; i++ {
+		for j := i + 1; j < n; j++ {
+			if cmplx.Abs(vals[i]-vals[j]) <= rel*math.Max(cmplx.Abs(vals[i]), cmplx.Abs(vals[j])) {
+				if a, b := find(i), find(j); a != b {
+					parent[b] = a
+				}
+			}
+		}
+	}
+	sum := make(map[int]complex128)
+	cnt := make(map[int]int)
+	for i, v := range vals {
+		r := find(i)
+		sum[r] += v
+		cnt[r]++
+	}
+	out := make([]complex128, n)
+	for i := range vals {
+		r := find(i)
+		if cnt[r] == 1 {
+			out[i] = vals[i]
+			continue
+		}
+		mean := sum[r] / complex(float64(cnt[r]), 0)
+		if math.Abs(imag(mean)) <= rel*cmplx.Abs(mean) {
+			mean = complex(real(mean), 0)
+		}
+		out[i] = mean
+	}
+	return realPencilValues(out)
 }

@@ -406,3 +406,96 @@ func TestQZSingularE(t *testing.T) {
 	}
 	t.Logf("worst backward residual %.3g", worst)
 }
+
+// frameModel is a three-storey shear frame: floor masses m, m and roof mass
+// mr, storey stiffness k, stiffness-proportional damping beta, states
+// x1, x2, x3 (storey displacements) and v1, v2, v3, inputs forces on each
+// floor (brace, tendon, shaker), outputs the displacements.
+func frameModel(t *testing.T, m, mr, k, beta float64) *System {
+	t.Helper()
+	A := mat.NewDense(6, 6, nil)
+	K := mat.NewDense(3, 3, []float64{2 * k, -k, 0, -k, 2 * k, -k, 0, -k, k})
+	ms := []float64{m, m, mr}
+	B := mat.NewDense(6, 3, nil)
+	C := mat.NewDense(3, 6, nil)
+	for i := 0; i < 3; i++ {
+		A.Set(i, i+3, 1)
+		for j := 0; j < 3; j++ {
+			A.Set(3+i, j, -K.At(i, j)/ms[i])
+			A.Set(3+i, 3+j, -beta*K.At(i, j)/ms[i])
+		}
+		B.Set(3+i, i, 1/ms[i])
+		C.Set(i, i, 1)
+	}
+	return sysOf(t, A, B, C, nil)
+}
+
+// channel returns the single channel out <- in of s with its input scaled
+// by gu and its output by gy.
+func channel(t *testing.T, s *System, out, in int, gy, gu float64) *System {
+	t.Helper()
+	n := s.N()
+	b := mat.NewDense(n, 1, nil)
+	c := mat.NewDense(1, n, nil)
+	for k := 0; k < n; k++ {
+		b.Set(k, 0, gu*s.B.At(k, in))
+		c.Set(0, k, gy*s.C.At(out, k))
+	}
+	return sysOf(t, s.A, b, c, nil)
+}
+
+func TestZerosUnitsInvariant(t *testing.T) {
+	// Closed form (derived here): with c(s) = k (1 + beta s) the frame obeys
+	// Z(s) x = f, Z = [[m s^2 + 2c, -c, 0], [-c, m s^2 + 2c, -c],
+	// [0, -c, mr s^2 + c]]. By cofactors, x1/f3 = c^2 / det Z and
+	// x2/f3 = c (m s^2 + 2c) / det Z. So floor1 <- shaker has the double
+	// zero -1/beta = -500; floor2 <- shaker has -500 and the roots of
+	// m s^2 + 2 k beta s + 2k, which for k/m = 1000, beta = 0.002 are
+	// -2 +- j sqrt(1996) (a mode with a node at floor 2: an
+	// output-decoupling pair, so the transmission zero is -500 alone).
+	// The zeros do not depend on units: the model in t, kN, m and in
+	// kg, N, m (SI) must give the same, as must scaled inputs, outputs and
+	// states (positions in mm).
+	pair := []complex128{complex(-2, math.Sqrt(1996)), complex(-2, -math.Sqrt(1996))}
+	mm := mat.NewDense(6, 6, nil)
+	for i := 0; i < 6; i++ {
+		mm.Set(i, i, map[bool]float64{true: 1000, false: 1}[i < 3])
+	}
+	cases := []struct {
+		name        string
+		m, mr, k    float64
+		gy, gu      float64
+		millimetres bool
+	}{
+		{"t, kN, m", 20, 10, 2e4, 1, 1, false},
+		{"kg, N, m", 20000, 10000, 2e7, 1, 1, false},
+		{"kg, N, m; output x 1e4", 20000, 10000, 2e7, 1e4, 1, false},
+		{"kg, N, m; input x 1e4", 20000, 10000, 2e7, 1, 1e4, false},
+		{"kg, N, m; input x 1e-4, output x 1e4", 20000, 10000, 2e7, 1e4, 1e-4, false},
+		{"kg, N, mm", 20000, 10000, 2e7, 1000, 1, true},
+	}
+	for _, c := range cases {
+		f := frameModel(t, c.m, c.mr, c.k, 0.002)
+		if c.millimetres {
+			var err error
+			if f, err = Transform(f, mm); err != nil {
+				t.Fatal(err)
+			}
+		}
+		z1, err := Zeros(channel(t, f, 0, 2, c.gy, c.gu), 0)
+		if err != nil {
+			t.Fatalf("%s: %v", c.name, err)
+		}
+		want := []complex128{-500, -500}
+		if !zerosClose(z1.Invariant, want, 1e-9) || !zerosClose(z1.Transmission, want, 1e-9) {
+			t.Errorf("%s: floor1 <- shaker zeros %v / %v, want the double zero -500", c.name, z1.Invariant, z1.Transmission)
+		}
+		z2, err := Zeros(channel(t, f, 1, 2, c.gy, c.gu), 0)
+		if err != nil {
+			t.Fatalf("%s: %v", c.name, err)
+		}
+		if !zerosClose(z2.Invariant, append([]complex128{-500}, pair...), 1e-9) || !zerosClose(z2.Transmission, []complex128{-500}, 1e-9) || !zerosClose(z2.OutputDecoupling, pair, 1e-9) {
+			t.Errorf("%s: floor2 <- shaker zeros %v / %v / %v, want -500, -2 +- j sqrt(1996)", c.name, z2.Invariant, z2.Transmission, z2.OutputDecoupling)
+		}
+	}
+}
