@@ -80,7 +80,12 @@ func Eigen(a mat.Matrix) (*EigenStructure, error) {
 // Poles returns the eigenvalues of the system's A (the poles), in the order
 // of the mode table: by natural frequency, then damping; a conjugate pair as
 // two consecutive entries, positive imaginary part first. A static gain has
-// no poles.
+// no poles. Rounding residue is removed with the boundary tolerance of
+// StabilityOf, tol = 1000 u max(1, ||A||_2) (u the unit roundoff): a real
+// part within tol of 0 is reported as exactly 0 (continuous time; a sampled
+// pole within tol of 1 as exactly 1), and an imaginary part within tol of 0
+// as exactly 0, so a rigid-body mode or an integrator reads as s = 0, not
+// as a tiny stable or unstable pole.
 func Poles(s *System) ([]complex128, error) {
 	if s.N() == 0 {
 		return nil, nil
@@ -89,12 +94,36 @@ func Poles(s *System) ([]complex128, error) {
 	if err != nil {
 		return nil, err
 	}
+	tol := boundaryTol(s.A)
 	idx := orderEigenvalues(es.Values, s.Ts)
 	out := make([]complex128, len(idx))
 	for i, k := range idx {
-		out[i] = es.Values[k]
+		out[i] = snapValue(es.Values[k], s.Ts, tol)
 	}
 	return out, nil
+}
+
+// boundaryTol is 1000 u max(1, ||A||_2), below which the computation does
+// not resolve the distance of an eigenvalue from the stability boundary.
+func boundaryTol(A *mat.Dense) float64 {
+	return 1e3 * dlamchE * math.Max(1, mat.Norm(A, 2))
+}
+
+// snapValue sets parts of v within tol of the boundary (Re s = 0, or z = 1
+// when ts > 0) or of the real axis exactly there.
+func snapValue(v complex128, ts, tol float64) complex128 {
+	re, im := real(v), imag(v)
+	if math.Abs(im) <= tol {
+		im = 0
+	}
+	if ts > 0 {
+		if im == 0 && math.Abs(re-1) <= tol {
+			re = 1
+		}
+	} else if math.Abs(re) <= tol {
+		re = 0
+	}
+	return complex(re, im)
 }
 
 // orderEigenvalues returns the indices of vals sorted by natural frequency,

@@ -18,6 +18,9 @@ import (
 // Int. J. Control 33(6), use the same pole-zero-gain route). Coefficients of
 // conjugate factors are real by construction.
 func TransferFunctions(s *System, relTol float64) ([][]*Rational, error) {
+	if relTol <= 0 || math.IsNaN(relTol) {
+		relTol = DefaultRelTol
+	}
 	p, m := s.P(), s.M()
 	out := make([][]*Rational, p)
 	for i := 0; i < p; i++ {
@@ -67,25 +70,61 @@ func tfChannel(s *System, i, j int, relTol float64) (*Rational, error) {
 	if err != nil {
 		return nil, err
 	}
-	// Match the gain at a point clear of every pole and zero.
+	// Rounding residue: a pole or zero within the boundary tolerance of the
+	// origin (or of the real axis) is exactly there, so the polynomial has
+	// an exact factor s (see Poles).
+	snapTol := boundaryTol(mr.A)
+	for q := range poles {
+		poles[q] = snapValue(poles[q], 0, snapTol)
+	}
+	for q := range zs {
+		zs[q] = snapValue(zs[q], 0, snapTol)
+	}
+	// Match the gain at a point clear of every pole and zero. Far from the
+	// poles a channel of relative degree r is ~1/x^r while the terms that
+	// make it up are ~1/x, so an evaluation there cancels digits; the point
+	// chosen is the one where the value is largest relative to those terms
+	// (the sum of |c_l| |((xI - A)^-1 b)_l| and |d|), among points on circles
+	// through the poles and zeros and one beyond them, at angles away from
+	// the real axis and at least a quarter of their radius from every pole
+	// and zero.
 	scale := 1.0
+	radii := []float64{}
 	for _, v := range append(append([]complex128{}, poles...), zs...) {
 		scale = math.Max(scale, cmplx.Abs(v))
+		if a := cmplx.Abs(v); a > 0 {
+			radii = append(radii, a)
+		}
+	}
+	radii = append(radii, 2*scale)
+	if s.Ts > 0 {
+		radii = append(radii, 1.5)
 	}
 	var x, g complex128
-	found := false
-	for _, ang := range []float64{1.1, 0.7, 1.9, 2.6, 0.3} {
-		x = cmplx.Rect(2*scale, ang)
-		if s.Ts > 0 && scale <= 1 {
-			x = cmplx.Rect(1.5, ang)
-		}
-		g, err = tfSisoEval(mr, x)
-		if err == nil && !math.IsNaN(real(g)) {
-			found = true
-			break
+	best := -1.0
+	for _, rad := range radii {
+		for _, ang := range []float64{1.1, 0.7, 1.9, 2.6, 0.3} {
+			xc := cmplx.Rect(rad, ang)
+			clear := true
+			for _, v := range append(append([]complex128{}, poles...), zs...) {
+				if cmplx.Abs(xc-v) < 0.25*rad {
+					clear = false
+					break
+				}
+			}
+			if !clear {
+				continue
+			}
+			gc, size, err := tfSisoEval(mr, xc)
+			if err != nil || math.IsNaN(real(gc)) || size == 0 {
+				continue
+			}
+			if q := cmplx.Abs(gc) / size; q > best {
+				best, x, g = q, xc, gc
+			}
 		}
 	}
-	if !found {
+	if best <= 0 {
 		return nil, fmt.Errorf("could not evaluate the channel away from its poles")
 	}
 	num := tfPolyFromRoots(zs)
@@ -107,7 +146,26 @@ func tfChannel(s *System, i, j int, relTol float64) (*Rational, error) {
 	for q := range num {
 		num[q] *= k
 	}
+	tfCleanCoefficients(num)
+	tfCleanCoefficients(den)
 	return &Rational{Num: num, Den: den, Ts: s.Ts}, nil
+}
+
+// TFCoefficientTol: a coefficient of a transfer-function polynomial below
+// TFCoefficientTol times the polynomial's largest coefficient is rounding
+// residue (1000 u, u the unit roundoff) and is set to exactly 0.
+const TFCoefficientTol = 1e3 * dlamchE
+
+func tfCleanCoefficients(p Poly) {
+	big := 0.0
+	for _, c := range p {
+		big = math.Max(big, math.Abs(c))
+	}
+	for q, c := range p {
+		if math.Abs(c) <= TFCoefficientTol*big {
+			p[q] = 0
+		}
+	}
 }
 
 // tfPolyFromRoots returns prod(x - r) in ascending coefficients, real parts
@@ -130,8 +188,9 @@ func tfPolyFromRoots(roots []complex128) Poly {
 }
 
 // tfSisoEval returns c (x I - A)^-1 b + d for a single-input single-output
-// system, by Gaussian elimination with partial pivoting.
-func tfSisoEval(s *System, x complex128) (complex128, error) {
+// system, by Gaussian elimination with partial pivoting, and the size of the
+// terms it sums, sum |c_l| |((x I - A)^-1 b)_l| + |d|.
+func tfSisoEval(s *System, x complex128) (complex128, float64, error) {
 	n := s.N()
 	M := make([][]complex128, n)
 	for i := range M {
@@ -150,7 +209,7 @@ func tfSisoEval(s *System, x complex128) (complex128, error) {
 			}
 		}
 		if M[piv][k] == 0 {
-			return 0, fmt.Errorf("singular at %v", x)
+			return 0, 0, fmt.Errorf("singular at %v", x)
 		}
 		M[k], M[piv] = M[piv], M[k]
 		for i := k + 1; i < n; i++ {
@@ -169,8 +228,10 @@ func tfSisoEval(s *System, x complex128) (complex128, error) {
 		sol[i] = v / M[i][i]
 	}
 	g := complex(s.D.At(0, 0), 0)
+	size := math.Abs(s.D.At(0, 0))
 	for l := 0; l < n; l++ {
 		g += complex(s.C.At(0, l), 0) * sol[l]
+		size += math.Abs(s.C.At(0, l)) * cmplx.Abs(sol[l])
 	}
-	return g, nil
+	return g, size, nil
 }

@@ -69,3 +69,112 @@ func TestTransferFunctions(t *testing.T) {
 		t.Errorf("sample time %v", tfd[0][0].Ts)
 	}
 }
+
+// craneModel is a trolley (mass M, drag ct) carrying a load (mass m) on a
+// cable of length L with rope damping cp, linearized about the hanging
+// position: states x, v, theta, omega; input the force on the trolley;
+// outputs the trolley position and the sway angle. Equations of the
+// trolley-pendulum pair (Lagrange, small angles).
+func craneModel(t *testing.T) *System {
+	t.Helper()
+	M, m, L, g, ct, cp := 1000.0, 2000.0, 8.0, 9.81, 200.0, 500.0
+	A := mat.NewDense(4, 4, []float64{0, 1, 0, 0,
+		0, -ct / M, m * g / M, cp / (M * L),
+		0, 0, 0, 1,
+		0, ct / (M * L), -(m*g/M + g) / L, -cp/(M*L*L) - cp/(m*L*L)})
+	B := mat.NewDense(4, 1, []float64{0, 1 / M, 0, -1 / (M * L)})
+	C := mat.NewDense(2, 4, []float64{1, 0, 0, 0, 0, 0, 1, 0})
+	s, err := FromMatrices(A, B, C, nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s
+}
+
+func relCoeffs(t *testing.T, what string, got Poly, want []float64, rel float64) float64 {
+	t.Helper()
+	g := got.Trim()
+	if len(g) != len(want) {
+		t.Errorf("%s: %v, want %v", what, got, want)
+		return math.Inf(1)
+	}
+	worst := 0.0
+	for i := range want {
+		var e float64
+		if want[i] == 0 {
+			if g[i] != 0 {
+				e = math.Inf(1)
+			}
+		} else {
+			e = math.Abs(g[i]-want[i]) / math.Abs(want[i])
+		}
+		worst = math.Max(worst, e)
+	}
+	if worst > rel {
+		t.Errorf("%s: %v, want %v (worst relative error %.3g > %.3g)", what, got, want, worst, rel)
+	}
+	return worst
+}
+
+func TestTransferExactZerosAndDigits(t *testing.T) {
+	// Closed form for the crane (M = 1000, m = 2000, L = 8, g = 9.81,
+	// ct = 200, cp = 500), derived from the model's equations by Cramer's
+	// rule: with den(s) = s (s^3 + a2 s^2 + a1 s + a0),
+	// a2 = ct/M + cp (M + m)/(M m L^2) = 0.21171875,
+	// a1 = g (M + m)/(M L) + ct cp/(M m L^2) = 3.67953125,
+	// a0 = ct g/(M L) = 0.24525,
+	// trolley/force = (s^2/M + cp/(M m L^2) s + g/(M L)) / den
+	//               = (0.001 s^2 + 3.90625e-6 s + 0.00122625) / den,
+	// sway/force = -(1/(M L)) s^2 / den = -0.000125 s / (den/s).
+	// The rigid-body pole s = 0 and the zero of the sway channel at s = 0
+	// are exact: their coefficients must be exactly 0, not rounding residue.
+	G := craneModel(t)
+	den := []float64{0, 0.24525, 3.67953125, 0.21171875, 1}
+	tf, err := TransferFunctions(G, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	relCoeffs(t, "trolley num", tf[0][0].Num, []float64{0.00122625, 3.90625e-6, 0.001}, 1e-12)
+	relCoeffs(t, "trolley den", tf[0][0].Den, den, 1e-12)
+	relCoeffs(t, "sway num", tf[1][0].Num, []float64{0, -0.000125}, 1e-12)
+	relCoeffs(t, "sway den", tf[1][0].Den, den[1:], 1e-12)
+	p, err := Poles(G)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p[0] != 0 {
+		t.Errorf("the rigid-body pole is %v, want exactly 0", p[0])
+	}
+	// The load position x + L theta is the parallel connection of the two
+	// channels: its s^2 terms cancel exactly, leaving
+	// (cp/(M m L^2) s + g/(M L)) / den = (3.90625e-6 s + 0.00122625) / den.
+	// Through the 8-state parallel connection and its minimal realization
+	// the coefficients must keep their digits (they lost 1.5e-8 when the
+	// gain was matched far beyond the poles).
+	A := mat.NewDense(8, 8, nil)
+	A.Slice(0, 4, 0, 4).(*mat.Dense).Copy(G.A)
+	A.Slice(4, 8, 4, 8).(*mat.Dense).Copy(G.A)
+	B := mat.NewDense(8, 1, nil)
+	C := mat.NewDense(1, 8, nil)
+	for i := 0; i < 4; i++ {
+		B.Set(i, 0, G.B.At(i, 0))
+		B.Set(4+i, 0, G.B.At(i, 0))
+		C.Set(0, i, G.C.At(0, i))
+		C.Set(0, 4+i, 8*G.C.At(1, i))
+	}
+	par, _ := FromMatrices(A, B, C, nil, 0)
+	mr, err := Minimal(par, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if mr.N() != 4 {
+		t.Fatalf("minimal realization has %d states, want 4", mr.N())
+	}
+	tfl, err := TransferFunctions(mr, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	e1 := relCoeffs(t, "load num", tfl[0][0].Num, []float64{0.00122625, 3.90625e-6}, 1e-12)
+	e2 := relCoeffs(t, "load den", tfl[0][0].Den, den, 1e-12)
+	t.Logf("load position: worst relative coefficient error num %.2g, den %.2g", e1, e2)
+}
