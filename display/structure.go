@@ -25,7 +25,9 @@ func init() {
 }
 
 // sxValues writes eigenvalues or zeros; a conjugate pair is written once as
-// "a ± bj". An empty list is "none".
+// "a ± bj", and a value repeated exactly (a multiple zero, listed by its
+// cluster's mean) once with its multiplicity, "-500 (×2)". An empty list is
+// "none".
 func sxValues(vals []complex128) string {
 	if len(vals) == 0 {
 		return "none"
@@ -37,21 +39,32 @@ func sxValues(vals []complex128) string {
 			continue
 		}
 		used[i] = true
-		paired := false
+		mult := 1
+		for j := i + 1; j < len(vals); j++ {
+			if !used[j] && vals[j] == v {
+				used[j] = true
+				mult++
+			}
+		}
+		paired := 0
 		if imag(v) != 0 {
-			for j := i + 1; j < len(vals); j++ {
+			for j := i + 1; j < len(vals) && paired < mult; j++ {
 				if !used[j] && vals[j] == cmplx.Conj(v) {
 					used[j] = true
-					paired = true
-					break
+					paired++
 				}
 			}
 		}
-		if paired {
-			parts = append(parts, fmtComplex(complex(real(v), math.Abs(imag(v))), true))
+		var part string
+		if paired > 0 {
+			part = fmtComplex(complex(real(v), math.Abs(imag(v))), true)
 		} else {
-			parts = append(parts, fmtComplex(v, false))
+			part = fmtComplex(v, false)
 		}
+		if mult > 1 {
+			part += fmt.Sprintf(" (×%d)", mult)
+		}
+		parts = append(parts, part)
 	}
 	return strings.Join(parts, ", ")
 }
@@ -107,8 +120,8 @@ func renderZeros(v any, _ Options) Bundle {
 		{"input-decoupling (not reached)", sxValues(z.InputDecoupling)},
 		{"output-decoupling (not seen)", sxValues(z.OutputDecoupling)},
 	})
-	note(t, h, fmt.Sprintf("System pencil reduced by orthogonal compressions, then QZ; rank decisions at %s (= %s x the norm of [[A, B], [C, D]]); regular pencil of order %d.",
-		fmtNum(z.Tol), fmtNum(z.RelTol), z.ReducedOrder))
+	note(t, h, fmt.Sprintf("System pencil reduced by orthogonal compressions, then QZ; rank decisions at %s (= %s x the norm of [[A, B], [C, D]] after scaling states, inputs and outputs to comparable size, so units do not matter); zeros closer than %s of their size are one multiple zero; regular pencil of order %d.",
+		fmtNum(z.Tol), fmtNum(z.RelTol), fmtNum(z.MergeTol), z.ReducedOrder))
 	b := c.bundle()
 	b.Data[JSON] = map[string]any{
 		"kind": "zeros", "invariant": sxValuesJSON(z.Invariant), "transmission": sxValuesJSON(z.Transmission),
