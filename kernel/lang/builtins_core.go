@@ -481,7 +481,7 @@ func systemBuiltins() []*Builtin {
 		{
 			Name: "system", Group: GroupSystems,
 			Params: []Param{
-				{Name: "A", Doc: "state matrix (n x n), or a transfer function / transfer matrix"},
+				{Name: "A", Optional: true, Doc: "state matrix (n x n), or a transfer function / transfer matrix; leave out (with B and C) for a static gain D"},
 				{Name: "B", Optional: true, Doc: "input matrix (n x m); leave out for no inputs"},
 				{Name: "C", Optional: true, Doc: "output matrix (p x n); default: identity (every state is an output)"},
 				{Name: "D", Optional: true, Doc: "feedthrough matrix (p x m); default: zeros"},
@@ -494,10 +494,13 @@ func systemBuiltins() []*Builtin {
 			Doc: "Matrices are written row by row: `[[0, 1], [-2, -3]]`. A plain list `[0, 1]` is a column; for C a plain list of n numbers is taken as one output row. " +
 				"With `every: T` the system is sampled: x[k+1] = A x[k] + B u[k]. " +
 				"Given a transfer function (a rational expression in s or z) or a list of lists of them, it returns a minimal state-space realization. " +
+				"Given D alone (`system(D: [[1, -1]])`) it is a static gain y = D u with no states, such as a summing junction for connect. " +
+				"A matrix of numbers next to a system in `*`, `+` or `-` is such a gain too: `[[1, -1]] * G` subtracts G's second output from its first. " +
 				"The equation form `system { ... }` (see kernel/lang/SPEC.md) is usually clearer.",
 			Examples: []string{
 				"G = system([[0, 1], [-2, -3]], [0, 1], [1, 0], 0)\nG",
 				"system([[0.9]], [0.1], every: 0.01, states: [\"level\"], inputs: [\"inflow\"], outputs: [\"level\"])",
+				"system(D: [[1, -1]], inputs: [\"ref\", \"v_out\"], outputs: [\"error\"])",
 			},
 			Fn: systemFn,
 		},
@@ -528,7 +531,23 @@ func systemFn(c *Call) (any, error) {
 	}
 	var g *lsys.System
 	first := c.Value("A")
+	if !c.Given("A") {
+		// A static gain: D alone.
+		if !c.Given("D") || c.Given("B") || c.Given("C") {
+			return nil, c.Errorf("", "Give A (and B, C, D) for a system with states, or D alone for a static gain: system(D: [[1, -1]]).",
+				"system needs the state matrix A, or only D for a static gain")
+		}
+		D, err := c.Matrix("D")
+		if err != nil {
+			return nil, err
+		}
+		if g, err = staticGain(D, ts); err != nil {
+			return nil, c.Errorf("D", "", "%v", err)
+		}
+	}
 	switch first.(type) {
+	case nil:
+		// the static gain above
 	case *lsys.Rational, *List, *lsys.System, *NonlinearModel:
 		if c.Given("B") || c.Given("C") || c.Given("D") {
 			return nil, c.Errorf("B", "Give either matrices or a transfer function.", "system(H) from a transfer function takes no B, C or D")

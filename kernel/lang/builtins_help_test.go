@@ -34,7 +34,7 @@ func TestHelpPagesOrPrints(t *testing.T) {
 	if _, err := s.Run(context.Background(), "help()", d); err != nil {
 		t.Fatal(err)
 	}
-	for _, want := range []string{"Describing systems", "system(A, B?, C?, D?", "Modes and structure"} {
+	for _, want := range []string{"Describing systems", "system(A?, B?, C?, D?", "Modes and structure"} {
 		if !strings.Contains(d.stdout, want) {
 			t.Errorf("help() lacks %q:\n%s", want, d.stdout)
 		}

@@ -942,17 +942,35 @@ func asRational(v any) (*lsys.Rational, bool) {
 }
 
 func (ev *evaluator) realize(rows [][]*lsys.Rational, pos Pos) (*lsys.System, error) {
+	// The sample time of a transfer matrix is the one its entries in z
+	// carry; entries in z whose sample time is still open, and constants,
+	// take it (SPEC section 8).
 	ts := 0.0
 	for _, r := range rows {
 		for _, q := range r {
-			if q.Ts != 0 {
+			if q.Ts > 0 || (q.Ts < 0 && ts == 0) {
 				ts = q.Ts
 			}
 		}
 	}
 	if ts < 0 {
 		return nil, ev.errorAt(pos, "this transfer function in z has no sample time yet",
-			"Give it one: system(H, every: 0.01).")
+			"Give it one: system(H, every: 0.01), or combine it with a sampled system (Gz * (1/z)).")
+	}
+	if ts > 0 {
+		fixed := make([][]*lsys.Rational, len(rows))
+		for i, r := range rows {
+			fixed[i] = make([]*lsys.Rational, len(r))
+			for k, q := range r {
+				if q.Ts < 0 || (q.Ts == 0 && q.IsConstant()) {
+					q2 := *q
+					q2.Ts = ts
+					q = &q2
+				}
+				fixed[i][k] = q
+			}
+		}
+		rows = fixed
 	}
 	if len(rows[0]) == 0 {
 		return nil, ev.errorAt(pos, "a transfer matrix needs at least one column", "Write it as rows of transfer functions: [[1/(s + 1), 0], [0, 2/(s + 3)]].")

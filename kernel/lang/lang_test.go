@@ -148,7 +148,7 @@ func TestCellsErrors(t *testing.T) {
 		{src: "system([[0]], sample: 1)", err: "system has no argument named 'sample'", line: 1, col: 15},
 		{src: "system([[0, 1]])", err: "needs a square matrix, not a 1x2 one", line: 1, col: 8},
 		{src: "system([[0, 1], [0, 0]], [1, 2, 3])", err: "B must have as many rows as A: got 3x1 against 2x2", line: 1, col: 1},
-		{src: "system()", err: "system needs the argument 'A'", line: 1, col: 1},
+		{src: "system()", err: "system needs the state matrix A, or only D for a static gain", line: 1, col: 1},
 		{src: "modes = 3\nmodes(1)", err: "hides the built-in modes(system)", line: 2, col: 6},
 		{src: "x = 3\nx(2)", err: "x is a number, not a function", line: 2, col: 2},
 		{src: "f(k) = k\nf(1, 2)", err: "f takes 1 argument", line: 2, col: 6},
@@ -324,7 +324,7 @@ func TestInspect(t *testing.T) {
 	}{
 		{"modes(G)", 2, []string{"modes(system)", "mode table", "Example:"}},
 		{"modes(", 6, []string{"modes(system)"}},
-		{"system(A, ", 10, []string{"system(A, B?, C?, D?, states?, inputs?, outputs?, every: 0)"}},
+		{"system(A, ", 10, []string{"system(A?, B?, C?, D?, states?, inputs?, outputs?, every: 0)"}},
 		{"G", 1, []string{"G: a system", "1 state"[:0] + "2 states, 1 input, 1 output, continuous"}},
 		{"f", 0, []string{"f: a function", "f(k) = k + 1"}},
 		{"G.A", 3, []string{"A: a 2x2 matrix"}},

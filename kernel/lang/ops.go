@@ -455,6 +455,27 @@ func (ev *evaluator) systemOp(op Token, a, b any, pos Pos) (any, error) {
 		}
 		return nil, ev.opError(op, a, b, pos, hint)
 	}
+	// A transfer function in z with no sample time yet takes the one of
+	// the system it is combined with (SPEC section 8); a matrix of numbers
+	// is a static gain of its shape.
+	if g, ok := a.(*lsys.System); ok {
+		b = withSampleTime(b, g.Ts)
+	}
+	if g, ok := b.(*lsys.System); ok {
+		a = withSampleTime(a, g.Ts)
+	}
+	if g, ok := a.(*lsys.System); ok {
+		b = matrixGain(b, g.Ts)
+	}
+	if g, ok := b.(*lsys.System); ok {
+		a = matrixGain(a, g.Ts)
+	}
+	for _, pair := range [][2]any{{a, b}, {b, a}} {
+		if g, ok := pair[0].(*lsys.System); ok && g.Ts == 0 && openSampleTime(pair[1]) {
+			return nil, ev.errorAt(pos, "cannot combine a transfer function in z with a continuous system",
+				"Sample the system first, sample(G, T), or write the continuous part in s.")
+		}
+	}
 	ga, err := ev.toSystem(a, pos)
 	if err != nil {
 		return nil, err
@@ -464,7 +485,7 @@ func (ev *evaluator) systemOp(op Token, a, b any, pos Pos) (any, error) {
 		return nil, err
 	}
 	if ga == nil || gb == nil {
-		return nil, ev.opError(op, a, b, pos, "Systems combine with systems, transfer functions and numbers.")
+		return nil, ev.opError(op, a, b, pos, "Systems combine with systems, transfer functions, numbers and matrices of numbers (static gains).")
 	}
 	// A number is a static gain of matching size.
 	if f, ok := a.(float64); ok && op == MUL {
@@ -510,6 +531,72 @@ func (ev *evaluator) systemOp(op Token, a, b any, pos Pos) (any, error) {
 		return nil, ev.errorAt(pos, err.Error(), "Check the operands of this operator.")
 	}
 	return g, nil
+}
+
+// matrixGain turns a real matrix combined with a system into the static
+// gain y = D u of its shape, with the system's sample time: [[1, -1]] * G
+// is G's two outputs subtracted. Anything else is returned unchanged.
+func matrixGain(v any, ts float64) any {
+	if d, ok := v.(*mat.Dense); ok {
+		if g, err := staticGain(d, ts); err == nil {
+			return g
+		}
+	}
+	return v
+}
+
+// withSampleTime gives a transfer function in z (or a transfer matrix
+// holding some) whose sample time is still open the sample time ts of a
+// sampled system it is combined with; with ts == 0 (a continuous system)
+// it is left open, and realizing it then says so.
+func withSampleTime(v any, ts float64) any {
+	w, _ := setSampleTime(v, ts)
+	return w
+}
+
+// openSampleTime reports whether v is, or holds, a transfer function in z
+// whose sample time is still open.
+func openSampleTime(v any) bool {
+	switch t := v.(type) {
+	case *lsys.Rational:
+		return t.Ts < 0
+	case *List:
+		for _, it := range t.Items {
+			if openSampleTime(it) {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+func setSampleTime(v any, ts float64) (any, bool) {
+	if ts <= 0 {
+		return v, false
+	}
+	switch t := v.(type) {
+	case *lsys.Rational:
+		if t.Ts < 0 {
+			q := *t
+			q.Ts = ts
+			return &q, true
+		}
+	case *List:
+		var items []any
+		for i, it := range t.Items {
+			w, changed := setSampleTime(it, ts)
+			if changed && items == nil {
+				items = append([]any(nil), t.Items...)
+			}
+			if items != nil {
+				items[i] = w
+			}
+		}
+		if items != nil {
+			return &List{Items: items}, true
+		}
+	}
+	return v, false
 }
 
 func scalarGain(k float64, n int, ts float64) (*lsys.System, error) {

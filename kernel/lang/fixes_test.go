@@ -1,0 +1,66 @@
+package lang
+
+import "testing"
+
+// The shift variable z takes its sample time from what it is combined
+// with (SPEC sections 5 and 8). Reference values: the zero-order-hold
+// equivalent of 1/(s + 1) sampled every T is (1 - e^-T)/(z - e^-T)
+// (Franklin, Powell & Workman, Digital Control of Dynamic Systems, 3rd ed.
+// 1998, table of ZOH equivalents; from memory), so with T = 0.1 its pole is
+// e^-0.1 = 0.904837418 (standard tables); 1/z adds a pole at 0 and keeps
+// the steady-state gain 1 (z = 1).
+func TestShiftVariableTakesSampleTime(t *testing.T) {
+	const gz = "Gz = sample(system(1/(s + 1)), 0.1)\n"
+	runCells(t, []cell{
+		{src: gz + "poles(Gz * (1/z))", want: "0.904837418\n          0"},
+		{src: gz + "poles((1/z) * Gz)", want: "0.904837418\n          0"},
+		{src: gz + "gain(Gz * (1/z))", want: "1"},
+		{src: gz + "(Gz * (1/z)).every", want: "0.1"},
+		{src: "Gz = sample(system(1/(s + 1)), 5e-6)\n(Gz * (1/z)).every", want: "5e-06"},
+		{src: gz + "poles(Gz + 1/z)", want: "0.904837418\n          0"},
+		{src: gz + "(Gz - 0.5/z^2).every", want: "0.1"},
+		// A transfer matrix: open z entries and constants take the sample time.
+		{src: gz + "(Gz * [[1/z, 1]]).every", want: "0.1"},
+		{src: "system([[0.1/(z - 0.9), 1]], every: 0.5).every", want: "0.5"},
+		// Nothing to take it from.
+		{src: "system(0.1/(z - 0.9))", err: "this transfer function in z has no sample time yet", line: 1, col: 8},
+		{src: "G = system(1/(s + 1))\nG * (1/z)", err: "cannot combine a transfer function in z with a continuous system", line: 2, col: 3},
+		{src: "G = system(1/(s + 1))\n(1/z) + G", err: "cannot combine a transfer function in z with a continuous system", line: 2, col: 7},
+		{src: gz + "Gz * sample(system(1/(s + 2)), 0.2)", err: "sample time", line: 2, col: 4},
+	})
+}
+
+// Static gains with no states (SPEC section 8: system(D: M); section 5: a
+// matrix next to a system). Reference values by hand: the plant
+// diag(1/(s + 1), 1/(s + 2)) driven by one input has the steady-state
+// gains 1 and 0.5 (closed form, G(0) = -C A^-1 B), so [[1, -1]] * G has
+// 1 - 0.5 = 0.5 and [[2, 3]] * G has 2 + 1.5 = 3.5.
+func TestStaticGainSystems(t *testing.T) {
+	const g = "G = system([[-1, 0], [0, -2]], [[1], [1]], identity(2))\n"
+	const sum = `S = system(D: [[1, -1]], inputs: ["ref", "v_out"], outputs: ["error"])` + "\n"
+	runCells(t, []cell{
+		{src: sum + "S.D", want: "1  -1"},
+		{src: sum + "S.inputs", want: `["ref", "v_out"]`},
+		{src: sum + "S.outputs", want: `["error"]`},
+		{src: sum + "poles(S)", want: "[]"},
+		{src: "system(D: 2, every: 0.1).every", want: "0.1"},
+		{src: "gain(system(D: [[1, -1], [0, 3]]))", want: "1  -1\n0   3"},
+		{src: g + "gain([[1, -1]] * G)", want: "0.5"},
+		{src: g + "gain([[2, 3]] * G)", want: "3.5"},
+		{src: g + "gain(G * [[1, -1]])", want: "  1    -1\n0.5  -0.5"},
+		{src: g + "gain(G + [[1], [2]])", want: "  2\n2.5"},
+		{src: g + "gain([[1], [2]] - G)", want: "  0\n1.5"},
+		// A summing junction wired by connect: error = ref - angle around
+		// the integrator plant 1/s with unit gain gives the closed loop
+		// 1/(s + 1), steady-state gain 1 (closed form).
+		{src: sum + `P = system(1/s, inputs: ["error"], outputs: ["v_out"])` + "\n" +
+			`T = connect(S, P, outputs: ["v_out"])` + "\npoles(T)", want: "-1"},
+		{src: "system(B: [1])", err: "system needs the state matrix A, or only D for a static gain", line: 1, col: 1},
+		{src: "system(D: [[1, -1]], C: [1])", err: "system needs the state matrix A, or only D for a static gain", line: 1, col: 1},
+		{src: "system()", err: "system needs the state matrix A, or only D for a static gain", line: 1, col: 1},
+		{src: `system(D: "a")`, err: "the argument 'D' must be a real matrix or vector, not a string", line: 1, col: 11},
+		{src: `system(D: [[1, -1]], inputs: ["ref"])`, err: "1 input names given for a system with 2 inputs", line: 1, col: 30},
+		{src: g + "G + [[1, -1]]", err: "cannot connect in parallel a system with 1 input and 2 outputs to one with 2 inputs and 1 output", line: 2, col: 3},
+		{src: g + "[[1, -1, 1]] * G", err: "cannot connect in series: the left system has 3 inputs but the right one has 2 outputs", line: 2, col: 14},
+	})
+}
