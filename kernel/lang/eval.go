@@ -746,6 +746,28 @@ func (ev *evaluator) field(v any, name *Ident) (any, error) {
 	if len(fields) > 0 {
 		hint = "Its fields are: " + strings.Join(fields, ", ") + "."
 	}
+	if m, ok := v.(*NonlinearModel); ok {
+		// A model's signals are not fields (a system's are): point the
+		// way when the name is, or is close to, one of them.
+		signals := append(append(append([]string(nil), m.bs.states...), m.bs.inputs...), m.bs.outputs...)
+		sig := ""
+		for _, s := range signals {
+			if s == name.Name {
+				sig = s
+			}
+		}
+		if sig == "" && closest(name.Name, fields) == "" {
+			sig = closest(name.Name, signals)
+		}
+		if sig != "" {
+			msg := fmt.Sprintf("a nonlinear model has no field '%s'", name.Name)
+			if sig != name.Name {
+				msg += fmt.Sprintf("; did you mean the signal '%s'?", sig)
+			}
+			return nil, ev.errorAt(name.NamePos, msg,
+				fmt.Sprintf("A model's signals are reached after linearizing it: linearize(model, at: {...}).%s. %s", sig, hint))
+		}
+	}
 	return nil, ev.errorAt(name.NamePos, fmt.Sprintf("%s has no field '%s'%s", typeName(v), name.Name, didYouMean(name.Name, fields)), hint)
 }
 

@@ -1,6 +1,12 @@
 package lang
 
-import "testing"
+import (
+	"context"
+	"regexp"
+	"testing"
+
+	"lsys/lsys"
+)
 
 // The shift variable z takes its sample time from what it is combined
 // with (SPEC sections 5 and 8). Reference values: the zero-order-hold
@@ -62,5 +68,65 @@ func TestStaticGainSystems(t *testing.T) {
 		{src: `system(D: [[1, -1]], inputs: ["ref"])`, err: "1 input names given for a system with 2 inputs", line: 1, col: 30},
 		{src: g + "G + [[1, -1]]", err: "cannot connect in parallel a system with 1 input and 2 outputs to one with 2 inputs and 1 output", line: 2, col: 3},
 		{src: g + "[[1, -1, 1]] * G", err: "cannot connect in series: the left system has 3 inputs but the right one has 2 outputs", line: 2, col: 14},
+	})
+}
+
+// goSyntax matches Go type syntax that must never reach a message.
+var goSyntax = regexp.MustCompile(`\*|\blang\.|\blsys\.|\bmat\.|\[\]|\bfloat64\b|\bcomplex128\b|\bmap\[`)
+
+// No Go type name leaks into what the user reads: every value a built-in's
+// example gives, and every field of it, is named in words, and a
+// misspelt field on it gives a message in words.
+func TestTypeNamesInWords(t *testing.T) {
+	for _, b := range Builtins() {
+		for _, ex := range b.Examples {
+			s := NewSession(t.TempDir())
+			v, err := s.Run(context.Background(), ex, &recorder{})
+			if err != nil || v == nil {
+				continue
+			}
+			if n := typeName(v); goSyntax.MatchString(n) {
+				t.Errorf("%s example: the result is named %q", b.Name, n)
+			}
+			s.globals["value"] = v
+			for _, f := range fieldNames(v) {
+				fv, err := s.Run(context.Background(), "value."+f, &recorder{})
+				if err != nil {
+					// Some listed fields are empty for some values (A of
+					// a static gain); the message must still be in words.
+					if goSyntax.MatchString(err.Error()) {
+						t.Errorf("%s example: field %s: %v", b.Name, f, err)
+					}
+					continue
+				}
+				if n := typeName(fv); goSyntax.MatchString(n) {
+					t.Errorf("%s example: field %s is named %q", b.Name, f, n)
+				}
+			}
+			_, err = s.Run(context.Background(), "value.qqqqqq", &recorder{})
+			if err != nil && goSyntax.MatchString(err.Error()) {
+				t.Errorf("%s example: %v", b.Name, err)
+			}
+		}
+	}
+	if n := wordsOfType(&lsys.PoleZeroMap{}); n != "a result (pole zero map)" {
+		t.Errorf("fallback name %q", n)
+	}
+}
+
+// Misspelt fields name the type in words and suggest the nearest field
+// or signal (crane-like pendulum model; names as in the notebooks).
+func TestFieldErrorsInWords(t *testing.T) {
+	const crane = "g = 9.81; L = 2\ncrane = system {\n  states x, v, theta, omega\n  inputs force\n" +
+		"  x' = v\n  v' = force\n  theta' = omega\n  omega' = -(g/L)*sin(theta) - force/L\n}\n"
+	runCells(t, []cell{
+		{src: crane + "crane.omegaa", err: "a nonlinear model has no field 'omegaa'; did you mean the signal 'omega'?", line: 10, col: 7},
+		{src: crane + "crane.omega", err: "a nonlinear model has no field 'omega'", line: 10, col: 7},
+		{src: crane + "crane.stats", err: "a nonlinear model has no field 'stats'; did you mean 'states'?", line: 10, col: 7},
+		{src: crane + "crane.inputs", want: `["force"]`},
+		{src: crane + "e = equilibrium(crane, inputs: {force: 0})\ne.residul", err: "a steady state (equilibrium) has no field 'residul'; did you mean 'residual'?", line: 11, col: 3},
+		{src: crane + "crane[1]", err: "a nonlinear model cannot be indexed", line: 10, col: 6},
+		{src: crane + "crane + 1", err: "this is a nonlinear model, not a linear system", line: 10, col: 7},
+		{src: "p = polezero(1/(s + 1))\np.pols", err: "a pole-zero map has no field 'pols'; did you mean 'poles'?", line: 2, col: 3},
 	})
 }

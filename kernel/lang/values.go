@@ -4,8 +4,10 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"reflect"
 	"strconv"
 	"strings"
+	"unicode"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -284,9 +286,35 @@ func typeName(v any) string {
 		return "a transfer function"
 	case *lsys.ModeTable:
 		return "a mode table"
+	case *NonlinearModel:
+		return "a nonlinear model"
+	case *Equilibrium:
+		return "a steady state (equilibrium)"
 	}
 	if n, ok := typeNames.lookup(v); ok {
 		return n
 	}
-	return fmt.Sprintf("a %T", v)
+	return wordsOfType(v)
+}
+
+// wordsOfType names a value whose type nobody described with RegisterType
+// in words taken from its Go type name (lsys.PoleZeroMap -> "a result: pole
+// zero map"), so that no Go syntax reaches a message.
+func wordsOfType(v any) string {
+	t := reflect.TypeOf(v)
+	for t.Kind() == reflect.Pointer || t.Kind() == reflect.Slice {
+		t = t.Elem()
+	}
+	name := t.Name()
+	var b strings.Builder
+	for i, r := range name {
+		if unicode.IsUpper(r) && i > 0 {
+			b.WriteByte(' ')
+		}
+		b.WriteRune(unicode.ToLower(r))
+	}
+	if b.Len() == 0 {
+		return "a value of another kind"
+	}
+	return "a result (" + b.String() + ")"
 }
