@@ -2,6 +2,7 @@ package lang
 
 import (
 	"context"
+	"errors"
 	"regexp"
 	"testing"
 
@@ -129,4 +130,40 @@ func TestFieldErrorsInWords(t *testing.T) {
 		{src: crane + "crane + 1", err: "this is a nonlinear model, not a linear system", line: 10, col: 7},
 		{src: "p = polezero(1/(s + 1))\np.pols", err: "a pole-zero map has no field 'pols'; did you mean 'poles'?", line: 2, col: 3},
 	})
+}
+
+// A state's derivative used on a right-hand side is refused with a hint to
+// define a helper, once, with no follow-on error at the block's brace; the
+// parser goes on with the next equation (SPEC section 9: one error per
+// line). The helper form gives the matrices of the hand-derived model
+// (common practice: x' = A x + B u read off the equations).
+func TestDerivativeOnRightHandSide(t *testing.T) {
+	const head = "m = system {\n  states v, omega\n  inputs f\n  v' = f\n"
+	runCells(t, []cell{
+		{src: head + "  omega' = -(v'/2)\n}", err: "the derivative v' cannot be used on a right-hand side", line: 5, col: 15},
+		{src: head + "  omega' = -v' / 2\n}", err: "Define a helper with the right-hand side of v' (dv = ...)", line: 5, col: 14},
+		{src: "m = system {\n  states v, omega\n  inputs f\n  dv = f\n  v' = dv\n  omega' = -dv/2\n}\nm.B", want: "   1\n-0.5"},
+		{src: "y = x'", err: "a derivative x' can only be written inside system { ... }", line: 1, col: 6},
+		{src: "x' = 3", err: "a derivative x' can only be written inside system { ... }", line: 1, col: 2},
+	})
+	s := NewSession(t.TempDir())
+	_, err := s.Run(context.Background(), head+"  omega' = -(v'/2)\n}", &recorder{})
+	var l ErrorList
+	if !errors.As(err, &l) || len(l) != 1 {
+		t.Errorf("want exactly one error, got %v", err)
+	}
+	// Two bad equations: both reported.
+	_, err = s.Run(context.Background(), "m = system {\n  states v, w\n  v' = w'\n  w' = v' + 1\n}", &recorder{})
+	if !errors.As(err, &l) || len(l) != 2 || l[0].Pos.Line != 3 || l[1].Pos.Line != 4 {
+		t.Errorf("want two errors on lines 3 and 4, got %v", err)
+	}
+	for _, c := range []struct{ src, status string }{
+		{"m = system {\n  states x\n  x' = (", "incomplete"},
+		{"m = system {\n  states x\n  x' = x'\n}", "invalid"},
+		{"m = system {\n  states x\n  x' = -x\n}", "complete"},
+	} {
+		if st, _ := s.IsComplete(c.src); st != c.status {
+			t.Errorf("IsComplete(%q) = %q, want %q", c.src, st, c.status)
+		}
+	}
 }

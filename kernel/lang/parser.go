@@ -47,6 +47,7 @@ type parser struct {
 	errors ErrorList
 	nlFree []bool // stack: are newlines skipped at this bracket level?
 	depth  int
+	rhs    int // > 0 while parsing the right-hand side of a block equation
 }
 
 type bailout struct{}
@@ -376,6 +377,17 @@ func (p *parser) parsePostfix() Expr {
 		switch p.tok {
 		case LPAREN:
 			x = p.parseCall(x)
+		case PRIME:
+			if p.rhs == 0 {
+				return x
+			}
+			// A derivative on a right-hand side: the block gives each
+			// state's derivative by its own equation, so a value shared
+			// by two equations is a helper.
+			name := ExprString(x)
+			p.errorAt(p.pos, fmt.Sprintf("the derivative %s' cannot be used on a right-hand side", name),
+				fmt.Sprintf("Define a helper with the right-hand side of %[1]s' (d%[1]s = ...), write %[1]s' = d%[1]s, and use d%[1]s here; helpers are evaluated before the state equations.", name))
+			panic(bailout{})
 		case LBRACK:
 			lb := p.pos
 			p.push(true)
@@ -553,15 +565,8 @@ func (p *parser) parseSystemBlock(pos Pos) Expr {
 		if p.tok == RBRACE || p.tok == EOF {
 			break
 		}
-		b.Items = append(b.Items, p.parseBlockItem())
-		switch p.tok {
-		case NEWLINE:
-			p.next()
-		case RBRACE, EOF:
-		default:
-			p.errorAt(p.pos, fmt.Sprintf("unexpected %s after the equation", p.describe()),
-				"Put one equation or declaration per line, or separate them with ';'.")
-			panic(bailout{})
+		if it := p.parseBlockItemRecover(); it != nil {
+			b.Items = append(b.Items, it)
 		}
 	}
 	if p.tok != RBRACE {
@@ -571,6 +576,58 @@ func (p *parser) parseSystemBlock(pos Pos) Expr {
 	}
 	b.Rbrace = p.expect(RBRACE, "'}' to close the system block")
 	return b
+}
+
+// parseBlockItemRecover parses one item of a block and what ends it. After
+// an error it skips to the end of the item's line (or the block's '}') and
+// returns nil, so that the rest of the block is still read and a mistake
+// in one equation is reported once, not again at the closing brace.
+func (p *parser) parseBlockItemRecover() (it BlockItem) {
+	level, depth := len(p.nlFree), p.depth
+	n := len(p.errors) + len(p.sc.Errors)
+	func() {
+		defer func() {
+			if r := recover(); r != nil {
+				if _, ok := r.(bailout); !ok || len(p.errors)+len(p.sc.Errors) > 20 {
+					panic(r)
+				}
+				it = nil
+			}
+		}()
+		it = p.parseBlockItem()
+		switch p.tok {
+		case NEWLINE:
+			p.next()
+		case RBRACE, EOF:
+		default:
+			p.errorAt(p.pos, fmt.Sprintf("unexpected %s after the equation", p.describe()),
+				"Put one equation or declaration per line, or separate them with ';'.")
+			panic(bailout{})
+		}
+	}()
+	if len(p.errors)+len(p.sc.Errors) == n && it != nil {
+		return it
+	}
+	p.nlFree, p.depth = p.nlFree[:level], depth
+	braces := 0
+	for p.tok != EOF {
+		switch p.tok {
+		case LBRACE:
+			braces++
+		case RBRACE:
+			if braces == 0 {
+				return nil
+			}
+			braces--
+		case NEWLINE:
+			if braces == 0 {
+				p.next()
+				return nil
+			}
+		}
+		p.next()
+	}
+	return nil
 }
 
 func (p *parser) parseBlockItem() BlockItem {
@@ -612,7 +669,7 @@ func (p *parser) parseBlockItem() BlockItem {
 			panic(bailout{})
 		}
 		eq := p.expect(ASSIGN, "'=' after next "+id.Name)
-		return &Equation{Start: start, Kind: EqNext, Name: id, Eq: eq, Rhs: p.parseExpr()}
+		return &Equation{Start: start, Kind: EqNext, Name: id, Eq: eq, Rhs: p.parseRhs()}
 	}
 	id := &Ident{NamePos: start, Name: name}
 	kind := EqPlain
@@ -627,5 +684,13 @@ func (p *parser) parseBlockItem() BlockItem {
 	}
 	eq := p.pos
 	p.next()
-	return &Equation{Start: start, Kind: kind, Name: id, Eq: eq, Rhs: p.parseExpr()}
+	return &Equation{Start: start, Kind: kind, Name: id, Eq: eq, Rhs: p.parseRhs()}
+}
+
+// parseRhs parses the right-hand side of a block equation, where a prime
+// after a name is a derivative used as a value.
+func (p *parser) parseRhs() Expr {
+	p.rhs++
+	defer func() { p.rhs-- }()
+	return p.parseExpr()
 }
