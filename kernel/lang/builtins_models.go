@@ -120,7 +120,10 @@ func modelBuiltins() []*Builtin {
 				"differentiation; each Newton step is shortened until the residual falls (Armijo's rule, Dennis & Schnabel, " +
 				"Numerical Methods for Unconstrained Optimization and Nonlinear Equations, 1983, section 6.3). The result gives " +
 				"the states, the inputs, the residual max|f| and the number of steps, and can be passed to linearize(model, at: ...). " +
-				"When Newton fails, the error says why: a singular Jacobian, a line search that cannot reduce the residual, or too many steps.",
+				"When Newton fails, the error says why: a singular Jacobian, a line search that cannot reduce the residual, or too many steps. " +
+				"When the Jacobian df/dx at the result is singular (rank decided by its singular values, those at or below 1e-12 x the largest counting as zero), " +
+				"the steady state is not unique: it is one member of a family, the display says so, and `e.free` holds the free directions " +
+				"(an orthonormal basis of the null space, one column each, one row per state), `e.unique` is false and `e.rank` the rank.",
 			Examples: []string{pendulumExample + "e = equilibrium(pendulum, inputs: {torque: 0}, guess: {angle: 3})\nlinearize(pendulum, at: e)"},
 			Fn:       equilibriumFn,
 		},
@@ -246,6 +249,98 @@ type Equilibrium struct {
 	Inputs     *Record
 	Residual   float64 // max |f| (continuous) or max |f - x| (sampled) at the result
 	Iterations int
+
+	// The rank verdict on the Jacobian J = df/dx (minus I when sampled) at
+	// the result: singular values at or below Tol = FamilyTol * the largest
+	// count as zero. When Rank < n the steady state is one member of a
+	// family, and the columns of Free (orthonormal, n x (n - Rank)) span
+	// the null space of J: the directions in which the states can move and
+	// stay at rest, to first order. Free is nil when the state is unique.
+	Rank     int
+	Tol      float64
+	Singular []float64 // singular values of J, largest first
+	Free     *mat.Dense
+
+	minNorm bool // solved as a linear system: the member of least norm
+}
+
+// FamilyTol is the relative tolerance of the rank decision on the
+// Jacobian at an equilibrium; it is the one below which Newton's step
+// treats singular values as zero (newtonStep), so the verdict and the
+// iteration agree.
+const FamilyTol = 1e-12
+
+// setFamily decides the rank of the Jacobian J at the result by its
+// singular values (numerical rank with a relative tolerance: Golub & Van
+// Loan, Matrix Computations, 4th ed. 2013, section 5.4.1) and keeps the
+// null space. Entries of a free direction below 1e-14 of its largest are
+// rounding and set to 0; a single direction has its largest entry positive.
+func (e *Equilibrium) setFamily(J *mat.Dense) {
+	n, _ := J.Dims()
+	var svd mat.SVD
+	if !svd.Factorize(J, mat.SVDFull) {
+		e.Rank = n
+		return
+	}
+	sv := svd.Values(nil)
+	e.Singular = sv
+	smax := 0.0
+	if len(sv) > 0 {
+		smax = sv[0]
+	}
+	e.Tol = FamilyTol * smax
+	rank := 0
+	for _, x := range sv {
+		if x > e.Tol {
+			rank++
+		}
+	}
+	e.Rank = rank
+	if rank == n {
+		return
+	}
+	var V mat.Dense
+	svd.VTo(&V)
+	free := mat.DenseCopyOf(V.Slice(0, n, rank, n))
+	_, k := free.Dims()
+	for j := 0; j < k; j++ {
+		big, at := 0.0, 0
+		for i := 0; i < n; i++ {
+			if a := math.Abs(free.At(i, j)); a > big {
+				big, at = a, i
+			}
+		}
+		sign := 1.0
+		if k == 1 && free.At(at, j) < 0 {
+			sign = -1
+		}
+		for i := 0; i < n; i++ {
+			v := sign * free.At(i, j)
+			if math.Abs(v) < 1e-14*big {
+				v = 0
+			}
+			free.Set(i, j, v)
+		}
+	}
+	e.Free = free
+}
+
+// FreeDirections lists the free directions as records over the states.
+func (e *Equilibrium) FreeDirections() []*Record {
+	if e.Free == nil {
+		return nil
+	}
+	n, k := e.Free.Dims()
+	out := make([]*Record, k)
+	for j := 0; j < k; j++ {
+		r := &Record{}
+		for i := 0; i < n; i++ {
+			r.Names = append(r.Names, e.States.Names[i])
+			r.Values = append(r.Values, e.Free.At(i, j))
+		}
+		out[j] = r
+	}
+	return out
 }
 
 func (e *Equilibrium) point() *Record {
@@ -256,8 +351,28 @@ func (e *Equilibrium) point() *Record {
 }
 
 func (e *Equilibrium) String() string {
-	return fmt.Sprintf("equilibrium after %d Newton steps, residual %.3g\nstates: %s\ninputs: %s",
+	s := fmt.Sprintf("equilibrium after %d Newton steps, residual %.3g\nstates: %s\ninputs: %s",
 		e.Iterations, e.Residual, e.States, e.Inputs)
+	if e.Free == nil {
+		return s
+	}
+	n, k := e.Free.Dims()
+	smax := 0.0
+	if len(e.Singular) > 0 {
+		smax = e.Singular[0]
+	}
+	s += fmt.Sprintf("\nnot unique: the Jacobian df/dx here has rank %d of %d (singular values at or below %.3g x the largest, %.3g, count as zero), "+
+		"so this is one member of a family of steady states; to first order the states can move along %s and stay at rest:",
+		e.Rank, n, FamilyTol, smax, plural(k, "direction"))
+	for j, d := range e.FreeDirections() {
+		s += fmt.Sprintf("\n  free direction %d: %s", j+1, d)
+	}
+	if e.minNorm {
+		s += "\nOf the family, the state of least norm is given."
+	} else {
+		s += "\nThe guess decides which member Newton returns."
+	}
+	return s
 }
 
 // Field reads e.states, e.inputs, e.residual, e.iterations or a state or
@@ -272,6 +387,16 @@ func (e *Equilibrium) Field(name string) (any, bool) {
 		return e.Residual, true
 	case "iterations":
 		return float64(e.Iterations), true
+	case "unique":
+		return e.Free == nil, true
+	case "free":
+		// The free directions as columns, one row per state; [] when unique.
+		if e.Free == nil {
+			return &List{}, true
+		}
+		return mat.DenseCopyOf(e.Free), true
+	case "rank":
+		return float64(e.Rank), true
 	}
 	if v, ok := e.States.Get(name); ok {
 		return v, true
@@ -281,7 +406,7 @@ func (e *Equilibrium) Field(name string) (any, bool) {
 
 // FieldNames lists the fields of an equilibrium.
 func (e *Equilibrium) FieldNames() []string {
-	out := []string{"states", "inputs", "residual", "iterations"}
+	out := []string{"states", "inputs", "residual", "iterations", "unique", "free", "rank"}
 	out = append(out, e.States.Names...)
 	return append(out, e.Inputs.Names...)
 }
@@ -457,6 +582,7 @@ func equilibriumFn(c *Call) (any, error) {
 			"equilibrium: no steady state found after %d Newton steps; the residual is still %.3g", iter, res)
 	}
 	e := &Equilibrium{States: &Record{}, Inputs: &Record{}, Residual: res, Iterations: iter}
+	e.setFamily(J)
 	for i, s := range bs.states {
 		e.States.Names = append(e.States.Names, s)
 		e.States.Values = append(e.States.Values, x[i])
@@ -531,7 +657,8 @@ func linearEquilibrium(c *Call, g *lsys.System) (any, error) {
 		return nil, c.Errorf("inputs", "A system with an integrator has a steady state only for inputs that leave it at rest.",
 			"no steady state for these inputs: the closest state leaves a residual of %.3g (the state matrix is singular)", res)
 	}
-	e := &Equilibrium{States: &Record{}, Inputs: &Record{}, Residual: res, Iterations: 1}
+	e := &Equilibrium{States: &Record{}, Inputs: &Record{}, Residual: res, Iterations: 1, minNorm: true}
+	e.setFamily(J)
 	for i, s := range g.StateNames {
 		e.States.Names = append(e.States.Names, s)
 		e.States.Values = append(e.States.Values, x[i])

@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"regexp"
+	"strings"
 	"testing"
 
 	"lsys/lsys"
@@ -165,5 +166,64 @@ func TestDerivativeOnRightHandSide(t *testing.T) {
 		if st, _ := s.IsComplete(c.src); st != c.status {
 			t.Errorf("IsComplete(%q) = %q, want %q", c.src, st, c.status)
 		}
+	}
+}
+
+// An equilibrium that is one member of a family says so and gives the free
+// directions (null space of df/dx at the result). References, hand-derived
+// Jacobians (common practice): the crane trolley x' = v, v' = F,
+// theta' = omega, omega' = -(g/L) sin(theta) - F/L has at rest
+// J = [[0,1,0,0],[0,0,0,0],[0,0,0,1],[0,0,-g/L,0]], rank 3, null space
+// the trolley position x; two tanks exchanging fluid, h1' = h2 - h1,
+// h2' = (h1 - h2)(1 + h1^2), are at rest wherever h1 = h2, J has rank 1
+// and null space (1, 1)/sqrt(2) = 0.7071067812; the pendulum
+// angle' = rate, rate' = -9.81 sin(angle) - 0.1 rate at angle = pi has
+// det J = -9.81 != 0: unique.
+func TestEquilibriumFamily(t *testing.T) {
+	const crane = "g = 9.81; L = 2\ncrane = system {\n  states x, v, theta, omega\n  inputs force\n" +
+		"  x' = v\n  v' = force\n  theta' = omega\n  omega' = -(g/L)*sin(theta) - force/L\n}\n" +
+		"e = equilibrium(crane, inputs: {force: 0}, guess: {x: 3, theta: 0.1})\n"
+	const tanks = "tanks = system {\n  states h1, h2\n  h1' = h2 - h1\n  h2' = (h1 - h2)*(1 + h1^2)\n}\n" +
+		"e = equilibrium(tanks, guess: {h1: 1, h2: 0.5})\n"
+	const pendulum = "pendulum = system {\n  states angle, rate\n  inputs torque\n  angle' = rate\n" +
+		"  rate' = -9.81*sin(angle) - 0.1*rate + torque\n}\ne = equilibrium(pendulum, inputs: {torque: 0}, guess: {angle: 3})\n"
+	const masses = "two = system {\n  states x1, v1, x2, v2\n  x1' = v1\n  v1' = -v1\n  x2' = v2\n  v2' = -v2 + 0.1*v2^3\n}\n" +
+		"e = equilibrium(two, guess: {x1: 1, x2: -2, v1: 0.1})\n"
+	runCells(t, []cell{
+		{src: crane + "e.free", want: "1\n0\n0\n0"},
+		{src: crane + "e.unique", want: "false"},
+		{src: crane + "e.rank", want: "3"},
+		{src: crane + "e.x", want: "3"},
+		{src: tanks + "e.free", want: "0.7071067812\n0.7071067812"},
+		{src: tanks + "[e.rank, abs(e.h1 - e.h2) < 1e-12]", want: "[1, true]"},
+		{src: pendulum + "[e.unique, e.rank]", want: "[true, 2]"},
+		{src: pendulum + "e.free", want: "[]"},
+		{src: pendulum + "abs(e.angle - pi) < 1e-12", want: "true"},
+		// Two free positions: the projector onto the free directions does
+		// not depend on the basis chosen.
+		{src: masses + "e.rank", want: "2"},
+		{src: masses + "P = e.free * transpose(e.free)\n[P[1, 1], P[3, 3], P[2, 2], P[4, 4], P[1, 3]]", want: "1\n1\n0\n0\n0"},
+		// A system in matrix form: the state of least norm, and the family.
+		{src: "e = equilibrium(system([[0, 1], [0, -2]], [0, 1]), inputs: {u1: 0})\ne.free", want: "1\n0"},
+		{src: "equilibrium(system([[0, 1], [0, -2]], [0, 1]), inputs: {u1: 0})", want: "equilibrium after 1 Newton steps, residual 0\n" +
+			"states: {x1: 0, x2: 0}\ninputs: {u1: 0}\n" +
+			"not unique: the Jacobian df/dx here has rank 1 of 2 (singular values at or below 1e-12 x the largest, 2.24, count as zero), " +
+			"so this is one member of a family of steady states; to first order the states can move along 1 direction and stay at rest:\n" +
+			"  free direction 1: {x1: 1, x2: 0}\nOf the family, the state of least norm is given."},
+		// Sampled: a and b swap each step; at rest wherever a = b (J = A - I =
+		// [[-1, 1], [1, -1]], rank 1, null space (1, 1)/sqrt(2)).
+		{src: "m = system every 0.1 {\n  states a, b\n  next a = b\n  next b = a\n}\ne = equilibrium(m, guess: {a: 2, b: 2})\n[e.rank, e.free[1], e.free[2]]", want: "           1\n0.7071067812\n0.7071067812"},
+		{src: pendulum + "e.fre", err: "a steady state (equilibrium) has no field 'fre'; did you mean 'free'?", line: 8, col: 3},
+	})
+	// The display says it.
+	s := NewSession(t.TempDir())
+	v := run(t, s, crane+"e")
+	if got := FormatValue(v); !strings.Contains(got, "not unique: the Jacobian df/dx here has rank 3 of 4") ||
+		!strings.Contains(got, "free direction 1: {x: 1, v: 0, theta: 0, omega: 0}") ||
+		!strings.Contains(got, "The guess decides which member Newton returns.") {
+		t.Errorf("crane equilibrium display:\n%s", got)
+	}
+	if got := FormatValue(run(t, s, pendulum+"e")); strings.Contains(got, "not unique") {
+		t.Errorf("pendulum equilibrium called a family:\n%s", got)
 	}
 }
