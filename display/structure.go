@@ -209,7 +209,11 @@ func renderStructure(v any, _ Options) Bundle {
 	t, h := &c.t, &c.h
 	n := st.System.N()
 	margin := func(s *lsys.Staircase) string {
-		return fmt.Sprintf("staircase steps %s; rank tolerance %s, smallest kept singular value %s, largest dropped %s", sxInts(s.Steps), fmtNum(s.Tol), fmtNum(s.Kept), fmtNum(s.Dropped))
+		kept := make([]string, len(s.StepKept))
+		for i, v := range s.StepKept {
+			kept[i] = fmtNum(v)
+		}
+		return fmt.Sprintf("staircase steps %s, smallest kept singular value per step [%s]; rank tolerance %s, largest dropped %s", sxInts(s.Steps), strings.Join(kept, ", "), fmtNum(s.Tol), fmtNum(s.Dropped))
 	}
 	keyTable(t, h, [][2]string{
 		{"controllable", fmt.Sprintf("%s: %d of %d states reachable (%s)", sxYesNo(st.Controllable), st.Reach.Dim, n, margin(st.Reach))},
@@ -224,7 +228,7 @@ func renderStructure(v any, _ Options) Bundle {
 		rows = append(rows, []string{p.Name, strconv.Itoa(p.Dim), sxValues(p.Modes)})
 	}
 	gridTable(t, h, []string{"part", "states", "modes"}, rows, 0)
-	note(t, h, fmt.Sprintf("Orthogonal staircase forms decide every rank at %s x the norm of [A B] (or [A; C]); the Krylov matrix is not used. Reachable and unobservable subspaces intersected at principal-angle tolerance %s; Kalman transformation condition number %s.",
+	note(t, h, fmt.Sprintf("Orthogonal staircase forms of the balanced system (states balanced, inputs and outputs scaled to the size of A by powers of two, so a tolerance means the same in any units) decide every rank at %s x the norm of [A B] (or [A; C]); a small kept value marks a weakly reached or seen direction (the mode table's PBH margins measure each mode); the Krylov matrix is not used. Reachable and unobservable subspaces intersected at principal-angle tolerance %s; Kalman transformation condition number %s.",
 		fmtNum(st.RelTol), fmtNum(st.AngleTol), fmtNum(st.Cond)))
 	b := c.bundle()
 	parts := make([]any, 4)

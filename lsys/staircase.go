@@ -27,6 +27,81 @@ type Staircase struct {
 	// kept as nonzero over all steps and Dropped the largest discarded
 	// (0 if none): the gap between them is the margin of the verdict.
 	Tol, Kept, Dropped float64
+	// StepKept[i] is the smallest singular value kept at step i: the size
+	// of the perturbation that would end the staircase there (Paige 1981),
+	// so a small value marks a weakly reached (or seen) direction. It is an
+	// upper bound on the distance to an uncontrollable (unobservable)
+	// system, not that distance: the PBH margins of the mode table measure
+	// each mode.
+	StepKept []float64
+	// Scale, when not nil, is the diagonal state scaling the staircase was
+	// computed in (see StaircasesOf): A, B and Z belong to the balanced
+	// system with x = diag(Scale) x~. Use LeadingBasis and TrailingBasis for
+	// subspaces in the original coordinates.
+	Scale []float64
+}
+
+// LeadingBasis returns an orthonormal basis, in the original coordinates,
+// of the span of the first Dim columns of Z (the reachable subspace of a
+// controllability staircase); nil when Dim = 0.
+func (st *Staircase) LeadingBasis() *mat.Dense {
+	n, _ := st.Z.Dims()
+	if st.Dim == 0 {
+		return nil
+	}
+	return st.basis(0, st.Dim, n)
+}
+
+// TrailingBasis returns an orthonormal basis, in the original coordinates,
+// of the span of the last n - Dim columns of Z (the unobservable subspace of
+// an observability staircase); nil when Dim = n.
+func (st *Staircase) TrailingBasis() *mat.Dense {
+	n, _ := st.Z.Dims()
+	if st.Dim == n {
+		return nil
+	}
+	return st.basis(st.Dim, n, n)
+}
+
+func (st *Staircase) basis(c0, c1, n int) *mat.Dense {
+	V := mat.DenseCopyOf(st.Z.Slice(0, n, c0, c1))
+	if st.Scale == nil {
+		return V
+	}
+	for i := 0; i < n; i++ {
+		for j := 0; j < c1-c0; j++ {
+			V.Set(i, j, V.At(i, j)*st.Scale[i])
+		}
+	}
+	// The scaled columns are independent (diag(Scale) is nonsingular):
+	// a thin QR makes them orthonormal again.
+	var qr mat.QR
+	qr.Factorize(V)
+	var Q mat.Dense
+	qr.QTo(&Q)
+	return mat.DenseCopyOf(Q.Slice(0, n, 0, c1-c0))
+}
+
+// StaircasesOf returns the controllability and observability staircases of
+// s computed on the balanced system (see balanceSystem: states balanced,
+// inputs and outputs scaled by powers of two to the size of A), so that a
+// relative tolerance means the same in any units: in SI units an actuator
+// entry 1/m = 1e-4 next to stiffness entries k/m = 1e3 would otherwise be
+// dropped by a tolerance relative to ||[A B]||, and steps through the
+// kinematic entries 1 of x' = v would look small next to k/m. Tol is
+// relTol times the norm of the balanced [A B] (or [A; C]). The reachable
+// and unobservable subspaces do not depend on these scalings; use
+// LeadingBasis and TrailingBasis to read them in the original coordinates.
+func StaircasesOf(s *System, relTol float64) (reach, observe *Staircase, err error) {
+	bA, bB, bC, _, _, _, sx := balanceSystem(s.A, s.B, s.C, nil)
+	if reach, err = ControllabilityStaircase(bA, bB, relTol); err != nil {
+		return nil, nil, err
+	}
+	if observe, err = ObservabilityStaircase(bA, bC, relTol); err != nil {
+		return nil, nil, err
+	}
+	reach.Scale, observe.Scale = sx, sx
+	return reach, observe, nil
 }
 
 // ControllabilityStaircase reduces (A, B) to the staircase form by
@@ -134,6 +209,7 @@ func ControllabilityStaircase(A, B *mat.Dense, relTol float64) (*Staircase, erro
 			break
 		}
 		st.Steps = append(st.Steps, r)
+		st.StepKept = append(st.StepKept, sv[r-1])
 		prev = start
 		cols = r
 		start += r

@@ -65,10 +65,7 @@ func StructureOf(s *System, relTol float64) (*Structure, error) {
 	}
 	st := &Structure{System: s, RelTol: relTol}
 	var err error
-	if st.Reach, err = ControllabilityStaircase(s.A, s.B, relTol); err != nil {
-		return nil, err
-	}
-	if st.Observe, err = ObservabilityStaircase(s.A, s.C, relTol); err != nil {
+	if st.Reach, st.Observe, err = StaircasesOf(s, relTol); err != nil {
 		return nil, err
 	}
 	n := s.N()
@@ -126,11 +123,7 @@ func Decompose(s *System, relTol float64) (*Decomposition, error) {
 	if relTol <= 0 || math.IsNaN(relTol) {
 		relTol = DefaultRelTol
 	}
-	rs, err := ControllabilityStaircase(s.A, s.B, relTol)
-	if err != nil {
-		return nil, err
-	}
-	os, err := ObservabilityStaircase(s.A, s.C, relTol)
+	rs, os, err := StaircasesOf(s, relTol)
 	if err != nil {
 		return nil, err
 	}
@@ -153,13 +146,8 @@ func kalman(s *System, rs, os *Staircase, relTol float64) (*Decomposition, float
 		sys.StateNames = kalmanStateNames(n, 0, 0, 0)
 		return &Decomposition{From: s, System: sys, T: identity(n), Sizes: [4]int{n, 0, 0, 0}, Cond: 1}, angTol, nil
 	}
-	var R, N *mat.Dense
-	if rs.Dim > 0 {
-		R = mat.DenseCopyOf(rs.Z.Slice(0, n, 0, rs.Dim))
-	}
-	if os.Dim < n {
-		N = mat.DenseCopyOf(os.Z.Slice(0, n, os.Dim, n))
-	}
+	R := rs.LeadingBasis()
+	N := os.TrailingBasis()
 	var V1, V2, V3, V4 *mat.Dense
 	if R != nil && N != nil {
 		_, r := R.Dims()
@@ -334,7 +322,7 @@ func Minimal(s *System, relTol float64) (*System, error) {
 	if s.N() == 0 {
 		return s.Copy(), nil
 	}
-	bA, bB, bC, _, su, sy := balanceSystem(s.A, s.B, s.C, nil)
+	bA, bB, bC, _, su, sy, _ := balanceSystem(s.A, s.B, s.C, nil)
 	rs, err := ControllabilityStaircase(bA, bB, relTol)
 	if err != nil {
 		return nil, err
@@ -405,16 +393,13 @@ func Reachable(s *System, relTol float64) (*Subspace, error) {
 	if s.N() == 0 {
 		return &Subspace{What: "reachable subspace"}, nil
 	}
-	rs, err := ControllabilityStaircase(s.A, s.B, relTol)
+	rs, _, err := StaircasesOf(s, relTol)
 	if err != nil {
 		return nil, err
 	}
-	var V *mat.Dense
-	if rs.Dim > 0 {
-		V = mat.DenseCopyOf(rs.Z.Slice(0, s.N(), 0, rs.Dim))
-	}
-	sub := newSubspace("reachable subspace", s, s.A, V, math.Max(1e3*float64(s.N())*dlamchE, rs.Tol/math.Max(1, mat.Norm(s.A, 2))))
-	sub.Note = fmt.Sprintf("controllability staircase, steps %v, rank tolerance %.3g (smallest kept singular value %.3g, largest dropped %.3g)", rs.Steps, rs.Tol, rs.Kept, rs.Dropped)
+	V := rs.LeadingBasis()
+	sub := newSubspace("reachable subspace", s, s.A, V, math.Max(1e3*float64(s.N())*dlamchE, rs.Tol/math.Max(1, mat.Norm(rs.A, 2))))
+	sub.Note = fmt.Sprintf("controllability staircase of the balanced system, steps %v, rank tolerance %.3g = %.3g x the norm of the balanced [A B] (smallest kept singular value per step %s, largest dropped %.3g)", rs.Steps, rs.Tol, rs.Tol/stackedNorm(rs.A, rs.B), fmtFloats(rs.StepKept), rs.Dropped)
 	return sub, nil
 }
 
@@ -424,17 +409,14 @@ func Unobservable(s *System, relTol float64) (*Subspace, error) {
 	if s.N() == 0 {
 		return &Subspace{What: "unobservable subspace"}, nil
 	}
-	os, err := ObservabilityStaircase(s.A, s.C, relTol)
+	_, os, err := StaircasesOf(s, relTol)
 	if err != nil {
 		return nil, err
 	}
 	n := s.N()
-	var V *mat.Dense
-	if os.Dim < n {
-		V = mat.DenseCopyOf(os.Z.Slice(0, n, os.Dim, n))
-	}
-	sub := newSubspace("unobservable subspace", s, s.A, V, math.Max(1e3*float64(n)*dlamchE, os.Tol/math.Max(1, mat.Norm(s.A, 2))))
-	sub.Note = fmt.Sprintf("observability staircase, steps %v, rank tolerance %.3g (smallest kept singular value %.3g, largest dropped %.3g)", os.Steps, os.Tol, os.Kept, os.Dropped)
+	V := os.TrailingBasis()
+	sub := newSubspace("unobservable subspace", s, s.A, V, math.Max(1e3*float64(n)*dlamchE, os.Tol/math.Max(1, mat.Norm(os.A, 2))))
+	sub.Note = fmt.Sprintf("observability staircase of the balanced system, steps %v, rank tolerance %.3g = %.3g x the norm of the balanced [A; C] (smallest kept singular value per step %s, largest dropped %.3g)", os.Steps, os.Tol, os.Tol/stackedNorm(os.A, os.B), fmtFloats(os.StepKept), os.Dropped)
 	return sub, nil
 }
 
@@ -455,4 +437,16 @@ func eigOrdered(a *mat.Dense, ts float64) ([]complex128, error) {
 		out[i] = vals[k]
 	}
 	return out, nil
+}
+
+// fmtFloats writes values as "[a, b, c]" with 4 significant digits.
+func fmtFloats(v []float64) string {
+	out := "["
+	for i, x := range v {
+		if i > 0 {
+			out += ", "
+		}
+		out += fmt.Sprintf("%.4g", x)
+	}
+	return out + "]"
 }

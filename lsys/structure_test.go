@@ -441,3 +441,48 @@ func TestInvariantRankDeficientV(t *testing.T) {
 		t.Error("V with 3 rows accepted for a 2x2 A")
 	}
 }
+
+func TestStructureUnitsAndWeakMode(t *testing.T) {
+	// The frame of TestZerosUnitsInvariant with the roof mass 2% above half
+	// a floor mass. At exactly half (mr = m/2) the second mode has a node at
+	// floor 2 (closed form: floor2 <- shaker has the output-decoupling pair
+	// -2 +- j sqrt(1996), see TestZerosUnitsInvariant), so with mr = 0.51 m
+	// the floor-2 sensor sees that mode only weakly. Verdicts must not
+	// depend on units (t, kN, m versus kg, N, m: B differs by 1e-3), and the
+	// staircase report must show the weak direction as one small step.
+	for _, u := range []struct {
+		name     string
+		m, mr, k float64
+	}{{"t, kN, m", 20, 10.2, 2e4}, {"kg, N, m", 20000, 10200, 2e7}} {
+		f := frameModel(t, u.m, u.mr, u.k, 0.002)
+		s := sysOf(t, f.A, f.B, mat.NewDense(1, 6, []float64{0, 1, 0, 0, 0, 0}), nil)
+		st, err := StructureOf(s, 1e-4)
+		if err != nil {
+			t.Fatal(err)
+		}
+		// Before the scaling, tol 1e-4 dropped every input ("0 of 6
+		// reachable") in t, kN, m and still saw all six states.
+		if !st.Controllable || !st.Observable {
+			t.Errorf("%s, tol 1e-4: controllable %v observable %v, want both", u.name, st.Controllable, st.Observable)
+		}
+		norm := stackedNorm(st.Observe.A, st.Observe.B)
+		small := 0
+		for _, v := range st.Observe.StepKept {
+			if v < 1e-2*norm {
+				small++
+			} else if v < 0.1*norm {
+				t.Errorf("%s: step value %.3g is neither small nor of the size of A (%.3g)", u.name, v, norm)
+			}
+		}
+		if small != 1 {
+			t.Errorf("%s: observability steps %v (norm %.3g): want exactly one small step, the weakly seen mode", u.name, st.Observe.StepKept, norm)
+		}
+		st2, err := StructureOf(s, 1e-2)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !st2.Controllable || st2.Observe.Dim != 4 || len(st2.UnobservableModes) != 2 || cmplx.Abs(st2.UnobservableModes[0]-complex(-2, math.Sqrt(1996))) > 1 {
+			t.Errorf("%s, tol 1e-2: observable %d of 6, modes not seen %v; want the weak pair near -2 +- 44.68j", u.name, st2.Observe.Dim, st2.UnobservableModes)
+		}
+	}
+}

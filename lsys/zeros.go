@@ -358,13 +358,15 @@ func zerosClose(a, b []complex128, rel float64) bool {
 // then scaled to the root-mean-square column norm of A (1 if A = 0). All
 // factors are powers of two, so the scaling itself adds no rounding.
 func balancePencil(A, B, C, D *mat.Dense) (*mat.Dense, *mat.Dense, *mat.Dense, *mat.Dense) {
-	bA, bB, bC, bD, _, _ := balanceSystem(A, B, C, D)
+	bA, bB, bC, bD, _, _, _ := balanceSystem(A, B, C, D)
 	return bA, bB, bC, bD
 }
 
 // balanceSystem is balancePencil that also returns the input and output
-// scalings su, sy (B~ = T B diag(su), C~ = diag(sy) C T^-1); D may be nil.
-func balanceSystem(A, B, C, D *mat.Dense) (bA, bB, bC, bD *mat.Dense, su, sy []float64) {
+// scalings su, sy and the state scaling sx: with T = diag(sx)^-1,
+// A~ = T A T^-1, B~ = T B diag(su), C~ = diag(sy) C T^-1, so x = diag(sx) x~.
+// D may be nil.
+func balanceSystem(A, B, C, D *mat.Dense) (bA, bB, bC, bD *mat.Dense, su, sy, sx []float64) {
 	n, _ := A.Dims()
 	A = mat.DenseCopyOf(A)
 	m, p := 0, 0
@@ -379,7 +381,10 @@ func balanceSystem(A, B, C, D *mat.Dense) (bA, bB, bC, bD *mat.Dense, su, sy []f
 	if D != nil {
 		D = mat.DenseCopyOf(D)
 	}
-	su, sy = make([]float64, m), make([]float64, p)
+	su, sy, sx = make([]float64, m), make([]float64, p), make([]float64, n)
+	for i := range sx {
+		sx[i] = 1
+	}
 	for j := range su {
 		su[j] = 1
 	}
@@ -422,6 +427,7 @@ func balanceSystem(A, B, C, D *mat.Dense) (bA, bB, bC, bD *mat.Dense, su, sy []f
 				continue
 			}
 			changed = true
+			sx[i] *= f
 			for j := 0; j < n; j++ {
 				A.Set(i, j, A.At(i, j)/f)
 				A.Set(j, i, A.At(j, i)*f)
@@ -485,7 +491,7 @@ func balanceSystem(A, B, C, D *mat.Dense) (bA, bB, bC, bD *mat.Dense, su, sy []f
 			break
 		}
 	}
-	return A, B, C, D, su, sy
+	return A, B, C, D, su, sy, sx
 }
 
 // mergeMultiple replaces each cluster of values closer to one another than
