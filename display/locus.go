@@ -334,70 +334,14 @@ func lcLabelIndices(n int) []int {
 	return out
 }
 
-// lcGrid is the pole-zero map's grid: lines of constant damping ratio and
-// natural frequency (continuous), or the unit circle with the same curves
-// mapped through z = exp(sT) (sampled).
+// lcGrid is the locus chart's grid (splaneGrid), with the imaginary axis,
+// the stability boundary, drawn as a grey line in continuous time.
 func lcGrid(R, ts float64) ([]rpSeries, []rpText) {
-	var ss []rpSeries
-	var texts []rpText
-	col := rpGrid
 	if ts > 0 {
-		var ux, uy []float64
-		for k := 0; k <= 360; k++ {
-			a := float64(k) * math.Pi / 180
-			ux, uy = append(ux, math.Cos(a)), append(uy, math.Sin(a))
-		}
-		ss = append(ss, rpSeries{X: ux, Y: uy, Style: -1, Width: 1, Color: rpGrey})
-		for _, zeta := range []float64{0.2, 0.4, 0.6, 0.8} {
-			wd := math.Sqrt(1 - zeta*zeta)
-			for _, sgn := range []float64{1, -1} {
-				var x, y []float64
-				for k := 0; k <= 100; k++ {
-					wn := float64(k) / 100 * math.Pi / (ts * wd)
-					z := cmplx.Exp(complex(-zeta*wn*ts, sgn*wd*wn*ts))
-					x, y = append(x, real(z)), append(y, imag(z))
-				}
-				ss = append(ss, rpSeries{X: x, Y: y, Style: -1, Width: 0.6, Color: col})
-				if sgn > 0 {
-					texts = append(texts, rpText{X: x[50], Y: y[50], Text: "ζ " + fmtNum(zeta)})
-				}
-			}
-		}
-		for _, frac := range []float64{0.2, 0.4, 0.6, 0.8} {
-			wn := frac * math.Pi / ts
-			var x, y []float64
-			for k := 0; k <= 60; k++ {
-				zeta := float64(k) / 60
-				wd := math.Sqrt(1 - zeta*zeta)
-				z := cmplx.Exp(complex(-zeta*wn*ts, wd*wn*ts))
-				x, y = append(x, real(z)), append(y, imag(z))
-			}
-			ss = append(ss, rpSeries{X: x, Y: y, Style: -1, Width: 0.6, Color: col})
-			texts = append(texts, rpText{X: x[0], Y: y[0], Text: fmtNum(frac) + "π/T"})
-		}
-		return ss, texts
+		return splaneGrid(ts, R, gridLabelBelowAxis)
 	}
 	R *= 1.15
-	for _, zeta := range []float64{0.2, 0.4, 0.6, 0.8} {
-		wd := math.Sqrt(1 - zeta*zeta)
-		ss = append(ss,
-			rpSeries{X: []float64{0, -zeta * R}, Y: []float64{0, wd * R}, Style: -1, Width: 0.6, Color: col},
-			rpSeries{X: []float64{-zeta * R, 0}, Y: []float64{-wd * R, 0}, Style: -1, Width: 0.6, Color: col})
-		texts = append(texts, rpText{X: -zeta * R * 0.95, Y: wd * R * 0.95, Text: "ζ " + fmtNum(zeta)})
-	}
-	step := niceStep(R / 4)
-	for wn := step; wn <= R*1.0001; wn += step {
-		var x, y []float64
-		for k := 0; k <= 60; k++ {
-			a := math.Pi/2 + float64(k)/60*math.Pi
-			x, y = append(x, wn*math.Cos(a)), append(y, wn*math.Sin(a))
-		}
-		ss = append(ss, rpSeries{X: x, Y: y, Style: -1, Width: 0.6, Color: col})
-		// labelled below the real axis, where branches on the axis and
-		// the parameter labels (upper half-plane) leave room
-		texts = append(texts, rpText{X: -wn * math.Cos(0.35), Y: -wn * math.Sin(0.35), Text: fmtNum(wn)})
-	}
-	// the imaginary axis, the stability boundary
+	ss, texts := splaneGrid(0, R, gridLabelBelowAxis)
 	ss = append(ss, rpSeries{X: []float64{0, 0}, Y: []float64{-R, R}, Style: -1, Width: 0.8, Color: rpGrey})
 	return ss, texts
 }
