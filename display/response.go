@@ -164,6 +164,9 @@ func renderModalResponse(v any, opt Options) Bundle {
 	var b strings.Builder
 	fmt.Fprintf(&b, "%s split by mode: %d part(s): %s\n", rpKindTitle[r.Kind], len(mr.Labels), strings.Join(mr.Labels, "; "))
 	fmt.Fprintf(&b, "condition number of the modal basis %s; the parts sum to the response", fmtNum(mr.MaxCond))
+	if mr.Note != "" {
+		fmt.Fprintf(&b, "\n%s", mr.Note)
+	}
 	text := b.String()
 	rows, _ := rpClip(len(r.Outputs), rpMaxRows)
 	cols, _ := rpClip(len(r.Channels), rpMaxCols)

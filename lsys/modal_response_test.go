@@ -108,3 +108,62 @@ func TestByModeSampledImpulseWithFeedthrough(t *testing.T) {
 		t.Errorf("sum error %g, labels %v", worst, mr.Labels)
 	}
 }
+
+func TestByModeBadlyScaledCascade(t *testing.T) {
+	// x3' = -1e4 x3 + u, x2' = -100 x2 + x3, x1' = -x1 + x2 + x3, y = x1:
+	// G(s) = (s + 101)/((s + 1)(s + 100)(s + 1e4)) (by hand), whose
+	// residues by the cover-up rule (Heaviside's partial fractions, common
+	// practice) give the step parts r/lambda (e^{lambda t} - 1). The model is
+	// handed over in coordinates scaled by 1, 1e4, 1e8, so A has entries
+	// up to 1e8 as in a cascade of fast and slow sections; the split must
+	// still give one part per mode.
+	d := []float64{1, 1e4, 1e8}
+	A0 := [][]float64{{-1, 1, 1}, {0, -100, 1}, {0, 0, -1e4}}
+	A := mat.NewDense(3, 3, nil)
+	for i := range 3 {
+		for j := range 3 {
+			A.Set(i, j, A0[i][j]*d[j]/d[i])
+		}
+	}
+	B := mat.NewDense(3, 1, []float64{0, 0, 1 / d[2]})
+	C := mat.NewDense(1, 3, []float64{d[0], 0, 0})
+	g, err := FromMatrices(A, B, C, nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mr, err := ByMode(context.Background(), g, "step", nil, nil, ResponseOptions{Until: 0.01, Step: 1e-5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(mr.Parts) != 3 {
+		t.Fatalf("%d parts %v, want 3 (note %q)", len(mr.Parts), mr.Labels, mr.Note)
+	}
+	if mr.MaxCond > 1e3 {
+		t.Errorf("condition number %g after balancing, want below 1e3", mr.MaxCond)
+	}
+	res := map[float64]float64{
+		-1:   100.0 / (99 * 9999),
+		-100: 1 / (-99.0 * 9900),
+		-1e4: -9899 / (-9999.0 * -9900),
+	}
+	worst := 0.0
+	for q, v := range mr.Values {
+		l := real(v)
+		var r float64
+		for k, rk := range res {
+			if math.Abs(l-k) < 1e-6*math.Abs(k) {
+				r = rk
+			}
+		}
+		if r == 0 {
+			t.Fatalf("unexpected eigenvalue %v", v)
+		}
+		for k, tk := range mr.Response.T {
+			want := r / l * (math.Exp(l*tk) - 1)
+			worst = math.Max(worst, math.Abs(mr.Parts[q][0][0][k]-want))
+		}
+	}
+	if worst > 1e-12 {
+		t.Errorf("worst part error %g", worst)
+	}
+}
