@@ -104,6 +104,21 @@ type rpPanel struct {
 	Equal                  bool // equal scales on both axes (pole-zero and polar charts)
 	PhaseTicks             bool // y ticks at multiples of 45, 90 or 180 degrees
 	DBTicks                bool // y ticks at multiples of 10, 20, 40 ... dB
+	// LegendBelow puts this panel's legend in a strip below the figure
+	// (for many or long labels) instead of inside the frame.
+	LegendBelow bool
+	// Simplify drops points that lie within a quarter pixel of the line
+	// through their neighbours after decimation (smooth curves then need
+	// a few hundred points, not thousands; for charts with many curves).
+	Simplify bool
+
+	below []rpLegendEntry // filled by build when LegendBelow
+}
+
+// rpLegendEntry is a legend line drawn outside a panel.
+type rpLegendEntry struct {
+	name   string
+	thumbs []plot.Thumbnailer
 }
 
 // rpLogTicks labels every decade and marks the values in between. Unlike
@@ -305,6 +320,7 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 		ax.Tick.Label.Font.Size = vg.Points(8)
 	}
 	p.Legend.TextStyle.Font.Size = vg.Points(8)
+	p.Legend.Padding = vg.Points(1.5) // keeps entries apart when a viewer substitutes a taller font
 	p.Legend.Top = true
 	p.Legend.ThumbnailWidth = vg.Points(26)
 	grid := plotter.NewGrid()
@@ -323,13 +339,36 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 	}
 	// data range, for reference lines and fixed ranges
 	xmin, xmax, ymin, ymax := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
+	pn.below = nil
+	yspan := 0.0 // the panel's y range, the scale of rpSimplify's tolerance
+	if pn.Simplify {
+		lo, hi := math.Inf(1), math.Inf(-1)
+		for _, s := range pn.Series {
+			for _, v := range s.Y {
+				if ok(v) {
+					lo, hi = math.Min(lo, v), math.Max(hi, v)
+				}
+			}
+		}
+		if ok(lo) && ok(hi) {
+			yspan = hi - lo
+		}
+		if ok(pn.YMin) && ok(pn.YMax) {
+			yspan = pn.YMax - pn.YMin
+		}
+	}
 	for si, s := range pn.Series {
 		x, y := s.X, s.Y
 		if s.Stairs {
 			x, y = stairs(x, y)
 		}
+		var lx, ly []float64 // the drawn line, maybe simplified; x, y place the markers
 		if !s.Points {
 			x, y = rpDecimate(x, y, buckets, pn.LogX)
+			lx, ly = x, y
+			if pn.Simplify {
+				lx, ly = rpSimplify(x, y, yspan, pn.LogX)
+			}
 		} else {
 			var fx, fy []float64
 			for k := range x {
@@ -361,7 +400,7 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 		gs := draw.GlyphStyle{Color: col, Radius: vg.Points(rad), Shape: shape}
 		var thumbs []plot.Thumbnailer
 		if !s.Points {
-			l, err := plotter.NewLine(xys(x, y))
+			l, err := plotter.NewLine(xys(lx, ly))
 			if err != nil {
 				continue
 			}
@@ -416,7 +455,11 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 			}
 		}
 		if pn.Legend && s.Name != "" && len(thumbs) > 0 {
-			p.Legend.Add(s.Name, thumbs...)
+			if pn.LegendBelow {
+				pn.below = append(pn.below, rpLegendEntry{s.Name, thumbs})
+			} else {
+				p.Legend.Add(s.Name, thumbs...)
+			}
 		}
 	}
 	if !ok(xmin) {
@@ -520,6 +563,17 @@ func (f *rpFigure) draw(c vg.CanvasSizer) {
 			}
 		}
 	}
+	// a legend strip below the panels, from the first panel that asks
+	var below []rpLegendEntry
+	for _, pn := range f.Panels {
+		if pn != nil && pn.LegendBelow && len(pn.below) > 0 {
+			below = pn.below
+			break
+		}
+	}
+	if len(below) > 0 {
+		dc = f.drawLegendBelow(dc, below)
+	}
 	pad := vg.Points(6)
 	tiles := draw.Tiles{Rows: f.Rows, Cols: f.Cols, PadTop: pad, PadBottom: pad, PadLeft: pad, PadRight: pad, PadX: vg.Points(14), PadY: vg.Points(12)}
 	canvases := plot.Align(plots, tiles, dc)
@@ -528,6 +582,112 @@ func (f *rpFigure) draw(c vg.CanvasSizer) {
 			plots[r][k].Draw(canvases[r][k])
 		}
 	}
+}
+
+// drawLegendBelow draws the entries in columns along the bottom of the
+// canvas and returns the canvas left for the panels.
+func (f *rpFigure) drawLegendBelow(dc draw.Canvas, entries []rpLegendEntry) draw.Canvas {
+	mk := func() plot.Legend {
+		l := plot.NewLegend()
+		l.TextStyle.Font.Size = vg.Points(8)
+		l.ThumbnailWidth = vg.Points(26)
+		l.Padding = vg.Points(1.5)
+		l.Top, l.Left = true, true
+		return l
+	}
+	probe := mk()
+	var widest vg.Length
+	for _, e := range entries {
+		if w := probe.TextStyle.Rectangle(" " + e.name).Max.X; w > widest {
+			widest = w
+		}
+	}
+	// a quarter more than measured: viewers may substitute a wider font
+	colW := probe.ThumbnailWidth + widest*5/4 + vg.Points(14)
+	width := dc.Max.X - dc.Min.X - vg.Points(24)
+	ncol := max(1, min(len(entries), int(width/colW), 4))
+	nrow := (len(entries) + ncol - 1) / ncol
+	lineH := probe.TextStyle.Rectangle("Mg").Max.Y + probe.Padding
+	h := vg.Length(nrow)*lineH + vg.Points(8)
+	strip := draw.Crop(dc, vg.Points(24), 0, vg.Points(2), -(dc.Max.Y - dc.Min.Y - h))
+	for c := 0; c < ncol; c++ {
+		l := mk()
+		for r := 0; r < nrow; r++ {
+			if i := c*nrow + r; i < len(entries) {
+				l.Add(entries[i].name, entries[i].thumbs...)
+			}
+		}
+		cc := strip
+		cc.Min.X = strip.Min.X + vg.Length(c)*colW
+		cc.Max.X = cc.Min.X + colW
+		l.Draw(cc)
+	}
+	return draw.Crop(dc, 0, 0, h, 0)
+}
+
+// rpSimplify drops the points that lie within a quarter pixel of the
+// chord between kept neighbours (Ramer 1972, "An iterative procedure for
+// the polygonal approximation of plane curves", Computer Graphics and
+// Image Processing 1; Douglas & Peucker 1973, Cartographica 10(2)), with
+// distances measured on a 1000 x 600 pixel frame spanning the curve's x
+// range and the panel's y range (yspan). The first and last points stay.
+func rpSimplify(x, y []float64, yspan float64, logX bool) ([]float64, []float64) {
+	n := len(x)
+	if n < 3 {
+		return x, y
+	}
+	tx := func(v float64) float64 {
+		if logX {
+			return math.Log10(v)
+		}
+		return v
+	}
+	xspan := tx(x[n-1]) - tx(x[0])
+	if !(xspan > 0) || !(yspan > 0) {
+		return x, y
+	}
+	px := make([]float64, n)
+	py := make([]float64, n)
+	for k := range x {
+		px[k] = (tx(x[k]) - tx(x[0])) / xspan * rpPixels
+		py[k] = y[k] / yspan * 600
+	}
+	const tol = 0.25
+	keep := make([]bool, n)
+	keep[0], keep[n-1] = true, true
+	stack := [][2]int{{0, n - 1}}
+	for len(stack) > 0 {
+		a, b := stack[len(stack)-1][0], stack[len(stack)-1][1]
+		stack = stack[:len(stack)-1]
+		if b-a < 2 {
+			continue
+		}
+		dx, dy := px[b]-px[a], py[b]-py[a]
+		L := math.Hypot(dx, dy)
+		far, at := -1.0, -1
+		for k := a + 1; k < b; k++ {
+			var d float64
+			if L == 0 {
+				d = math.Hypot(px[k]-px[a], py[k]-py[a])
+			} else {
+				d = math.Abs(dx*(py[k]-py[a])-dy*(px[k]-px[a])) / L
+			}
+			if d > far {
+				far, at = d, k
+			}
+		}
+		if far > tol {
+			keep[at] = true
+			stack = append(stack, [2]int{a, at}, [2]int{at, b})
+		}
+	}
+	var xs, ys []float64
+	for k := range x {
+		if keep[k] {
+			xs, ys = append(xs, x[k]), append(ys, y[k])
+		}
+	}
+	return xs, ys
 }
 
 // size chooses the figure size: 16 x 10 cm for one panel, 9 x 6 cm per

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"strconv"
 	"strings"
 
 	"gonum.org/v1/plot/vg/draw"
@@ -179,12 +180,10 @@ func renderModalResponse(v any, opt Options) Bundle {
 				title = rpPanelTitle(r.Outputs[i], r.Channels[c], r.Kind, multi)
 			}
 			pn := newPanel(title, "time (s)", r.Outputs[i])
-			pn.Legend = i == 0 && c == 0 // one legend for the figure
+			pn.Legend = i == 0 && c == 0 // one legend for the figure, below the panels
+			pn.LegendBelow, pn.Simplify = true, true
 			for q, lab := range mr.Labels {
-				pn.Series = append(pn.Series, rpSeries{Name: "mode " + lab, X: r.T, Y: mr.Parts[q][i][c], Style: q % 6, Glyph: true, Width: 1.2, Stairs: r.Sampled})
-				if lab == "direct" {
-					pn.Series[len(pn.Series)-1].Name = "direct"
-				}
+				pn.Series = append(pn.Series, rpSeries{Name: rpModeLegend(q, lab, mr.Values[q]), X: r.T, Y: mr.Parts[q][i][c], Style: q % 6, Glyph: true, Width: 1.2, Stairs: r.Sampled})
 			}
 			pn.Series = append(pn.Series, rpSeries{Name: "total", X: r.T, Y: r.Y[i][c], Style: -1, Width: 2, Stairs: r.Sampled})
 			f.Panels = append(f.Panels, pn)
@@ -193,6 +192,32 @@ func renderModalResponse(v any, opt Options) Bundle {
 	out := rpBundle(text, f, opt)
 	out.Data[JSON] = map[string]any{"modes": mr.Labels, "outputs": r.Outputs, "channels": r.Channels, "samples": len(r.T)}
 	return out
+}
+
+// rpModeLegend is the short legend label of a modal part: its number and
+// its eigenvalue to two digits ("mode 2: -2.9e4 ± 4.2e4j"); the text
+// output has the full values.
+func rpModeLegend(q int, label string, v complex128) string {
+	switch {
+	case label == "direct":
+		return "direct"
+	case strings.HasPrefix(label, "block"):
+		return fmt.Sprintf("part %d: block of %d modes", q+1, strings.Count(label, ",")+1)
+	}
+	f := func(x float64) string {
+		d := 2
+		if a := math.Abs(x); a >= 0.01 && a < 1000 {
+			d = 3
+		}
+		s := strconv.FormatFloat(x, 'g', d, 64)
+		s = strings.Replace(s, "e+0", "e", 1)
+		s = strings.Replace(s, "e-0", "e-", 1)
+		return strings.Replace(s, "e+", "e", 1)
+	}
+	if imag(v) == 0 {
+		return fmt.Sprintf("mode %d: %s", q+1, f(real(v)))
+	}
+	return fmt.Sprintf("mode %d: %s ± %sj", q+1, f(real(v)), f(math.Abs(imag(v))))
 }
 
 func renderSignal(v any, _ Options) Bundle {

@@ -122,7 +122,8 @@ func renderPolar(v any, opt Options) Bundle {
 			}
 			pn := newPanel(title, "real part", "imaginary part")
 			pn.Equal = true
-			pn.Legend = true
+			pn.Legend = i == 0 && j == 0 // one legend for the figure, below the panels
+			pn.LegendBelow = true
 			n := len(f.W)
 			re, im := make([]float64, n), make([]float64, n)
 			mre, mim := make([]float64, n), make([]float64, n)
@@ -135,9 +136,11 @@ func renderPolar(v any, opt Options) Bundle {
 				mags[k] = cmplx.Abs(g)
 			}
 			pn.Series = append(pn.Series,
-				rpSeries{Name: "ω > 0", X: re, Y: im, Style: 0, Glyph: true},
-				rpSeries{Name: "ω < 0", X: mre, Y: mim, Style: 1, Width: 1},
-				rpMark("-1", []complex128{-1}, -1, draw.CrossGlyph{}, 4),
+				// plain words: a Greek omega in SVG text is drawn turned on
+				// its side by some browsers' font fallback
+				rpSeries{Name: "positive frequencies", X: re, Y: im, Style: 0, Glyph: true},
+				rpSeries{Name: "negative frequencies (mirror)", X: mre, Y: mim, Style: 1, Width: 1},
+				rpMark("critical point -1", []complex128{-1}, -1, draw.CrossGlyph{}, 4),
 			)
 			// Near an integrator |G| runs off to infinity: then frame the
 			// part of the curve within the 85th percentile of |G| (and -1);

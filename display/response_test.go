@@ -5,8 +5,11 @@ import (
 	"context"
 	"encoding/base64"
 	"encoding/json"
+	"math"
+	"math/cmplx"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -240,6 +243,137 @@ func TestAxisTickLabels(t *testing.T) {
 	for _, l := range labels(rpDBTicker.Ticks(-1e-9, 30)) {
 		if l == "-0" {
 			t.Error(`dB axis labels "-0"`)
+		}
+	}
+}
+
+func TestByModeChartSmallWithLegendBelow(t *testing.T) {
+	// Six states: a lightly damped pair, a fast pair and two real modes,
+	// 10,001 samples. The by-mode chart draws five curves; the SVG must stay
+	// under 100 KB (our own target, DESIGN.md) and the legend must sit below
+	// the frame (SVG y grows downward: below the x-axis label).
+	a, _ := lsys.Stack(rpSecondOrder(t, 0.02, 20), rpSecondOrder(t, 0.3, 200))
+	b, _ := lsys.Stack(a, rpSecondOrder(t, 2, 5))
+	one, _ := lsys.NewSystem(0, 3, 1, nil, nil, nil, mat.NewDense(1, 3, []float64{1, 1, 1}), 0)
+	g, err := lsys.Series(one, b)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mr, err := lsys.ByMode(context.Background(), g, "step", nil, nil, lsys.ResponseOptions{Until: 20, Step: 0.002})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(mr.Response.T) != 10001 || len(mr.Labels) != 4 {
+		t.Fatalf("%d samples, parts %v", len(mr.Response.T), mr.Labels)
+	}
+	svg := Render(mr, Options{}).Data[SVG].(string)
+	t.Logf("SVG of a 10,001-sample response split into %d parts: %d bytes", len(mr.Labels), len(svg))
+	if len(svg) > 100_000 {
+		t.Errorf("SVG is %d bytes, want < 100 KB", len(svg))
+	}
+	if again := Render(mr, Options{}).Data[SVG].(string); again != svg {
+		t.Error("two renderings differ")
+	}
+	ypos := func(label string) float64 { return svgTextY(t, svg, label) }
+	axis := ypos("time (s)")
+	for _, l := range []string{"total", "mode 3: -0.4 ± 20j"} {
+		if y := ypos(l); y >= axis {
+			t.Errorf("legend entry %q at y %g is not below the axis label (y %g)", l, y, axis)
+		}
+	}
+}
+
+func TestModeLegendLabels(t *testing.T) {
+	// short labels, two or three digits (our own format)
+	for _, c := range []struct {
+		q     int
+		label string
+		v     complex128
+		want  string
+	}{
+		{0, "-5404", -5404, "mode 1: -5.4e3"},
+		{1, "-2.889e+04 ± 4.182e+04j", complex(-28890, 41820), "mode 2: -2.9e4 ± 4.2e4j"},
+		{2, "-100", -100, "mode 3: -100"},
+		{3, "block {-1, -1}", -1, "part 4: block of 2 modes"},
+		{4, "direct", cmplx.NaN(), "direct"},
+	} {
+		if got := rpModeLegend(c.q, c.label, c.v); got != c.want {
+			t.Errorf("rpModeLegend(%d, %q) = %q, want %q", c.q, c.label, got, c.want)
+		}
+	}
+}
+
+func TestSimplifyWithinTolerance(t *testing.T) {
+	// A straight line keeps its two ends; a sine keeps every dropped point
+	// within a quarter pixel of the drawn chord (Ramer 1972; Douglas &
+	// Peucker 1973: the tolerance is the algorithm's guarantee).
+	x, y := make([]float64, 2000), make([]float64, 2000)
+	for k := range x {
+		x[k], y[k] = float64(k), 3*float64(k)
+	}
+	if xs, _ := rpSimplify(x, y, 6000, false); len(xs) != 2 {
+		t.Errorf("a straight line keeps %d points, want 2", len(xs))
+	}
+	for k := range x {
+		y[k] = math.Sin(float64(k) / 100)
+	}
+	xs, ys := rpSimplify(x, y, 2, false)
+	if len(xs) > 400 {
+		t.Errorf("a sine keeps %d of 2000 points", len(xs))
+	}
+	j := 0
+	worst := 0.0
+	for k := range x {
+		for j+1 < len(xs) && xs[j+1] < x[k] {
+			j++
+		}
+		if j+1 >= len(xs) {
+			break
+		}
+		// distance to the chord in pixels (x: 2000 samples on 1000 px,
+		// y: a span of 2 on 600 px)
+		px := func(i float64) float64 { return i / 2 }
+		py := func(v float64) float64 { return v / 2 * 600 }
+		dx, dy := px(xs[j+1])-px(xs[j]), py(ys[j+1])-py(ys[j])
+		d := math.Abs(dx*(py(y[k])-py(ys[j]))-dy*(px(x[k])-px(xs[j]))) / math.Hypot(dx, dy)
+		worst = math.Max(worst, d)
+	}
+	if worst > 0.25 {
+		t.Errorf("largest distance to the drawn line %.3g px", worst)
+	}
+}
+
+// svgTextY is the height of a text in the SVG, in points from the bottom
+// (texts are drawn flipped: y="-..." inside a scale(1, -1) frame).
+func svgTextY(t *testing.T, svg, label string) float64 {
+	t.Helper()
+	i := strings.Index(svg, ">"+label+"<")
+	if i < 0 {
+		t.Fatalf("no text %q in the SVG", label)
+	}
+	j := strings.LastIndex(svg[:i], "y=\"")
+	v, err := strconv.ParseFloat(svg[j+3:j+3+strings.Index(svg[j+3:], "\"")], 64)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return -v
+}
+
+func TestPolarLegendBelowInWords(t *testing.T) {
+	// The legend is text in words (no Greek letter, which some browsers
+	// draw turned on its side), in a strip below the chart (our own layout).
+	fl, err := lsys.Frequency(context.Background(), rpLoop(t), lsys.FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	svg := Render(&lsys.PolarChart{Frequency: fl}, Options{}).Data[SVG].(string)
+	if strings.Contains(svg, "ω") {
+		t.Error("the SVG still holds an omega")
+	}
+	axis := svgTextY(t, svg, "real part")
+	for _, l := range []string{"positive frequencies", "negative frequencies (mirror)", "critical point -1"} {
+		if y := svgTextY(t, svg, l); y >= axis {
+			t.Errorf("legend entry %q at %g is not below the axis label (%g)", l, y, axis)
 		}
 	}
 }
