@@ -149,12 +149,18 @@ func renderMetrics(v any, _ Options) Bundle {
 		js = append(js, map[string]any{
 			"output": r.Output, "input": r.Channel, "rise_time": jsonNum(r.RiseTime), "settling_time": jsonNum(r.SettlingTime),
 			"overshoot_percent": jsonNum(r.Overshoot), "peak": jsonNum(r.Peak), "peak_time": jsonNum(r.PeakTime), "steady": jsonNum(r.Steady),
-			"steady_from_gain": r.SteadyFromGain,
+			"steady_from_gain": r.SteadyFromGain, "note": r.Note,
 		})
 	}
 	remark := "n/a: not defined by this response (no change, or it leaves the 2 % band at the end of the horizon)."
-	b := NewBundle(textTable("response metrics", head, rows) + "\n" + remark)
-	b.Data[HTML] = htmlTableCard("lsys-response", "Response metrics", head, rows, 2, remark)
+	notes := []string{remark}
+	for _, r := range m.Rows {
+		if r.Note != "" && r.Note != "the response does not move" {
+			notes = append(notes, r.Output+" / "+r.Channel+": "+r.Note+".")
+		}
+	}
+	b := NewBundle(textTable("response metrics", head, rows) + "\n" + strings.Join(notes, "\n"))
+	b.Data[HTML] = htmlTableCard("lsys-response", "Response metrics", head, rows, 2, notes...)
 	b.Data[JSON] = js
 	return b
 }

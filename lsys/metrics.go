@@ -2,6 +2,7 @@ package lsys
 
 import (
 	"errors"
+	"fmt"
 	"math"
 )
 
@@ -17,8 +18,11 @@ type Metric struct {
 	RiseTime        float64 // 10 % to 90 % of the change
 	SettlingTime    float64 // last entry into the band of 2 % of the change
 	Overshoot       float64 // % of the change beyond the steady value (0 if none)
-	Peak            float64 // the extreme value in the direction of the change
+	Peak            float64 // the extreme value in the direction of the change (or the largest deviation, see Note)
 	PeakTime        float64
+	// Note explains figures left undefined or measured differently, as for
+	// a response that returns to where it started (a disturbance rejected).
+	Note string
 }
 
 // Metrics is the result of ResponseMetrics: one row per output and channel.
@@ -59,20 +63,61 @@ func ResponseMetrics(r *Response) (*Metrics, error) {
 				row.Steady = gain[i*len(r.Channels)+c]
 				row.SteadyFromGain = true
 			}
-			fillMetric(&row, r.T, y)
+			// the level before the input: 0 from rest (a step or impulse
+			// with a direct feedthrough jumps at t = 0), y(0) for a
+			// response from an initial state
+			base := 0.0
+			if r.Kind == "initial" {
+				base = y[0]
+			}
+			fillMetric(&row, r.T, y, base)
 			out.Rows = append(out.Rows, row)
 		}
 	}
 	return out, nil
 }
 
-func fillMetric(row *Metric, t, y []float64) {
+// returnRatio is the largest net change, as a fraction of the largest
+// deviation from the start, for which a response counts as returning to
+// where it started: then rise time and overshoot (fractions of the change)
+// mean nothing. 2 %, the settling band (common practice).
+const returnRatio = 0.02
+
+func fillMetric(row *Metric, t, y []float64, base float64) {
 	y0, yss := row.Initial, row.Steady
 	change := yss - y0
 	nan := math.NaN()
-	if change == 0 || math.Abs(change) <= 1e-12*math.Max(math.Abs(yss), math.Abs(y0)) {
+	// the largest deviation from the level before the input, with its sign
+	kd := 0
+	for k := range y {
+		if math.Abs(y[k]-base) > math.Abs(y[kd]-base) {
+			kd = k
+		}
+	}
+	dev := y[kd] - base
+	if dev == 0 || math.Abs(dev) <= 1e-12*math.Max(math.Abs(yss), math.Abs(base)) {
 		row.RiseTime, row.SettlingTime, row.Overshoot = nan, nan, nan
 		row.Peak, row.PeakTime = y0, 0
+		row.Note = "the response does not move"
+		return
+	}
+	if math.Abs(yss-base) <= returnRatio*math.Abs(dev) {
+		// A response that comes back (a rejected disturbance, an impulse
+		// response): the peak is the largest deviation, settling is the
+		// last entry into 2 % of it around the final value.
+		row.RiseTime, row.Overshoot = nan, nan
+		row.Peak, row.PeakTime = y[kd], t[kd]
+		row.SettlingTime = settle(t, y, yss, returnRatio*math.Abs(dev))
+		row.Note = fmt.Sprintf("returns to where it started (net change %.3g, under %g %% of the largest deviation %.4g at t = %.4g s): rise time and overshoot not defined; peak is the largest deviation; settling is into 2 %% of it",
+			yss-base, 100*returnRatio, dev, t[kd])
+		return
+	}
+	if math.Abs(change) <= 1e-12*math.Max(math.Abs(yss), math.Abs(y0)) {
+		// it jumps at t = 0 (feedthrough) and stays: nothing rises
+		row.RiseTime, row.Overshoot = nan, nan
+		row.Peak, row.PeakTime = y[kd], t[kd]
+		row.SettlingTime = settle(t, y, yss, returnRatio*math.Abs(dev))
+		row.Note = "the final value is reached at t = 0 (direct feedthrough): rise time and overshoot not defined"
 		return
 	}
 	dir := math.Copysign(1, change)
@@ -102,8 +147,13 @@ func fillMetric(row *Metric, t, y []float64) {
 	}
 	row.Peak, row.PeakTime = y[kp], t[kp]
 	row.Overshoot = math.Max(0, 100*dir*(y[kp]-yss)/math.Abs(change))
-	// settling: after the last sample outside the 2 % band
-	band := 0.02 * math.Abs(change)
+	row.SettlingTime = settle(t, y, yss, 0.02*math.Abs(change))
+}
+
+// settle is the time of the last entry of y into the band |y - yss| <= band
+// (interpolated), 0 if it never leaves, NaN if it is outside at the end.
+func settle(t, y []float64, yss, band float64) float64 {
+	nan := math.NaN()
 	last := -1
 	for k := range y {
 		if math.Abs(y[k]-yss) > band {
@@ -112,12 +162,11 @@ func fillMetric(row *Metric, t, y []float64) {
 	}
 	switch {
 	case last == -1:
-		row.SettlingTime = 0
+		return 0
 	case last == len(y)-1:
-		row.SettlingTime = nan
-	default:
-		// interpolate where |y - yss| meets the band between last and last+1
-		a, b := math.Abs(y[last]-yss), math.Abs(y[last+1]-yss)
-		row.SettlingTime = t[last] + (a-band)/(a-b)*(t[last+1]-t[last])
+		return nan
 	}
+	// interpolate where |y - yss| meets the band between last and last+1
+	a, b := math.Abs(y[last]-yss), math.Abs(y[last+1]-yss)
+	return t[last] + (a-band)/(a-b)*(t[last+1]-t[last])
 }

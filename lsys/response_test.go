@@ -3,6 +3,7 @@ package lsys
 import (
 	"context"
 	"math"
+	"strings"
 	"math/cmplx"
 	"testing"
 
@@ -411,5 +412,37 @@ func TestRigidBodyModesDoNotStretchHorizon(t *testing.T) {
 	}
 	if f.W[0] < 1e-3 || len(f.W) >= 5000 {
 		t.Errorf("frequency grid from %g with %d points: stretched by a rigid-body mode", f.W[0], len(f.W))
+	}
+}
+
+func TestMetricsResponseThatReturns(t *testing.T) {
+	// A rejected disturbance: G(s) = -s/(s+1)^2 has the step response
+	// y(t) = -t e^{-t} (inverse Laplace transform of -1/(s+1)^2, any table,
+	// e.g. Ogata, Modern Control Engineering, 5th ed., Table 2-1), which
+	// returns to 0. Its largest deviation is -1/e at t = 1; rise time and
+	// overshoot are not defined; settling into 2 % of the deviation is where
+	// t e^{-t} = 0.02/e on the tail.
+	g := siso(t, []float64{0, -1}, []float64{1, 2, 1})
+	r, err := Step(context.Background(), g, ResponseOptions{Until: 15, Step: 0.001})
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, err := ResponseMetrics(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	row := m.Rows[0]
+	if !math.IsNaN(row.RiseTime) || !math.IsNaN(row.Overshoot) {
+		t.Errorf("rise %g, overshoot %g: want both not defined", row.RiseTime, row.Overshoot)
+	}
+	if math.Abs(row.Peak+1/math.E) > 1e-6 || math.Abs(row.PeakTime-1) > 1e-3 {
+		t.Errorf("peak %g at %g, want -1/e = %g at 1", row.Peak, row.PeakTime, -1/math.E)
+	}
+	ts := row.SettlingTime
+	if f := ts * math.Exp(-ts); ts < 1 || math.Abs(f-0.02/math.E) > 1e-5 {
+		t.Errorf("settling %g: t e^-t = %g, want %g", ts, f, 0.02/math.E)
+	}
+	if !strings.Contains(row.Note, "returns to where it started") {
+		t.Errorf("note %q", row.Note)
 	}
 }
