@@ -3,8 +3,8 @@ package lsys
 import (
 	"context"
 	"math"
-	"strings"
 	"math/cmplx"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
