@@ -375,7 +375,7 @@ func renderPoleZero(v any, opt Options) Bundle {
 		}
 		return out
 	}
-	pz = &lsys.PoleZeroMap{System: g, Poles: clean(pz.Poles), Zeros: clean(pz.Zeros), ZerosKnown: pz.ZerosKnown, Note: pz.Note}
+	pz = &lsys.PoleZeroMap{System: g, Poles: clean(pz.Poles), Zeros: clean(pz.Zeros), ZerosKnown: pz.ZerosKnown, Note: pz.Note, Within: pz.Within}
 	var b strings.Builder
 	plane := "s-plane"
 	if g.Sampled() {
@@ -402,15 +402,72 @@ func renderPoleZero(v any, opt Options) Bundle {
 	}
 	pn.Equal = true
 	pn.Legend = true
-	// extent of the points
-	R := 0.0
-	for _, p := range append(append([]complex128(nil), pz.Poles...), pz.Zeros...) {
-		if !cmplx.IsInf(p) && !cmplx.IsNaN(p) {
-			R = math.Max(R, cmplx.Abs(p))
+	// Extent of the points. A far zero or pole (an ESR zero at -2e6 beside
+	// poles near -1e4) would shrink the rest into a dot, so the frame holds
+	// the points up to 10 times the median distance from the origin and
+	// marks farther ones at its edge with their value (or the user's
+	// radius, within:).
+	all := append(append([]complex128(nil), pz.Poles...), pz.Zeros...)
+	var mods []float64
+	for _, p := range all {
+		if !cmplx.IsInf(p) && !cmplx.IsNaN(p) && cmplx.Abs(p) > 0 {
+			mods = append(mods, cmplx.Abs(p))
 		}
+	}
+	sort.Float64s(mods)
+	within := pz.Within
+	if within == 0 && !g.Sampled() && len(mods) >= 3 {
+		// the widest gap (a factor of 5 or more) above the lower half of
+		// the points, else 10 times the median
+		best, cut := 5.0, -1
+		for i := (len(mods)+1)/2 - 1; i+1 < len(mods); i++ {
+			if r := mods[i+1] / mods[i]; r >= best {
+				best, cut = r, i
+			}
+		}
+		switch {
+		case cut >= 0:
+			within = math.Sqrt(mods[cut] * mods[cut+1])
+		case mods[len(mods)-1] > 10*mods[len(mods)/2]:
+			within = 10 * mods[len(mods)/2]
+		}
+	}
+	R := 0.0
+	for _, m := range mods {
+		if within == 0 || m <= within {
+			R = math.Max(R, m)
+		}
+	}
+	if pz.Within > 0 {
+		R = pz.Within
 	}
 	if R == 0 {
 		R = 1
+	}
+	var farPoles, farZeros []complex128
+	split := func(v []complex128, far *[]complex128) []complex128 {
+		if within == 0 {
+			return v
+		}
+		var near []complex128
+		for _, p := range v {
+			if cmplx.Abs(p) > within {
+				*far = append(*far, p)
+			} else {
+				near = append(near, p)
+			}
+		}
+		return near
+	}
+	nearPoles := split(pz.Poles, &farPoles)
+	var nearZeros []complex128
+	if pz.ZerosKnown {
+		nearZeros = split(pz.Zeros, &farZeros)
+	}
+	if len(farPoles)+len(farZeros) > 0 {
+		text += fmt.Sprintf("\nthe chart shows |%s| up to %s; marked at its edge with their value: %s",
+			map[bool]string{true: "z", false: "s"}[g.Sampled()], fmtNum(R),
+			strings.Join(append(rpFarList("pole", farPoles), rpFarList("zero", farZeros)...), ", "))
 	}
 	gridCol := rpGrid
 	var texts []rpText
@@ -473,9 +530,31 @@ func renderPoleZero(v any, opt Options) Bundle {
 		}
 		pn.Lines = append(pn.Lines, rpLine{At: 0, Vertical: true})
 	}
-	pn.Series = append(pn.Series, rpMark("poles", pz.Poles, 0, draw.CrossGlyph{}, 4.5))
+	// far points on the edge of the grid, in their direction, labelled
+	// (labels below the point, those on the same spot stacked downward,
+	// clear of the grid labels on the real axis)
+	spots := map[complex128]int{}
+	edge := func(v []complex128) []complex128 {
+		out := make([]complex128, len(v))
+		for i, p := range v {
+			out[i] = p / complex(cmplx.Abs(p), 0) * complex(R, 0)
+			key := complex(math.Round(real(out[i])/R*50), math.Round(imag(out[i])/R*50))
+			k := spots[key]
+			spots[key]++
+			texts = append(texts, rpText{X: real(out[i]), Y: imag(out[i]) - float64(k+1)*0.09*R, Text: rpFarLabel(p)})
+		}
+		return out
+	}
+	pn.Series = append(pn.Series, rpMark("poles", append(nearPoles, edge(farPoles)...), 0, draw.CrossGlyph{}, 4.5))
 	if pz.ZerosKnown && len(pz.Zeros) > 0 {
-		pn.Series = append(pn.Series, rpMark("zeros", pz.Zeros, 1, draw.RingGlyph{}, 4.5))
+		pn.Series = append(pn.Series, rpMark("zeros", append(nearZeros, edge(farZeros)...), 1, draw.RingGlyph{}, 4.5))
+	}
+	if pz.Within > 0 {
+		// the user's frame: the grid spans it, points beyond are on the edge
+		pn.XMin, pn.XMax, pn.YMin, pn.YMax = -R, R, -R, R
+		if !g.Sampled() {
+			pn.XMax = 0.15 * R
+		}
 	}
 	pn.Texts = texts
 	fig := &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}}
@@ -485,6 +564,22 @@ func renderPoleZero(v any, opt Options) Bundle {
 		js["zeros"] = rpComplexJSON(pz.Zeros)
 	}
 	out.Data[JSON] = js
+	return out
+}
+
+// rpFarLabel is the value of a point drawn at the chart's edge.
+func rpFarLabel(p complex128) string {
+	if imag(p) == 0 {
+		return fmtNum(real(p)) + " (off chart)"
+	}
+	return fmtComplex(p, false) + " (off chart)"
+}
+
+func rpFarList(kind string, v []complex128) []string {
+	var out []string
+	for _, p := range v {
+		out = append(out, kind+" "+fmtComplex(p, false))
+	}
 	return out
 }
 

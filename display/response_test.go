@@ -377,3 +377,35 @@ func TestPolarLegendBelowInWords(t *testing.T) {
 		}
 	}
 }
+
+func TestPoleZeroFramesNearPoints(t *testing.T) {
+	// (s + 1e6)/((s + 1)(s^2 + 4s + 13)): poles -1, -2 +- 3j (roots by the
+	// quadratic formula), a zero at -1e6. The chart frames the three poles
+	// (|p| <= 3.61) and marks the zero at its edge with its value.
+	g, err := lsys.Realize([][]*lsys.Rational{{{Num: lsys.Poly{1e6, 1}, Den: lsys.Poly{13, 17, 5, 1}}}}, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pz, _ := lsys.PoleZero(g, []complex128{-1e6}, true)
+	b := Render(pz, Options{})
+	txt := b.Data[Text].(string)
+	if !strings.Contains(txt, "the chart shows |s| up to 3.606") || !strings.Contains(txt, "zero -1e+06") {
+		t.Errorf("text %q", txt)
+	}
+	svg := b.Data[SVG].(string)
+	if !strings.Contains(svg, "-1e+06 (off chart)") {
+		t.Error("the far zero is not labelled on the chart")
+	}
+	// every x tick label within a few times the poles' extent
+	for _, tick := range []string{">-1e+06<", ">-1000000<", ">-500000<"} {
+		if strings.Contains(svg, tick) {
+			t.Errorf("the frame still reaches the far zero (tick %s)", tick)
+		}
+	}
+	// the user's radius wins
+	pz.Within = 100
+	txt = Render(pz, Options{}).Data[Text].(string)
+	if !strings.Contains(txt, "up to 100;") {
+		t.Errorf("within 100: text %q", txt)
+	}
+}

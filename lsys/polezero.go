@@ -11,6 +11,10 @@ type PoleZeroMap struct {
 	Zeros      []complex128
 	ZerosKnown bool   // false: zeros were not computed (see Note)
 	Note       string // what the map leaves out, if anything
+	// Within, when positive, is the radius the chart shows (1/s, or in the
+	// z-plane); points beyond it are marked at the edge with their value.
+	// Zero: chosen from the points (see the chart).
+	Within float64
 }
 
 // PoleZero collects the poles of g (the eigenvalues of A, see Poles) and

@@ -680,9 +680,11 @@ func responseBuiltins() []*Builtin {
 		},
 		{
 			Name: "polezero", Group: GroupResponse,
-			Params:   []Param{{Name: "system", Doc: "a system or transfer function"}},
-			Help:     "The pole-zero map: poles as crosses, zeros as circles, with damping and natural-frequency grid (sampled: the unit circle).",
-			Doc:      "Zeros are the invariant zeros (zeros(G)), so decoupling zeros show on top of the poles they cancel.",
+			Params: []Param{{Name: "system", Doc: "a system or transfer function"},
+				{Name: "within", Optional: true, Doc: "radius of the region shown (1/s; sampled: in the z-plane); points beyond it are marked at the edge with their value"}},
+			Help: "The pole-zero map: poles as crosses, zeros as circles, with damping and natural-frequency grid (sampled: the unit circle).",
+			Doc: "Zeros are the invariant zeros (zeros(G)), so decoupling zeros show on top of the poles they cancel. " +
+				"Without within: the chart frames the points below the widest gap (a factor of 5 or more in distance from the origin) above the nearer half of them, else up to 10 times the median distance, and marks farther ones at its edge with their value.",
 			Examples: []string{"G = (s + 2) / (s^3 + 2*s^2 + 5*s + 1)\npolezero(G)"},
 			Fn: func(c *Call) (any, error) {
 				g, err := c.System("system")
@@ -698,7 +700,19 @@ func responseBuiltins() []*Builtin {
 				} else {
 					known = true
 				}
-				return lsys.PoleZero(g, zeros, known)
+				pz, err := lsys.PoleZero(g, zeros, known)
+				if err != nil || !c.Given("within") {
+					return pz, err
+				}
+				r, err := c.Float("within")
+				if err != nil {
+					return nil, err
+				}
+				if !(r > 0) || math.IsInf(r, 0) {
+					return nil, c.Errorf("within", "Give the radius of the region to show, e.g. within: 1e5", "polezero: 'within' must be a positive number, not %s", FormatNumber(r))
+				}
+				pz.Within = r
+				return pz, nil
 			},
 		},
 		{

@@ -141,6 +141,7 @@ func TestResponseBuiltinsErrors(t *testing.T) {
 		{src: "load(\"../secret.csv\")", err: "outside the notebook's folder"},
 		{src: "load(\"missing.csv\")", err: "no file"},
 		{src: "closeloop(1/(s + 1), sign: 2)", err: "sign must be +1 or -1"},
+		{src: "polezero(1/(s + 1), within: -3)", err: "'within' must be a positive number"},
 		{src: "sample(1/(s + 1), 0.1, method: \"fast\")", err: "unknown method"},
 		{src: "response(1/(s + 1), step, by: \"pole\")", err: "by must be"},
 		{src: "connect(1/(s + 1), nope: 1)", err: "no argument named 'nope'"},
@@ -178,3 +179,12 @@ func negIdentity(n int) *mat.Dense {
 
 func unitCol(n int) *mat.Dense { m := mat.NewDense(n, 1, nil); m.Set(0, 0, 1); return m }
 func unitRow(n int) *mat.Dense { m := mat.NewDense(1, n, nil); m.Set(0, 0, 1); return m }
+
+func TestPoleZeroWithin(t *testing.T) {
+	// within: is handed to the map as given (our own argument)
+	v := runOne(t, t.TempDir(), "polezero((s + 1000)/((s + 1)*(s + 2)), within: 5)")
+	pz, ok := v.(*lsys.PoleZeroMap)
+	if !ok || pz.Within != 5 {
+		t.Fatalf("got %#v", v)
+	}
+}
