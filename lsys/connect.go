@@ -4,14 +4,18 @@ import (
 	"errors"
 	"fmt"
 	"strconv"
+	"strings"
 
 	"gonum.org/v1/gonum/mat"
 )
 
 // Interconnections keep signal names: a series connection keeps the inputs
-// of the first block and the outputs of the last, a parallel connection and
-// a feedback loop keep those of the forward block, and states keep their
-// names (made unique with a suffix _2, _3, ... where two blocks share one).
+// of the first block and the outputs of the last; a parallel connection
+// keeps the inputs of the first block and an output name only where both
+// blocks give it (else y1, y2, ...: the sum is a new signal); a feedback
+// loop keeps the outputs of the forward block and names its inputs r1,
+// r2, ... (the reference, a new signal); states keep their names, made
+// unique with a suffix _2, _3, ... in state order where blocks share one.
 //
 // A block with no states and continuous time (a static gain) may be joined
 // to a sampled system; otherwise the sample times must agree.
@@ -56,7 +60,8 @@ func Series(g, k *System) (*System, error) {
 }
 
 // Parallel returns g + sign*h: same inputs, outputs added (sign is +1 or -1).
-// States are ordered g's first, then h's; signal names are g's.
+// States are ordered g's first, then h's; inputs are named as g's, outputs
+// keep a name only where h's output has the same name (else y1, y2, ...).
 func Parallel(g, h *System, sign float64) (*System, error) {
 	if g == nil || h == nil {
 		return nil, errors.New("parallel: a system is missing")
@@ -86,7 +91,13 @@ func Parallel(g, h *System, sign float64) (*System, error) {
 	}
 	s.StateNames = unique(concat(g.StateNames, h.StateNames))
 	s.InputNames = append([]string(nil), g.InputNames...)
-	s.OutputNames = append([]string(nil), g.OutputNames...)
+	s.OutputNames = defaultNames("y", p)
+	for i := range s.OutputNames {
+		if i < len(g.OutputNames) && i < len(h.OutputNames) && g.OutputNames[i] == h.OutputNames[i] {
+			s.OutputNames[i] = g.OutputNames[i]
+		}
+	}
+	s.OutputNames = unique(s.OutputNames)
 	return s, nil
 }
 
@@ -99,7 +110,8 @@ func Parallel(g, h *System, sign float64) (*System, error) {
 // inputs. With direct feedthrough on both sides the loop is algebraic and
 // needs I - sign*Dg*Dk to be invertible; when it is singular (or its
 // reciprocal condition number is below 1e-12) the loop is refused as
-// ill-posed. States are ordered g's first, then k's; signal names are g's.
+// ill-posed. States are ordered g's first, then k's; outputs are named as
+// g's; the inputs, which carry the reference r, are named r1, r2, ...
 func Feedback(g, k *System, sign float64) (*System, error) {
 	if g == nil || k == nil {
 		return nil, errors.New("closeloop: a system is missing")
@@ -155,7 +167,7 @@ func Feedback(g, k *System, sign float64) (*System, error) {
 		return nil, fmt.Errorf("closeloop: %w", err)
 	}
 	s.StateNames = unique(concat(g.StateNames, k.StateNames))
-	s.InputNames = append([]string(nil), g.InputNames...)
+	s.InputNames = unique(defaultNames("r", m))
 	s.OutputNames = append([]string(nil), g.OutputNames...)
 	return s, nil
 }
@@ -409,8 +421,49 @@ func concat(a, b []string) []string {
 	return append(append(out, a...), b...)
 }
 
-// unique makes names distinct by suffixing repeats with _2, _3, ...
+// unique makes names distinct by suffixing repeats with _2, _3, ... in
+// the order of the names. A name base_k already present beside base (a
+// suffix given by an earlier connection) counts as a repeat of base, so
+// that chains of connections number in order (x1, x1_2, x1_3) instead of
+// by the order in which they were joined. Names without repeats stay.
 func unique(names []string) []string {
+	group := func(n string) string {
+		if i := strings.LastIndexByte(n, '_'); i > 0 && i+1 < len(n) {
+			if _, err := strconv.Atoi(n[i+1:]); err == nil && n[i+1] != '0' && n[i+1] != '+' && n[i+1] != '-' {
+				return n[:i]
+			}
+		}
+		return n
+	}
+	count := map[string]int{}
+	present := map[string]bool{}
+	for _, n := range names {
+		count[n]++
+		present[n] = true
+	}
+	// bases with an exact repeat among their members are renumbered
+	redo := map[string]bool{}
+	for n, c := range count {
+		if c > 1 {
+			redo[group(n)] = true
+			redo[n] = true
+		}
+	}
+	work := make([]string, len(names))
+	for i, n := range names {
+		b := group(n)
+		if b != n && present[b] && redo[b] {
+			work[i] = b
+		} else {
+			work[i] = n
+		}
+	}
+	return uniqueSuffix(work)
+}
+
+// uniqueSuffix suffixes the second and later copies of a name with _2,
+// _3, ..., skipping suffixed names that exist already.
+func uniqueSuffix(names []string) []string {
 	seen := map[string]bool{}
 	for _, n := range names {
 		seen[n] = false

@@ -3,6 +3,7 @@ package lsys
 import (
 	"math"
 	"math/cmplx"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
@@ -237,4 +238,54 @@ func TestConnectSharedInputAndAllOutputs(t *testing.T) {
 			t.Errorf("at %v: %v", s, got)
 		}
 	}
+}
+
+func TestConnectionNames(t *testing.T) {
+	// Our own naming rules (see connect.go): numbered in state order, the
+	// sum of two different signals is a new signal, the closed loop's input
+	// is the reference.
+	a := siso(t, []float64{1}, []float64{0, 1})
+	b := siso(t, []float64{1, 1}, []float64{10, 1})
+	ab, _ := Series(a, b)
+	abb, err := Series(ab, b)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := strings.Join(abb.StateNames, ","); got != "x1,x1_2,x1_3" {
+		t.Errorf("series states %s, want x1,x1_2,x1_3", got)
+	}
+	g := a.Copy()
+	g.OutputNames = []string{"trolley"}
+	h := b.Copy()
+	h.OutputNames = []string{"sway"}
+	sum, _ := Parallel(g, h, 1)
+	if sum.OutputNames[0] != "y1" {
+		t.Errorf("sum of trolley and sway named %q, want y1", sum.OutputNames[0])
+	}
+	h.OutputNames = []string{"trolley"}
+	sum, _ = Parallel(g, h, 1)
+	if sum.OutputNames[0] != "trolley" {
+		t.Errorf("sum of two 'trolley' outputs named %q", sum.OutputNames[0])
+	}
+	g.InputNames = []string{"error"}
+	cl, err := Feedback(g, nil1(t), -1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if cl.InputNames[0] != "r1" || cl.OutputNames[0] != "trolley" {
+		t.Errorf("closed loop %v -> %v, want r1 -> trolley", cl.InputNames, cl.OutputNames)
+	}
+	// a user's own suffixed name without repeats stays as it is
+	if got := unique([]string{"v_2", "v"}); got[0] != "v_2" || got[1] != "v" {
+		t.Errorf("unique renamed %v", got)
+	}
+}
+
+func nil1(t *testing.T) *System {
+	t.Helper()
+	s, err := NewSystem(0, 1, 1, nil, nil, nil, mat.NewDense(1, 1, []float64{1}), 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s
 }

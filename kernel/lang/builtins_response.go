@@ -723,7 +723,7 @@ func responseBuiltins() []*Builtin {
 				{Name: "sign", Default: -1.0, Doc: "-1 for negative feedback, +1 for positive"},
 			},
 			Help: "Close a feedback loop around G with K in the return path: u = r + sign*K*y.",
-			Doc: "Signal names are those of G; states are G's then K's. With direct feedthrough on both sides the loop is algebraic and must be well posed " +
+			Doc: "Outputs are named as G's; the inputs carry the reference and are named r1, r2, ...; states are G's then K's. With direct feedthrough on both sides the loop is algebraic and must be well posed " +
 				"(I - sign*D_G*D_K invertible). For a controller C in the forward path write closeloop(G*C).",
 			Examples: []string{"P = 2 / (s*(s + 1))\nT = closeloop(P * (s + 3)/(s + 5))\nresponse(T, step)"},
 			Fn: func(c *Call) (any, error) {
