@@ -430,16 +430,31 @@ func (f *FrequencyResponse) Magnitude(i, j int) []float64 {
 	return out
 }
 
-// Phase returns the unwrapped phase of channel (i, j) in degrees: the
-// first point lies in (-180, 180] and each next one within 180 degrees of
-// its neighbour.
+// Phase returns the unwrapped phase of channel (i, j) in degrees: each
+// point within 180 degrees of its neighbour, the first one on the branch
+// nearest -90 n degrees, where -20 n dB/decade is the magnitude slope over
+// the first two frequencies. For a minimum-phase response that is the
+// low-frequency asymptote of Bode's gain-phase relation (Bode, Network
+// Analysis and Feedback Amplifier Design, 1945, Ch. 14), so a loop with
+// n integrators starts near -90 n degrees (a triple integrator at -270,
+// not +90). Without a usable slope the first point lies in (-180, 180].
 func (f *FrequencyResponse) Phase(i, j int) []float64 {
 	m := len(f.Inputs)
 	out := make([]float64, len(f.W))
+	start := 0.0
+	if len(f.W) >= 2 && f.W[0] > 0 && f.W[1] > f.W[0] {
+		a, b := cabs(f.G[0][i*m+j]), cabs(f.G[1][i*m+j])
+		if a > 0 && b > 0 && !math.IsInf(a, 0) && !math.IsInf(b, 0) {
+			slope := math.Log(b/a) / math.Log(f.W[1]/f.W[0])
+			start = -90 * math.Round(-slope)
+		}
+	}
 	for k := range f.W {
 		d := cmplx.Phase(f.G[k][i*m+j]) * 180 / math.Pi
 		if k > 0 {
 			d += 360 * math.Round((out[k-1]-d)/360)
+		} else if start != 0 {
+			d += 360 * math.Round((start-d)/360)
 		}
 		out[k] = d
 	}

@@ -255,3 +255,28 @@ func TestFrequencyResolvesAntiResonance(t *testing.T) {
 		t.Errorf("notch depth missed by %.2f dB (min |G| %g)", db, lo)
 	}
 }
+
+func TestPhaseStartsOnLowFrequencyAsymptote(t *testing.T) {
+	// arg((jw)^-n) = -90 n degrees and arg of 1/(jw + 1)^3 -> -270 at high
+	// frequency (closed forms): the unwrapped phase starts on that branch.
+	for _, c := range []struct {
+		den  []float64
+		grid []float64
+		want float64 // phase at the first point, degrees
+	}{
+		{[]float64{0, 0, 0, 1}, []float64{0.1, 1, 10}, -270},
+		{[]float64{0, 0, 1}, []float64{0.1, 1, 10}, -180},
+		{[]float64{0, 1}, []float64{0.1, 1, 10}, -90},
+		{[]float64{1, 3, 3, 1}, []float64{1000, 2000}, -270 + 3*math.Atan(1/1000.0)*180/math.Pi},
+		{[]float64{1, 1}, []float64{0.001, 0.01}, -math.Atan(0.001) * 180 / math.Pi},
+	} {
+		g := siso(t, []float64{1}, c.den)
+		f, err := Frequency(context.Background(), g, FrequencyOptions{Grid: c.grid})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := f.Phase(0, 0)[0]; math.Abs(got-c.want) > 1e-6 {
+			t.Errorf("1/%v: phase starts at %.8g, want %.8g", c.den, got, c.want)
+		}
+	}
+}
