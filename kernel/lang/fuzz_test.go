@@ -186,4 +186,8 @@ var corpusCells = []string{
 	"e = equilibrium(system {\n  states x\n  inputs u\n  x' = u - x^3\n}, inputs: {u: 8})\ne.x",
 	"sensitivity(system {\n  states x\n  x' = -k*x\n}, [\"k\"])",
 	"p = {k: 2}\nsystem every 0.1 {\n  states x\n  next x = x/p.k\n}",
+	"Gz = sample(system(1/(s + 1)), 0.1)\nGz * (1/z) + [[1/z]] * Gz",
+	"S = system(D: [[1, -1]], inputs: [\"r\", \"y\"], outputs: [\"e\"])\n[[2]] * S * [[1], [1]]",
+	"m = system {\n  states v, w\n  v' = -(w'/2)\n  w' = (v'\n  w' = v\n}",
+	"e = equilibrium(system {\n  states a, b\n  a' = b - a\n  b' = a - b\n}, guess: {a: 1})\ne.free",
 }

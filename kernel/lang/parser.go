@@ -608,7 +608,10 @@ func (p *parser) parseBlockItemRecover() (it BlockItem) {
 	if len(p.errors)+len(p.sc.Errors) == n && it != nil {
 		return it
 	}
-	p.nlFree, p.depth = p.nlFree[:level], depth
+	if level <= len(p.nlFree) {
+		p.nlFree = p.nlFree[:level]
+	}
+	p.depth = depth
 	braces := 0
 	for p.tok != EOF {
 		switch p.tok {
