@@ -149,8 +149,11 @@ func renderMetrics(v any, _ Options) Bundle {
 		js = append(js, map[string]any{
 			"output": r.Output, "input": r.Channel, "rise_time": jsonNum(r.RiseTime), "settling_time": jsonNum(r.SettlingTime),
 			"overshoot_percent": jsonNum(r.Overshoot), "peak": jsonNum(r.Peak), "peak_time": jsonNum(r.PeakTime), "steady": jsonNum(r.Steady),
-			"steady_from_gain": r.SteadyFromGain, "note": r.Note,
+			"steady_from_gain": r.SteadyFromGain,
 		})
+		if r.Note != "" {
+			js[len(js)-1]["note"] = r.Note
+		}
 	}
 	remark := "n/a: not defined by this response (no change, or it leaves the 2 % band at the end of the horizon)."
 	notes := []string{remark}
@@ -196,7 +199,8 @@ func renderModalResponse(v any, opt Options) Bundle {
 		}
 	}
 	out := rpBundle(text, f, opt)
-	out.Data[JSON] = map[string]any{"modes": mr.Labels, "outputs": r.Outputs, "channels": r.Channels, "samples": len(r.T)}
+	out.Data[JSON] = map[string]any{"modes": mr.Labels, "outputs": r.Outputs, "channels": r.Channels, "samples": len(r.T),
+		"condition": jsonNum(mr.MaxCond), "note": mr.Note}
 	return out
 }
 

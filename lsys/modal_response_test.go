@@ -3,6 +3,7 @@ package lsys
 import (
 	"context"
 	"math"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
@@ -165,5 +166,26 @@ func TestByModeBadlyScaledCascade(t *testing.T) {
 	}
 	if worst > 1e-12 {
 		t.Errorf("worst part error %g", worst)
+	}
+}
+
+func TestByModeSaysWhyItGroups(t *testing.T) {
+	// A Jordan block of -1 (defective, so its modes cannot be split; any
+	// textbook on the Jordan form) beside a simple mode at -10: two parts,
+	// the block and -10, and the note names the defective eigenvalue.
+	A := mat.NewDense(3, 3, []float64{-1, 1, 0, 0, -1, 0, 0, 0, -10})
+	g, err := FromMatrices(A, mat.NewDense(3, 1, []float64{0, 1, 1}), mat.NewDense(1, 3, []float64{1, 0, 1}), nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mr, err := ByMode(context.Background(), g, "step", nil, nil, ResponseOptions{Until: 5, Step: 0.01})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(mr.Parts) != 2 || !strings.HasPrefix(mr.Labels[0], "block") {
+		t.Fatalf("parts %v", mr.Labels)
+	}
+	if !strings.Contains(mr.Note, "defective") || !strings.Contains(mr.Note, "balanced") {
+		t.Errorf("note %q", mr.Note)
 	}
 }
