@@ -267,7 +267,7 @@ func renderSubspace(v any, _ Options) Bundle {
 		}
 		rows = append(rows,
 			[2]string{"A-invariant", fmt.Sprintf("%s: relative residual %s (tolerance %s)", inv, fmtNum(s.Residual), fmtNum(s.Tol))},
-			[2]string{"eigenvalues in it", sxValues(s.Values)})
+			[2]string{"eigenvalues in it", map[bool]string{true: sxValues(s.Values), false: "none (not invariant)"}[s.Invariant]})
 	}
 	if len(rows) > 0 {
 		keyTable(t, h, rows)

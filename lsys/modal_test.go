@@ -208,3 +208,43 @@ func TestSylvesterQuasi(t *testing.T) {
 		t.Errorf("residual %.3g", mat.Norm(&R, 2))
 	}
 }
+
+func TestModalExactBlocks(t *testing.T) {
+	// The frame of TestZerosUnitsInvariant in t, kN, m (m = 20, roof 10,
+	// k = 2e4, beta = 0.002). With the roof mass half a floor mass the
+	// chain's natural frequencies are w_i^2 = (k/m)(2 - 2 cos((2i - 1) pi/6)),
+	// i = 1, 2, 3 (closed form of the fixed-free uniform chain, seen as half
+	// of a symmetric chain of 6 storeys), and stiffness-proportional damping
+	// gives lambda = -beta w^2/2 +- j w sqrt(1 - (beta w/2)^2). The modal A
+	// is block diagonal by construction: off-block entries must be exactly
+	// 0 and the blocks [[sigma, omega], [-omega, sigma]] from the eigenvalues.
+	f := frameModel(t, 20, 10, 2e4, 0.002)
+	mf, err := Modal(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if mf.BlockDiagonal || len(mf.Blocks) != 3 {
+		t.Fatalf("blocks %v", mf.Blocks)
+	}
+	for i, b := range mf.Blocks {
+		w2 := 1000 * (2 - 2*math.Cos(float64(2*i+1)*math.Pi/6))
+		w := math.Sqrt(w2)
+		sg, om := -0.002*w2/2, w*math.Sqrt(1-0.002*0.002*w2/4)
+		k := b.Start
+		A := mf.System.A
+		if math.Abs(A.At(k, k)-sg) > 1e-12*w || math.Abs(A.At(k, k+1)-om) > 1e-12*w ||
+			A.At(k+1, k) != -A.At(k, k+1) || A.At(k+1, k+1) != A.At(k, k) {
+			t.Errorf("block %d: [[%v, %v], [%v, %v]], want sigma %v omega %v", i, A.At(k, k), A.At(k, k+1), A.At(k+1, k), A.At(k+1, k+1), sg, om)
+		}
+		for r := 0; r < 6; r++ {
+			for c := 0; c < 6; c++ {
+				if (r < k || r > k+1) && (c == k || c == k+1) && A.At(r, c) != 0 {
+					t.Errorf("off-block entry A[%d,%d] = %v, want exactly 0", r, c, A.At(r, c))
+				}
+			}
+		}
+	}
+	if mf.Residual <= 0 || mf.Residual > 1e-12 {
+		t.Errorf("residual %v: want the rounding that was removed, between 0 and 1e-12", mf.Residual)
+	}
+}

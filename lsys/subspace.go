@@ -147,8 +147,8 @@ type Subspace struct {
 	Dim        int        // dimension of the subspace
 	Basis      *mat.Dense // N x Dim, orthonormal columns; nil when Dim == 0
 	StateNames []string
-	// Values are the eigenvalues of A restricted to the subspace (when it is
-	// A-invariant).
+	// Values are the eigenvalues of A restricted to the subspace; nil when
+	// the subspace is not A-invariant (it has no eigenvalues then).
 	Values []complex128
 	// Residual is ||A V - V (V^T A V)||_F / ||A||_F, zero for an exactly
 	// A-invariant subspace; Invariant compares it with Tol.
@@ -170,6 +170,11 @@ func newSubspace(what string, s *System, A, V *mat.Dense, tol float64) *Subspace
 	sub.Basis = V
 	sub.Residual, sub.Values = invariantResidual(A, V)
 	sub.Invariant = sub.Residual <= tol
+	if !sub.Invariant {
+		// The eigenvalues of V^T A V belong to no subspace of A unless
+		// span(V) is invariant: a non-invariant subspace has none.
+		sub.Values = nil
+	}
 	return sub
 }
 

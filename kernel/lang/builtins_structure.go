@@ -207,10 +207,11 @@ func structureBuiltins() []*Builtin {
 		},
 		{
 			Name: "transform", Group: GroupAnalysis,
-			Params:   []Param{stSystemParam, {Name: "T", Doc: "an invertible n x n matrix: the new states are z = T x"}},
+			Params: []Param{stSystemParam, {Name: "T", Doc: "an invertible n x n matrix: the new states are z = T x"},
+				{Name: "states", Optional: true, Doc: "names of the new states, a list of strings (default z1, z2, ...)"}},
 			Help:     "The system in new coordinates z = T x (A~ = T A T^-1, B~ = T B, C~ = C T^-1).",
 			Doc:      "The transfer function is unchanged. A nearly singular T is refused with its condition number.",
-			Examples: []string{msd + "transform(G, [[1, 0], [1, 1]])"},
+			Examples: []string{msd + "transform(G, [[1, 0], [1, 1]])", msd + "transform(G, [[1, 0], [1, 1]], states: [\"position\", \"sum\"])"},
 			Fn: func(c *Call) (any, error) {
 				g, err := c.System("system")
 				if err != nil {
@@ -223,7 +224,21 @@ func structureBuiltins() []*Builtin {
 				if r, cc := T.Dims(); r != g.N() || cc != g.N() {
 					return nil, c.Errorf("T", "T must be square with one row per state.", "T is %dx%d but the system has %d states", r, cc, g.N())
 				}
-				return lsys.Transform(g, T)
+				out, err := lsys.Transform(g, T)
+				if err != nil || !c.Given("states") {
+					return out, err
+				}
+				names, err := c.Strings("states")
+				if err != nil {
+					return nil, err
+				}
+				if len(names) != g.N() {
+					return nil, c.Errorf("states", "Give one name per state.", "%d state names given for a system with %s", len(names), plural(g.N(), "state"))
+				}
+				if err := checkNames(names); err != nil {
+					return nil, c.Errorf("states", "", "%v", err)
+				}
+				return out.WithNames(names, nil, nil)
 			},
 		},
 		{
@@ -425,7 +440,17 @@ func structureBuiltins() []*Builtin {
 				if err != nil {
 					return nil, err
 				}
-				return lsys.Invariant(A, V, tol)
+				ic, err := lsys.Invariant(A, V, tol)
+				if err != nil {
+					return nil, err
+				}
+				// Rows of a system's subspace carry its state names.
+				if _, isMatrix := c.Value("A").(*mat.Dense); !isMatrix {
+					if g, err := c.System("A"); err == nil && len(g.StateNames) == n {
+						ic.Subspace.StateNames = append([]string(nil), g.StateNames...)
+					}
+				}
+				return ic, nil
 			},
 		},
 	}

@@ -172,3 +172,32 @@ func TestBuiltinTransfer(t *testing.T) {
 		t.Errorf("MIMO transfer: %v", l)
 	}
 }
+
+func TestBuiltinTransformStatesInvariantNames(t *testing.T) {
+	named := "G = system([[0, 1], [-4, -0.8]], [0, 0.5], [1, 0], states: [\"position\", \"velocity\"])\n"
+	// transform takes names for the new states.
+	v := stRun(t, named+"transform(G, [[1, 0], [1, 1]], states: [\"p\", \"sum\"])").(*lsys.System)
+	if strings.Join(v.StateNames, ",") != "p,sum" {
+		t.Errorf("states %v, want p, sum", v.StateNames)
+	}
+	if v.A.At(0, 0) != -1 { // as in TestBuiltinTransformSpectralInvariant
+		t.Errorf("transformed A %v", mat.Formatted(v.A))
+	}
+	stRunErr(t, named+"transform(G, [[1, 0], [1, 1]], states: [\"p\"])", "1 state names given")
+	stRunErr(t, named+"transform(G, [[1, 0], [1, 1]], states: [\"p\", \"p\"])", "appears twice")
+	// invariant(G, V) labels the rows with the system's state names; e1 is
+	// not invariant under [[0, 1], [-4, -0.8]] (A e1 = -4 e2): it has no
+	// eigenvalues.
+	ic := stRun(t, named+"invariant(G, [1, 0])").(*lsys.InvariantCheck)
+	if strings.Join(ic.Subspace.StateNames, ",") != "position,velocity" {
+		t.Errorf("row names %v", ic.Subspace.StateNames)
+	}
+	if ic.Subspace.Invariant || ic.Subspace.Values != nil {
+		t.Errorf("e1: invariant %v, values %v; want not invariant, no eigenvalues", ic.Subspace.Invariant, ic.Subspace.Values)
+	}
+	// The whole space is invariant and holds both eigenvalues -0.4 +- 1.96j.
+	ic = stRun(t, named+"invariant(G, [[1, 0], [0, 1]])").(*lsys.InvariantCheck)
+	if !ic.Subspace.Invariant || len(ic.Subspace.Values) != 2 {
+		t.Errorf("whole space: invariant %v, values %v", ic.Subspace.Invariant, ic.Subspace.Values)
+	}
+}
