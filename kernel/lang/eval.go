@@ -486,6 +486,7 @@ func (ev *evaluator) callBuiltin(b *Builtin, vals []any, poss []Pos, named []Nam
 			return nil, ev.errorAt(pos, fmt.Sprintf("%s needs the argument '%s'", b.Name, p.Name), "Usage: "+b.Signature())
 		}
 	}
+	c.shareSampleTime()
 	defer func() {
 		if r := recover(); r != nil {
 			result = nil
@@ -501,6 +502,57 @@ func (ev *evaluator) callBuiltin(b *Builtin, vals []any, poss []Pos, named []Nam
 		return nil, c.wrapErr(err)
 	}
 	return result, nil
+}
+
+// shareSampleTime gives arguments in z whose sample time is still open
+// (1/z) the sample time of the call's sampled arguments, when they all
+// have one and the same: closeloop(Gz, 1/z), connect(Gz, 1/z, ...) (SPEC
+// section 8, "taken from what it is combined with").
+func (c *Call) shareSampleTime() {
+	ts := 0.0
+	open := false
+	all := append(append([]any(nil), c.vals...), c.Rest...)
+	for _, v := range all {
+		if openSampleTime(v) {
+			open = true
+		}
+		for _, t := range sampleTimes(v) {
+			if ts != 0 && t != ts {
+				return // differing sample times: the built-in says so
+			}
+			ts = t
+		}
+	}
+	if !open || ts == 0 {
+		return
+	}
+	for i, v := range c.vals {
+		c.vals[i] = withSampleTime(v, ts)
+	}
+	for i, v := range c.Rest {
+		c.Rest[i] = withSampleTime(v, ts)
+	}
+}
+
+// sampleTimes lists the sample times (> 0) that v carries.
+func sampleTimes(v any) []float64 {
+	switch t := v.(type) {
+	case *lsys.System:
+		if t.Ts > 0 {
+			return []float64{t.Ts}
+		}
+	case *lsys.Rational:
+		if t.Ts > 0 {
+			return []float64{t.Ts}
+		}
+	case *List:
+		var out []float64
+		for _, it := range t.Items {
+			out = append(out, sampleTimes(it)...)
+		}
+		return out
+	}
+	return nil
 }
 
 // debugPanics adds Go stack traces to caught panics (tests set it).

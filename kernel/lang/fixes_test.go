@@ -35,6 +35,13 @@ func TestShiftVariableTakesSampleTime(t *testing.T) {
 		{src: "G = system(1/(s + 1))\nG * (1/z)", err: "cannot combine a transfer function in z with a continuous system", line: 2, col: 3},
 		{src: "G = system(1/(s + 1))\n(1/z) + G", err: "cannot combine a transfer function in z with a continuous system", line: 2, col: 7},
 		{src: gz + "Gz * sample(system(1/(s + 2)), 0.2)", err: "sample time", line: 2, col: 4},
+		// Arguments of one call: closing the loop through one sample of
+		// delay, G = b/(z - a) with a = e^-0.1, b = 1 - a, K = 1/z, has the
+		// characteristic polynomial z^2 - a z + b, roots
+		// (a +- sqrt(a^2 - 4b))/2 = 0.7833569303, 0.1214804877 (closed form).
+		{src: gz + "poles(closeloop(Gz, 1/z))", want: "0.7833569303\n0.1214804877"},
+		{src: gz + "stack(Gz, 1/z).every", want: "0.1"},
+		{src: gz + "stack(Gz, sample(system(1/(s + 2)), 0.2), 1/z)", err: "this transfer function in z has no sample time yet", line: 2, col: 43},
 	})
 }
 
