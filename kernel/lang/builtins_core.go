@@ -587,6 +587,12 @@ func systemFn(c *Call) (any, error) {
 			return nil, c.Errorf("every", "To sample a continuous system use sample(G, T).", "this system's sample time is %s, not %s", FormatNumber(g.Ts), FormatNumber(ts))
 		}
 	default:
+		if m, ok := first.(*mat.Dense); ok && !c.Given("B") && !c.Given("C") && !c.Given("D") {
+			if r, cc := m.Dims(); r != cc {
+				return nil, c.Errorf("A", fmt.Sprintf("For a static gain y = D u (no states) give D alone: system(D: M); here M is %dx%d, %s and %s.", r, cc, plural(cc, "input"), plural(r, "output")),
+					"system needs a square matrix, not a %dx%d one", r, cc)
+			}
+		}
 		A, err := c.squareMatrix("A")
 		if err != nil {
 			return nil, err

@@ -70,6 +70,7 @@ func TestStaticGainSystems(t *testing.T) {
 		// 1/(s + 1), steady-state gain 1 (closed form).
 		{src: sum + `P = system(1/s, inputs: ["error"], outputs: ["v_out"])` + "\n" +
 			`T = connect(S, P, outputs: ["v_out"])` + "\npoles(T)", want: "-1"},
+		{src: `system([[1, -1]], inputs: ["ref", "v_out"], outputs: ["error"])`, err: "give D alone: system(D: M); here M is 1x2, 2 inputs and 1 output", line: 1, col: 8},
 		{src: "system(B: [1])", err: "system needs the state matrix A, or only D for a static gain", line: 1, col: 1},
 		{src: "system(D: [[1, -1]], C: [1])", err: "system needs the state matrix A, or only D for a static gain", line: 1, col: 1},
 		{src: "system()", err: "system needs the state matrix A, or only D for a static gain", line: 1, col: 1},
