@@ -436,7 +436,7 @@ func (k *Kernel) render(v any) (b display.Bundle) {
 	defer func() {
 		if p := recover(); p != nil {
 			k.log.Printf("rendering %T panicked: %v\n%s", v, p, debug.Stack())
-			b = display.NewBundle(fmt.Sprintf("(a %T was computed but could not be displayed: %v; please report this)", v, p))
+			b = display.NewBundle(fmt.Sprintf("(the result was computed but could not be displayed: %v; please report this cell)", p))
 		}
 	}()
 	return display.Render(v, display.Options{})
