@@ -1,0 +1,74 @@
+package display
+
+import (
+	"math"
+	"strconv"
+	"strings"
+
+	"lsys/lsys"
+)
+
+// Transfer functions: the text form is the language's own syntax (so it can
+// be pasted into a cell); the LaTeX form is a fraction in descending powers.
+func init() {
+	Register((*lsys.Rational)(nil), func(v any, _ Options) Bundle {
+		r := v.(*lsys.Rational)
+		b := NewBundle(r.String())
+		tex := `$$` + latexPoly(r.Num, r.VarName())
+		if !(r.Den.Degree() == 0 && r.Den.Lead() == 1) {
+			tex = `$$\frac{` + latexPoly(r.Num, r.VarName()) + `}{` + latexPoly(r.Den, r.VarName()) + `}`
+		}
+		if r.Ts > 0 {
+			tex += `\qquad T = ` + latexNum(fmtDigits(r.Ts, 6)) + `\,\mathrm{s}`
+		}
+		b.Data[LaTeX] = tex + `$$`
+		jsonPoly := func(p lsys.Poly) []any { // descending powers, as written
+			t := p.Trim()
+			out := make([]any, len(t))
+			for i := range t {
+				out[len(t)-1-i] = jsonNum(t[i])
+			}
+			return out
+		}
+		b.Data[JSON] = map[string]any{"variable": r.VarName(), "numerator": jsonPoly(r.Num),
+			"denominator": jsonPoly(r.Den), "sample_time": r.Ts}
+		return b
+	})
+}
+
+// latexPoly writes p in descending powers of v with 6 significant digits.
+func latexPoly(p lsys.Poly, v string) string {
+	t := p.Trim()
+	if len(t) == 0 {
+		return "0"
+	}
+	var b strings.Builder
+	for i := len(t) - 1; i >= 0; i-- {
+		c := t[i]
+		if c == 0 {
+			continue
+		}
+		switch {
+		case b.Len() == 0 && c < 0:
+			b.WriteString("-")
+		case b.Len() > 0 && c < 0:
+			b.WriteString(" - ")
+		case b.Len() > 0:
+			b.WriteString(" + ")
+		}
+		a := math.Abs(c)
+		if a != 1 || i == 0 {
+			b.WriteString(latexNum(fmtDigits(a, 6)))
+			if i > 0 {
+				b.WriteString(`\,`)
+			}
+		}
+		switch {
+		case i == 1:
+			b.WriteString(v)
+		case i > 1:
+			b.WriteString(v + "^{" + strconv.Itoa(i) + "}")
+		}
+	}
+	return b.String()
+}
