@@ -85,7 +85,8 @@ func Eigen(a mat.Matrix) (*EigenStructure, error) {
 // part within tol of 0 is reported as exactly 0 (continuous time; a sampled
 // pole within tol of 1 as exactly 1), and an imaginary part within tol of 0
 // as exactly 0, so a rigid-body mode or an integrator reads as s = 0, not
-// as a tiny stable or unstable pole.
+// as a tiny stable or unstable pole. A multiple pole is listed by its
+// cluster's mean, once per multiplicity, as in the mode table.
 func Poles(s *System) ([]complex128, error) {
 	if s.N() == 0 {
 		return nil, nil
@@ -95,10 +96,31 @@ func Poles(s *System) ([]complex128, error) {
 		return nil, err
 	}
 	tol := boundaryTol(s.A)
-	idx := orderEigenvalues(es.Values, s.Ts)
+	// A multiple pole split by rounding (a double pole comes out about
+	// sqrt(u) |p| apart, as a close pair) is reported as its cluster's
+	// mean, repeated, with the clustering of the mode table (see Jordan).
+	vals := append([]complex128(nil), es.Values...)
+	normA := mat.Norm(s.A, 2)
+	for _, g := range clusterEigenvalues(vals, es.Cond, normA, 1e-3*math.Max(normA, dlamchE), 0) {
+		if len(g.idx) < 2 {
+			continue
+		}
+		var mean complex128
+		for _, k := range g.idx {
+			mean += es.Values[k]
+		}
+		mean /= complex(float64(len(g.idx)), 0)
+		if g.real {
+			mean = complex(real(mean), 0)
+		}
+		for _, k := range g.idx {
+			vals[k] = mean
+		}
+	}
+	idx := orderEigenvalues(vals, s.Ts)
 	out := make([]complex128, len(idx))
 	for i, k := range idx {
-		out[i] = snapValue(es.Values[k], s.Ts, tol)
+		out[i] = snapValue(vals[k], s.Ts, tol)
 	}
 	return out, nil
 }

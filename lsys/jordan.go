@@ -24,8 +24,11 @@ type JordanCluster struct {
 	Ranks []int
 	// Spread is the largest distance of a member from Value; Tol the
 	// clustering tolerance that merged them; RankTol the relative
-	// tolerance of the rank decisions on the powers.
-	Spread, Tol, RankTol float64
+	// tolerance of the rank decisions on the powers. SpreadTol is the
+	// absolute rank tolerance the spread imposes on the first power: the
+	// members are up to Spread away from Value, so A - Value I has singular
+	// values of that size that belong to the cluster (see jordanBlocks).
+	Spread, Tol, RankTol, SpreadTol float64
 	// Cond is the largest eigenvalue condition number in the cluster; +Inf
 	// when the cluster is defective.
 	Cond float64
@@ -128,7 +131,8 @@ func jordanFrom(A *mat.Dense, es *EigenStructure, absTol, relTol, ts float64) (*
 		if jc.Algebraic == 1 {
 			jc.Geometric, jc.Blocks = 1, []int{1}
 		} else {
-			jc.Ranks, jc.Blocks, err = jordanBlocks(A, mean, jc.Algebraic, relTol)
+			jc.SpreadTol = jordanSpreadTol(mean, spread)
+			jc.Ranks, jc.Blocks, err = jordanBlocks(A, mean, jc.Algebraic, relTol, jc.SpreadTol)
 			if err != nil {
 				return nil, err
 			}
@@ -243,7 +247,15 @@ func clusterEigenvalues(vals []complex128, cond []float64, normA, capTol, absTol
 // r_{j-1} - r_j (r_0 = n). For complex lambda the real quadratic factor
 // Q = A^2 - 2 Re(lambda) A + |lambda|^2 I is used: its null space holds
 // those of A - lambda I and A - conj(lambda) I, equal in dimension.
-func jordanBlocks(A *mat.Dense, lam complex128, k int, relTol float64) ([]int, []int, error) {
+//
+// The members of a cluster lie up to its spread d from lambda, so the
+// powers have singular values of size about d^j (|2 Im lambda| d per factor
+// for the quadratic one) that belong to the cluster, not to the rest of
+// the spectrum: singular values below spreadTol^j also count as zero
+// (spreadTol = 2 d, from jordanSpreadTol). Without that a clustered pair
+// -100, -99 would show rank 2 for A - lambda I, that is no eigenvector at
+// all, and be reported as semisimple.
+func jordanBlocks(A *mat.Dense, lam complex128, k int, relTol, spreadTol float64) ([]int, []int, error) {
 	n, _ := A.Dims()
 	var M mat.Dense
 	halve := false
@@ -284,6 +296,7 @@ func jordanBlocks(A *mat.Dense, lam complex128, k int, relTol float64) ([]int, [
 		if sv[0] == 0 {
 			tol = 0
 		}
+		tol = math.Max(tol, math.Pow(spreadTol, float64(j)))
 		r := 0
 		for _, v := range sv {
 			if v > tol {
@@ -331,4 +344,14 @@ func jordanBlocks(A *mat.Dense, lam complex128, k int, relTol float64) ([]int, [
 		total++
 	}
 	return ranks, blocks, nil
+}
+
+// jordanSpreadTol is the singular value size that a cluster of spread d
+// around lam leaves in one factor of jordanBlocks: 2 d for A - lam I, and
+// 2 d (2 |Im lam| + d) for the real quadratic factor of a complex cluster.
+func jordanSpreadTol(lam complex128, d float64) float64 {
+	if imag(lam) == 0 {
+		return 2 * d
+	}
+	return 2 * d * (2*math.Abs(imag(lam)) + d)
 }

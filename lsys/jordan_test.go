@@ -197,3 +197,34 @@ func TestModesDefectiveShape(t *testing.T) {
 		t.Errorf("rigid mode reachable %v observable %v", m.Reachable, m.Observable)
 	}
 }
+
+func TestJordanClusterUsesSpread(t *testing.T) {
+	// Two cascaded lags of 10 ms and 10.1 ms: A = [[-100, 0], [100, -99]],
+	// eigenvalues -100 and -99. Clustered on purpose (absolute tolerance 2)
+	// they are one eigenvalue -99.5 of spread 0.5. A + 99.5 I =
+	// [[-0.5, 0], [100, 0.5]] has singular values about 100 and
+	// 0.25/100 = 0.0025 (their product is |det| = 0.25, closed form): one
+	// of them is below the spread, so within the cluster's tolerance the
+	// pair is one Jordan block of size 2 (rank 1, then 0), not two
+	// eigenvectors. The diagonal matrix diag(-100, -99) clustered the same
+	// way has A + 99.5 I = diag(-0.5, 0.5): rank 0, two blocks of size 1.
+	js, err := Jordan(mat.NewDense(2, 2, []float64{-100, 0, 100, -99}), 2, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(js.Clusters) != 1 {
+		t.Fatalf("clusters %v", js.Clusters)
+	}
+	c := js.Clusters[0]
+	if c.Algebraic != 2 || c.Geometric != 1 || len(c.Blocks) != 1 || c.Blocks[0] != 2 || len(c.Ranks) < 1 || c.Ranks[0] != 1 {
+		t.Errorf("cascaded lags clustered: alg %d geom %d blocks %v ranks %v; want 2, 1, [2], [1 0]", c.Algebraic, c.Geometric, c.Blocks, c.Ranks)
+	}
+	jd, err := Jordan(mat.NewDense(2, 2, []float64{-100, 0, 0, -99}), 2, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := jd.Clusters[0]
+	if d.Geometric != 2 || len(d.Blocks) != 2 || d.Ranks[0] != 0 {
+		t.Errorf("diagonal clustered: geom %d blocks %v ranks %v; want 2, [1 1], [0]", d.Geometric, d.Blocks, d.Ranks)
+	}
+}

@@ -221,3 +221,25 @@ func TestStabilityBoundary(t *testing.T) {
 		}
 	}
 }
+
+func TestPolesMultipleAndBoundary(t *testing.T) {
+	// Two identical cascaded lags 100/(s + 100): A = [[-100, 0], [100, -100]]
+	// is a Jordan block, whose computed eigenvalues split by about
+	// sqrt(u) * 100 (Wilkinson 1965, ch. 2); the poles are -100 twice
+	// (closed form), and must be listed so, not as a close pair.
+	s := sysOf(t, mat.NewDense(2, 2, []float64{-100, 0, 100, -100}), mat.NewDense(2, 1, []float64{100, 0}), mat.NewDense(1, 2, []float64{0, 1}), nil)
+	p, err := Poles(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(p) != 2 || p[0] != p[1] || cmplx.Abs(p[0]+100) > 1e-12*100 {
+		t.Errorf("poles %v, want -100 twice", p)
+	}
+	// A double integrator with a rounding-level perturbation: the poles
+	// are exactly 0 (within the stated boundary tolerance).
+	s2 := sysOf(t, mat.NewDense(2, 2, []float64{1e-17, 1, 0, -1e-17}), mat.NewDense(2, 1, []float64{0, 1}), mat.NewDense(1, 2, []float64{1, 0}), nil)
+	p2, _ := Poles(s2)
+	if len(p2) != 2 || p2[0] != 0 || p2[1] != 0 {
+		t.Errorf("poles %v, want exactly 0 twice", p2)
+	}
+}
