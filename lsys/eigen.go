@@ -81,7 +81,7 @@ func Eigen(a mat.Matrix) (*EigenStructure, error) {
 // of the mode table: by natural frequency, then damping; a conjugate pair as
 // two consecutive entries, positive imaginary part first. A static gain has
 // no poles. Rounding residue is removed with the boundary tolerance of
-// StabilityOf, tol = 1000 u max(1, ||A||_2) (u the unit roundoff): a real
+// StabilityOf, tol = 1000 u max(1, ||A||_F) (u the unit roundoff): a real
 // part within tol of 0 is reported as exactly 0 (continuous time; a sampled
 // pole within tol of 1 as exactly 1), and an imaginary part within tol of 0
 // as exactly 0, so a rigid-body mode or an integrator reads as s = 0, not
@@ -125,7 +125,7 @@ func Poles(s *System) ([]complex128, error) {
 	return out, nil
 }
 
-// boundaryTol is 1000 u max(1, ||A||_2), below which the computation does
+// boundaryTol is 1000 u max(1, ||A||_F), below which the computation does
 // not resolve the distance of an eigenvalue from the stability boundary.
 func boundaryTol(A *mat.Dense) float64 {
 	return 1e3 * dlamchE * math.Max(1, mat.Norm(A, 2))

@@ -23,7 +23,7 @@ type ZeroSet struct {
 	// uncontrollable part); OutputDecoupling those no output sees.
 	InputDecoupling, OutputDecoupling []complex128
 	// Tol is the absolute rank tolerance of the pencil reduction: RelTol
-	// times the 2-norm of the balanced system matrix [[A, B], [C, D]] (see
+	// times the Frobenius norm of the balanced system matrix [[A, B], [C, D]] (see
 	// balancePencil: states balanced, inputs and outputs scaled so every
 	// block has a comparable norm), so results do not depend on units.
 	Tol, RelTol float64
@@ -41,7 +41,7 @@ type ZeroSet struct {
 // the system matrix (states, inputs and outputs; it leaves the zeros
 // unchanged and makes them independent of the units), orthogonal row and
 // column compressions, with every rank decided by singular values at
-// tol = relTol * ||[[A, B], [C, D]]||_2 of the balanced matrix, remove the
+// tol = relTol * ||[[A, B], [C, D]]||_F of the balanced matrix, remove the
 // infinite zeros and the
 // non-square part, leaving a regular pencil whose finite generalized
 // eigenvalues (by QZ) are the zeros. Transmission zeros come from the same
@@ -439,7 +439,7 @@ func balanceSystem(A, B, C, D *mat.Dense) (bA, bB, bC, bD *mat.Dense, su, sy, sx
 				C.Set(j, i, C.At(j, i)*f)
 			}
 		}
-		ref := mat.Norm(A, 2) / math.Sqrt(float64(n))
+		ref := mat.Norm(A, 2) / math.Sqrt(float64(n)) // Frobenius norm
 		if ref == 0 {
 			ref = 1
 		}
