@@ -109,7 +109,7 @@ type rpPanel struct {
 	LegendBelow bool
 	// Simplify drops points that lie within a quarter pixel of the line
 	// through their neighbours after decimation (smooth curves then need
-	// a few hundred points, not thousands; for charts with many curves).
+	// a few hundred points, not thousands); newPanel sets it.
 	Simplify bool
 
 	below []rpLegendEntry // filled by build when LegendBelow
@@ -198,7 +198,7 @@ func (tk rpStepTicker) Ticks(min, max float64) []plot.Tick {
 
 func newPanel(title, xl, yl string) *rpPanel {
 	nan := math.NaN()
-	return &rpPanel{Title: title, XLabel: xl, YLabel: yl, XMin: nan, XMax: nan, YMin: nan, YMax: nan}
+	return &rpPanel{Title: title, XLabel: xl, YLabel: yl, XMin: nan, XMax: nan, YMin: nan, YMax: nan, Simplify: true}
 }
 
 // rpFigure is a grid of panels, row-major.
@@ -367,7 +367,11 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 			x, y = rpDecimate(x, y, buckets, pn.LogX)
 			lx, ly = x, y
 			if pn.Simplify {
-				lx, ly = rpSimplify(x, y, yspan, pn.LogX)
+				xspan := 0.0 // the curve's own x range, unless the panel fixes one
+				if ok(pn.XMin) && ok(pn.XMax) && !pn.LogX {
+					xspan = pn.XMax - pn.XMin
+				}
+				lx, ly = rpSimplify(x, y, xspan, yspan, pn.LogX)
 			}
 		} else {
 			var fx, fy []float64
@@ -629,9 +633,10 @@ func (f *rpFigure) drawLegendBelow(dc draw.Canvas, entries []rpLegendEntry) draw
 // chord between kept neighbours (Ramer 1972, "An iterative procedure for
 // the polygonal approximation of plane curves", Computer Graphics and
 // Image Processing 1; Douglas & Peucker 1973, Cartographica 10(2)), with
-// distances measured on a 1000 x 600 pixel frame spanning the curve's x
-// range and the panel's y range (yspan). The first and last points stay.
-func rpSimplify(x, y []float64, yspan float64, logX bool) ([]float64, []float64) {
+// distances measured on a 1000 x 600 pixel frame spanning xspan (0: the
+// curve's x range) and the panel's y range (yspan). The first and last
+// points stay.
+func rpSimplify(x, y []float64, xspan, yspan float64, logX bool) ([]float64, []float64) {
 	n := len(x)
 	if n < 3 {
 		return x, y
@@ -642,14 +647,20 @@ func rpSimplify(x, y []float64, yspan float64, logX bool) ([]float64, []float64)
 		}
 		return v
 	}
-	xspan := tx(x[n-1]) - tx(x[0])
-	if !(xspan > 0) || !(yspan > 0) {
+	if xspan == 0 {
+		lo, hi := math.Inf(1), math.Inf(-1)
+		for _, v := range x {
+			lo, hi = math.Min(lo, tx(v)), math.Max(hi, tx(v))
+		}
+		xspan = hi - lo
+	}
+	if !(xspan > 0) || !(yspan > 0) || math.IsInf(xspan, 0) || math.IsInf(yspan, 0) {
 		return x, y
 	}
 	px := make([]float64, n)
 	py := make([]float64, n)
 	for k := range x {
-		px[k] = (tx(x[k]) - tx(x[0])) / xspan * rpPixels
+		px[k] = tx(x[k]) / xspan * rpPixels
 		py[k] = y[k] / yspan * 600
 	}
 	const tol = 0.25

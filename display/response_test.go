@@ -311,13 +311,13 @@ func TestSimplifyWithinTolerance(t *testing.T) {
 	for k := range x {
 		x[k], y[k] = float64(k), 3*float64(k)
 	}
-	if xs, _ := rpSimplify(x, y, 6000, false); len(xs) != 2 {
+	if xs, _ := rpSimplify(x, y, 0, 6000, false); len(xs) != 2 {
 		t.Errorf("a straight line keeps %d points, want 2", len(xs))
 	}
 	for k := range x {
 		y[k] = math.Sin(float64(k) / 100)
 	}
-	xs, ys := rpSimplify(x, y, 2, false)
+	xs, ys := rpSimplify(x, y, 0, 2, false)
 	if len(xs) > 400 {
 		t.Errorf("a sine keeps %d of 2000 points", len(xs))
 	}
