@@ -119,7 +119,12 @@ func renderResponse(v any, opt Options) Bundle {
 			pn.Series = append(pn.Series, rpSeries{Name: r.Outputs[i], X: r.T, Y: r.Y[i][c], Style: 0, Stairs: r.Sampled})
 			if r.Kind == "input" && len(r.U) == 1 {
 				pn.Series = append(pn.Series, rpSeries{Name: "input " + r.System.InputNames[0], X: r.T, Y: r.U[0], Style: 1, Width: 1, Stairs: r.Sampled})
-				pn.Legend = true
+				// one legend below the figure; with several outputs the
+				// curve is "output" (each panel's y label names it)
+				pn.Legend, pn.LegendBelow = i == 0 && c == 0, true
+				if rows > 1 {
+					pn.Series[0].Name = "output"
+				}
 			}
 			if gain != nil {
 				pn.Lines = append(pn.Lines, rpLine{At: gain[i*len(r.Channels)+c], Dashed: true})
