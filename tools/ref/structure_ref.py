@@ -16,7 +16,8 @@ they pass through JSON exactly) it writes:
     the Rosenbrock pencil ([[A, B], [C, D]], [[I, 0], [0, 0]]) by
     scipy.linalg.eig,
   - the eigenvalues at which [A - lI, B] or [A - lI; C] loses rank
-    (smallest singular value below 1e-8 of the norm), by numpy's SVD,
+    (smallest singular value below 1e-8 of the norm, with the columns of B
+    and rows of C scaled to the size of A), by numpy's SVD,
   - exp(A t) for t = 0.5 (scipy.linalg.expm).
 Numbers are written with 12 significant digits so the file is the same on
 every run; lists of eigenvalues are sorted by real part, then imaginary part.
@@ -122,6 +123,19 @@ def systems():
     A, B, C, D = random_system(6, 5, 1, 1, 0.0, False)
     out.append(("sampled_5", rounded(A / 4), B, C, D, 0.1))
     out.append(("random_30x2x2", *random_system(7, 30, 2, 2, 3.0, False), 0.0))
+    # A three-storey shear frame in SI units (kg, N, m): floors 20000 kg,
+    # roof 10000 kg, storey stiffness 2e7 N/m, stiffness-proportional
+    # damping 0.002 s; the floor-2 displacement seen from a shaker force on
+    # the roof, and the same with the force in units 1e4 times smaller
+    # (B x 1e4). Zeros must not depend on the units.
+    m, mr, k, beta = 20000.0, 10000.0, 2e7, 0.002
+    K = k * np.array([[2, -1, 0], [-1, 2, -1], [0, -1, 1]])
+    Minv = np.diag([1 / m, 1 / m, 1 / mr])
+    A = np.block([[np.zeros((3, 3)), np.eye(3)], [-Minv @ K, -beta * Minv @ K]])
+    B = np.array([[0], [0], [0], [0], [0], [1 / mr]])
+    C = np.array([[0, 1, 0, 0, 0, 0]])
+    out.append(("frame_si_floor2_shaker", A, B, C, np.zeros((1, 1)), 0.0))
+    out.append(("frame_si_floor2_shaker_x1e4", A, B * 1e4, C, np.zeros((1, 1)), 0.0))
     return out
 
 
@@ -143,6 +157,17 @@ def rank_loss(A, X, side, tol_rel=1e-8):
     """Eigenvalues l where [A - l I, X] (side 'input') or [A - l I; X]
     ('output') has smallest singular value below tol_rel * norm."""
     n = A.shape[0]
+    # Scale each input column (output row) to the root-mean-square column
+    # norm of A: whether a mode is reached does not depend on the units of
+    # the inputs and outputs, but a threshold relative to ||[A, X]|| does.
+    ref_size = np.linalg.norm(A) / np.sqrt(n) or 1.0
+    X = np.array(X, dtype=float)
+    if side == "input":
+        norms = np.linalg.norm(X, axis=0)
+        X = X * np.where(norms > 0, ref_size / np.where(norms > 0, norms, 1), 1)
+    else:
+        norms = np.linalg.norm(X, axis=1)
+        X = X * np.where(norms > 0, ref_size / np.where(norms > 0, norms, 1), 1)[:, None]
     lost = []
     for l in np.linalg.eigvals(A):
         if side == "input":
