@@ -42,9 +42,10 @@ type ZeroSet struct {
 // unchanged and makes them independent of the units), orthogonal row and
 // column compressions, with every rank decided by singular values at
 // tol = relTol * ||[[A, B], [C, D]]||_F of the balanced matrix, remove the
-// infinite zeros and the
-// non-square part, leaving a regular pencil whose finite generalized
-// eigenvalues (by QZ) are the zeros. Transmission zeros come from the same
+// infinite zeros and the non-square part, leaving a regular pencil whose
+// finite generalized eigenvalues (by QZ) are the zeros; zeros closer than
+// sqrt(relTol) of their size are one multiple zero, listed by the mean of
+// the cluster (see mergeMultiple). Transmission zeros come from the same
 // computation on a minimal realization; decoupling zeros from the staircase
 // forms. relTol <= 0 means DefaultRelTol. MIMO and non-square systems are
 // handled; a static gain has no zeros.
