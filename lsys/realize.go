@@ -70,14 +70,21 @@ func Realize(tf [][]*Rational, ts float64) (*System, error) {
 // RealizeTol is Realize with an explicit relative rank tolerance for the
 // staircase (see RealizeWithInfo).
 func RealizeTol(tf [][]*Rational, ts float64, tol float64) (*System, error) {
+	s, _, err := RealizeChecked(tf, ts, tol)
+	return s, err
+}
+
+// RealizeChecked is RealizeTol that also hands back the report, so callers
+// can pass its Warning on to the reader.
+func RealizeChecked(tf [][]*Rational, ts float64, tol float64) (*System, *RealizeInfo, error) {
 	s, info, err := RealizeWithInfo(tf, ts, tol)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	if info.Check > realizeFailTol {
-		return nil, errors.New("realize: " + info.Warning)
+		return nil, nil, errors.New("realize: " + info.Warning)
 	}
-	return s, nil
+	return s, info, nil
 }
 
 // RealizeWithInfo returns a minimal state-space realization of a transfer

@@ -1050,9 +1050,13 @@ func (ev *evaluator) realize(rows [][]*lsys.Rational, pos Pos) (*lsys.System, er
 		return nil, ev.errorAt(pos, "a transfer matrix needs at least one column", "Write it as rows of transfer functions: [[1/(s + 1), 0], [0, 2/(s + 3)]].")
 	}
 	var g *lsys.System
-	err := guard(func() (err error) { g, err = lsys.Realize(rows, ts); return })
+	var info *lsys.RealizeInfo
+	err := guard(func() (err error) { g, info, err = lsys.RealizeChecked(rows, ts, 0); return })
 	if err != nil {
 		return nil, ev.errorAt(pos, "cannot turn this transfer function into a system: "+err.Error(), "A transfer function must be proper (numerator degree at most the denominator's) to be a state-space system.")
+	}
+	if info != nil && info.Warning != "" && ev.out != nil {
+		ev.out.Stderr(fmt.Sprintf("line %d, column %d: %s\n", pos.Line, pos.Column, info.Warning))
 	}
 	return g, nil
 }
