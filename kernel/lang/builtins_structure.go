@@ -178,17 +178,7 @@ func structureBuiltins() []*Builtin {
 				"input-decoupling zeros are modes no input reaches, output-decoupling zeros modes no output sees. " +
 				"Fields: invariant, transmission, input_decoupling, output_decoupling.",
 			Examples: []string{msd + "zeros(G)", gimbal + "zeros(G).transmission"},
-			Fn: func(c *Call) (any, error) {
-				g, err := c.System("system")
-				if err != nil {
-					return nil, err
-				}
-				tol, err := stTol(c)
-				if err != nil {
-					return nil, err
-				}
-				return lsys.Zeros(g, tol)
-			},
+			Fn:       stSystemTol(lsys.Zeros),
 		},
 		{
 			Name: "eigen", Group: GroupMatrices,
@@ -282,17 +272,7 @@ func structureBuiltins() []*Builtin {
 				"never from the rank of the Krylov matrix. Fields: controllable, observable, stabilizable, detectable, " +
 				"uncontrollable, unobservable (the modes), parts.",
 			Examples: []string{msd + "structure(G)", "structure(system([[-1, 0], [0, -2]], [1, 0], [1, 1]))"},
-			Fn: func(c *Call) (any, error) {
-				g, err := c.System("system")
-				if err != nil {
-					return nil, err
-				}
-				tol, err := stTol(c)
-				if err != nil {
-					return nil, err
-				}
-				return lsys.StructureOf(g, tol)
-			},
+			Fn:       stSystemTol(lsys.StructureOf),
 		},
 		{
 			Name: "decompose", Group: GroupAnalysis,
@@ -301,17 +281,7 @@ func structureBuiltins() []*Builtin {
 			Doc: "Built from orthonormal bases of the reachable and unobservable subspaces (staircase forms) and their " +
 				"intersection; the condition number of T is shown. Fields: system, T, sizes, cond.",
 			Examples: []string{"decompose(system([[-1, 0], [0, -2]], [1, 0], [1, 1]))"},
-			Fn: func(c *Call) (any, error) {
-				g, err := c.System("system")
-				if err != nil {
-					return nil, err
-				}
-				tol, err := stTol(c)
-				if err != nil {
-					return nil, err
-				}
-				return lsys.Decompose(g, tol)
-			},
+			Fn:       stSystemTol(lsys.Decompose),
 		},
 		{
 			Name: "minimal", Group: GroupAnalysis,
@@ -319,17 +289,7 @@ func structureBuiltins() []*Builtin {
 			Help:     "A minimal realization: the reachable and observable part, found by orthogonal staircase reductions.",
 			Doc:      "Same transfer function with as few states as possible (Van Dooren 1981). States are renamed z1, z2, ...",
 			Examples: []string{"minimal(system([[-1, 0], [0, -2]], [1, 0], [1, 1]))"},
-			Fn: func(c *Call) (any, error) {
-				g, err := c.System("system")
-				if err != nil {
-					return nil, err
-				}
-				tol, err := stTol(c)
-				if err != nil {
-					return nil, err
-				}
-				return lsys.Minimal(g, tol)
-			},
+			Fn:       stSystemTol(lsys.Minimal),
 		},
 		{
 			Name: "reachable", Group: GroupAnalysis,
@@ -337,17 +297,7 @@ func structureBuiltins() []*Builtin {
 			Help:     "The reachable (controllable) subspace, as an orthonormal basis.",
 			Doc:      "Leading columns of the controllability staircase form. Fields: basis, dim, residual, invariant, values.",
 			Examples: []string{"reachable(system([[-1, 0], [0, -2]], [1, 0], [1, 1]))"},
-			Fn: func(c *Call) (any, error) {
-				g, err := c.System("system")
-				if err != nil {
-					return nil, err
-				}
-				tol, err := stTol(c)
-				if err != nil {
-					return nil, err
-				}
-				return lsys.Reachable(g, tol)
-			},
+			Fn:       stSystemTol(lsys.Reachable),
 		},
 		{
 			Name: "unobservable", Group: GroupAnalysis,
@@ -355,17 +305,7 @@ func structureBuiltins() []*Builtin {
 			Help:     "The unobservable subspace, as an orthonormal basis.",
 			Doc:      "Trailing columns of the observability staircase form. Fields: basis, dim, residual, invariant, values.",
 			Examples: []string{gimbal + "unobservable(G)"},
-			Fn: func(c *Call) (any, error) {
-				g, err := c.System("system")
-				if err != nil {
-					return nil, err
-				}
-				tol, err := stTol(c)
-				if err != nil {
-					return nil, err
-				}
-				return lsys.Unobservable(g, tol)
-			},
+			Fn:       stSystemTol(lsys.Unobservable),
 		},
 		{
 			Name: "spectral", Group: GroupAnalysis,
@@ -683,4 +623,24 @@ func registerStructureTypes() {
 			}
 			return nil, false
 		}))
+}
+
+// stSystemTol adapts an analysis of a system at a tolerance to a built-in's
+// Fn: the "system" argument and the optional "tol".
+func stSystemTol[T any](f func(*lsys.System, float64) (T, error)) func(*Call) (any, error) {
+	return func(c *Call) (any, error) {
+		g, err := c.System("system")
+		if err != nil {
+			return nil, err
+		}
+		tol, err := stTol(c)
+		if err != nil {
+			return nil, err
+		}
+		r, err := f(g, tol)
+		if err != nil {
+			return nil, err
+		}
+		return r, nil
+	}
 }
