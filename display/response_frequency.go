@@ -469,65 +469,14 @@ func renderPoleZero(v any, opt Options) Bundle {
 			map[bool]string{true: "z", false: "s"}[g.Sampled()], fmtNum(R),
 			strings.Join(append(rpFarList("pole", farPoles), rpFarList("zero", farZeros)...), ", "))
 	}
-	gridCol := rpGrid
-	var texts []rpText
 	if g.Sampled() {
 		R = math.Max(R, 1)
-		// unit circle, then curves of constant damping and natural
-		// frequency mapped through z = e^{sT}
-		var ux, uy []float64
-		for k := 0; k <= 360; k++ {
-			a := float64(k) * math.Pi / 180
-			ux, uy = append(ux, math.Cos(a)), append(uy, math.Sin(a))
-		}
-		pn.Series = append(pn.Series, rpSeries{X: ux, Y: uy, Style: -1, Width: 1, Color: rpGrey})
-		T := g.Ts
-		for _, zeta := range []float64{0.2, 0.4, 0.6, 0.8} {
-			wd := math.Sqrt(1 - zeta*zeta)
-			for _, sgn := range []float64{1, -1} {
-				var x, y []float64
-				for k := 0; k <= 100; k++ {
-					wn := float64(k) / 100 * math.Pi / (T * wd)
-					z := cmplx.Exp(complex(-zeta*wn*T, sgn*wd*wn*T))
-					x, y = append(x, real(z)), append(y, imag(z))
-				}
-				pn.Series = append(pn.Series, rpSeries{X: x, Y: y, Style: -1, Width: 0.6, Color: gridCol})
-				if sgn > 0 {
-					texts = append(texts, rpText{X: x[50], Y: y[50], Text: "ζ " + fmtNum(zeta)})
-				}
-			}
-		}
-		for _, frac := range []float64{0.2, 0.4, 0.6, 0.8} {
-			wn := frac * math.Pi / T
-			var x, y []float64
-			for k := 0; k <= 60; k++ {
-				zeta := float64(k) / 60
-				wd := math.Sqrt(1 - zeta*zeta)
-				z := cmplx.Exp(complex(-zeta*wn*T, wd*wn*T))
-				x, y = append(x, real(z)), append(y, imag(z))
-			}
-			pn.Series = append(pn.Series, rpSeries{X: x, Y: y, Style: -1, Width: 0.6, Color: gridCol})
-			texts = append(texts, rpText{X: x[0], Y: y[0], Text: fmtNum(frac) + "π/T"})
-		}
 	} else {
 		R *= 1.15
-		for _, zeta := range []float64{0.2, 0.4, 0.6, 0.8} {
-			wd := math.Sqrt(1 - zeta*zeta)
-			pn.Series = append(pn.Series,
-				rpSeries{X: []float64{0, -zeta * R}, Y: []float64{0, wd * R}, Style: -1, Width: 0.6, Color: gridCol},
-				rpSeries{X: []float64{-zeta * R, 0}, Y: []float64{-wd * R, 0}, Style: -1, Width: 0.6, Color: gridCol})
-			texts = append(texts, rpText{X: -zeta * R * 0.95, Y: wd * R * 0.95, Text: "ζ " + fmtNum(zeta)})
-		}
-		step := niceStep(R / 4)
-		for wn := step; wn <= R*1.0001; wn += step {
-			var x, y []float64
-			for k := 0; k <= 60; k++ {
-				a := math.Pi/2 + float64(k)/60*math.Pi
-				x, y = append(x, wn*math.Cos(a)), append(y, wn*math.Sin(a))
-			}
-			pn.Series = append(pn.Series, rpSeries{X: x, Y: y, Style: -1, Width: 0.6, Color: gridCol})
-			texts = append(texts, rpText{X: -wn, Y: 0, Text: fmtNum(wn)})
-		}
+	}
+	grid, texts := splaneGrid(g.Ts, R, gridLabelOnAxis)
+	pn.Series = append(pn.Series, grid...)
+	if !g.Sampled() {
 		pn.Lines = append(pn.Lines, rpLine{At: 0, Vertical: true})
 	}
 	// far points on the edge of the grid, in their direction, labelled
