@@ -248,7 +248,15 @@ func renderMargins(v any, opt Options) Bundle {
 	}
 	verdict := "closed loop (negative unity feedback): stability not checked"
 	if mg.ClosedChecked {
-		verdict = choose(mg.ClosedStable, "closed loop (negative unity feedback) is stable", "closed loop (negative unity feedback) is UNSTABLE: the margins do not describe a working loop")
+		switch {
+		case mg.ClosedStable:
+			verdict = "closed loop (negative unity feedback) is stable"
+		case mg.ClosedBoundary > 0:
+			verdict = fmt.Sprintf("closed loop (negative unity feedback) is marginally stable: %s on the stability boundary, none beyond it (often a state the loop does not see, such as a position under a speed loop; check that it may drift)",
+				count(mg.ClosedBoundary, "pole", "poles"))
+		default:
+			verdict = "closed loop (negative unity feedback) is UNSTABLE: the margins do not describe a working loop"
+		}
 	}
 	bw := rpFreq(mg.Bandwidth, hz)
 	if math.IsNaN(mg.Bandwidth) {

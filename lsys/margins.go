@@ -32,6 +32,12 @@ type Margins struct {
 	ResonantFreq  float64 // rad/s
 	ClosedStable  bool    // whether T is stable (from its poles)
 	ClosedChecked bool    // whether the closed-loop poles could be computed
+	// ClosedBoundary counts closed-loop poles on the stability boundary
+	// (within the tolerance of StabilityOf) when no pole lies beyond it and
+	// none on it is defective: the loop is then marginally stable, which
+	// is typical of a state the loop does not see, such as the angle of a
+	// speed loop.
+	ClosedBoundary int
 
 	// Notes say where a figure rests on the edge of the range rather than
 	// on a true crossing or extremum, and what may lie beyond a range given.
@@ -247,6 +253,9 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 		if cl, err := Feedback(L, one, -1); err == nil {
 			mg.ClosedChecked = true
 			mg.ClosedStable = Stable(cl)
+			if st, err := StabilityOf(cl); err == nil && !mg.ClosedStable && st.Marginal {
+				mg.ClosedBoundary = st.Boundary
+			}
 		}
 	}
 	return mg, nil

@@ -220,3 +220,28 @@ func TestMarginsResonantLoopAllCrossovers(t *testing.T) {
 		t.Errorf("chart starts at %g rad/s: the first crossover %g sits on its frame", mg.Loop.W[0], want[0])
 	}
 }
+
+// A speed loop around a rigid body whose angle the loop does not see: the
+// closed loop keeps the angle's pole at s = 0 (speed' = -speed + r, angle'
+// = speed: poles -1 and 0, by hand), so it is marginally stable, not
+// unstable.
+func TestMarginsSpeedLoopWithUnseenAngle(t *testing.T) {
+	A := mat.NewDense(2, 2, []float64{0, 1, 0, 0}) // angle, speed
+	B := mat.NewDense(2, 1, []float64{0, 1})
+	C := mat.NewDense(1, 2, []float64{0, 1})
+	L, err := FromMatrices(A, B, C, nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mg, err := LoopMargins(context.Background(), L, FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if mg.ClosedStable || mg.ClosedBoundary != 1 {
+		t.Fatalf("stable %v, boundary %d; want false, 1", mg.ClosedStable, mg.ClosedBoundary)
+	}
+	// L = 1/s as seen from speed: crossover at 1 rad/s, 90 deg (common practice).
+	if math.Abs(mg.GainCrossover-1) > 1e-9 || math.Abs(mg.PhaseMargin-90) > 1e-6 {
+		t.Errorf("crossover %g, PM %g", mg.GainCrossover, mg.PhaseMargin)
+	}
+}
