@@ -561,15 +561,11 @@ func responseBuiltins() []*Builtin {
 				"20 points per decade, refined where the magnitude moves more than 1 dB or the phase more than 5 degrees between points.",
 			Examples: []string{respExample + "frequency(G)", respExample + "frequency(G, from: 0.01, to: 10, hz: true)"},
 			Fn: func(c *Call) (any, error) {
-				g, err := c.System("system")
+				f, err := respFrequency(c)
 				if err != nil {
 					return nil, err
 				}
-				o, err := freqOptions(c)
-				if err != nil {
-					return nil, err
-				}
-				return lsys.Frequency(c.Context(), g, o)
+				return f, nil
 			},
 		},
 		{
@@ -579,15 +575,7 @@ func responseBuiltins() []*Builtin {
 			Doc:      "Positive frequencies solid, their mirror image (negative frequencies) dashed. Near an integrator the curve runs off to infinity; the chart frames the finite part.",
 			Examples: []string{"L = 2 / (s*(s + 1)*(s + 2))\npolar(L)"},
 			Fn: func(c *Call) (any, error) {
-				g, err := c.System("system")
-				if err != nil {
-					return nil, err
-				}
-				o, err := freqOptions(c)
-				if err != nil {
-					return nil, err
-				}
-				f, err := lsys.Frequency(c.Context(), g, o)
+				f, err := respFrequency(c)
 				if err != nil {
 					return nil, err
 				}
@@ -601,15 +589,7 @@ func responseBuiltins() []*Builtin {
 			Doc:      "At every frequency, the singular values of G(jw) from the real SVD of [[Re G, -Im G], [Im G, Re G]].",
 			Examples: []string{"G = system([[-1, 0], [0, -3]], [[1, 0], [1, 1]], [[1, 0], [0, 1]])\nsingular(G)"},
 			Fn: func(c *Call) (any, error) {
-				g, err := c.System("system")
-				if err != nil {
-					return nil, err
-				}
-				o, err := freqOptions(c)
-				if err != nil {
-					return nil, err
-				}
-				f, err := lsys.Frequency(c.Context(), g, o)
+				f, err := respFrequency(c)
 				if err != nil {
 					return nil, err
 				}
@@ -1013,4 +993,18 @@ func loadTable(c *Call, name string) (any, error) {
 		return nil, c.Errorf("file", "", "load: %q holds no rows of numbers", name)
 	}
 	return makeTable(c, t, rows, filepath.Base(name))
+}
+
+// respFrequency is the frequency response of the call's "system" argument
+// over the range its frequency arguments give.
+func respFrequency(c *Call) (*lsys.FrequencyResponse, error) {
+	g, err := c.System("system")
+	if err != nil {
+		return nil, err
+	}
+	o, err := freqOptions(c)
+	if err != nil {
+		return nil, err
+	}
+	return lsys.Frequency(c.Context(), g, o)
 }
