@@ -64,6 +64,13 @@ func sxModesTitle(t *lsys.ModeTable) string {
 		count(n, "state", "states"), count(len(t.Modes), "mode", "modes"))
 }
 
+// sxVerdictNote states how the reached and seen verdicts were decided and
+// their two tolerances.
+func sxVerdictNote(t *lsys.ModeTable) string {
+	return fmt.Sprintf("verdicts: PBH test per mode in the balanced system (states balanced, inputs and outputs scaled to the size of A by powers of two, so units do not matter); reached if the margin exceeds %s x ||B~|| = %s, seen if it exceeds %s x ||C~|| = %s",
+		fmtNum(t.RelTol), fmtNum(t.ReachTol), fmtNum(t.RelTol), fmtNum(t.ObserveTol))
+}
+
 func renderModes(v any, _ Options) Bundle {
 	t := v.(*lsys.ModeTable)
 	if t == nil {
@@ -81,11 +88,11 @@ func renderModes(v any, _ Options) Bundle {
 		cells = append(cells, sxModeRow(i, m))
 	}
 	writeColumns(&b, cells, "  ", 1)
-	fmt.Fprintf(&b, "  verdicts: PBH test per mode, margin against %s x the norm of [A B] / [A; C]\n", fmtNum(t.RelTol))
+	b.WriteString("  " + sxVerdictNote(t) + "\n")
 
 	// Reach and visibility per signal.
 	if s != nil && (s.M() > 0 || s.P() > 0) {
-		b.WriteString("\nreach |w^H b_j| per input, visibility |c_i v| per output, PBH margins against the tolerance\n")
+		b.WriteString("\nreach |w^H b_j|/||b_j|| per input, visibility |c_i v|/||c_i|| per output (balanced system, unit eigenvectors: 0 none, 1 along the mode), PBH margins\n")
 		head := []string{"#"}
 		for _, u := range s.InputNames {
 			head = append(head, "<- "+u)
@@ -93,7 +100,7 @@ func renderModes(v any, _ Options) Bundle {
 		for _, y := range s.OutputNames {
 			head = append(head, "-> "+y)
 		}
-		head = append(head, "reach margin", "seen margin", "tol")
+		head = append(head, "reach margin", "seen margin")
 		g := [][]string{head}
 		for i, m := range t.Modes {
 			row := []string{strconv.Itoa(i + 1)}
@@ -103,7 +110,7 @@ func renderModes(v any, _ Options) Bundle {
 			for _, o := range m.Visibility {
 				row = append(row, fmtNum(o))
 			}
-			row = append(row, fmtNum(m.ReachMargin), fmtNum(m.ObserveMargin), fmtNum(m.Tol))
+			row = append(row, fmtNum(m.ReachMargin), fmtNum(m.ObserveMargin))
 			g = append(g, row)
 		}
 		writeColumns(&b, g, "  ", 1)
@@ -200,11 +207,11 @@ func sxModesHTML(t *lsys.ModeTable) string {
 				if c == "NO" {
 					style += ";font-weight:bold"
 				}
-				mg := m.ReachMargin
+				mg, tol := m.ReachMargin, m.ReachTol
 				if k == 10 {
-					mg = m.ObserveMargin
+					mg, tol = m.ObserveMargin, m.ObserveTol
 				}
-				title = fmt.Sprintf(" title=\"PBH margin %s against tolerance %s\"", fmtNum(mg), fmtNum(m.Tol))
+				title = fmt.Sprintf(" title=\"PBH margin %s against tolerance %s\"", fmtNum(mg), fmtNum(tol))
 			}
 			fmt.Fprintf(&h, "<td style=\"%s\"%s>%s</td>", style, title, html.EscapeString(c))
 		}
@@ -220,7 +227,7 @@ func sxModesHTML(t *lsys.ModeTable) string {
 		h.WriteString("</tr>")
 	}
 	h.WriteString("</table>")
-	fmt.Fprintf(&h, "<div style=\"color:#555;margin-top:4px\">reached / seen: PBH test per mode, margin against %s &times; the norm of [A B] / [A; C]. Shaded rows do not decay. Bars: reach |w<sup>H</sup> b<sub>j</sub>| and visibility |c<sub>i</sub> v| (unit left and right eigenvectors w, v) relative to the largest in the column; hover a verdict for its margin. Shape: one bar per state, magnitude relative to the largest; bars below the line are in antiphase (phase beyond &plusmn;90&deg;).</div>", fmtNum(t.RelTol))
+	fmt.Fprintf(&h, "<div style=\"color:#555;margin-top:4px\">%s. Shaded rows do not decay. Bars: reach |w<sup>H</sup> b<sub>j</sub>|/||b<sub>j</sub>|| and visibility |c<sub>i</sub> v|/||c<sub>i</sub>|| in the balanced system (unit left and right eigenvectors w, v; 0 = none, 1 = along the mode) relative to the largest in the column; hover a verdict for its margin. Shape: one bar per state, magnitude relative to the largest; bars below the line are in antiphase (phase beyond &plusmn;90&deg;).</div>", html.EscapeString(sxVerdictNote(t)))
 	h.WriteString("</div>")
 	return h.String()
 }
@@ -292,9 +299,10 @@ func sxModesJSON(t *lsys.ModeTable) map[string]any {
 			"observable":     m.Observable,
 			"reach_margin":   jsonNum(m.ReachMargin),
 			"observe_margin": jsonNum(m.ObserveMargin),
-			"tol":            jsonNum(m.Tol),
+			"reach_tol":      jsonNum(m.ReachTol),
+			"observe_tol":    jsonNum(m.ObserveTol),
 			"shape":          shape,
 		}
 	}
-	return map[string]any{"kind": "modes", "rel_tol": t.RelTol, "modes": modes}
+	return map[string]any{"kind": "modes", "rel_tol": t.RelTol, "reach_tol": jsonNum(t.ReachTol), "observe_tol": jsonNum(t.ObserveTol), "modes": modes}
 }

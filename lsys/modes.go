@@ -39,21 +39,29 @@ type Mode struct {
 	// small changes of A. +Inf for a defective eigenvalue.
 	Cond float64
 
-	// Reach[j] = |w^H b_j| is how strongly input j drives the mode, w the
-	// unit left eigenvector: zero exactly when input j cannot move it.
-	// Visibility[i] = |c_i v|, v the unit right eigenvector, is how strongly
-	// output i sees it. Reach*Visibility*Cond is the magnitude of the
-	// residue of G_ij at a simple eigenvalue. For a cluster the largest over
-	// its members is given.
+	// Reach[j] = |w^H b_j| / ||b_j|| is how strongly input j drives the
+	// mode and Visibility[i] = |c_i v| / ||c_i|| how strongly output i sees
+	// it, both measured in the balanced system of the PBH verdicts (see
+	// ModesTol), with w and v the unit left and right eigenvectors there: a
+	// number between 0 (the input cannot move the mode, the output cannot
+	// see it) and 1 (the input acts, the output looks, along the
+	// eigenvector), independent of the units of the signal. For a cluster
+	// the largest over its members is given.
 	Reach, Visibility []float64
 	// Reachable and Observable are the PBH verdicts (Hautus 1969): the mode
 	// can be moved by the inputs / seen by the outputs. The margins are the
-	// distances the verdicts rest on (||w^H B|| and ||C v|| for a simple
-	// eigenvalue; the smallest singular value of [A - lambda I, B] and of
-	// [A - lambda I; C] for a cluster), compared against Tol.
+	// distances the verdicts rest on, in the balanced system (A~, B~, C~):
+	// ||w^H B~|| and ||C~ v|| for a simple eigenvalue, the smallest singular
+	// value of [A~ - lambda I, B~] and of [A~ - lambda I; C~] for a cluster.
+	// ReachMargin is compared against ReachTol = RelTol ||B~||_F and
+	// ObserveMargin against ObserveTol = RelTol ||C~||_F, so each verdict
+	// is relative to what it decides and neither depends on units.
 	Reachable, Observable      bool
 	ReachMargin, ObserveMargin float64
-	Tol                        float64
+	ReachTol, ObserveTol       float64
+	// Tol is the larger of ReachTol and ObserveTol, a single figure for
+	// logs; the verdicts use the two tolerances separately.
+	Tol float64
 	// Shape is the right eigenvector scaled so its largest entry is 1 (real
 	// and positive): the relative amplitude and phase of each state.
 	Shape []complex128
@@ -68,9 +76,12 @@ type ModeTable struct {
 	System *System
 	Modes  []Mode
 	// RelTol is the relative tolerance of the PBH verdicts and of the
-	// clustering of eigenvalues; Tol of each mode is RelTol times the norm
-	// it is measured against.
-	RelTol float64
+	// clustering of eigenvalues. ReachTol = RelTol ||B~||_F and ObserveTol =
+	// RelTol ||C~||_F are the absolute tolerances of the reached and seen
+	// verdicts, B~ and C~ the input and output matrices of the balanced
+	// system (see ModesTol); 0 when there are no inputs (outputs).
+	RelTol               float64
+	ReachTol, ObserveTol float64
 }
 
 // DefaultRelTol is the relative tolerance of rank and multiplicity
@@ -145,6 +156,17 @@ func Modes(s *System) (*ModeTable, error) {
 }
 
 // ModesTol is Modes with a chosen relative tolerance (0 means the default).
+//
+// The PBH verdicts are decided in the balanced system of the structure
+// and zeros analyses (see balanceSystem: states balanced as in Osborne
+// 1960 and Parlett & Reinsch 1969, inputs and outputs scaled to the size
+// of A, all by powers of two): A~ = T A T^-1, B~ = T B Su, C~ = Sy C T^-1
+// with the unit left and right eigenvectors of A~. Otherwise the verdicts
+// would depend on units: in SI units a floor of 2000 t driven in N has
+// b = 5e-7 next to k/m = 2000, and a tolerance relative to ||[A B]|| calls
+// every mode unreached; a tolerance on ||C v|| relative to ||[A B]|| is set
+// by the size of B. The reach of a mode is judged against RelTol ||B~||_F
+// and its visibility against RelTol ||C~||_F.
 func ModesTol(s *System, relTol float64) (*ModeTable, error) {
 	if relTol <= 0 || math.IsNaN(relTol) {
 		relTol = DefaultRelTol
@@ -161,8 +183,22 @@ func ModesTol(s *System, relTol float64) (*ModeTable, error) {
 	if err != nil {
 		return nil, err
 	}
-	normAB := stackedNorm(s.A, s.B)
-	normAC := stackedNorm(s.A, s.C)
+	n, nu, ny := s.N(), s.M(), s.P()
+	bA, bB, bC, _, _, _, sx := balanceSystem(s.A, s.B, s.C, nil)
+	if bB != nil {
+		mt.ReachTol = relTol * mat.Norm(bB, 2)
+	}
+	if bC != nil {
+		mt.ObserveTol = relTol * mat.Norm(bC, 2)
+	}
+	colNorm := make([]float64, nu)
+	for j := range colNorm {
+		colNorm[j] = mat.Norm(bB.ColView(j), 2)
+	}
+	rowNorm := make([]float64, ny)
+	for i := range rowNorm {
+		rowNorm[i] = mat.Norm(bC.RowView(i), 2)
+	}
 	for _, cl := range js.Clusters {
 		lam := cl.Value
 		m := Mode{Eigenvalue: lam, Pair: imag(lam) > 0, Multiplicity: cl.Algebraic, Blocks: cl.Blocks, Cond: cl.Cond}
@@ -177,9 +213,10 @@ func ModesTol(s *System, relTol float64) (*ModeTable, error) {
 		}
 		fillFigures(&m, s.Ts)
 		// Reach and visibility along the unit left and right eigenvectors
-		// of the members (the largest over a cluster).
-		m.Reach = make([]float64, s.M())
-		m.Visibility = make([]float64, s.P())
+		// of the members in the balanced coordinates x~ = diag(sx)^-1 x:
+		// v~ = v ./ sx and w~ = w .* sx (the largest over a cluster).
+		m.Reach = make([]float64, nu)
+		m.Visibility = make([]float64, ny)
 		var wb2, cv2 float64
 		first := -1
 		for _, k := range cl.idx {
@@ -189,39 +226,50 @@ func ModesTol(s *System, relTol float64) (*ModeTable, error) {
 			if first < 0 {
 				first = k
 			}
-			w, v := es.Left[k], es.Right[k]
+			w, v := make([]complex128, n), make([]complex128, n)
+			for i := 0; i < n; i++ {
+				w[i] = es.Left[k][i] * complex(sx[i], 0)
+				v[i] = es.Right[k][i] / complex(sx[i], 0)
+			}
+			unitNormalize(w)
+			unitNormalize(v)
 			var wbk, cvk float64
-			for j := 0; j < s.M(); j++ {
+			for j := 0; j < nu; j++ {
 				var g complex128
-				for i := 0; i < s.N(); i++ {
-					g += cmplx.Conj(w[i]) * complex(s.B.At(i, j), 0)
+				for i := 0; i < n; i++ {
+					g += cmplx.Conj(w[i]) * complex(bB.At(i, j), 0)
 				}
 				a := cmplx.Abs(g)
 				wbk += a * a
-				m.Reach[j] = math.Max(m.Reach[j], a)
+				if colNorm[j] > 0 {
+					m.Reach[j] = math.Max(m.Reach[j], a/colNorm[j])
+				}
 			}
-			for i := 0; i < s.P(); i++ {
+			for i := 0; i < ny; i++ {
 				var g complex128
-				for l := 0; l < s.N(); l++ {
-					g += complex(s.C.At(i, l), 0) * v[l]
+				for l := 0; l < n; l++ {
+					g += complex(bC.At(i, l), 0) * v[l]
 				}
 				a := cmplx.Abs(g)
 				cvk += a * a
-				m.Visibility[i] = math.Max(m.Visibility[i], a)
+				if rowNorm[i] > 0 {
+					m.Visibility[i] = math.Max(m.Visibility[i], a/rowNorm[i])
+				}
 			}
 			wb2, cv2 = math.Max(wb2, wbk), math.Max(cv2, cvk)
 		}
-		m.Tol = relTol * math.Max(normAB, normAC)
+		m.ReachTol, m.ObserveTol = mt.ReachTol, mt.ObserveTol
+		m.Tol = math.Max(m.ReachTol, m.ObserveTol)
 		if cl.Algebraic == 1 {
 			m.ReachMargin, m.ObserveMargin = math.Sqrt(wb2), math.Sqrt(cv2)
 		} else {
-			// A cluster: the PBH ranks of [A - lambda I, B] and
-			// [A - lambda I; C] by singular values.
-			m.ReachMargin = pbhMargin(s.A, s.B, lam, false)
-			m.ObserveMargin = pbhMargin(s.A, s.C, lam, true)
+			// A cluster: the PBH ranks of [A~ - lambda I, B~] and
+			// [A~ - lambda I; C~] by singular values.
+			m.ReachMargin = pbhMargin(bA, bB, lam, false)
+			m.ObserveMargin = pbhMargin(bA, bC, lam, true)
 		}
-		m.Reachable = m.ReachMargin > relTol*normAB
-		m.Observable = m.ObserveMargin > relTol*normAC
+		m.Reachable = m.ReachMargin > m.ReachTol
+		m.Observable = m.ObserveMargin > m.ObserveTol
 		if cl.Algebraic > 1 {
 			// The members' eigenvectors of a cluster are only accurate to
 			// about the cluster's spread; the null vector of A - lambda I

@@ -243,3 +243,136 @@ func TestPolesMultipleAndBoundary(t *testing.T) {
 		t.Errorf("poles %v, want exactly 0 twice", p2)
 	}
 }
+
+// chain3 is three equal masses m in a line, joined to each other and to
+// fixed walls at both ends by springs k, with stiffness-proportional
+// damping beta*K; states (q1, q2, q3, v1, v2, v3). force selects the mass
+// the single input pushes (scaled by gain), sense the mass whose
+// displacement is the single output, qScale the unit of the positions
+// (1 for m, 1000 for mm).
+func chain3(t *testing.T, m, k, beta, gain float64, force, sense int, qScale float64) *System {
+	t.Helper()
+	K := [][]float64{{2, -1, 0}, {-1, 2, -1}, {0, -1, 2}}
+	A := mat.NewDense(6, 6, nil)
+	for i := 0; i < 3; i++ {
+		A.Set(i, 3+i, 1)
+		for j := 0; j < 3; j++ {
+			A.Set(3+i, j, -k*K[i][j]/m)
+			A.Set(3+i, 3+j, -beta*k*K[i][j]/m)
+		}
+	}
+	B := mat.NewDense(6, 1, nil)
+	B.Set(3+force, 0, gain/m)
+	C := mat.NewDense(1, 6, nil)
+	C.Set(0, sense, 1)
+	s, err := FromMatrices(A, B, C, nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if qScale != 1 {
+		// Positions and rates in another length unit: z = T x.
+		T := mat.NewDense(6, 6, nil)
+		for i := 0; i < 6; i++ {
+			T.Set(i, i, qScale)
+		}
+		if s, err = Transform(s, T); err != nil {
+			t.Fatal(err)
+		}
+	}
+	return s
+}
+
+func TestModesPBHUnitIndependent(t *testing.T) {
+	// Three floors of 2000 t on storey springs of 4e6 kN/m, as a chain
+	// fixed at both ends. Closed form (eigenvalues of the tridiagonal
+	// Toeplitz matrix [-1 2 -1], from memory; e.g. Meyer, Matrix Analysis
+	// and Applied Linear Algebra, 2000, sec. 7.2): wj^2 = (k/m)(2 - 2
+	// cos(j pi/4)), shapes (1, sqrt2, 1), (1, 0, -1), (1, -sqrt2, 1); so the
+	// middle mass is a node of mode 2. Stiffness-proportional damping keeps
+	// these shapes (Caughey 1960; common practice), zeta_j = beta wj / 2.
+	// A force on the node cannot move mode 2 and a sensor on the node
+	// cannot see it (Hautus 1969); every other verdict is yes. The same
+	// building in t, kN, m and in SI (kg, N: B 1000 times smaller), with
+	// the input scaled by 1e4 and with positions in mm must give the same
+	// verdicts and the same margins relative to their tolerances.
+	const mT, kT, beta = 2000.0, 4e6, 1e-3 // t, kN/m, s
+	type variant struct {
+		name             string
+		m, k, gain, qUse float64
+	}
+	variants := []variant{
+		{"t, kN, m", mT, kT, 1, 1},
+		{"kg, N, m", mT * 1e3, kT * 1e3, 1, 1},
+		{"kg, N, m; input x 1e4", mT * 1e3, kT * 1e3, 1e4, 1},
+		{"kg, N, mm", mT * 1e3, kT * 1e3, 1, 1000},
+	}
+	for _, planted := range []struct {
+		name          string
+		force, sense  int
+		reach2, seen2 bool
+	}{
+		{"force on the node", 1, 0, false, true},
+		{"sensor on the node", 0, 1, true, false},
+	} {
+		var ref *ModeTable
+		for _, v := range variants {
+			s := chain3(t, v.m, v.k, beta, v.gain, planted.force, planted.sense, v.qUse)
+			mt, err := Modes(s)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(mt.Modes) != 3 {
+				t.Fatalf("%s, %s: %d modes", planted.name, v.name, len(mt.Modes))
+			}
+			for j, md := range mt.Modes {
+				wn := math.Sqrt(kT / mT * (2 - 2*math.Cos(float64(j+1)*math.Pi/4)))
+				if !near(md.NaturalFreq, wn, 1e-10) || !near(md.Damping, beta*wn/2, 1e-9) {
+					t.Errorf("%s, %s: mode %d wn %v zeta %v, want %v %v", planted.name, v.name, j+1, md.NaturalFreq, md.Damping, wn, beta*wn/2)
+				}
+				wantR, wantO := true, true
+				if j == 1 {
+					wantR, wantO = planted.reach2, planted.seen2
+				}
+				if md.Reachable != wantR || md.Observable != wantO {
+					t.Errorf("%s, %s: mode %d reached %v (margin %.3g, tol %.3g) seen %v (margin %.3g, tol %.3g), want %v %v",
+						planted.name, v.name, j+1, md.Reachable, md.ReachMargin, md.ReachTol, md.Observable, md.ObserveMargin, md.ObserveTol, wantR, wantO)
+				}
+				if ref == nil {
+					continue
+				}
+				// Margins relative to their tolerances: the balancing works
+				// in powers of two, so a unit change not a power of two may
+				// move a scaled quantity by up to a factor 2 (common practice
+				// for power-of-two scaling); a verdict sits orders of
+				// magnitude away from its tolerance.
+				r := ref.Modes[j]
+				if wantR && !within(md.ReachMargin/md.ReachTol, r.ReachMargin/r.ReachTol, 2) {
+					t.Errorf("%s, %s: mode %d reach margin/tol %.4g, in t, kN, m %.4g", planted.name, v.name, j+1, md.ReachMargin/md.ReachTol, r.ReachMargin/r.ReachTol)
+				}
+				if wantO && !within(md.ObserveMargin/md.ObserveTol, r.ObserveMargin/r.ObserveTol, 2) {
+					t.Errorf("%s, %s: mode %d seen margin/tol %.4g, in t, kN, m %.4g", planted.name, v.name, j+1, md.ObserveMargin/md.ObserveTol, r.ObserveMargin/r.ObserveTol)
+				}
+				// The per-signal figures are unit-free shares in [0, 1].
+				for _, x := range append(append([]float64{}, md.Reach...), md.Visibility...) {
+					if !(x >= 0 && x <= 1+1e-12) {
+						t.Errorf("%s, %s: mode %d reach/visibility %v outside [0, 1]", planted.name, v.name, j+1, x)
+					}
+				}
+				if wantR && !within(md.Reach[0], r.Reach[0], 2) || wantO && !within(md.Visibility[0], r.Visibility[0], 2) {
+					t.Errorf("%s, %s: mode %d reach %v visibility %v, in t, kN, m %v %v", planted.name, v.name, j+1, md.Reach, md.Visibility, r.Reach, r.Visibility)
+				}
+			}
+			t.Logf("%s, %s: reach margin/tol %.3g %.3g %.3g, seen margin/tol %.3g %.3g %.3g (tol %.3g, %.3g)", planted.name, v.name,
+				mt.Modes[0].ReachMargin/mt.ReachTol, mt.Modes[1].ReachMargin/mt.ReachTol, mt.Modes[2].ReachMargin/mt.ReachTol,
+				mt.Modes[0].ObserveMargin/mt.ObserveTol, mt.Modes[1].ObserveMargin/mt.ObserveTol, mt.Modes[2].ObserveMargin/mt.ObserveTol, mt.ReachTol, mt.ObserveTol)
+			if ref == nil {
+				ref = mt
+			}
+		}
+	}
+}
+
+// within reports whether a and b (positive) agree within a factor f.
+func within(a, b, f float64) bool {
+	return a > 0 && b > 0 && a <= f*b && b <= f*a
+}
