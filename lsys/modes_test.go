@@ -376,3 +376,71 @@ func TestModesPBHUnitIndependent(t *testing.T) {
 func within(a, b, f float64) bool {
 	return a > 0 && b > 0 && a <= f*b && b <= f*a
 }
+
+func TestModesPBHTwoInputsOneScaled(t *testing.T) {
+	// The chain of TestModesPBHUnitIndependent (closed-form shapes
+	// (1, sqrt2, 1), (1, 0, -1), (1, -sqrt2, 1); from memory) with two
+	// inputs that both miss the antisymmetric mode 2: a force on the
+	// middle mass (its node) and a jack pushing masses 1 and 3 equally
+	// (a symmetric load); outputs q2 (blind to mode 2) and q1 - q3 (sees
+	// mode 2 only). PBH (Hautus 1969): mode 2 not reached, every mode seen
+	// by the pair of outputs. Rescaling the first input by 1e4 (another
+	// force unit) must not change the verdicts, and the margins relative to
+	// their tolerances may move at most by the powers-of-two rounding of
+	// the input scaling (a factor 2; common practice). The per-input shares
+	// |w^H b_j|/||b_j|| are free of the input's unit altogether.
+	const m, k, beta = 2e6, 4e9, 1e-3 // kg, N/m, s
+	build := func(g float64) *System {
+		K := [][]float64{{2, -1, 0}, {-1, 2, -1}, {0, -1, 2}}
+		A := mat.NewDense(6, 6, nil)
+		for i := 0; i < 3; i++ {
+			A.Set(i, 3+i, 1)
+			for j := 0; j < 3; j++ {
+				A.Set(3+i, j, -k*K[i][j]/m)
+				A.Set(3+i, 3+j, -beta*k*K[i][j]/m)
+			}
+		}
+		B := mat.NewDense(6, 2, []float64{0, 0, 0, 0, 0, 0, 0, 1 / m, g / m, 0, 0, 1 / m})
+		C := mat.NewDense(2, 6, []float64{0, 1, 0, 0, 0, 0, 1, 0, -1, 0, 0, 0})
+		s, err := FromMatrices(A, B, C, nil, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return s
+	}
+	var ref *ModeTable
+	for _, g := range []float64{1, 1e4} {
+		mt, err := Modes(build(g))
+		if err != nil {
+			t.Fatal(err)
+		}
+		for j, md := range mt.Modes {
+			if md.Reachable != (j != 1) || !md.Observable {
+				t.Errorf("input gain %g: mode %d reached %v (margin %.3g, tol %.3g) seen %v (margin %.3g, tol %.3g), want %v true",
+					g, j+1, md.Reachable, md.ReachMargin, md.ReachTol, md.Observable, md.ObserveMargin, md.ObserveTol, j != 1)
+			}
+			if ref == nil {
+				continue
+			}
+			r := ref.Modes[j]
+			if j != 1 && !within(md.ReachMargin/md.ReachTol, r.ReachMargin/r.ReachTol, 2) {
+				t.Errorf("mode %d: reach margin/tol %.4g with the input x 1e4, %.4g without", j+1, md.ReachMargin/md.ReachTol, r.ReachMargin/r.ReachTol)
+			}
+			if !within(md.ObserveMargin/md.ObserveTol, r.ObserveMargin/r.ObserveTol, 2) {
+				t.Errorf("mode %d: seen margin/tol %.4g with the input x 1e4, %.4g without", j+1, md.ObserveMargin/md.ObserveTol, r.ObserveMargin/r.ObserveTol)
+			}
+			for i := range md.Reach {
+				if j != 1 && !near(md.Reach[i], r.Reach[i], 1e-9) {
+					t.Errorf("mode %d: share of input %d %.6g with the input x 1e4, %.6g without", j+1, i, md.Reach[i], r.Reach[i])
+				}
+			}
+		}
+		t.Logf("input gain %g: reach margin/tol %.3g %.3g %.3g, seen margin/tol %.3g %.3g %.3g, shares %v %v %v", g,
+			mt.Modes[0].ReachMargin/mt.ReachTol, mt.Modes[1].ReachMargin/mt.ReachTol, mt.Modes[2].ReachMargin/mt.ReachTol,
+			mt.Modes[0].ObserveMargin/mt.ObserveTol, mt.Modes[1].ObserveMargin/mt.ObserveTol, mt.Modes[2].ObserveMargin/mt.ObserveTol,
+			mt.Modes[0].Reach, mt.Modes[1].Reach, mt.Modes[2].Reach)
+		if ref == nil {
+			ref = mt
+		}
+	}
+}
