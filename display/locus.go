@@ -195,7 +195,9 @@ func lcFigure(l *lsys.Locus) *rpFigure {
 		pn.XLabel, pn.YLabel = "real part (1/s)", "imaginary part (rad/s)"
 	}
 	pn.Equal = true
+	pn.LinTicks = true
 	pn.Legend = true
+	pn.LegendBelow = true // like the other charts: clear of the branches and of each other
 	// extent of the branches
 	xmin, xmax, ymin, ymax := 0.0, 0.0, 0.0, 0.0
 	R := 0.0

@@ -102,8 +102,14 @@ type rpPanel struct {
 	// Fixed ranges (both ends set) or NaN for automatic.
 	XMin, XMax, YMin, YMax float64
 	Equal                  bool // equal scales on both axes (pole-zero and polar charts)
-	PhaseTicks             bool // y ticks at multiples of 45, 90 or 180 degrees
-	DBTicks                bool // y ticks at multiples of 10, 20, 40 ... dB
+	// Exact uses the fixed ranges as they are: no equal-scale widening and
+	// no padding (a chart that marks points on the frame's edge).
+	Exact bool
+	// LinTicks labels both axes with rpLinTicks (one format per axis, 0
+	// always labelled); charts in the complex plane set it.
+	LinTicks   bool
+	PhaseTicks bool // y ticks at multiples of 45, 90 or 180 degrees
+	DBTicks    bool // y ticks at multiples of 10, 20, 40 ... dB
 	// LegendBelow puts this panel's legend in a strip below the figure
 	// (for many or long labels) instead of inside the frame.
 	LegendBelow bool
@@ -194,6 +200,48 @@ func (tk rpStepTicker) Ticks(min, max float64) []plot.Tick {
 		out = append(out, plot.Tick{Value: v, Label: strconv.FormatFloat(v, 'f', -1, 64)})
 	}
 	return out
+}
+
+// rpLinTicks puts ticks at multiples of a round step (1, 2 or 5 x 10^k)
+// giving three to six labels, so a range across zero always gets its 0,
+// and writes every label of the axis with the step's number of decimals
+// (75, 0, -75, not 75.00 beside 0). Axes reaching a million and beyond
+// are labelled in units of the step's decade (4e5, 0, -4e5).
+type rpLinTicks struct{}
+
+func (rpLinTicks) Ticks(min, max float64) []plot.Tick {
+	if !(max > min) || !ok(min) || !ok(max) {
+		return nil
+	}
+	step := niceStep((max - min) / 6)
+	e := int(math.Floor(math.Log10(step) + 1e-9))
+	big := math.Max(math.Abs(min), math.Abs(max)) >= 1e6
+	dec := max0(-e)
+	var out []plot.Tick
+	for k := math.Ceil(min/step - 1e-9); k*step <= max+1e-9*step; k++ {
+		v := k * step
+		if k == 0 {
+			v = 0 // not "-0"
+		}
+		var lab string
+		switch {
+		case k == 0:
+			lab = "0"
+		case big:
+			lab = strconv.FormatFloat(v/math.Pow10(e), 'f', 0, 64) + "e" + strconv.Itoa(e)
+		default:
+			lab = strconv.FormatFloat(v, 'f', dec, 64)
+		}
+		out = append(out, plot.Tick{Value: v, Label: lab})
+	}
+	return out
+}
+
+func max0(i int) int {
+	if i < 0 {
+		return 0
+	}
+	return i
 }
 
 func newPanel(title, xl, yl string) *rpPanel {
@@ -330,6 +378,9 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 	if pn.LogX {
 		p.X.Scale = plot.LogScale{}
 		p.X.Tick.Marker = rpLogTicks{}
+	}
+	if pn.LinTicks {
+		p.X.Tick.Marker, p.Y.Tick.Marker = rpLinTicks{}, rpLinTicks{}
 	}
 	if pn.PhaseTicks {
 		p.Y.Tick.Marker = rpPhaseTicker
@@ -529,7 +580,7 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 			}
 		}
 	}
-	if pn.Equal {
+	if pn.Equal && !pn.Exact {
 		// widen the shorter span so both axes have the same scale (the
 		// panel is drawn about 1.6 times wider than high)
 		cx, cy := (xmin+xmax)/2, (ymin+ymax)/2
@@ -543,7 +594,7 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 	}
 	p.X.Min, p.X.Max = xmin, xmax
 	p.Y.Min, p.Y.Max = ymin, ymax
-	if !pn.Equal {
+	if !pn.Equal && !pn.Exact {
 		pad := 0.04 * (ymax - ymin)
 		p.Y.Min, p.Y.Max = ymin-pad, ymax+pad
 	}

@@ -477,28 +477,42 @@ func renderPoleZero(v any, opt Options) Bundle {
 			map[bool]string{true: "z", false: "s"}[g.Sampled()], fmtNum(R),
 			strings.Join(append(rpFarList("pole", farPoles), rpFarList("zero", farZeros)...), ", "))
 	}
-	if g.Sampled() {
-		R = math.Max(R, 1)
+	// the frame: fitted to the near points (and the origin, or the unit
+	// circle when sampled), or the user's radius
+	var fr pzBox
+	if pz.Within > 0 {
+		fr = pzBox{-R, 0.15 * R, -R, R}
+		if g.Sampled() {
+			fr.x1 = R
+		}
 	} else {
-		R *= 1.15
+		fr = pzFrame(append(append([]complex128(nil), nearPoles...), nearZeros...), g.Sampled())
 	}
-	grid, texts := splaneGrid(g.Ts, R, gridLabelOnAxis)
+	fr, equal := fr.aspect(1.6)
+	if !equal {
+		text += "\nthe chart's axes have different scales (to fit the points); the damping-ratio lines are drawn to those scales"
+	}
+	// the grid reaches the frame's far corner
+	gR := math.Max(math.Hypot(math.Max(-fr.x0, fr.x1), math.Max(-fr.y0, fr.y1)), 1e-300)
+	grid, texts := splaneGrid(g.Ts, gR, gridLabelOnAxis)
+	if !g.Sampled() {
+		texts = gridRayLabelsIn(texts, fr.x0, fr.x1, fr.y0, fr.y1)
+	}
 	pn.Series = append(pn.Series, grid...)
 	if !g.Sampled() {
 		pn.Lines = append(pn.Lines, rpLine{At: 0, Vertical: true})
 	}
-	// far points on the edge of the grid, in their direction, labelled
-	// (labels below the point, those on the same spot stacked downward,
-	// clear of the grid labels on the real axis)
-	spots := map[complex128]int{}
+	// far points on the frame's edge, in their direction from the origin,
+	// labelled with their value; a label that would overlap one already
+	// placed moves a line further from the point (see farLabel)
+	var placed []rpText
 	edge := func(v []complex128) []complex128 {
 		out := make([]complex128, len(v))
 		for i, p := range v {
-			out[i] = p / complex(cmplx.Abs(p), 0) * complex(R, 0)
-			key := complex(math.Round(real(out[i])/R*50), math.Round(imag(out[i])/R*50))
-			k := spots[key]
-			spots[key]++
-			texts = append(texts, rpText{X: real(out[i]), Y: imag(out[i]) - float64(k+1)*0.09*R, Text: rpFarLabel(p)})
+			out[i] = fr.edge(p)
+			l := fr.farLabel(out[i], rpFarLabel(p), placed)
+			placed = append(placed, l)
+			texts = append(texts, l)
 		}
 		return out
 	}
@@ -506,13 +520,11 @@ func renderPoleZero(v any, opt Options) Bundle {
 	if pz.ZerosKnown && len(pz.Zeros) > 0 {
 		pn.Series = append(pn.Series, rpMark("zeros", append(nearZeros, edge(farZeros)...), 1, draw.RingGlyph{}, 4.5))
 	}
-	if pz.Within > 0 {
-		// the user's frame: the grid spans it, points beyond are on the edge
-		pn.XMin, pn.XMax, pn.YMin, pn.YMax = -R, R, -R, R
-		if !g.Sampled() {
-			pn.XMax = 0.15 * R
-		}
-	}
+	pn.Equal = false
+	pn.Exact = true
+	pn.LinTicks = true
+	pn.LegendBelow = true
+	pn.XMin, pn.XMax, pn.YMin, pn.YMax = fr.x0, fr.x1, fr.y0, fr.y1
 	pn.Texts = texts
 	fig := &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}}
 	out := rpBundle(text, fig, opt)
@@ -522,6 +534,128 @@ func renderPoleZero(v any, opt Options) Bundle {
 	}
 	out.Data[JSON] = js
 	return out
+}
+
+// pzBox is a chart frame in data coordinates.
+type pzBox struct{ x0, x1, y0, y1 float64 }
+
+// pzFrame fits a frame to the points with a margin of 8 % of the span on
+// each side. It always holds the origin (continuous time: the stability
+// boundary runs through it) or the unit circle (sampled).
+func pzFrame(pts []complex128, sampled bool) pzBox {
+	b := pzBox{0, 0, 0, 0}
+	if sampled {
+		b = pzBox{-1, 1, -1, 1}
+	}
+	for _, p := range pts {
+		if cmplx.IsNaN(p) || cmplx.IsInf(p) {
+			continue
+		}
+		b.x0, b.x1 = math.Min(b.x0, real(p)), math.Max(b.x1, real(p))
+		b.y0, b.y1 = math.Min(b.y0, imag(p)), math.Max(b.y1, imag(p))
+	}
+	sx, sy := b.x1-b.x0, b.y1-b.y0
+	switch {
+	case sx == 0 && sy == 0:
+		sx, sy = 1.6, 1
+		b = pzBox{-0.8, 0.8, -0.5, 0.5}
+	case sy == 0: // points on the real axis only
+		sy = sx / 1.6
+		b.y0, b.y1 = -sy/2, sy/2
+	case sx == 0:
+		sx = sy / 4
+		b.x0 = -sx
+	}
+	b.x0, b.x1 = b.x0-0.08*sx, b.x1+0.08*sx
+	b.y0, b.y1 = b.y0-0.08*sy, b.y1+0.08*sy
+	return b
+}
+
+// aspect widens the shorter side of the frame about its centre so both
+// axes have the same scale on a chart r times wider than high, unless
+// that would leave more than half of the width (or height) empty; then
+// the frame stays as it is and equal is false.
+func (b pzBox) aspect(r float64) (pzBox, bool) {
+	sx, sy := b.x1-b.x0, b.y1-b.y0
+	cx, cy := (b.x0+b.x1)/2, (b.y0+b.y1)/2
+	if sx < r*sy {
+		if sx < 0.5*r*sy {
+			return b, false
+		}
+		sx = r * sy
+	} else {
+		if sy < 0.5*sx/r {
+			return b, false
+		}
+		sy = sx / r
+	}
+	return pzBox{cx - sx/2, cx + sx/2, cy - sy/2, cy + sy/2}, true
+}
+
+// edge is where the ray from the origin towards p leaves the frame (the
+// origin is inside it): the coordinate of the edge it crosses is the
+// frame's own, exactly.
+func (b pzBox) edge(p complex128) complex128 {
+	d := p / complex(cmplx.Abs(p), 0)
+	dx, dy := real(d), imag(d)
+	t, side := math.Inf(1), 0
+	if dx < 0 {
+		t, side = b.x0/dx, 1
+	} else if dx > 0 {
+		t, side = b.x1/dx, 2
+	}
+	if dy < 0 && b.y0/dy < t {
+		t, side = b.y0/dy, 3
+	} else if dy > 0 && b.y1/dy < t {
+		t, side = b.y1/dy, 4
+	}
+	x, y := dx*t, dy*t
+	switch side {
+	case 1:
+		x = b.x0
+	case 2:
+		x = b.x1
+	case 3:
+		y = b.y0
+	case 4:
+		y = b.y1
+	}
+	return complex(x, y)
+}
+
+// farLabel places the label of a far point marked at the edge point e:
+// a line (6 % of the frame's height) below e, or further down while it
+// would overlap a label already placed; where that runs out of the frame
+// it goes upward from e instead. In the right half it is shifted left by
+// its estimated width (1/100 of the frame's width per character: 8 pt
+// text on a 16 cm chart) so the text stays inside.
+func (b pzBox) farLabel(e complex128, txt string, placed []rpText) rpText {
+	h := 0.06 * (b.y1 - b.y0)
+	cw := (b.x1 - b.x0) / 100
+	w := float64(len([]rune(txt))+2) * cw
+	x := real(e)
+	if x > (b.x0+b.x1)/2 {
+		x -= w
+	}
+	free := func(y float64) bool {
+		for _, o := range placed {
+			ow := float64(len([]rune(o.Text))+2) * cw
+			if math.Abs(o.Y-y) < 0.9*h && x < o.X+ow && o.X < x+w {
+				return false
+			}
+		}
+		return true
+	}
+	for y := imag(e) - h; y >= b.y0; y -= h {
+		if free(y) {
+			return rpText{X: x, Y: y, Text: txt}
+		}
+	}
+	y := imag(e)
+	for k := 0; k < 100 && !free(y); k++ {
+		y += h
+	}
+	return rpText{X: x, Y: y, Text: txt}
 }
 
 // rpFarLabel is the value of a point drawn at the chart's edge.

@@ -1,6 +1,7 @@
 package display
 
 import (
+	"fmt"
 	"math"
 	"math/cmplx"
 )
@@ -97,4 +98,47 @@ func splaneGrid(ts, R float64, place gridLabelPlace) ([]rpSeries, []rpText) {
 		}
 	}
 	return ss, texts
+}
+
+// gridRayLabelsIn moves the labels of the continuous grid's damping rays
+// (texts "ζ ...") to 80 % of the part of their ray inside the frame
+// x0..x1, y0..y1 (which holds the origin), so a frame fitted to the
+// points still names the rays it shows; a label that would sit within
+// 12 % of the width and 7 % of the height of one already placed is
+// dropped rather than drawn over it. A circle's label left of the frame
+// moves to where the circle crosses its left edge.
+func gridRayLabelsIn(texts []rpText, x0, x1, y0, y1 float64) []rpText {
+	var out, placed []rpText
+	for _, t := range texts {
+		var zeta float64
+		if _, err := fmt.Sscanf(t.Text, "ζ %g", &zeta); err != nil || !(zeta > 0 && zeta < 1) {
+			// a circle's label at (-wn, 0) left of the frame goes where
+			// the circle enters it on the left edge, if it does
+			if wn := -t.X; t.Y == 0 && wn > 0 && -wn < x0 {
+				if y := math.Sqrt(wn*wn - x0*x0); y < y1 {
+					out = append(out, rpText{X: x0, Y: y, Text: t.Text})
+				}
+				continue
+			}
+			out = append(out, t)
+			continue
+		}
+		dx, dy := -zeta, math.Sqrt(1-zeta*zeta)
+		s := math.Min(x0/dx, y1/dy)
+		if !(s > 0) || math.IsInf(s, 0) {
+			continue
+		}
+		n := rpText{X: 0.8 * s * dx, Y: 0.8 * s * dy, Text: t.Text}
+		free := true
+		for _, o := range placed {
+			if math.Abs(o.X-n.X) < 0.12*(x1-x0) && math.Abs(o.Y-n.Y) < 0.07*(y1-y0) {
+				free = false
+			}
+		}
+		if free {
+			placed = append(placed, n)
+			out = append(out, n)
+		}
+	}
+	return out
 }
