@@ -27,7 +27,7 @@ func TestHelpPagesOrPrints(t *testing.T) {
 	if _, err := s.Run(context.Background(), "help(modes)", p); err != nil {
 		t.Fatal(err)
 	}
-	if !strings.HasPrefix(p.paged, "modes(system)") || !strings.Contains(p.paged, "Example:") {
+	if !strings.HasPrefix(p.paged, "modes(system, tol?)") || !strings.Contains(p.paged, "Example:") {
 		t.Errorf("paged help %q", p.paged)
 	}
 	d := &discardOut{}

@@ -149,7 +149,7 @@ func TestCellsErrors(t *testing.T) {
 		{src: "system([[0, 1]])", err: "needs a square matrix, not a 1x2 one", line: 1, col: 8},
 		{src: "system([[0, 1], [0, 0]], [1, 2, 3])", err: "B must have as many rows as A: got 3x1 against 2x2", line: 1, col: 1},
 		{src: "system()", err: "system needs the state matrix A, or only D for a static gain", line: 1, col: 1},
-		{src: "modes = 3\nmodes(1)", err: "hides the built-in modes(system)", line: 2, col: 6},
+		{src: "modes = 3\nmodes(1)", err: "hides the built-in modes(system, tol?)", line: 2, col: 6},
 		{src: "x = 3\nx(2)", err: "x is a number, not a function", line: 2, col: 2},
 		{src: "f(k) = k\nf(1, 2)", err: "f takes 1 argument", line: 2, col: 6},
 		{src: "f(k) = g(k)\nf(1)", err: "unknown name 'g'", line: 1, col: 8},
@@ -322,8 +322,8 @@ func TestInspect(t *testing.T) {
 		cursor int
 		want   []string
 	}{
-		{"modes(G)", 2, []string{"modes(system)", "mode table", "Example:"}},
-		{"modes(", 6, []string{"modes(system)"}},
+		{"modes(G)", 2, []string{"modes(system, tol?)", "mode table", "Example:"}},
+		{"modes(", 6, []string{"modes(system, tol?)"}},
 		{"system(A, ", 10, []string{"system(A?, B?, C?, D?, states?, inputs?, outputs?, every: 0)"}},
 		{"G", 1, []string{"G: a system", "1 state"[:0] + "2 states, 1 input, 1 output, continuous"}},
 		{"f", 0, []string{"f: a function", "f(k) = k + 1"}},
