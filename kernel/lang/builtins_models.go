@@ -428,50 +428,12 @@ func equilibriumFn(c *Call) (any, error) {
 		return nil, c.Errorf("model", "", "the model has no states")
 	}
 	u := make([]float64, len(bs.inputs))
-	if c.Has("inputs") {
-		r, ok := c.Value("inputs").(*Record)
-		if !ok {
-			return nil, c.typeError("inputs", "a record such as {torque: 0}", c.Value("inputs"))
-		}
-		for i, name := range r.Names {
-			j := -1
-			for k, in := range bs.inputs {
-				if in == name {
-					j = k
-				}
-			}
-			if j < 0 {
-				return nil, c.Errorf("inputs", "", "'%s' is not an input of this model%s", name, didYouMean(name, bs.inputs))
-			}
-			f, ok := r.Values[i].(float64)
-			if !ok || math.IsInf(f, 0) {
-				return nil, c.Errorf("inputs", "", "the value of '%s' must be a finite real number", name)
-			}
-			u[j] = f
-		}
+	if err := recordInto(c, "inputs", bs.inputs, "an input of this model", "a record such as {torque: 0}", u); err != nil {
+		return nil, err
 	}
 	x := make([]float64, n)
-	if c.Has("guess") {
-		r, ok := c.Value("guess").(*Record)
-		if !ok {
-			return nil, c.typeError("guess", "a record such as {angle: 3}", c.Value("guess"))
-		}
-		for i, name := range r.Names {
-			j := -1
-			for k, s := range bs.states {
-				if s == name {
-					j = k
-				}
-			}
-			if j < 0 {
-				return nil, c.Errorf("guess", "", "'%s' is not a state of this model%s", name, didYouMean(name, bs.states))
-			}
-			f, ok := r.Values[i].(float64)
-			if !ok || math.IsInf(f, 0) {
-				return nil, c.Errorf("guess", "", "the value of '%s' must be a finite real number", name)
-			}
-			x[j] = f
-		}
+	if err := recordInto(c, "guess", bs.states, "a state of this model", "a record such as {angle: 3}", x); err != nil {
+		return nil, err
 	}
 	sampled := bs.ts > 0
 	// residual and Jacobian of F(x) = f(x, u) (- x when sampled).
@@ -602,27 +564,8 @@ func linearEquilibrium(c *Call, g *lsys.System) (any, error) {
 		return nil, c.Errorf("model", "", "the system has no states")
 	}
 	u := make([]float64, m)
-	if c.Has("inputs") {
-		r, ok := c.Value("inputs").(*Record)
-		if !ok {
-			return nil, c.typeError("inputs", "a record such as {torque: 0}", c.Value("inputs"))
-		}
-		for i, name := range r.Names {
-			j := -1
-			for k, in := range g.InputNames {
-				if in == name {
-					j = k
-				}
-			}
-			if j < 0 {
-				return nil, c.Errorf("inputs", "", "'%s' is not an input of this system%s", name, didYouMean(name, g.InputNames))
-			}
-			f, ok := r.Values[i].(float64)
-			if !ok || math.IsInf(f, 0) {
-				return nil, c.Errorf("inputs", "", "the value of '%s' must be a finite real number", name)
-			}
-			u[j] = f
-		}
+	if err := recordInto(c, "inputs", g.InputNames, "an input of this system", "a record such as {torque: 0}", u); err != nil {
+		return nil, err
 	}
 	J := mat.DenseCopyOf(g.A)
 	if g.Ts > 0 {
@@ -887,4 +830,35 @@ func locusFn(c *Call) (any, error) {
 		c.Progress(id, fmt.Sprintf("locus: %d values done", len(values)), false)
 	}
 	return lsys.NewLocus(nv.Name, values, eig, ts)
+}
+
+// recordInto reads the record argument param (if given) into dst, whose
+// entries are named by names: each field must be one of names and a finite
+// real number. what names an entry in messages ("an input of this model");
+// example shows the expected form.
+func recordInto(c *Call, param string, names []string, what, example string, dst []float64) error {
+	if !c.Has(param) {
+		return nil
+	}
+	r, ok := c.Value(param).(*Record)
+	if !ok {
+		return c.typeError(param, example, c.Value(param))
+	}
+	for i, name := range r.Names {
+		j := -1
+		for k, have := range names {
+			if have == name {
+				j = k
+			}
+		}
+		if j < 0 {
+			return c.Errorf(param, "", "'%s' is not %s%s", name, what, didYouMean(name, names))
+		}
+		f, ok := r.Values[i].(float64)
+		if !ok || math.IsInf(f, 0) {
+			return c.Errorf(param, "", "the value of '%s' must be a finite real number", name)
+		}
+		dst[j] = f
+	}
+	return nil
 }
