@@ -239,39 +239,7 @@ func TestZerosStrictlyProperRandom(t *testing.T) {
 // pencilSmallest is the smallest singular value of [[A - zI, B], [C, D]]
 // (real embedding of the complex matrix; each value appears twice).
 func pencilSmallest(s *System, z complex128) float64 {
-	n, m, p := s.N(), s.M(), s.P()
-	N := n + p
-	M := n + m
-	E := mat.NewDense(2*N, 2*M, nil)
-	set := func(i, j int, v complex128) {
-		E.Set(i, j, real(v))
-		E.Set(N+i, M+j, real(v))
-		E.Set(i, M+j, -imag(v))
-		E.Set(N+i, j, imag(v))
-	}
-	for i := 0; i < n; i++ {
-		for j := 0; j < n; j++ {
-			v := complex(s.A.At(i, j), 0)
-			if i == j {
-				v -= z
-			}
-			set(i, j, v)
-		}
-		for j := 0; j < m; j++ {
-			set(i, n+j, complex(s.B.At(i, j), 0))
-		}
-	}
-	for i := 0; i < p; i++ {
-		for j := 0; j < n; j++ {
-			set(n+i, j, complex(s.C.At(i, j), 0))
-		}
-		for j := 0; j < m; j++ {
-			set(n+i, n+j, complex(s.D.At(i, j), 0))
-		}
-	}
-	var svd mat.SVD
-	svd.Factorize(E, mat.SVDNone)
-	v := svd.Values(nil)
+	v := pencilValues(s, z)
 	return v[len(v)-1] / v[0]
 }
 
