@@ -240,9 +240,16 @@ func (prop Property) Read(data []byte) (n int, err error) {
 }
 
 func (prop *Property) Write(data []byte) (n int, err error) {
+	// lsys: every length is checked against what is left before slicing;
+	// metadata such as 00 (no value length) or 03 'a' 'b' (short name)
+	// panicked here, and a peer could crash the process before any
+	// application-level check.
+	if len(data) < 1 {
+		return n, io.ErrUnexpectedEOF
+	}
 	klen := int(data[n])
 	n++
-	if klen > len(data) {
+	if n+klen+4 > len(data) {
 		return n, io.ErrUnexpectedEOF
 	}
 
@@ -256,7 +263,7 @@ func (prop *Property) Write(data []byte) (n int, err error) {
 	}
 
 	vlen := int(v)
-	if n+vlen > len(data) {
+	if vlen > len(data)-n { // lsys: no overflow of n+vlen on 32-bit
 		return n, io.ErrUnexpectedEOF
 	}
 
