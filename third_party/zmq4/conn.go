@@ -37,6 +37,9 @@ type Conn struct {
 
 	closed         int32
 	onCloseErrorCB func(c *Conn)
+
+	lim limits     // lsys: size limits and timeouts from the owning socket
+	wmu sync.Mutex // lsys: one writer at a time, so frames never interleave
 }
 
 func (c *Conn) Close() error {
@@ -65,6 +68,12 @@ func (c *Conn) Write(p []byte) (int, error) {
 // An optional onCloseErrorCB can be provided to inform the caller when this Conn is closed.
 // Open performs a complete ZMTP handshake.
 func Open(rw net.Conn, sec Security, sockType SocketType, sockID SocketIdentity, server bool, onCloseErrorCB func(c *Conn)) (*Conn, error) {
+	return open(rw, sec, sockType, sockID, server, onCloseErrorCB, limits{})
+}
+
+// open is Open with the socket's limits, which must hold from the first
+// byte of the handshake on (lsys).
+func open(rw net.Conn, sec Security, sockType SocketType, sockID SocketIdentity, server bool, onCloseErrorCB func(c *Conn), lim limits) (*Conn, error) {
 	if rw == nil {
 		return nil, fmt.Errorf("zmq4: invalid nil read-writer")
 	}
@@ -82,6 +91,7 @@ func Open(rw net.Conn, sec Security, sockType SocketType, sockID SocketIdentity,
 		Meta:           make(Metadata),
 		topics:         make(map[string]struct{}),
 		onCloseErrorCB: onCloseErrorCB,
+		lim:            lim,
 	}
 	conn.Meta[sysSockType] = string(conn.typ)
 	conn.Meta[sysSockID] = conn.id.String()
@@ -169,6 +179,7 @@ func (c *Conn) SendCmd(name string, body []byte) error {
 	if err != nil {
 		return err
 	}
+	defer c.writing()()
 	return c.send(true, buf, 0)
 }
 
@@ -177,6 +188,7 @@ func (c *Conn) SendMsg(msg Msg) error {
 	if c.Closed() {
 		return ErrClosedConn
 	}
+	defer c.writing()()
 	if msg.multipart {
 		return c.sendMulti(msg)
 	}
@@ -367,15 +379,27 @@ func (c *Conn) send(isCommand bool, body []byte, flag byte) error {
 }
 
 // read returns the isCommand flag, the body of the message, and optionally an error
-func (c *Conn) read() Msg {
+func (c *Conn) read() (msg Msg) {
 	var (
 		header  [2]byte
 		longHdr [8]byte
-		msg     Msg
 
 		hasMore = true
 		isCmd   = false
 	)
+
+	// lsys: the whole message is bounded, frame headers included, and
+	// bytes held while it arrives are charged to the socket's budget
+	// (released by whoever hands the message on, or here on error).
+	var total int64
+	limit := c.lim.maxMessage()
+	defer func() {
+		if msg.err != nil {
+			c.lim.inflight.release(msg.held)
+			msg.held = 0
+			msg.Frames = nil
+		}
+	}()
 
 	for hasMore {
 
@@ -413,8 +437,15 @@ func (c *Conn) read() Msg {
 			return msg
 		}
 
-		body := make([]byte, size)
-		_, msg.err = io.ReadFull(c.rw, body)
+		// lsys: refuse before allocating anything.
+		if size > uint64(limit) || total+int64(size)+frameOverhead > limit {
+			msg.err = tooLarge(total+int64(size), limit)
+			return msg
+		}
+		total += int64(size) + frameOverhead
+
+		var body []byte
+		body, msg.err = c.readBody(int(size), &msg.held)
 		if msg.err != nil {
 			c.checkIO(msg.err)
 			return msg
@@ -447,7 +478,11 @@ func (conn *Conn) subscribe(msg Msg) {
 	case 0:
 		delete(conn.topics, k)
 	case 1:
-		conn.topics[k] = struct{}{}
+		// lsys: subscriptions are held in memory; a peer gets a bounded
+		// number of them, and more are ignored.
+		if len(k) <= maxTopicLen && len(conn.topics) < maxTopics {
+			conn.topics[k] = struct{}{}
+		}
 	}
 	conn.mu.Unlock()
 }
@@ -490,6 +525,10 @@ func (conn *Conn) checkIO(err error) {
 	var e net.Error
 	if errors.As(err, &e); e != nil && !e.Timeout() {
 		conn.SetClosed()
+	}
+	// lsys: the only deadlines after the handshake are write timeouts.
+	if e != nil && e.Timeout() && conn.lim.writeTimeout > 0 {
+		conn.drop()
 	}
 }
 

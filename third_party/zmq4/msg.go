@@ -23,6 +23,7 @@ type Msg struct {
 	Type      MsgType
 	multipart bool
 	err       error
+	held      int64 // lsys: bytes charged to the socket's in-flight budget
 }
 
 func NewMsg(frame []byte) Msg {

@@ -7,6 +7,7 @@ package zmq4
 import (
 	"context"
 	"io"
+	"log"
 	"sync"
 
 	errgrp "github.com/go-zeromq/zmq4/internal/errgroup"
@@ -99,15 +100,23 @@ func (q *qreader) read(ctx context.Context, msg *Msg) error {
 
 func (q *qreader) listen(ctx context.Context, r *Conn) {
 	defer q.rmConn(r)
-	defer r.Close()
+	defer r.drop()                  // lsys: forget it too, not just close it
+	defer r.recoverConn(log.Printf) // lsys: one bad peer loses only its connection
 
 	for {
 		msg := r.read()
 		select {
 		case <-ctx.Done():
+			r.lim.inflight.release(msg.held)
 			return
 		default:
-			q.c <- msg
+			held := msg.held // lsys: charged until handed on
+			msg.held = 0
+			select {
+			case q.c <- msg:
+			case <-ctx.Done():
+			}
+			r.lim.inflight.release(held)
 			if msg.err != nil {
 				return
 			}

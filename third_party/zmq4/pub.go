@@ -7,8 +7,10 @@ package zmq4
 import (
 	"context"
 	"fmt"
+	"log"
 	"net"
 	"sync"
+	"sync/atomic"
 )
 
 // Topics is an interface that wraps the basic Topics method.
@@ -21,7 +23,7 @@ type Topics interface {
 // The returned socket value is initially unbound.
 func NewPub(ctx context.Context, opts ...Option) Socket {
 	pub := &pubSocket{sck: newSocket(ctx, Pub, opts...)}
-	pub.sck.w = newPubMWriter(pub.sck.ctx)
+	pub.sck.w = newPubMWriter(pub.sck.ctx, pub.sck.lim)
 	pub.sck.r = newPubQReader(pub.sck.ctx)
 	return pub
 }
@@ -102,10 +104,11 @@ func (pub *pubSocket) SetOption(name string, value interface{}) error {
 		return ErrBadProperty
 	}
 
+	// lsys: applies to subscribers that connect from now on.
 	w := pub.sck.w.(*pubMWriter)
-	w.qmu.Lock()
+	w.mu.Lock()
 	w.hwm = hwm
-	w.qmu.Unlock()
+	w.mu.Unlock()
 	return nil
 }
 
@@ -183,10 +186,12 @@ func (q *pubQReader) read(ctx context.Context, msg *Msg) error {
 
 func (q *pubQReader) listen(ctx context.Context, r *Conn) {
 	defer q.rmConn(r)
-	defer r.Close()
+	defer r.drop()                  // lsys: forget it too, not just close it
+	defer r.recoverConn(log.Printf) // lsys: one bad peer loses only its connection
 
 	for {
 		msg := r.read()
+		r.lim.inflight.release(msg.held) // lsys: nothing read here is kept
 		select {
 		case <-ctx.Done():
 			return
@@ -194,11 +199,19 @@ func (q *pubQReader) listen(ctx context.Context, r *Conn) {
 			if msg.err != nil {
 				return
 			}
+			// lsys: anything but a subscription is dropped. Recv on a PUB
+			// always fails, so messages queued here were held for ever, and
+			// once the queue was full this reader blocked, and with it the
+			// peer's later subscriptions. An XPUB still gets them while its
+			// owner keeps up.
 			switch {
 			case q.topic(msg):
 				r.subscribe(msg)
-			default:
-				q.c <- msg
+			case r.typ == XPub:
+				select {
+				case q.c <- msg:
+				default:
+				}
 			}
 		}
 	}
@@ -216,67 +229,85 @@ func (q *pubQReader) topic(msg Msg) bool {
 	return topic == 0 || topic == 1
 }
 
+// lsys: pubMWriter gives each subscriber its own bounded queue and writer
+// goroutine. Upstream had one queue, unbounded unless a HWM was set, drained
+// by one goroutine writing to each subscriber in turn: a subscriber that
+// stopped reading blocked output for all, and the queue grew without bound.
+// Now a full queue drops messages for its subscriber alone, as a high-water
+// mark does in libzmq.
 type pubMWriter struct {
-	ctx context.Context
-	mu  sync.Mutex
-	ws  []*Conn
+	ctx   context.Context
+	mu    sync.Mutex
+	ws    []*Conn
+	peers map[*Conn]*pubPeer
 
-	qmu    sync.Mutex
-	qcond  *sync.Cond
-	q      *Queue
-	hwm    int
-	closed bool
+	hwm      int   // messages queued per subscriber; <= 0: DefaultHWM
+	maxBytes int64 // bytes queued per subscriber; <= 0: DefaultPubQueueBytes
+	closed   bool
 }
 
-func newPubMWriter(ctx context.Context) *pubMWriter {
-	p := &pubMWriter{
-		ctx: ctx,
-		q:   NewQueue(),
-	}
-	p.qcond = sync.NewCond(&p.qmu)
-	go p.run()
-	return p
+type pubPeer struct {
+	q       chan Msg
+	stop    chan struct{}
+	queued  atomic.Int64 // bytes waiting in q
+	dropped atomic.Int64 // messages dropped for this subscriber
 }
 
-func (w *pubMWriter) run() {
+func newPubMWriter(ctx context.Context, lim limits) *pubMWriter {
+	return &pubMWriter{ctx: ctx, peers: make(map[*Conn]*pubPeer), maxBytes: lim.sendQueueBytes}
+}
+
+// run writes one subscriber's queue to it.
+func (w *pubMWriter) run(c *Conn, p *pubPeer) {
+	defer c.recoverConn(log.Printf)
 	for {
-		w.qmu.Lock()
-		for w.q.Len() == 0 {
-			w.qcond.Wait()
-			if w.closed {
+		select {
+		case <-p.stop:
+			return
+		case <-w.ctx.Done():
+			return
+		case msg := <-p.q:
+			p.queued.Add(-int64(msg.size()))
+			if err := c.SendMsg(msg); err != nil {
+				c.drop()
 				return
 			}
 		}
-		msg, _ := w.q.Peek()
-		w.q.Pop()
-		w.qmu.Unlock()
-		w.sendMsg(msg)
 	}
 }
 
 func (w *pubMWriter) Close() error {
-	w.qmu.Lock()
-	w.closed = true
-	w.qcond.Signal()
-	w.qmu.Unlock()
-
 	w.mu.Lock()
+	defer w.mu.Unlock()
+	w.closed = true
 	var err error
 	for _, ww := range w.ws {
 		e := ww.Close()
 		if e != nil && err == nil {
 			err = e
 		}
+		close(w.peers[ww].stop)
 	}
 	w.ws = nil
-	w.mu.Unlock()
+	w.peers = make(map[*Conn]*pubPeer)
 	return err
 }
 
 func (mw *pubMWriter) addConn(w *Conn) {
 	mw.mu.Lock()
+	defer mw.mu.Unlock()
+	if mw.closed {
+		w.Close()
+		return
+	}
+	hwm := mw.hwm
+	if hwm <= 0 {
+		hwm = DefaultHWM
+	}
+	p := &pubPeer{q: make(chan Msg, hwm), stop: make(chan struct{})}
 	mw.ws = append(mw.ws, w)
-	mw.mu.Unlock()
+	mw.peers[w] = p
+	go mw.run(w, p)
 }
 
 func (mw *pubMWriter) rmConn(w *Conn) {
@@ -293,31 +324,48 @@ func (mw *pubMWriter) rmConn(w *Conn) {
 	}
 	if cur >= 0 {
 		mw.ws = append(mw.ws[:cur], mw.ws[cur+1:]...)
+		close(mw.peers[w].stop)
+		delete(mw.peers, w)
 	}
 }
 
+// write queues msg for every subscriber of its topic and never blocks.
 func (w *pubMWriter) write(ctx context.Context, msg Msg) error {
-	w.qmu.Lock()
-	defer w.qmu.Unlock()
-	if w.hwm != 0 && w.q.Len() >= w.hwm {
-		//TODO(inphi): per subscriber hwm
-		return nil
+	topic := string(msg.Frames[0])
+	size := int64(msg.size())
+	maxBytes := w.maxBytes
+	if maxBytes <= 0 {
+		maxBytes = DefaultPubQueueBytes
 	}
-	w.q.Push(msg)
-	w.qcond.Signal()
+	w.mu.Lock()
+	defer w.mu.Unlock()
+	for _, ww := range w.ws {
+		if !ww.subscribed(topic) {
+			continue
+		}
+		p := w.peers[ww]
+		// One message larger than the byte bound still goes to a
+		// subscriber that has caught up.
+		if q := p.queued.Load(); q > 0 && q+size > maxBytes {
+			p.drop(ww)
+			continue
+		}
+		p.queued.Add(size)
+		select {
+		case p.q <- msg:
+		default:
+			p.queued.Add(-size)
+			p.drop(ww)
+		}
+	}
 	return nil
 }
 
-func (w *pubMWriter) sendMsg(msg Msg) {
-	topic := string(msg.Frames[0])
-	w.mu.Lock()
-	defer w.mu.Unlock()
-	// TODO(inphi): distribute messages across subscribers at once
-	for i := range w.ws {
-		ww := w.ws[i]
-		if ww.subscribed(topic) {
-			_ = ww.SendMsg(msg)
-		}
+// drop counts a message dropped for a subscriber that is not keeping up,
+// and says so once per subscriber.
+func (p *pubPeer) drop(c *Conn) {
+	if p.dropped.Add(1) == 1 {
+		log.Printf("zmq4: a subscriber on %v is not reading; dropping messages for it", c.rw.RemoteAddr())
 	}
 }
 

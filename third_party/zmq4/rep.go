@@ -7,6 +7,7 @@ package zmq4
 import (
 	"context"
 	"fmt"
+	"log"
 	"net"
 	"sync"
 )
@@ -156,18 +157,26 @@ func (r *repReader) read(ctx context.Context, msg *Msg) error {
 
 func (r *repReader) listen(ctx context.Context, conn *Conn) {
 	defer r.rmConn(conn)
-	defer conn.Close()
+	defer conn.drop()                  // lsys: forget it too, not just close it
+	defer conn.recoverConn(log.Printf) // lsys: one bad peer loses only its connection
 
 	for {
 		msg := conn.read()
 		select {
 		case <-ctx.Done():
+			conn.lim.inflight.release(msg.held)
 			return
 		default:
 			if msg.err != nil {
 				return
 			}
-			r.msgCh <- repMsg{conn, msg}
+			held := msg.held // lsys: charged until handed on
+			msg.held = 0
+			select {
+			case r.msgCh <- repMsg{conn, msg}:
+			case <-ctx.Done():
+			}
+			conn.lim.inflight.release(held)
 		}
 	}
 }

@@ -7,6 +7,7 @@ package zmq4
 import (
 	"bytes"
 	"context"
+	"log"
 	"net"
 	"sync"
 
@@ -154,20 +155,30 @@ func (q *routerQReader) read(ctx context.Context, msg *Msg) error {
 
 func (q *routerQReader) listen(ctx context.Context, r *Conn) {
 	defer q.rmConn(r)
-	defer r.Close()
+	defer r.drop()                  // lsys: forget it too, not just close it
+	defer r.recoverConn(log.Printf) // lsys: one bad peer loses only its connection
 
 	id := []byte(r.Peer.Meta[sysSockID])
 	for {
 		msg := r.read()
 		select {
 		case <-ctx.Done():
+			r.lim.inflight.release(msg.held)
 			return
 		default:
 			if msg.err != nil {
 				return
 			}
 			msg.Frames = append([][]byte{id}, msg.Frames...)
-			q.c <- msg
+			// lsys: the bytes count against the socket until handed on;
+			// a closed socket no longer takes them.
+			held := msg.held
+			msg.held = 0
+			select {
+			case q.c <- msg:
+			case <-ctx.Done():
+			}
+			r.lim.inflight.release(held)
 		}
 	}
 }
@@ -232,16 +243,16 @@ func (w *routerMWriter) write(ctx context.Context, msg Msg) error {
 	for i := range w.ws {
 		ww := w.ws[i]
 		pid := []byte(ww.Peer.Meta[sysSockID])
-		if !bytes.Equal(pid, id) {
+		if !bytes.Equal(pid, id) || ww.Closed() {
 			continue
 		}
 		grp.Go(func() error {
 			return ww.SendMsg(dmsg)
 		})
+		break // lsys: an identity names one connection, never several
 	}
-	err := grp.Wait()
-	w.mu.Unlock()
-	return err
+	w.mu.Unlock() // lsys: a peer slow to read must not block the others
+	return grp.Wait()
 }
 
 var (

@@ -57,6 +57,8 @@ type socket struct {
 	closedConns   []*Conn
 	reaperCond    *sync.Cond
 	reaperStarted bool
+
+	lim limits // lsys: limits and timeouts for every connection
 }
 
 func newDefaultSocket(ctx context.Context, sockType SocketType) *socket {
@@ -218,19 +220,45 @@ func (sck *socket) accept() {
 			if err != nil {
 				// FIXME(sbinet): maybe bubble up this error to application code?
 				//sck.log.Printf("error accepting connection from %q: %+v", sck.ep, err)
+				// lsys: out of descriptors, Accept fails at once; do not spin.
+				if ctx.Err() == nil {
+					time.Sleep(10 * time.Millisecond)
+				}
 				continue
 			}
 
-			zconn, err := Open(conn, sck.sec, sck.typ, sck.id, true, sck.scheduleRmConn)
-			if err != nil {
-				// FIXME(sbinet): maybe bubble up this error to application code?
-				sck.log.Printf("could not open a ZMTP connection with %q: %+v", sck.ep, err)
-				continue
-			}
-
-			sck.addConn(zconn)
+			// lsys: the handshake runs on its own goroutine under a deadline,
+			// so a peer that connects and sends nothing cannot hold up the
+			// accept loop and every later client.
+			go sck.handshake(conn)
 		}
 	}
+}
+
+// handshake opens a ZMTP connection on an accepted net.Conn (lsys). A failed
+// handshake closes the net.Conn at once: left to finalizers, thousands of
+// bad greetings exhausted the process's file descriptors.
+func (sck *socket) handshake(conn net.Conn) {
+	defer func() {
+		if p := recover(); p != nil {
+			conn.Close()
+			sck.log.Printf("closed a connection to %q after a panic in its handshake: %v", sck.ep, p)
+		}
+	}()
+	conn.SetDeadline(time.Now().Add(sck.lim.handshake()))
+	zconn, err := open(conn, sck.sec, sck.typ, sck.id, true, sck.scheduleRmConn, sck.lim)
+	if err != nil {
+		conn.Close()
+		// FIXME(sbinet): maybe bubble up this error to application code?
+		sck.log.Printf("could not open a ZMTP connection with %q: %+v", sck.ep, err)
+		return
+	}
+	conn.SetDeadline(time.Time{})
+	if sck.ctx.Err() != nil {
+		conn.Close()
+		return
+	}
+	sck.addConn(zconn)
 }
 
 // Dial connects a remote endpoint to the Socket.
@@ -267,10 +295,13 @@ connect:
 		return fmt.Errorf("zmq4: got a nil dial-conn to %q", endpoint)
 	}
 
-	zconn, err := Open(conn, sck.sec, sck.typ, sck.id, false, sck.scheduleRmConn)
+	conn.SetDeadline(time.Now().Add(sck.lim.handshake())) // lsys
+	zconn, err := open(conn, sck.sec, sck.typ, sck.id, false, sck.scheduleRmConn, sck.lim)
 	if err != nil {
+		conn.Close() // lsys: do not leak the descriptor
 		return fmt.Errorf("zmq4: could not open a ZMTP connection: %w", err)
 	}
+	conn.SetDeadline(time.Time{})
 	if zconn == nil {
 		return fmt.Errorf("zmq4: got a nil ZMTP connection to %q", endpoint)
 	}
@@ -287,6 +318,19 @@ connect:
 func (sck *socket) addConn(c *Conn) {
 	sck.mu.Lock()
 	defer sck.mu.Unlock()
+	// lsys: a ROUTER routes by identity, and sent a reply to every
+	// connection claiming it; so a second peer announcing someone else's
+	// identity received copies of their replies. As libzmq does by default,
+	// the first connection keeps the identity and the newcomer is refused.
+	if c.typ == Router && len(c.Peer.Meta[sysSockID]) > 0 {
+		for _, old := range sck.conns {
+			if !old.Closed() && old.Peer.Meta[sysSockID] == c.Peer.Meta[sysSockID] {
+				sck.log.Printf("refused a connection to %q: its identity is in use by another peer", sck.ep)
+				c.rw.Close()
+				return
+			}
+		}
+	}
 	sck.conns = append(sck.conns, c)
 	if len(c.Peer.Meta[sysSockID]) == 0 {
 		switch c.typ {
