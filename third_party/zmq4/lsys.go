@@ -12,6 +12,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"log"
 	"sync/atomic"
 	"time"
 )
@@ -64,6 +65,7 @@ type limits struct {
 	writeTimeout     time.Duration // 0: none
 	sendQueueBytes   int64         // PUB: bytes queued per subscriber; 0: DefaultPubQueueBytes
 	inflight         *budget       // nil: no socket-wide bound
+	log              *log.Logger   // the socket's logger
 }
 
 func (l limits) maxMessage() int64 {
@@ -151,14 +153,18 @@ func (c *Conn) drop() {
 
 // recoverConn ends a connection goroutine that panicked: the connection is
 // closed, and the process and every other connection live on.
-func (c *Conn) recoverConn(log func(format string, v ...any)) {
+func (c *Conn) recoverConn() {
 	if p := recover(); p != nil {
-		if c != nil {
-			c.drop()
-		}
-		if log != nil {
-			log("zmq4: closed a connection after a panic: %v", p)
-		}
+		c.drop()
+		c.logf("closed a connection after a panic: %v", p)
+	}
+}
+
+func (c *Conn) logf(format string, v ...any) {
+	if c.lim.log != nil {
+		c.lim.log.Printf(format, v...)
+	} else {
+		log.Printf("zmq4: "+format, v...)
 	}
 }
 

@@ -7,7 +7,6 @@ package zmq4
 import (
 	"context"
 	"io"
-	"log"
 	"sync"
 
 	errgrp "github.com/go-zeromq/zmq4/internal/errgroup"
@@ -100,8 +99,8 @@ func (q *qreader) read(ctx context.Context, msg *Msg) error {
 
 func (q *qreader) listen(ctx context.Context, r *Conn) {
 	defer q.rmConn(r)
-	defer r.drop()                  // lsys: forget it too, not just close it
-	defer r.recoverConn(log.Printf) // lsys: one bad peer loses only its connection
+	defer r.drop()        // lsys: forget it too, not just close it
+	defer r.recoverConn() // lsys: one bad peer loses only its connection
 
 	for {
 		msg := r.read()

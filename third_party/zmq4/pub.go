@@ -7,7 +7,6 @@ package zmq4
 import (
 	"context"
 	"fmt"
-	"log"
 	"net"
 	"sync"
 	"sync/atomic"
@@ -186,8 +185,8 @@ func (q *pubQReader) read(ctx context.Context, msg *Msg) error {
 
 func (q *pubQReader) listen(ctx context.Context, r *Conn) {
 	defer q.rmConn(r)
-	defer r.drop()                  // lsys: forget it too, not just close it
-	defer r.recoverConn(log.Printf) // lsys: one bad peer loses only its connection
+	defer r.drop()        // lsys: forget it too, not just close it
+	defer r.recoverConn() // lsys: one bad peer loses only its connection
 
 	for {
 		msg := r.read()
@@ -259,7 +258,7 @@ func newPubMWriter(ctx context.Context, lim limits) *pubMWriter {
 
 // run writes one subscriber's queue to it.
 func (w *pubMWriter) run(c *Conn, p *pubPeer) {
-	defer c.recoverConn(log.Printf)
+	defer c.recoverConn()
 	for {
 		select {
 		case <-p.stop:
@@ -365,7 +364,7 @@ func (w *pubMWriter) write(ctx context.Context, msg Msg) error {
 // and says so once per subscriber.
 func (p *pubPeer) drop(c *Conn) {
 	if p.dropped.Add(1) == 1 {
-		log.Printf("zmq4: a subscriber on %v is not reading; dropping messages for it", c.rw.RemoteAddr())
+		c.logf("a subscriber on %v is not reading; dropping messages for it", c.rw.RemoteAddr())
 	}
 }
 

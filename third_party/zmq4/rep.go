@@ -7,7 +7,6 @@ package zmq4
 import (
 	"context"
 	"fmt"
-	"log"
 	"net"
 	"sync"
 )
@@ -157,8 +156,8 @@ func (r *repReader) read(ctx context.Context, msg *Msg) error {
 
 func (r *repReader) listen(ctx context.Context, conn *Conn) {
 	defer r.rmConn(conn)
-	defer conn.drop()                  // lsys: forget it too, not just close it
-	defer conn.recoverConn(log.Printf) // lsys: one bad peer loses only its connection
+	defer conn.drop()        // lsys: forget it too, not just close it
+	defer conn.recoverConn() // lsys: one bad peer loses only its connection
 
 	for {
 		msg := conn.read()

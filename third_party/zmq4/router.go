@@ -7,7 +7,6 @@ package zmq4
 import (
 	"bytes"
 	"context"
-	"log"
 	"net"
 	"sync"
 
@@ -155,8 +154,8 @@ func (q *routerQReader) read(ctx context.Context, msg *Msg) error {
 
 func (q *routerQReader) listen(ctx context.Context, r *Conn) {
 	defer q.rmConn(r)
-	defer r.drop()                  // lsys: forget it too, not just close it
-	defer r.recoverConn(log.Printf) // lsys: one bad peer loses only its connection
+	defer r.drop()        // lsys: forget it too, not just close it
+	defer r.recoverConn() // lsys: one bad peer loses only its connection
 
 	id := []byte(r.Peer.Meta[sysSockID])
 	for {

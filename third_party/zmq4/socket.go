@@ -94,6 +94,7 @@ func newSocket(ctx context.Context, sockType SocketType, opts ...Option) *socket
 	if sck.log == nil {
 		sck.log = log.New(os.Stderr, "zmq4: ", 0)
 	}
+	sck.lim.log = sck.log // lsys
 
 	return sck
 }
