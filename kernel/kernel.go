@@ -123,7 +123,7 @@ func (k *Kernel) Serve(ctx context.Context) (restart bool, err error) {
 	max := k.cfg.MaxMessageSize
 	// Log lines of the ZMTP layer (refused peers) go to the kernel's log.
 	zlog := log.New(k.log.Writer(), k.log.Prefix()+"zmq: ", k.log.Flags())
-	opts := []zmq4.Option{zmq4.WithLogger(zlog), zmq4.WithMaxMessageSize(max), zmq4.WithMaxInflight(4 * max),
+	opts := []zmq4.Option{zmq4.WithLogger(zlog), zmq4.WithMaxMessageSize(max), zmq4.WithMaxInflight(2 * max),
 		zmq4.WithHandshakeTimeout(handshakeTimeout), zmq4.WithWriteTimeout(writeTimeout)}
 	k.shell = zmq4.NewRouter(ctx, opts...)
 	k.control = zmq4.NewRouter(ctx, opts...)

@@ -213,6 +213,8 @@ func (c *Conn) RecvMsg() (Msg, error) {
 		return Msg{}, ErrClosedConn
 	}
 	msg := c.read()
+	c.lim.inflight.release(msg.held) // lsys: handed to the caller
+	msg.held = 0
 	if msg.err != nil {
 		return msg, fmt.Errorf("zmq4: could not read recv msg: %w", msg.err)
 	}
@@ -265,6 +267,7 @@ func (c *Conn) RecvCmd() (Cmd, error) {
 	}
 
 	msg := c.read()
+	c.lim.inflight.release(msg.held) // lsys: handed to the caller
 	if msg.err != nil {
 		return cmd, fmt.Errorf("zmq4: could not read recv cmd: %w", msg.err)
 	}

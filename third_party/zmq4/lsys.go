@@ -168,8 +168,10 @@ func (c *Conn) logf(format string, v ...any) {
 	}
 }
 
-// readBody reads a frame body of size bytes, allocating as the bytes arrive
-// and charging them to the socket's in-flight budget (returned in held).
+// readBody reads a frame body of size bytes and charges them to the
+// socket's in-flight budget (adding to held). A large body is allocated in
+// full only once its first chunk has arrived, so a header that announces
+// much and sends nothing costs one chunk.
 func (c *Conn) readBody(size int, held *int64) ([]byte, error) {
 	first := size
 	if first > bodyChunk {
@@ -179,27 +181,18 @@ func (c *Conn) readBody(size int, held *int64) ([]byte, error) {
 		return nil, errBudget
 	}
 	*held += int64(first)
-	body := make([]byte, first)
-	if _, err := io.ReadFull(c.rw, body); err != nil {
-		return nil, err
+	head := make([]byte, first)
+	if _, err := io.ReadFull(c.rw, head); err != nil || first == size {
+		return head, err
 	}
-	for len(body) < size {
-		grow := len(body)
-		if grow > size-len(body) {
-			grow = size - len(body)
-		}
-		if !c.lim.inflight.claim(int64(grow)) {
-			return nil, errBudget
-		}
-		*held += int64(grow)
-		nb := make([]byte, len(body)+grow)
-		copy(nb, body)
-		if _, err := io.ReadFull(c.rw, nb[len(body):]); err != nil {
-			return nil, err
-		}
-		body = nb
+	if !c.lim.inflight.claim(int64(size - first)) {
+		return nil, errBudget
 	}
-	return body, nil
+	*held += int64(size - first)
+	body := make([]byte, size)
+	copy(body, head)
+	_, err := io.ReadFull(c.rw, body[first:])
+	return body, err
 }
 
 func tooLarge(size, limit int64) error {

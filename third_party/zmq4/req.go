@@ -184,6 +184,8 @@ func (r *reqReader) read(ctx context.Context, msg *Msg) error {
 		return fmt.Errorf("zmq4: no connections available")
 	}
 	*msg = curConn.read()
+	curConn.lim.inflight.release(msg.held) // lsys: handed to the caller
+	msg.held = 0
 	if msg.err != nil {
 		return msg.err
 	}

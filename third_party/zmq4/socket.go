@@ -255,10 +255,6 @@ func (sck *socket) handshake(conn net.Conn) {
 		return
 	}
 	conn.SetDeadline(time.Time{})
-	if sck.ctx.Err() != nil {
-		conn.Close()
-		return
-	}
 	sck.addConn(zconn)
 }
 
@@ -319,6 +315,11 @@ connect:
 func (sck *socket) addConn(c *Conn) {
 	sck.mu.Lock()
 	defer sck.mu.Unlock()
+	// lsys: a handshake may end after the socket was closed.
+	if sck.ctx.Err() != nil {
+		c.rw.Close()
+		return
+	}
 	// lsys: a ROUTER routes by identity, and sent a reply to every
 	// connection claiming it; so a second peer announcing someone else's
 	// identity received copies of their replies. As libzmq does by default,
