@@ -509,3 +509,42 @@ func TestMemoryUnderLargeUnsignedMessages(t *testing.T) {
 		t.Errorf("peak RSS %.0f MB; the in-flight bounds should keep it well under 1 GB", peak)
 	}
 }
+
+// TestHeartbeatPastPeerThatDoesNotRead: a heartbeat peer that sends pings
+// and never reads the echoes does not delay the echoes of another.
+func TestHeartbeatPastPeerThatDoesNotRead(t *testing.T) {
+	c := startWire(t)
+	hog := rawPeer(t, c.ports()[4], "DEALER", "")
+	ping := cat(frame(1, nil), frame(0, make([]byte, 60<<10)))
+	go func() {
+		for i := 0; i < 2000; i++ { // 120 MB of pings, none of the echoes read
+			if _, err := hog.Write(ping); err != nil {
+				return
+			}
+		}
+	}()
+	time.Sleep(300 * time.Millisecond)
+	for i := 0; i < 5; i++ {
+		msg := []byte(fmt.Sprintf("beat %d", i))
+		if err := c.hb.Send(zmq4.NewMsg(msg)); err != nil {
+			t.Fatal(err)
+		}
+		echo := make(chan error, 1)
+		go func() {
+			m, err := c.hb.Recv()
+			if err == nil && !bytes.Equal(m.Bytes(), msg) {
+				err = fmt.Errorf("echo %q; want %q", m.Bytes(), msg)
+			}
+			echo <- err
+		}()
+		select {
+		case err := <-echo:
+			if err != nil {
+				t.Fatal(err)
+			}
+		case <-time.After(time.Second):
+			t.Fatalf("heartbeat %d not echoed within 1 s while another peer does not read its echoes", i)
+		}
+	}
+	c.alive()
+}
