@@ -253,3 +253,14 @@ func TestScalarTimesSystemKeepsNames(t *testing.T) {
 		{src: g + "gain(0.05 * G)[1, 1]", want: "0.05"},
 	})
 }
+
+// frequency(..., hz: true) shows Hz; its fields say their unit by name:
+// .w in rad/s and .f in Hz whatever the display (issue 8, item 6). From
+// 0.01 to 10 Hz, the first point is 0.01 Hz = 2 pi 0.01 rad/s (definition).
+func TestFrequencyFieldsInStatedUnits(t *testing.T) {
+	runCells(t, []cell{
+		{src: "frequency(1/(s + 1), from: 0.01, to: 10, hz: true).f[1]", want: "0.01"},
+		{src: "frequency(1/(s + 1), from: 0.01, to: 10, hz: true).w[1]", want: "0.06283185307"},
+		{src: "frequency(1/(s + 1), from: 0.01, to: 10).w[1]", want: "0.01"},
+	})
+}
