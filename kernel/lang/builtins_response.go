@@ -133,7 +133,7 @@ func init() {
 		},
 	})
 	RegisterType((*lsys.FrequencyResponse)(nil), TypeInfo{
-		Name:   "a frequency response",
+		Name: "a frequency response",
 		// .w is always in rad/s and .f in Hz, whatever hz: the chart shows
 		Fields: []string{"w", "f", "magnitude", "phase"},
 		Field: func(v any, name string) (any, bool) {
