@@ -233,7 +233,7 @@ func fillMetric(row *Metric, tr trace, base float64) {
 		row.RiseTime, row.Overshoot = nan, nan
 		dir := math.Copysign(1, dev)
 		row.PeakTime, row.Peak = tr.peak(kd, dir)
-		row.Note = fmt.Sprintf("returns to where it started (net change %.3g, under %g %% of the largest deviation %.4g at t = %.4g s): peak is the largest deviation; settling is into 2 %% of it",
+		row.Note = fmt.Sprintf("net change %.3g, under %g %% of the largest deviation %.4g at t = %.4g s: peak is the largest deviation; settling is into 2 %% of it",
 			yss-base, 100*returnRatio, row.Peak-base, row.PeakTime)
 		na("rise time", "the response returns to where it started")
 		na("overshoot", "the response returns to where it started")
@@ -245,7 +245,6 @@ func fillMetric(row *Metric, tr trace, base float64) {
 		row.RiseTime, row.Overshoot = nan, nan
 		dir := math.Copysign(1, y[kd]-yss)
 		row.PeakTime, row.Peak = tr.peak(kd, dir)
-		row.Note = "the final value is reached at t = 0 (direct feedthrough)"
 		na("rise time", "the final value is reached at t = 0 (direct feedthrough)")
 		na("overshoot", "the final value is reached at t = 0 (direct feedthrough)")
 		settleOr()
