@@ -159,14 +159,38 @@ func renderMetrics(v any, _ Options) Bundle {
 		if r.Note != "" {
 			js[len(js)-1]["note"] = r.Note
 		}
-	}
-	remark := "n/a: not defined by this response (no change, or it leaves the 2 % band at the end of the horizon)."
-	notes := []string{remark}
-	for _, r := range m.Rows {
-		if r.Note != "" && r.Note != "the response does not move" {
-			notes = append(notes, r.Output+" / "+r.Channel+": "+r.Note+".")
+		if len(r.Undefined) > 0 {
+			why := map[string]any{}
+			for _, u := range r.Undefined {
+				why[strings.ReplaceAll(u.Figure, " ", "_")] = "n/a: " + u.Reason
+			}
+			js[len(js)-1]["undefined"] = why
 		}
 	}
+	// one line per row with the reasons of its n/a figures (figures with
+	// the same reason named together), then the notes and the method
+	var notes []string
+	for _, r := range m.Rows {
+		var figs, whys []string
+		for _, u := range r.Undefined {
+			if k := len(whys) - 1; k >= 0 && whys[k] == u.Reason {
+				figs[k] += ", " + u.Figure
+				continue
+			}
+			figs, whys = append(figs, u.Figure), append(whys, u.Reason)
+		}
+		var parts []string
+		for k := range figs {
+			parts = append(parts, figs[k]+" n/a: "+whys[k])
+		}
+		if r.Note != "" && r.Note != "the response does not move" {
+			parts = append(parts, r.Note)
+		}
+		if len(parts) > 0 {
+			notes = append(notes, r.Output+" / "+r.Channel+": "+strings.Join(parts, "; ")+".")
+		}
+	}
+	notes = append(notes, m.Method+".")
 	b := NewBundle(textTable("response metrics", head, rows) + "\n" + strings.Join(notes, "\n"))
 	b.Data[HTML] = htmlTableCard("lsys-response", "Response metrics", head, rows, 2, notes...)
 	b.Data[JSON] = js

@@ -260,17 +260,21 @@ func renderMargins(v any, opt Options) Bundle {
 	}
 	bw := rpFreq(mg.Bandwidth, hz)
 	if math.IsNaN(mg.Bandwidth) {
-		bw = "not within the range (see the notes)"
+		bw = "n/a: " + mg.BandwidthNote
+	}
+	peak := fmt.Sprintf("%s dB at %s", fmtNum(mg.ResonantPeak), rpFreq(mg.ResonantFreq, hz))
+	if mg.ClosedNote != "" {
+		dm, peak = "n/a: "+mg.ClosedNote, "n/a: "+mg.ClosedNote
 	}
 	head := []string{"figure", "value"}
 	rows := [][]string{
 		{"gain margin", gm},
-		{"phase margin", pm},
+		{"phase margin (180 + angle L, in (-180, 180] deg)", pm},
 		{"delay margin", dm},
 		{"gain crossovers (|L| = 1)", rpListWith(mg.GainCrossovers, mg.PhaseMargins, hz, "PM", " deg")},
 		{"phase crossovers (angle L = -180 deg)", rpListWith(mg.PhaseCrossovers, mg.GainMarginsDB, hz, "GM", " dB")},
 		{"closed-loop bandwidth (-3 dB)", bw},
-		{"closed-loop resonant peak", fmt.Sprintf("%s dB at %s", fmtNum(mg.ResonantPeak), rpFreq(mg.ResonantFreq, hz))},
+		{"closed-loop resonant peak", peak},
 	}
 	text := textTable("loop margins", head, rows) + "\n" + verdict
 	for _, n := range mg.Notes {
@@ -343,7 +347,13 @@ func renderMargins(v any, opt Options) Bundle {
 		"gain_crossovers": mg.GainCrossovers, "phase_crossovers": mg.PhaseCrossovers,
 		"phase_margins_deg": jsonNums(mg.PhaseMargins), "gain_margins_db": jsonNums(mg.GainMarginsDB), "bandwidth": jsonNum(mg.Bandwidth),
 		"resonant_peak_db": jsonNum(mg.ResonantPeak), "resonant_freq": jsonNum(mg.ResonantFreq), "closed_loop_stable": mg.ClosedStable,
-		"notes": notes,
+		"notes": notes, "phase_margin_convention": "180 + angle L, in (-180, 180] deg",
+	}
+	if mg.BandwidthNote != "" {
+		b.Data[JSON].(map[string]any)["bandwidth_note"] = "n/a: " + mg.BandwidthNote
+	}
+	if mg.ClosedNote != "" {
+		b.Data[JSON].(map[string]any)["closed_loop_note"] = "n/a: " + mg.ClosedNote
 	}
 	return b
 }

@@ -409,3 +409,27 @@ func TestPoleZeroFramesNearPoints(t *testing.T) {
 		t.Errorf("within 100: text %q", txt)
 	}
 }
+
+// A lag has no overshoot: its peak and peak time read n/a in every
+// display, each with the reason (issue 8, item 5), and the text says how
+// times were read.
+func TestMetricsUndefinedWithReason(t *testing.T) {
+	g, err := lsys.Realize([][]*lsys.Rational{{{Num: []float64{1}, Den: []float64{1, 1}}}}, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st, _ := lsys.Step(context.Background(), g, lsys.ResponseOptions{})
+	m, _ := lsys.ResponseMetrics(st)
+	b := Render(m, Options{})
+	text, html := b.Data[Text].(string), b.Data[HTML].(string)
+	const why = "peak n/a: no overshoot: the response does not pass its final value"
+	for name, s := range map[string]string{"text": text, "html": html} {
+		if !strings.Contains(s, why) || !strings.Contains(s, "refined on the exact continuous response") {
+			t.Errorf("%s lacks the reason or the method:\n%s", name, s)
+		}
+	}
+	js := b.Data[JSON].([]map[string]any)
+	if u, ok := js[0]["undefined"].(map[string]any); !ok || u["peak"] != "n/a: no overshoot: the response does not pass its final value" {
+		t.Errorf("JSON lacks the reason: %v", js[0])
+	}
+}

@@ -7,6 +7,7 @@ import (
 	"math"
 	"math/cmplx"
 	"sort"
+	"strings"
 )
 
 // Margins are the stability margins of a SISO loop transfer function L,
@@ -18,16 +19,17 @@ type Margins struct {
 	GainMargin     float64 // ratio 1/|L| at the phase crossover that sets it; +Inf if there is none
 	GainMarginDB   float64
 	PhaseCrossover float64 // rad/s; NaN if none
-	PhaseMargin    float64 // degrees, 180 + angle L at the gain crossover that sets it; +Inf if none
+	PhaseMargin    float64 // degrees, 180 + angle L in (-180, 180] at the gain crossover that sets it; +Inf if none
 	GainCrossover  float64 // rad/s; NaN if none
 	DelayMargin    float64 // s: the smallest PM_i/w_i over gain crossovers; +Inf if none
 
 	GainCrossovers  []float64 // every w with |L| = 1
 	PhaseCrossovers []float64 // every w with angle L = -180 + k 360
-	PhaseMargins    []float64 // degrees, in [-180, 180), at each of GainCrossovers
+	PhaseMargins    []float64 // degrees, 180 + angle L in (-180, 180], at each of GainCrossovers
 	GainMarginsDB   []float64 // dB, -20 log10 |L|, at each of PhaseCrossovers
 
-	Bandwidth     float64 // rad/s: first w where |T| falls 3 dB below |T(0)|; NaN if not within the grid
+	Bandwidth     float64 // rad/s: first w where |T| falls 3 dB below |T(0)|; NaN if not found (BandwidthNote says why)
+	BandwidthNote string  // why Bandwidth is NaN
 	ResonantPeak  float64 // max |T| in dB (refined between grid points by golden-section search)
 	ResonantFreq  float64 // rad/s
 	ClosedStable  bool    // whether T is stable (from its poles)
@@ -38,6 +40,10 @@ type Margins struct {
 	// is typical of a state the loop does not see, such as the angle of a
 	// speed loop.
 	ClosedBoundary int
+
+	// ClosedNote, when set, is why the closed-loop figures (delay margin,
+	// bandwidth, resonant peak) are NaN: they describe a working loop only.
+	ClosedNote string
 
 	// Notes say where a figure rests on the edge of the range rather than
 	// on a true crossing or extremum, and what may lie beyond a range given.
@@ -129,6 +135,13 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 	if n := len(mag); n > 0 && mag[n-1] == 1 {
 		mg.GainCrossovers = append(mg.GainCrossovers, f.W[n-1])
 	}
+	var skipped []float64
+	maxMag := 0.0
+	for _, v := range mag {
+		if !math.IsInf(v, 0) {
+			maxMag = math.Max(maxMag, v)
+		}
+	}
 	for k := 0; k+1 < len(f.W); k++ {
 		// which odd multiple of 180 lies between ph[k] and ph[k+1]?
 		// the 1e-9 nudge keeps a phase that sits on -180 (a double
@@ -145,7 +158,17 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 			p += 360 * math.Round((ref-p)/360)
 			return p - target
 		}
-		mg.PhaseCrossovers = append(mg.PhaseCrossovers, bisect(f.W[k], f.W[k+1], ph[k]-target, fn))
+		w := bisect(f.W[k], f.W[k+1], ph[k]-target, fn)
+		if jumpAt(val, w) || cabs(val(w)) <= zeroMag*maxMag {
+			// |L| passes through 0 (a zero on the axis): the phase jumps
+			// by 180 deg there, it does not cross -180
+			skipped = append(skipped, w)
+			continue
+		}
+		mg.PhaseCrossovers = append(mg.PhaseCrossovers, w)
+	}
+	if len(skipped) > 0 {
+		notes = append(notes, fmt.Sprintf("|L| = 0 (a zero on the axis; below %g of the largest |L| on the chart, or the phase jumping by 180 deg) at %s: no phase crossover there", zeroMag, joinFreqs(skipped, unit)))
 	}
 	sort.Float64s(mg.GainCrossovers)
 	sort.Float64s(mg.PhaseCrossovers)
@@ -159,7 +182,10 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 	}
 	for _, w := range mg.GainCrossovers {
 		p := cmplx.Phase(val(w)) * 180 / math.Pi
-		pm := math.Mod(180+p+540, 360) - 180 // in [-180, 180)
+		pm := 180 + p // p in (-180, 180]: pm in (0, 360]
+		if pm > 180 {
+			pm -= 360 // in (-180, 180]
+		}
 		mg.PhaseMargins = append(mg.PhaseMargins, pm)
 		if math.Abs(pm) < math.Abs(mg.PhaseMargin) || math.IsInf(mg.PhaseMargin, 1) {
 			mg.PhaseMargin, mg.GainCrossover = pm, w
@@ -236,6 +262,17 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 			notes = append(notes, "closed-loop bandwidth: |T| stays within 3 dB of |T(0)| up to "+unit(f.W[n-1])+", the upper edge of the range")
 		}
 		switch {
+		case !math.IsNaN(mg.Bandwidth):
+		case bwBelow:
+			mg.BandwidthNote = "the -3 dB point lies below the range"
+		case t0 > 0:
+			mg.BandwidthNote = "|T| stays within 3 dB of |T(0)| up to " + unit(f.W[n-1]) + ", the upper edge of the range"
+		case t0 == 0:
+			mg.BandwidthNote = "|T(0)| = 0 (the loop gain is 0 at zero frequency): no level to fall 3 dB below"
+		default:
+			mg.BandwidthNote = "|T(0)| is not defined"
+		}
+		switch {
 		case kPeak == 0 && !math.IsNaN(t0) && 20*math.Log10(t0) >= mg.ResonantPeak-1e-9:
 			// |T| falls from its value at w = 0: no resonance
 			mg.ResonantPeak, mg.ResonantFreq = 20*math.Log10(t0), 0
@@ -246,7 +283,12 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 			notes = append(notes, "closed-loop peak: the largest |T| found lies at "+unit(f.W[n-1])+", the upper edge of the range, not at a true maximum")
 		}
 	}
-	mg.Notes = notes
+	if !math.IsNaN(mg.Bandwidth) && f.Nyquist > 0 && mg.Bandwidth >= f.Nyquist*(1-1e-9) {
+		// |T| reaches the limit only at the Nyquist frequency, where a
+		// zero at z = -1 makes it 0: not a -3 dB point within the band
+		mg.Bandwidth = math.NaN()
+		mg.BandwidthNote = "|T| stays within 3 dB of |T(0)| up to the Nyquist frequency " + unit(f.Nyquist)
+	}
 	one, err := NewSystem(0, 1, 1, nil, nil, nil, nil, L.Ts)
 	if err == nil {
 		one.D.Set(0, 0, 1)
@@ -258,5 +300,43 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 			}
 		}
 	}
+	if mg.ClosedChecked && !mg.ClosedStable && mg.ClosedBoundary == 0 {
+		// an unstable closed loop has no bandwidth, resonance or delay
+		// margin: the figures would describe a loop that does not work
+		mg.ClosedNote = "closed loop unstable"
+		mg.DelayMargin, mg.Bandwidth, mg.ResonantPeak, mg.ResonantFreq = math.NaN(), math.NaN(), math.NaN(), math.NaN()
+		mg.BandwidthNote = "closed loop unstable"
+		var kept []string
+		for _, n := range notes {
+			if !strings.HasPrefix(n, "closed-loop") && !strings.HasPrefix(n, "closed loop:") {
+				kept = append(kept, n)
+			}
+		}
+		notes = kept
+	}
+	mg.Notes = notes
 	return mg, nil
+}
+
+// zeroMag is the fraction of the largest |L| on the chart below which |L|
+// is rounding residue of a zero on the axis: a "gain margin" of 180 dB or
+// more above the loop's own level is no margin.
+const zeroMag = 1e-9
+
+// jumpAt reports whether the phase of L jumps by more than 90 deg across
+// w (within 1e-6 of it either side): |L| passes through 0 there, as at a
+// zero on the imaginary axis (the unit circle), and a phase crossover
+// found there is no crossover.
+func jumpAt(val func(w float64) complex128, w float64) bool {
+	a, b := val(w*(1-1e-6)), val(w*(1+1e-6))
+	d := math.Abs(cmplx.Phase(a/b)) * 180 / math.Pi
+	return d > 90
+}
+
+func joinFreqs(ws []float64, unit func(float64) string) string {
+	var s []string
+	for _, w := range ws {
+		s = append(s, unit(w))
+	}
+	return strings.Join(s, ", ")
 }

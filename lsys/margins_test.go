@@ -245,3 +245,83 @@ func TestMarginsSpeedLoopWithUnseenAngle(t *testing.T) {
 		t.Errorf("crossover %g, PM %g", mg.GainCrossover, mg.PhaseMargin)
 	}
 }
+
+// Issue 8, item 6. L = 20/((s + 1)(s - 1)(s + 3)): 1 + L has the
+// characteristic polynomial s^3 + 3s^2 - s + 17, whose coefficients change
+// sign, so the closed loop is unstable (Routh-Hurwitz; Ogata, Modern
+// Control Engineering, 5th ed., 2010, Section 5-6): delay margin,
+// bandwidth and resonant peak are NaN with the reason, not numbers.
+func TestMarginsUnstableClosedLoopFiguresUndefined(t *testing.T) {
+	mg, err := LoopMargins(context.Background(), siso(t, []float64{20}, []float64{-3, -1, 3, 1}), FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if mg.ClosedStable || mg.ClosedNote == "" {
+		t.Fatalf("closed loop stable %v, note %q; want unstable with a note", mg.ClosedStable, mg.ClosedNote)
+	}
+	for name, v := range map[string]float64{"delay margin": mg.DelayMargin, "bandwidth": mg.Bandwidth, "resonant peak": mg.ResonantPeak} {
+		if !math.IsNaN(v) {
+			t.Errorf("%s %g on an unstable closed loop; want n/a", name, v)
+		}
+	}
+	if mg.BandwidthNote == "" {
+		t.Error("bandwidth n/a without a reason")
+	}
+}
+
+// Phase margins in one convention, 180 + angle L in (-180, 180]: L = K/s
+// gives 90 deg (common practice), and L = 100 s/((s+1)(s+2)(s+3)) at its
+// low crossover, where angle L is near +90 - atan(w) - atan(w/2) -
+// atan(w/3), gives a value inside (-180, 180] equal to 180 + angle L
+// (the convention itself).
+func TestMarginsPhaseConvention(t *testing.T) {
+	L := siso(t, []float64{0, 100}, []float64{6, 11, 6, 1})
+	mg, err := LoopMargins(context.Background(), L, FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, w := range mg.GainCrossovers {
+		ang := 90 - (math.Atan(w)+math.Atan(w/2)+math.Atan(w/3))*180/math.Pi
+		want := 180 + ang
+		if want > 180 {
+			want -= 360
+		}
+		if pm := mg.PhaseMargins[i]; pm <= -180 || pm > 180 || math.Abs(pm-want) > 1e-6 {
+			t.Errorf("crossover %g rad/s: PM %g, want %g", w, pm, want)
+		}
+	}
+	if !math.IsNaN(mg.Bandwidth) || mg.BandwidthNote == "" {
+		t.Errorf("T(0) = 0: bandwidth %g with note %q; want n/a with the reason", mg.Bandwidth, mg.BandwidthNote)
+	}
+}
+
+// Where |L| = 0 on the axis the phase jumps: no phase crossover, no gain
+// margin. L = 5 (s^2 + 4)/((s+1)(s+2)(s+3)(s+0.5)) is 0 at w = 2 rad/s
+// (closed form); the Tustin equivalent of 20/((s+1)(s+2)) at T = 0.1 s
+// has a double zero at z = -1 (the bilinear map sends s = infinity
+// there; Franklin, Powell & Workman, Digital Control of Dynamic Systems,
+// 3rd ed., 1998, from memory), so |L| = 0 at the Nyquist frequency
+// pi/0.1 rad/s: no 300 dB "gain margin" there.
+func TestMarginsNoCrossoverWhereLoopGainIsZero(t *testing.T) {
+	L := siso(t, []float64{20, 0, 5}, []float64{3, 12.5, 17.5, 9.5, 1})
+	mg, err := LoopMargins(context.Background(), L, FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, w := range mg.PhaseCrossovers {
+		if math.Abs(w-2) < 1e-3 {
+			t.Errorf("phase crossover at the zero 2 rad/s: %v", mg.PhaseCrossovers)
+		}
+	}
+	gz, err := Sample(siso(t, []float64{20}, []float64{2, 3, 1}), 0.1, "tustin", 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mg, err = LoopMargins(context.Background(), gz, FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !math.IsInf(mg.GainMarginDB, 1) || len(mg.PhaseCrossovers) != 0 {
+		t.Errorf("gain margin %g dB, phase crossovers %v; want none (|L| = 0 at pi/T)", mg.GainMarginDB, mg.PhaseCrossovers)
+	}
+}

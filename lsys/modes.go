@@ -343,14 +343,27 @@ func pbhMargin(A, B *mat.Dense, lam complex128, dual bool) float64 {
 }
 
 // fillFigures sets the s-plane figures of a mode from its eigenvalue.
+// rigidZ is the distance from z = 1 within which a sampled eigenvalue is a
+// pole at z = 1 (s = 0): 1000 unit roundoffs of the unit circle's scale.
+const rigidZ = 1e3 * 1.1102230246251565e-16
+
 func fillFigures(m *Mode, ts float64) {
 	s := continuousEquivalent(m.Eigenvalue, ts)
+	if ts > 0 && cmplx.Abs(m.Eigenvalue-1) <= rigidZ {
+		// z = 1 within rounding: a rigid-body mode or an integrator, not
+		// a mode of wn 1e-12 rad/s and time constant 1e11 s
+		s = 0
+	}
 	m.S = s
 	m.NaturalFreq, m.Damping = naturalAndDamping(s)
 	m.FreqHz = m.NaturalFreq / (2 * math.Pi)
 	switch {
 	case math.IsInf(real(s), -1):
 		m.TimeConstant = 0
+	case s == 0:
+		// at the origin nothing decays or oscillates: damping and time
+		// constant are not defined (n/a), the natural frequency is 0
+		m.Damping, m.TimeConstant = math.NaN(), math.NaN()
 	case real(s) == 0:
 		m.TimeConstant = math.Inf(1)
 	default:

@@ -71,7 +71,8 @@ func TestModesMassSpringDamper(t *testing.T) {
 
 func TestModesOrderAndRealModes(t *testing.T) {
 	// Closed form: a diagonal A has its diagonal as eigenvalues; real modes
-	// have damping 1 (decaying) or -1 (growing) and tau = -1/lambda.
+	// have damping 1 (decaying) or -1 (growing) and tau = -1/lambda; at
+	// the origin neither is defined (NaN: nothing decays; issue 8, item 6).
 	A := mat.NewDense(4, 4, []float64{
 		-10, 0, 0, 0,
 		0, 0.5, 0, 0,
@@ -87,7 +88,7 @@ func TestModesOrderAndRealModes(t *testing.T) {
 		t.Fatal(err)
 	}
 	want := []struct{ lam, wn, zeta, tau float64 }{
-		{0, 0, 0, math.Inf(1)},
+		{0, 0, math.NaN(), math.NaN()},
 		{0.5, 0.5, -1, -2},
 		{-2, 2, 1, 0.5},
 		{-10, 10, 1, 0.1},
@@ -97,7 +98,8 @@ func TestModesOrderAndRealModes(t *testing.T) {
 	}
 	for i, w := range want {
 		m := mt.Modes[i]
-		if real(m.Eigenvalue) != w.lam || !near(m.NaturalFreq, w.wn, 1e-15) || m.Damping != w.zeta || m.TimeConstant != w.tau {
+		same := func(a, b float64) bool { return a == b || math.IsNaN(a) && math.IsNaN(b) }
+		if real(m.Eigenvalue) != w.lam || !near(m.NaturalFreq, w.wn, 1e-15) || !same(m.Damping, w.zeta) || !same(m.TimeConstant, w.tau) {
 			t.Errorf("mode %d: %+v, want %+v", i, m, w)
 		}
 	}
@@ -441,6 +443,29 @@ func TestModesPBHTwoInputsOneScaled(t *testing.T) {
 			mt.Modes[0].Reach, mt.Modes[1].Reach, mt.Modes[2].Reach)
 		if ref == nil {
 			ref = mt
+		}
+	}
+}
+
+// A sampled rigid-body mode sits at z = 1 up to rounding: it reads wn 0,
+// damping and time constant n/a, not wn 1e-12 rad/s and tau 1e11 s (issue
+// 8, item 6). The ZOH equivalent of the double integrator 1/s^2 has the
+// double eigenvalue z = 1 exactly (Franklin, Powell & Workman, Digital
+// Control of Dynamic Systems, 3rd ed., 1998, from memory); here it is
+// perturbed by 1e-14, below the stated 1000 u.
+func TestModesSampledRigidBodyAtOrigin(t *testing.T) {
+	A := mat.NewDense(2, 2, []float64{1 + 1e-14, 0.01, 0, 1 - 3e-14})
+	s, err := FromMatrices(A, nil, nil, nil, 0.01)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mt, err := Modes(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, m := range mt.Modes {
+		if m.NaturalFreq != 0 || !math.IsNaN(m.Damping) || !math.IsNaN(m.TimeConstant) {
+			t.Errorf("mode %v: wn %g, damping %g, tau %g; want 0, n/a, n/a", m.Eigenvalue, m.NaturalFreq, m.Damping, m.TimeConstant)
 		}
 	}
 }

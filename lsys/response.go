@@ -145,6 +145,13 @@ type Response struct {
 	U        [][]float64 // input response: U[input][k], the input applied
 	Rule     string      // how the horizon and step were chosen
 	Sampled  bool        // sampled system: values hold between samples
+
+	// For exact values between samples (see ValueAt): an input response
+	// of a continuous system keeps its signal and its state at every
+	// sample, states[k*n:(k+1)*n]; an initial response its initial state.
+	signal *Signal
+	states []float64
+	x0     []float64
 }
 
 // ResponseOptions set the horizon and step. Zero values choose them from
@@ -391,7 +398,11 @@ func Initial(ctx context.Context, g *System, x0 []float64, opt ResponseOptions) 
 			return nil, fmt.Errorf("response: initial state entry %d (%s) is %v; it must be finite", i+1, g.StateNames[i], v)
 		}
 	}
-	return freeOrForced(ctx, g, "initial", x0, opt)
+	r, err := freeOrForced(ctx, g, "initial", x0, opt)
+	if r != nil {
+		r.x0 = append([]float64(nil), x0...)
+	}
+	return r, err
 }
 
 func freeOrForced(ctx context.Context, g *System, kind string, x0 []float64, opt ResponseOptions) (*Response, error) {
@@ -526,8 +537,12 @@ func checkFiniteResponse(r *Response) error {
 // with one column per input drives each input by its own column. For
 // continuous systems the input is taken as linear between samples
 // (first-order hold, exact for ramps and linear-interpolated tables) or, for
-// a table with Hold "zoh", constant; both are propagated exactly through one
-// block exponential (Van Loan 1978).
+// a table with Hold "zoh" and a step, constant; both are propagated exactly
+// through one block exponential (Van Loan 1978), piece by piece across every
+// row of a table and a delay between samples, so a switch at 0.35 s acts at
+// 0.35 s whatever the step. A sampled system reads the input at its samples:
+// when a held switch lies between them the rule says by how much it is late
+// at most.
 func Simulate(ctx context.Context, g *System, u Signal, x0 []float64, opt ResponseOptions) (*Response, error) {
 	if g == nil {
 		return nil, errors.New("response: the system is missing")
@@ -577,34 +592,39 @@ func Simulate(ctx context.Context, g *System, u Signal, x0 []float64, opt Respon
 	for i := range r.Y {
 		r.Y[i] = [][]float64{make([]float64, N)}
 	}
-	var Phi, G1, G2 *mat.Dense
-	linear := !g.Sampled() && !(u.Kind == "table" && u.Hold == "zoh") && u.Kind != "step"
-	if n > 0 {
-		switch {
-		case g.Sampled():
-			Phi, G1 = g.A, g.B
-		case linear:
-			Phi, G1, G2, err = fohTriple(g.A, g.B, h)
-		default:
-			Phi, G1, err = zohPair(g.A, g.B, h)
+	if n == 0 || p == 0 {
+		for k := 0; k < N; k++ {
+			for i := 0; i < p; i++ {
+				v := 0.0
+				for j := 0; j < m; j++ {
+					v += g.D.At(i, j) * r.U[j][k]
+				}
+				r.Y[i][0][k] = v
+			}
 		}
-		if err != nil {
-			return nil, fmt.Errorf("response: the transition over one step: %w", err)
-		}
+		return r, checkFiniteResponse(r)
 	}
-	x := make([]float64, n)
-	copy(x, x0)
-	xv := mat.NewVecDense(max(n, 1), nil)
-	if n > 0 {
-		xv = mat.NewVecDense(n, x)
+	// Continuous systems: exact piece by piece between the breakpoints
+	// of the input (see piecewise). Sampled ones read the input at their
+	// samples; a held switch between samples acts at the next one, and
+	// the rule says by how much at most.
+	var pw *piecewise
+	if !g.Sampled() {
+		pw = newPiecewise(g, u)
+		r.signal = &u
+		r.states = make([]float64, 0, N*n)
+	} else if e, at := sampledTimingError(u, g.Ts, t[N-1]); e > 0 {
+		r.Rule += fmt.Sprintf("; warning: the input switches between samples (the latest by %s s, at t = %s s): a sampled system reads it at its samples only",
+			strconv.FormatFloat(e, 'g', 4, 64), strconv.FormatFloat(at, 'g', 6, 64))
+	}
+	xv := mat.NewVecDense(n, nil)
+	if x0 != nil {
+		copy(xv.RawVector().Data, x0)
 	}
 	var nx, tmpv mat.VecDense
 	uk := mat.NewVecDense(m, nil)
-	du := mat.NewVecDense(m, nil)
-	if p == 0 {
-		return r, nil
-	}
 	yv := mat.NewVecDense(p, nil)
+	var cx mat.VecDense
 	for k := 0; k < N; k++ {
 		if k&255 == 0 {
 			if err := ctx.Err(); err != nil {
@@ -618,27 +638,26 @@ func Simulate(ctx context.Context, g *System, u Signal, x0 []float64, opt Respon
 			uk.SetVec(j, r.U[j][k])
 		}
 		yv.MulVec(g.D, uk)
-		if n > 0 {
-			var cx mat.VecDense
-			cx.MulVec(g.C, xv)
-			yv.AddVec(yv, &cx)
-		}
+		cx.MulVec(g.C, xv)
+		yv.AddVec(yv, &cx)
 		for i := 0; i < p; i++ {
 			r.Y[i][0][k] = yv.AtVec(i)
 		}
-		if n == 0 || k == N-1 {
+		if pw != nil {
+			r.states = append(r.states, xv.RawVector().Data...)
+		}
+		if k == N-1 {
 			continue
 		}
-		nx.MulVec(Phi, xv)
-		tmpv.MulVec(G1, uk)
-		nx.AddVec(&nx, &tmpv)
-		if G2 != nil {
-			for j := 0; j < m; j++ {
-				du.SetVec(j, r.U[j][k+1]-r.U[j][k])
+		if pw != nil {
+			if err := pw.advance(xv, t[k], t[k+1], h); err != nil {
+				return nil, fmt.Errorf("response: %w", err)
 			}
-			tmpv.MulVec(G2, du)
-			nx.AddVec(&nx, &tmpv)
+			continue
 		}
+		nx.MulVec(g.A, xv)
+		tmpv.MulVec(g.B, uk)
+		nx.AddVec(&nx, &tmpv)
 		xv.CopyVec(&nx)
 	}
 	return r, checkFiniteResponse(r)

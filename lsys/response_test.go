@@ -442,7 +442,7 @@ func TestMetricsResponseThatReturns(t *testing.T) {
 	if f := ts * math.Exp(-ts); ts < 1 || math.Abs(f-0.02/math.E) > 1e-5 {
 		t.Errorf("settling %g: t e^-t = %g, want %g", ts, f, 0.02/math.E)
 	}
-	if !strings.Contains(row.Note, "returns to where it started") {
-		t.Errorf("note %q", row.Note)
+	if !strings.Contains(row.Note, "largest deviation") || len(row.Undefined) != 2 || row.Undefined[0].Reason != "the response returns to where it started" {
+		t.Errorf("note %q, undefined %v", row.Note, row.Undefined)
 	}
 }

@@ -133,8 +133,9 @@ func init() {
 		},
 	})
 	RegisterType((*lsys.FrequencyResponse)(nil), TypeInfo{
-		Name:   "a frequency response",
-		Fields: []string{"w", "magnitude", "phase"},
+		Name: "a frequency response",
+		// .w is always in rad/s and .f in Hz, whatever hz: the chart shows
+		Fields: []string{"w", "f", "magnitude", "phase"},
 		Field: func(v any, name string) (any, bool) {
 			f := v.(*lsys.FrequencyResponse)
 			p, m := len(f.Outputs), len(f.Inputs)
@@ -150,6 +151,8 @@ func init() {
 			switch name {
 			case "w":
 				return colVec(f.W), true
+			case "f":
+				return colVec(inHz(f.W)), true
 			case "magnitude":
 				return cols(func(i, j int) []float64 {
 					mg := f.Magnitude(i, j)
@@ -165,12 +168,14 @@ func init() {
 		},
 	})
 	RegisterType((*lsys.PolarChart)(nil), TypeInfo{Name: "a polar chart"})
-	RegisterType((*lsys.SingularValues)(nil), TypeInfo{Name: "singular values against frequency", Fields: []string{"w", "values"},
+	RegisterType((*lsys.SingularValues)(nil), TypeInfo{Name: "singular values against frequency", Fields: []string{"w", "f", "values"},
 		Field: func(v any, name string) (any, bool) {
 			sv := v.(*lsys.SingularValues)
 			switch name {
 			case "w":
 				return colVec(sv.Frequency.W), true
+			case "f":
+				return colVec(inHz(sv.Frequency.W)), true
 			case "values":
 				if len(sv.S) == 0 || len(sv.S[0]) == 0 {
 					return nil, false
@@ -288,7 +293,7 @@ func freqOptions(c *Call) (lsys.FrequencyOptions, error) {
 var freqParams = []Param{
 	{Name: "from", Optional: true, Doc: "lowest frequency (rad/s, or Hz with hz: true); default from the modes"},
 	{Name: "to", Optional: true, Doc: "highest frequency; default from the modes (sampled: the Nyquist frequency)"},
-	{Name: "hz", Default: false, Doc: "true: frequencies in Hz instead of rad/s"},
+	{Name: "hz", Default: false, Doc: "true: the chart and tables in Hz instead of rad/s; the fields stay .w in rad/s and .f in Hz either way"},
 }
 
 // signalOf turns a value into an input signal: a signal, or a user
@@ -558,8 +563,9 @@ func responseBuiltins() []*Builtin {
 			Help:   "Frequency response: magnitude (dB) and unwrapped phase (degrees) against frequency.",
 			Doc: "One Hessenberg reduction, then an O(n^2) complex Hessenberg solve per frequency (Laub 1981). " +
 				"The range runs a decade beyond the slowest and fastest modes (sampled: up to the Nyquist frequency); " +
-				"20 points per decade, refined where the magnitude moves more than 1 dB or the phase more than 5 degrees between points.",
-			Examples: []string{respExample + "frequency(G)", respExample + "frequency(G, from: 0.01, to: 10, hz: true)"},
+				"20 points per decade, refined where the magnitude moves more than 1 dB or the phase more than 5 degrees between points. " +
+				"Fields: .w the frequencies in rad/s and .f the same in Hz (whatever hz: the display uses), .magnitude in dB, .phase in degrees.",
+			Examples: []string{respExample + "frequency(G)", respExample + "frequency(G, from: 0.01, to: 10, hz: true)", respExample + "frequency(G, hz: true).f[1]"},
 			Fn: func(c *Call) (any, error) {
 				f, err := respFrequency(c)
 				if err != nil {
@@ -1007,4 +1013,13 @@ func respFrequency(c *Call) (*lsys.FrequencyResponse, error) {
 		return nil, err
 	}
 	return lsys.Frequency(c.Context(), g, o)
+}
+
+// inHz converts angular frequencies (rad/s) to Hz.
+func inHz(w []float64) []float64 {
+	f := make([]float64, len(w))
+	for i, v := range w {
+		f[i] = v / (2 * math.Pi)
+	}
+	return f
 }

@@ -235,3 +235,32 @@ func TestEquilibriumFamily(t *testing.T) {
 		t.Errorf("pendulum equilibrium called a family:\n%s", got)
 	}
 }
+
+// A number times a system is a static gain on the side it multiplies, named
+// after the signals it meets: 0.05 * G and G * 0.05 keep G's names (issue
+// 8, item 7; the rule of SPEC section 5 on scalar multiplication).
+func TestScalarTimesSystemKeepsNames(t *testing.T) {
+	const g = `G = system([[-1, 0], [0, -2]], [[1, 0], [0, 1]], [[1, 0], [0, 1]], inputs: ["force", "torque"], outputs: ["pos", "angle"])` + "\n"
+	runCells(t, []cell{
+		{src: g + "(0.05 * G).outputs", want: `["pos", "angle"]`},
+		{src: g + "(0.05 * G).inputs", want: `["force", "torque"]`},
+		{src: g + "(G * 0.05).outputs", want: `["pos", "angle"]`},
+		{src: g + "(G * 0.05).inputs", want: `["force", "torque"]`},
+		{src: g + "(G + 2).outputs", want: `["pos", "angle"]`},
+		{src: g + "(2 + G).inputs", want: `["force", "torque"]`},
+		{src: g + "(2 - G).outputs", want: `["pos", "angle"]`},
+		// the gain itself: 0.05 times 1/(s + 1) at s = 0 (closed form)
+		{src: g + "gain(0.05 * G)[1, 1]", want: "0.05"},
+	})
+}
+
+// frequency(..., hz: true) shows Hz; its fields say their unit by name:
+// .w in rad/s and .f in Hz whatever the display (issue 8, item 6). From
+// 0.01 to 10 Hz, the first point is 0.01 Hz = 2 pi 0.01 rad/s (definition).
+func TestFrequencyFieldsInStatedUnits(t *testing.T) {
+	runCells(t, []cell{
+		{src: "frequency(1/(s + 1), from: 0.01, to: 10, hz: true).f[1]", want: "0.01"},
+		{src: "frequency(1/(s + 1), from: 0.01, to: 10, hz: true).w[1]", want: "0.06283185307"},
+		{src: "frequency(1/(s + 1), from: 0.01, to: 10).w[1]", want: "0.01"},
+	})
+}

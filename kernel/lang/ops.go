@@ -488,17 +488,23 @@ func (ev *evaluator) systemOp(op Token, a, b any, pos Pos) (any, error) {
 		return nil, ev.opError(op, a, b, pos, "Systems combine with systems, transfer functions, numbers and matrices of numbers (static gains).")
 	}
 	// A number is a static gain of matching size.
+	// Its signals take the names of the system's signals it meets, so
+	// 0.05 * G and G * 0.05 both keep G's names.
 	if f, ok := a.(float64); ok && op == MUL {
 		ga, err = scalarGain(f, gb.P(), gb.Ts)
+		nameGain(ga, gb.OutputNames, gb.OutputNames)
 	} else if f, ok := b.(float64); ok && op == MUL {
 		gb, err = scalarGain(f, ga.M(), ga.Ts)
+		nameGain(gb, ga.InputNames, ga.InputNames)
 	} else if f, ok := a.(float64); ok {
 		ga, err = scalarGain(f, gb.P(), gb.Ts)
+		nameGain(ga, gb.InputNames, gb.OutputNames)
 		if err == nil && gb.M() != gb.P() {
 			return nil, ev.errorAt(pos, "adding a number to a system needs as many inputs as outputs", "Add a static gain system of the right size instead: system(..., D).")
 		}
 	} else if f, ok := b.(float64); ok {
 		gb, err = scalarGain(f, ga.P(), ga.Ts)
+		nameGain(gb, ga.InputNames, ga.OutputNames)
 		if err == nil && ga.M() != ga.P() {
 			return nil, ev.errorAt(pos, "adding a number to a system needs as many inputs as outputs", "Add a static gain system of the right size instead: system(..., D).")
 		}
@@ -608,6 +614,16 @@ func scalarGain(k float64, n int, ts float64) (*lsys.System, error) {
 		return lsys.NewSystem(0, 0, 0, nil, nil, nil, nil, ts)
 	}
 	return staticGain(d, ts)
+}
+
+// nameGain names the signals of the static gain g built for a number
+// (nothing when g is missing or the sizes differ).
+func nameGain(g *lsys.System, in, out []string) {
+	if g == nil || len(in) != g.M() || len(out) != g.P() {
+		return
+	}
+	g.InputNames = append([]string(nil), in...)
+	g.OutputNames = append([]string(nil), out...)
 }
 
 // asCMatrix returns v as a complex matrix (real matrices are copied).
