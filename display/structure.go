@@ -28,7 +28,11 @@ func init() {
 // "a ± bj", and a value repeated exactly (a multiple zero, listed by its
 // cluster's mean) once with its multiplicity, "-500 (×2)". An empty list is
 // "none".
-func sxValues(vals []complex128) string {
+func sxValues(vals []complex128) string { return sxValuesMulti(vals, nil) }
+
+// sxValuesMulti is sxValues with the spread of each multiple value that
+// multi lists: "0 (×2, spread 8.1e-09)".
+func sxValuesMulti(vals []complex128, multi []lsys.MultipleValue) string {
 	if len(vals) == 0 {
 		return "none"
 	}
@@ -62,7 +66,13 @@ func sxValues(vals []complex128) string {
 			part = fmtComplex(v, false)
 		}
 		if mult > 1 {
-			part += fmt.Sprintf(" (×%d)", mult)
+			spread := ""
+			for _, mv := range multi {
+				if (mv.Value == v || mv.Value == cmplx.Conj(v)) && mv.Spread > 0 {
+					spread = ", spread " + fmtNum(mv.Spread)
+				}
+			}
+			part += fmt.Sprintf(" (×%d%s)", mult, spread)
 		}
 		parts = append(parts, part)
 	}
@@ -115,18 +125,19 @@ func renderZeros(v any, _ Options) Bundle {
 	c := newCard("lsys-zeros", title)
 	t, h := &c.t, &c.h
 	keyTable(t, h, [][2]string{
-		{"invariant zeros", sxValues(z.Invariant)},
-		{"transmission zeros", sxValues(z.Transmission)},
+		{"invariant zeros", sxValuesMulti(z.Invariant, z.InvariantMultiple)},
+		{"transmission zeros", sxValuesMulti(z.Transmission, z.TransmissionMultiple)},
 		{"input-decoupling (not reached)", sxValues(z.InputDecoupling)},
 		{"output-decoupling (not seen)", sxValues(z.OutputDecoupling)},
 	})
-	note(t, h, fmt.Sprintf("System pencil reduced by orthogonal compressions, then QZ; rank decisions at %s (= %s x the norm of [[A, B], [C, D]] after scaling states, inputs and outputs to comparable size, so units do not matter); zeros closer than %s of their size are one multiple zero; regular pencil of order %d.",
-		fmtNum(z.Tol), fmtNum(z.RelTol), fmtNum(z.MergeTol), z.ReducedOrder))
+	note(t, h, fmt.Sprintf("System pencil reduced by orthogonal compressions, then QZ; rank decisions at %s (= %s x the norm of [[A, B], [C, D]] after scaling states, inputs and outputs to comparable size, so units do not matter); zeros closer than %s of the larger of their size and the system's (%s) are one multiple zero, shown once with its multiplicity and the spread of the computed values; parts below %s are rounding and shown as 0; regular pencil of order %d.",
+		fmtNum(z.Tol), fmtNum(z.RelTol), fmtNum(z.MergeTol), fmtNum(z.Scale), fmtNum(z.ZeroTol), z.ReducedOrder))
 	b := c.bundle()
 	b.Data[JSON] = map[string]any{
 		"kind": "zeros", "invariant": sxValuesJSON(z.Invariant), "transmission": sxValuesJSON(z.Transmission),
 		"input_decoupling": sxValuesJSON(z.InputDecoupling), "output_decoupling": sxValuesJSON(z.OutputDecoupling),
-		"tol": z.Tol, "rel_tol": z.RelTol,
+		"tol": z.Tol, "rel_tol": z.RelTol, "merge_tol": z.MergeTol, "scale": z.Scale, "zero_tol": z.ZeroTol,
+		"multiple": sxMultipleJSON(z.InvariantMultiple), "multiple_transmission": sxMultipleJSON(z.TransmissionMultiple),
 	}
 	return b
 }
@@ -348,6 +359,14 @@ func sxOrigNames(s *lsys.System, n int) []string {
 	out := make([]string, n)
 	for i := range out {
 		out[i] = "x" + strconv.Itoa(i+1)
+	}
+	return out
+}
+
+func sxMultipleJSON(m []lsys.MultipleValue) []any {
+	out := make([]any, len(m))
+	for i, v := range m {
+		out[i] = map[string]any{"value": jsonComplex(v.Value), "count": v.Count, "spread": v.Spread}
 	}
 	return out
 }

@@ -66,7 +66,8 @@ func tfChannel(s *System, i, j int, relTol float64) (*Rational, error) {
 	if err != nil {
 		return nil, err
 	}
-	zs, _, _, err := invariantZeros(mr, relTol)
+	zr, _, _, err := invariantZeros(mr, relTol)
+	zs := zr.vals
 	if err != nil {
 		return nil, err
 	}

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"sort"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -27,9 +28,15 @@ type ZeroSet struct {
 	// balancePencil: states balanced, inputs and outputs scaled so every
 	// block has a comparable norm), so results do not depend on units.
 	Tol, RelTol float64
-	// MergeTol: zeros closer than MergeTol times their modulus are one
-	// multiple zero, listed (once per multiplicity) by the cluster's mean.
-	MergeTol float64
+	// MergeTol: zeros closer than MergeTol times the larger of their
+	// modulus and Scale are one multiple zero, listed (once per
+	// multiplicity) by the cluster's mean; InvariantMultiple and
+	// TransmissionMultiple give each multiple zero with its spread.
+	// Scale is the size of the system (root-mean-square row of the
+	// balanced system matrix). Parts of a zero below about ZeroTol =
+	// 1000 u Scale are rounding residue and shown as 0.
+	MergeTol, Scale, ZeroTol                float64
+	InvariantMultiple, TransmissionMultiple []MultipleValue
 	// ReducedOrder is the order of the regular pencil left by the
 	// reduction, whose generalized eigenvalues are the zeros.
 	ReducedOrder int
@@ -57,20 +64,22 @@ func Zeros(s *System, relTol float64) (*ZeroSet, error) {
 	if s.N() == 0 {
 		return zs, nil
 	}
-	var err error
-	zs.Invariant, zs.ReducedOrder, zs.Tol, err = invariantZeros(s, relTol)
+	inv, order, tol, err := invariantZeros(s, relTol)
 	if err != nil {
 		return nil, err
 	}
+	zs.Invariant, zs.InvariantMultiple, zs.ReducedOrder, zs.Tol, zs.Scale = inv.vals, inv.multi, order, tol, inv.scale
+	zs.ZeroTol = 1e3 * dlamchE * inv.scale
 	mr, err := Minimal(s, relTol)
 	if err != nil {
 		return nil, err
 	}
 	if mr.N() > 0 {
-		zs.Transmission, _, _, err = invariantZeros(mr, relTol)
+		tr, _, _, err := invariantZeros(mr, relTol)
 		if err != nil {
 			return nil, err
 		}
+		zs.Transmission, zs.TransmissionMultiple = tr.vals, tr.multi
 	}
 	st, err := StructureOf(s, relTol)
 	if err != nil {
@@ -81,7 +90,7 @@ func Zeros(s *System, relTol float64) (*ZeroSet, error) {
 	return zs, nil
 }
 
-func invariantZeros(s *System, relTol float64) ([]complex128, int, float64, error) {
+func invariantZeros(s *System, relTol float64) (zeroResult, int, float64, error) {
 	if relTol <= 0 || math.IsNaN(relTol) {
 		relTol = DefaultRelTol
 	}
@@ -89,7 +98,7 @@ func invariantZeros(s *System, relTol float64) ([]complex128, int, float64, erro
 	if m == 0 || p == 0 {
 		// No inputs or no outputs: the pencil [A - sI; C] or [A - sI, B]
 		// loses rank exactly at the unobservable / uncontrollable modes.
-		return nil, 0, 0, nil
+		return zeroResult{}, 0, 0, nil
 	}
 	D := s.D
 	if D == nil {
@@ -105,13 +114,13 @@ func invariantZeros(s *System, relTol float64) ([]complex128, int, float64, erro
 	r := &zsys{A: bA, B: bB, C: bC, D: bD, n: n, m: m, p: p}
 	r = zeroReduce(r, tol)
 	if r.n == 0 {
-		return nil, 0, tol, nil
+		return zeroResult{}, 0, tol, nil
 	}
 	// Dual reduction on the transposed system.
 	t := &zsys{A: zTr(r.A), B: zTr(r.C), C: zTr(r.B), D: zTr(r.D), n: r.n, m: r.p, p: r.m}
 	t = zeroReduce(t, tol)
 	if t.n == 0 {
-		return nil, 0, tol, nil
+		return zeroResult{}, 0, tol, nil
 	}
 	f := &zsys{A: zTr(t.A), B: zTr(t.C), C: zTr(t.B), D: zTr(t.D), n: t.n, m: t.p, p: t.m}
 	nf, mf := f.n, f.m
@@ -126,7 +135,7 @@ func invariantZeros(s *System, relTol float64) ([]complex128, int, float64, erro
 		W = identity(nf + mf)
 	}
 	if W == nil {
-		return nil, nf, tol, errors.New("zeros: the reduced pencil could not be compressed")
+		return zeroResult{}, nf, tol, errors.New("zeros: the reduced pencil could not be compressed")
 	}
 	AB := stHcat(nf, f.A, f.B)
 	IE := mat.NewDense(nf, nf+mf, nil)
@@ -142,7 +151,7 @@ func invariantZeros(s *System, relTol float64) ([]complex128, int, float64, erro
 		// The reductions leave D invertible (Emami-Naeini & Van Dooren
 		// 1982, sec. 3), so this pencil is square unless a rank decision
 		// was borderline.
-		return nil, nf, tol, fmt.Errorf("zeros: the reduced pencil is %dx%d, not square: a rank decision is borderline at tolerance %.3g; try another tolerance", nf, k, tol)
+		return zeroResult{}, nf, tol, fmt.Errorf("zeros: the reduced pencil is %dx%d, not square: a rank decision is borderline at tolerance %.3g; try another tolerance", nf, k, tol)
 	}
 	W1 := W.Slice(0, nf+mf, 0, nf)
 	var Af, Ef mat.Dense
@@ -150,7 +159,7 @@ func invariantZeros(s *System, relTol float64) ([]complex128, int, float64, erro
 	Ef.Mul(IE, W1)
 	ge, err := QZ(&Af, &Ef)
 	if err != nil {
-		return nil, nf, tol, err
+		return zeroResult{}, nf, tol, err
 	}
 	var vals []complex128
 	for _, g := range ge {
@@ -158,13 +167,25 @@ func invariantZeros(s *System, relTol float64) ([]complex128, int, float64, erro
 			vals = append(vals, g.Value())
 		}
 	}
-	vals = mergeMultiple(realPencilValues(vals), math.Sqrt(relTol))
+	// The size of the system: the root-mean-square row of the balanced
+	// system matrix; residue below 1000 u ||P|| is 0 (as for poles).
+	scale := mat.Norm(P, 2) / math.Sqrt(float64(n+p))
+	vals, multi := mergeMultiple(realPencilValues(vals), math.Sqrt(relTol), scale, 1e3*dlamchE*mat.Norm(P, 2))
 	idx := orderEigenvalues(vals, 0)
 	out := make([]complex128, len(vals))
 	for i, j := range idx {
 		out[i] = vals[j]
 	}
-	return out, nf, tol, nil
+	return zeroResult{out, multi, scale}, nf, tol, nil
+}
+
+// zeroResult is what invariantZeros finds: the zeros (a multiple zero
+// repeated), the multiple ones with their spread, and the size of the
+// system the merging and residue tolerances are relative to.
+type zeroResult struct {
+	vals  []complex128
+	multi []MultipleValue
+	scale float64
 }
 
 type zsys struct {
@@ -495,18 +516,46 @@ func balanceSystem(A, B, C, D *mat.Dense) (bA, bB, bC, bD *mat.Dense, su, sy, sx
 	return A, B, C, D, su, sy, sx
 }
 
+// MultipleValue is a multiple zero: its value (the mean of the computed
+// cluster), its multiplicity and the spread of the computed values about
+// the mean (their largest distance from it).
+type MultipleValue struct {
+	Value  complex128
+	Count  int
+	Spread float64
+}
+
 // mergeMultiple replaces each cluster of values closer to one another than
-// rel*max(|a|, |b|) (single linkage) by the cluster's mean, repeated once per
-// member, so a multiple zero reads as one value. A k-fold zero perturbed by
+// rel*max(|a|, |b|, scale) (single linkage) by the cluster's mean, repeated
+// once per member, so a multiple zero reads as one value; scale is the size
+// of the system, so a multiple zero at the origin, split by rounding into
+// values of size sqrt(u) scale, is found too. A k-fold zero perturbed by
 // rounding splits into k values about u^(1/k) apart (relative; u the unit
 // roundoff), so a double zero comes out as a close pair, real or complex,
 // while the mean of the cluster is accurate to about u (Wilkinson 1965, The
 // Algebraic Eigenvalue Problem, ch. 2, on multiple eigenvalues). A mean
-// whose imaginary part is below rel of its modulus is real.
-func mergeMultiple(vals []complex128, rel float64) []complex128 {
+// whose imaginary part is below rel of its modulus is real. Parts of a
+// value (real or imaginary) below zeroTol are rounding residue and set to
+// exactly 0. The clusters of more than one value are returned with their
+// spread.
+func mergeMultiple(vals []complex128, rel, scale, zeroTol float64) ([]complex128, []MultipleValue) {
 	n := len(vals)
+	snap := func(v complex128) complex128 {
+		re, im := real(v), imag(v)
+		if math.Abs(re) <= zeroTol {
+			re = 0
+		}
+		if math.Abs(im) <= zeroTol {
+			im = 0
+		}
+		return complex(re, im)
+	}
 	if n < 2 {
-		return vals
+		out := make([]complex128, n)
+		for i, v := range vals {
+			out[i] = snap(v)
+		}
+		return realPencilValues(out), nil
 	}
 	parent := make([]int, n)
 	for i := range parent {
@@ -521,32 +570,51 @@ func mergeMultiple(vals []complex128, rel float64) []complex128 {
 	}
 	for i := 0; i < n; i++ {
 		for j := i + 1; j < n; j++ {
-			if cmplx.Abs(vals[i]-vals[j]) <= rel*math.Max(cmplx.Abs(vals[i]), cmplx.Abs(vals[j])) {
+			if cmplx.Abs(vals[i]-vals[j]) <= rel*math.Max(scale, math.Max(cmplx.Abs(vals[i]), cmplx.Abs(vals[j]))) {
 				if a, b := find(i), find(j); a != b {
 					parent[b] = a
 				}
 			}
 		}
 	}
-	sum := make(map[int]complex128)
-	cnt := make(map[int]int)
+	sum := make([]complex128, n)
+	cnt := make([]int, n)
 	for i, v := range vals {
 		r := find(i)
 		sum[r] += v
 		cnt[r]++
 	}
 	out := make([]complex128, n)
+	spread := make([]float64, n)
 	for i := range vals {
 		r := find(i)
 		if cnt[r] == 1 {
-			out[i] = vals[i]
+			out[i] = snap(vals[i])
 			continue
 		}
 		mean := sum[r] / complex(float64(cnt[r]), 0)
 		if math.Abs(imag(mean)) <= rel*cmplx.Abs(mean) {
 			mean = complex(real(mean), 0)
 		}
-		out[i] = mean
+		out[i] = snap(mean)
+		spread[r] = math.Max(spread[r], cmplx.Abs(vals[i]-mean))
 	}
-	return realPencilValues(out)
+	var multi []MultipleValue
+	for r := 0; r < n; r++ {
+		if cnt[r] > 1 && find(r) == r {
+			// A complex cluster and its conjugate are one entry, by the
+			// upper member.
+			if imag(out[r]) < 0 {
+				continue
+			}
+			multi = append(multi, MultipleValue{Value: out[r], Count: cnt[r], Spread: spread[r]})
+		}
+	}
+	sort.Slice(multi, func(a, b int) bool {
+		if real(multi[a].Value) != real(multi[b].Value) {
+			return real(multi[a].Value) < real(multi[b].Value)
+		}
+		return imag(multi[a].Value) > imag(multi[b].Value)
+	})
+	return realPencilValues(out), multi
 }

@@ -1,6 +1,7 @@
 package lsys
 
 import (
+	"context"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
@@ -465,5 +466,60 @@ func TestZerosUnitsInvariant(t *testing.T) {
 		if !zerosClose(z2.Invariant, append([]complex128{-500}, pair...), 1e-9) || !zerosClose(z2.Transmission, []complex128{-500}, 1e-9) || !zerosClose(z2.OutputDecoupling, pair, 1e-9) {
 			t.Errorf("%s: floor2 <- shaker zeros %v / %v / %v, want -500, -2 +- j sqrt(1996)", c.name, z2.Invariant, z2.Transmission, z2.OutputDecoupling)
 		}
+	}
+}
+
+// TestZerosDoubleAtOrigin: s^2 / ((s^2 + 0.2 s + 4)(s + 3)(s + 10)) has a
+// double zero at s = 0 exactly (closed form: the numerator). Rounding
+// splits it into a pair about sqrt(u) ||A|| apart; it must read as 0 with
+// multiplicity 2 and the spread stated, in the invariant and the
+// transmission zeros alike.
+func TestZerosDoubleAtOrigin(t *testing.T) {
+	num := Poly{0, 0, 1}
+	den := Poly{1}
+	for _, f := range []Poly{{4, 0.2, 1}, {3, 1}, {10, 1}} {
+		den = den.Mul(f)
+	}
+	s, err := Realize([][]*Rational{{{Num: num, Den: den}}}, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	zs, err := Zeros(s, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for name, z := range map[string][]complex128{"invariant": zs.Invariant, "transmission": zs.Transmission} {
+		if len(z) != 2 || z[0] != 0 || z[1] != 0 {
+			t.Errorf("%s zeros %v, want exactly 0, 0", name, z)
+		}
+	}
+	for name, m := range map[string][]MultipleValue{"invariant": zs.InvariantMultiple, "transmission": zs.TransmissionMultiple} {
+		if len(m) != 1 || m[0].Value != 0 || m[0].Count != 2 || !(m[0].Spread > 0 && m[0].Spread < 1e-6) {
+			t.Errorf("%s multiple zeros %+v, want one double zero at 0 with a small spread", name, m)
+		}
+	}
+}
+
+// TestFrequencyRangeIgnoresZerosAtOrigin: the default range is a decade
+// beyond the slowest and fastest poles and zeros that have a frequency
+// (common practice); a double zero at 0 split by rounding into values of
+// 1e-8 must not stretch it to 1e-9 rad/s. The slowest pole of
+// s^2 / ((s^2 + 0.2 s + 4)(s + 3)(s + 10)) is at 2 rad/s.
+func TestFrequencyRangeIgnoresZerosAtOrigin(t *testing.T) {
+	num := Poly{0, 0, 1}
+	den := Poly{1}
+	for _, f := range []Poly{{4, 0.2, 1}, {3, 1}, {10, 1}} {
+		den = den.Mul(f)
+	}
+	s, err := Realize([][]*Rational{{{Num: num, Den: den}}}, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fr, err := Frequency(context.Background(), s, FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if fr.W[0] < 0.01 {
+		t.Errorf("default range starts at %g rad/s, want about a decade below 2 rad/s", fr.W[0])
 	}
 }
