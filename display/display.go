@@ -95,10 +95,28 @@ func Render(v any, opt Options) Bundle {
 		embedChart(&b)
 		return b
 	}
+	if tw, ok := v.(textWither); ok {
+		return NewBundle(tw.TextWith(TextOf))
+	}
 	if s, ok := v.(fmt.Stringer); ok {
 		return NewBundle(s.String())
 	}
 	return NewBundle(fmt.Sprintf("%v", v))
+}
+
+// textWither is a composite value (a list or record of a language) whose
+// text form shows its members with a text formatter it is given, so that
+// members this package renders show their own text.
+type textWither interface {
+	TextWith(text func(any) (string, bool)) string
+}
+
+// TextOf is the text/plain rendering of v. Front ends pass it to the
+// language as its text option, so print and inspect show analysis results
+// as a notebook does.
+func TextOf(v any) (string, bool) {
+	s, ok := Render(v, Options{}).Data[Text].(string)
+	return s, ok
 }
 
 // embedChart puts a bundle's SVG chart into its HTML part as an image.

@@ -11,7 +11,7 @@ import (
 	"time"
 
 	"lsys/display"
-	"lsys/kernel/lang"
+	"lsys/lang"
 )
 
 // LanguageInfo is what kernel_info tells front ends about the language.

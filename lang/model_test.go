@@ -61,7 +61,7 @@ gimbal`
 // damper b) in equation form against its matrix form written from Newton's
 // second law by hand (common practice).
 func TestEquationFormMatchesMatrixForm(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	g := run(t, s, gimbalCell).(*lsys.System)
 	Jm, Jl, k, b := 2e-4, 6e-4, 3.1, 0.004
 	A := mat.NewDense(4, 4, []float64{
@@ -96,7 +96,7 @@ func TestEquationFormMatchesMatrixForm(t *testing.T) {
 // A sampled first-order tank, x[k+1] = a x[k] + (1 - a) u[k], in both forms;
 // a feedthrough output and a helper definition.
 func TestSampledBlockAndHelpers(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	g := run(t, s, `a = 0.9
 tank = system every 0.5 {
   states level
@@ -144,7 +144,7 @@ pendulum = system {
 // hand: A = [[0, 1], [-(g/L) cos(a0), -c]], B = [0; 1], C = [L cos(a0), 0]
 // (Taylor expansion to first order, common practice).
 func TestLinearizePendulum(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	run(t, s, pendulumCell)
 	g, L, c := 9.81, 0.5, 0.2
 	for _, a0 := range []float64{0, 0.3, math.Pi} {
@@ -168,7 +168,7 @@ func TestLinearizePendulum(t *testing.T) {
 // level' = (inflow - k sqrt(level)) / area, level = (inflow/k)^2
 // (Torricelli's law, common practice).
 func TestEquilibrium(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	run(t, s, pendulumCell)
 	e := run(t, s, "equilibrium(pendulum, inputs: {torque: 1}, guess: {angle: 0.1})").(*Equilibrium)
 	want := math.Asin(1 * 0.5 / 9.81)
@@ -217,7 +217,7 @@ tank = system {
 // quadratic formula, common practice). Also checked against a central
 // finite difference of the eigenvalues (test only).
 func TestSensitivity(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	src := `k = 4; b = 0.4; mass = 1
 axis = system {
   states position, velocity
@@ -242,7 +242,7 @@ axis = system {
 	}
 	// Finite differences on the rebuilt block.
 	eig := func(k, b float64) complex128 {
-		s2 := NewSession(t.TempDir())
+		s2 := NewSession(Options{Dir: t.TempDir()})
 		s2.bind("k", k)
 		s2.bind("b", b)
 		run(t, s2, strings.Replace(src, "k = 4; b = 0.4; ", "", 1))
@@ -283,7 +283,7 @@ axis = system {
 // Mode matching against sorting: two real modes -k and -(11 - k) cross at
 // k = 5.5; each branch must keep its own mode (facts of the construction).
 func TestLocus(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	r := &recorder{}
 	v, err := s.Run(context.Background(), "crossing(k) = system([[-k, 0.001], [0, -(11 - k)]])\nlocus(crossing, k: linear(1, 10, n: 91))", r)
 	if err != nil {
@@ -380,7 +380,7 @@ func TestNonlinearDetection(t *testing.T) {
 		{"-x*u", "-x*u"},
 		{"if x > 0 then -x else -2*x", "if x > 0 then -x else -2*x"},
 	} {
-		s := NewSession(t.TempDir())
+		s := NewSession(Options{Dir: t.TempDir()})
 		v, err := s.Run(context.Background(), "system {\n  states x\n  inputs u\n  x' = "+c.rhs+"\n}", nil)
 		if err != nil {
 			t.Errorf("%s: %v", c.rhs, err)
@@ -400,7 +400,7 @@ func TestNonlinearDetection(t *testing.T) {
 
 // A user function inside equations, and a record field as a parameter.
 func TestEquationsWithFunctionsAndRecords(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	g := run(t, s, `spring(d) = p.k*d
 p = {k: 3, c: 0.5}
 system {
@@ -425,7 +425,7 @@ system {
 // steady state for u = 0 is x = K, where the linearization is
 // 1 + r - 2 r x/K = 1 - r (logistic map, common practice).
 func TestSampledNonlinearModel(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	run(t, s, `r = 0.3; K = 50
 growth = system every 1 {
   states x
@@ -452,7 +452,7 @@ growth = system every 1 {
 // A signal named like a session number is a signal inside the block, and
 // the cell says so on stderr.
 func TestSignalHidesSessionNumber(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	r := &recorder{}
 	v, err := s.Run(context.Background(), "x = 5\nsystem {\n  states x\n  x' = -2*x\n}", r)
 	if err != nil {
@@ -470,7 +470,7 @@ func TestSignalHidesSessionNumber(t *testing.T) {
 // x = -A^-1 B u; with A = [[0, 1], [-4, -0.4]], B = [0, 4], u = 2 the
 // position settles at 2 (static gain 1, second-order form, common practice).
 func TestLinearEquilibrium(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	e := run(t, s, "G = system([[0, 1], [-4, -0.4]], [0, 4], [1, 0])\nequilibrium(G, inputs: {u1: 2})").(*Equilibrium)
 	if x, _ := e.States.Get("x1"); math.Abs(x.(float64)-2) > 1e-14 {
 		t.Errorf("x1 = %v, want 2", x)

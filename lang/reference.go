@@ -55,7 +55,7 @@ func Reference() string {
 					case p.Variadic:
 						name = "`" + p.Name + "...`"
 					case p.Default != nil:
-						doc += fmt.Sprintf(" (default `%s`)", inlineString(p.Default))
+						doc += fmt.Sprintf(" (default `%s`)", inlineString(p.Default, nil))
 					case p.Optional:
 						doc += " (optional)"
 					}

@@ -31,7 +31,7 @@ func coreBuiltins() []*Builtin {
 			Doc:      "Strings are written as they are, other values in their text form. Several values are separated by spaces and the line ends with a newline.",
 			Examples: []string{`k = 3.1` + "\n" + `print("stiffness", k, "N m/rad")`},
 			Fn: func(c *Call) (any, error) {
-				c.Out().Stdout(joinValues(c.Rest) + "\n")
+				c.Out().Stdout(joinValues(c, c.Rest) + "\n")
 				return nil, nil
 			},
 		},
@@ -42,7 +42,7 @@ func coreBuiltins() []*Builtin {
 			Doc:      "Like print, but on the error stream, for cautions that should stand out. The cell goes on running.",
 			Examples: []string{`warn("the model is not validated above 50 Hz")`},
 			Fn: func(c *Call) (any, error) {
-				c.Out().Stderr(joinValues(c.Rest) + "\n")
+				c.Out().Stderr(joinValues(c, c.Rest) + "\n")
 				return nil, nil
 			},
 		},
@@ -125,10 +125,10 @@ func coreBuiltins() []*Builtin {
 	return bs
 }
 
-func joinValues(vs []any) string {
+func joinValues(c *Call, vs []any) string {
 	parts := make([]string, len(vs))
 	for i, v := range vs {
-		parts[i] = FormatValue(v)
+		parts[i] = c.Format(v)
 	}
 	return strings.Join(parts, " ")
 }
@@ -496,7 +496,7 @@ func systemBuiltins() []*Builtin {
 				"Given a transfer function (a rational expression in s or z) or a list of lists of them, it returns a minimal state-space realization. " +
 				"Given D alone (`system(D: [[1, -1]])`) it is a static gain y = D u with no states, such as a summing junction for connect. " +
 				"A matrix of numbers next to a system in `*`, `+` or `-` is such a gain too: `[[1, -1]] * G` subtracts G's second output from its first. " +
-				"The equation form `system { ... }` (see kernel/lang/SPEC.md) is usually clearer.",
+				"The equation form `system { ... }` (see lang/SPEC.md) is usually clearer.",
 			Examples: []string{
 				"G = system([[0, 1], [-2, -3]], [0, 1], [1, 0], 0)\nG",
 				"system([[0.9]], [0.1], every: 0.01, states: [\"level\"], inputs: [\"inflow\"], outputs: [\"level\"])",

@@ -38,7 +38,7 @@ type cell struct {
 func runCells(t *testing.T, cells []cell) {
 	t.Helper()
 	for _, c := range cells {
-		s := NewSession(t.TempDir())
+		s := NewSession(Options{Dir: t.TempDir()})
 		v, err := s.Run(context.Background(), c.src, &recorder{})
 		if c.err != "" {
 			if err == nil {
@@ -184,7 +184,7 @@ func TestCellsErrors(t *testing.T) {
 }
 
 func TestBindingsSurviveErrors(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	ctx := context.Background()
 	if _, err := s.Run(ctx, "k = 2\nj = k / 0\nm = 3", nil); err == nil {
 		t.Fatal("want an error")
@@ -208,7 +208,7 @@ func TestBindingsSurviveErrors(t *testing.T) {
 }
 
 func TestOutputStreams(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	r := &recorder{}
 	v, err := s.Run(context.Background(), "x = 1.5\nprint(\"x is\", x, [1, 2])\nwarn(\"careful\")\nshow(x)\nx", r)
 	if err != nil {
@@ -229,7 +229,7 @@ func TestOutputStreams(t *testing.T) {
 }
 
 func TestErrorText(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	_, err := s.Run(context.Background(), "torque = 1\ny = 2 * torqe", nil)
 	want := "line 2, column 9: unknown name 'torqe'; did you mean 'torque'?\n" +
 		"    y = 2 * torqe\n" +
@@ -241,7 +241,7 @@ func TestErrorText(t *testing.T) {
 }
 
 func TestInterrupt(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
 	_, err := s.Run(ctx, "f(n) = if n <= 0 then 0 else f(n - 1)\nf(100)", nil)
@@ -254,7 +254,7 @@ func TestInterrupt(t *testing.T) {
 }
 
 func TestStepLimit(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	// Doubly recursive: 2^40 calls, far beyond MaxSteps.
 	_, err := s.Run(context.Background(), "f(n) = if n <= 0 then 0 else f(n - 1) + f(n - 1)\nf(40)", nil)
 	if err == nil || !strings.Contains(err.Error(), "evaluation steps") {
@@ -263,7 +263,7 @@ func TestStepLimit(t *testing.T) {
 }
 
 func TestIsComplete(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	for _, c := range []struct{ src, status, indent string }{
 		{"x = 1", "complete", ""},
 		{"", "complete", ""},
@@ -284,7 +284,7 @@ func TestIsComplete(t *testing.T) {
 }
 
 func TestComplete(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	if _, err := s.Run(context.Background(), "gimbal = system([[0, 1], [-2, -3]], [0, 1], [1, 0], states: [\"angle\", \"rate\"], inputs: [\"torque\"], outputs: [\"speed\"])\ngain_k = 2\nrec = {angle: 1, rate: 2}", nil); err != nil {
 		t.Fatal(err)
 	}
@@ -318,7 +318,7 @@ func TestComplete(t *testing.T) {
 }
 
 func TestInspect(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	if _, err := s.Run(context.Background(), "G = system([[0, 1], [-2, -3]], [0, 1], [1, 0])\nf(k) = k + 1", nil); err != nil {
 		t.Fatal(err)
 	}
@@ -355,7 +355,7 @@ func TestInspect(t *testing.T) {
 func TestRegistryExamples(t *testing.T) {
 	for _, b := range Builtins() {
 		for _, ex := range b.Examples {
-			s := NewSession(t.TempDir())
+			s := NewSession(Options{Dir: t.TempDir()})
 			_, err := s.Run(context.Background(), ex, &recorder{})
 			if err != nil {
 				if strings.Contains(err.Error(), "not implemented yet") {
@@ -395,7 +395,7 @@ func hintOf(err error) string {
 // Completion and inspection while a cell runs (the kernel answers them
 // from another goroutine); run with -race to check.
 func TestConcurrentHelpWhileRunning(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	done := make(chan error)
 	go func() {
 		_, err := s.Run(context.Background(), "f(n) = if n <= 0 then 0 else 1 + f(n - 1)\nfor_k = 3\nG = system([[0, 1], [-2, -3]], [0, 1], [1, 0])\nx = f(150)", nil)
@@ -413,7 +413,7 @@ func TestConcurrentHelpWhileRunning(t *testing.T) {
 }
 
 func TestErrorInFunctionFromEarlierCell(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	if _, err := s.Run(context.Background(), "# helpers\nratio(a, b) = a / b", nil); err != nil {
 		t.Fatal(err)
 	}

@@ -22,7 +22,7 @@ func (*discardOut) UpdateDisplay(any, string) {}
 func (*discardOut) ClearOutput(bool)          {}
 
 func TestHelpPagesOrPrints(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	p := &pagerOut{}
 	if _, err := s.Run(context.Background(), "help(modes)", p); err != nil {
 		t.Fatal(err)

@@ -90,7 +90,7 @@ var goSyntax = regexp.MustCompile(`\*|\blang\.|\blsys\.|\bmat\.|\[\]|\bfloat64\b
 func TestTypeNamesInWords(t *testing.T) {
 	for _, b := range Builtins() {
 		for _, ex := range b.Examples {
-			s := NewSession(t.TempDir())
+			s := NewSession(Options{Dir: t.TempDir()})
 			v, err := s.Run(context.Background(), ex, &recorder{})
 			if err != nil || v == nil {
 				continue
@@ -155,7 +155,7 @@ func TestDerivativeOnRightHandSide(t *testing.T) {
 		{src: "y = x'", err: "a derivative x' can only be written inside system { ... }", line: 1, col: 6},
 		{src: "x' = 3", err: "a derivative x' can only be written inside system { ... }", line: 1, col: 2},
 	})
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	_, err := s.Run(context.Background(), head+"  omega' = -(v'/2)\n}", &recorder{})
 	var l ErrorList
 	if !errors.As(err, &l) || len(l) != 1 {
@@ -224,7 +224,7 @@ func TestEquilibriumFamily(t *testing.T) {
 		{src: pendulum + "e.fre", err: "a steady state (equilibrium) has no field 'fre'; did you mean 'free'?", line: 8, col: 3},
 	})
 	// The display says it.
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	v := run(t, s, crane+"e")
 	if got := FormatValue(v); !strings.Contains(got, "not unique: the Jacobian df/dx here has rank 3 of 4") ||
 		!strings.Contains(got, "free direction 1: {x: 1, v: 0, theta: 0, omega: 0}") ||

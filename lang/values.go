@@ -36,7 +36,12 @@ func (r *Record) Get(name string) (any, bool) {
 	return nil, false
 }
 
-func (r *Record) String() string {
+func (r *Record) String() string { return r.TextWith(nil) }
+
+// TextWith is the record's text form with text formatting the members the
+// language does not format itself; package display calls it with its own
+// text renderer, so a record of results shows each result's text.
+func (r *Record) TextWith(text func(any) (string, bool)) string {
 	var b strings.Builder
 	b.WriteByte('{')
 	for i, n := range r.Names {
@@ -45,7 +50,7 @@ func (r *Record) String() string {
 		}
 		b.WriteString(n)
 		b.WriteString(": ")
-		b.WriteString(inlineString(r.Values[i]))
+		b.WriteString(inlineString(r.Values[i], text))
 	}
 	b.WriteByte('}')
 	return b.String()
@@ -57,14 +62,17 @@ type List struct {
 	Items []any
 }
 
-func (l *List) String() string {
+func (l *List) String() string { return l.TextWith(nil) }
+
+// TextWith is the list's text form; see Record.TextWith.
+func (l *List) TextWith(text func(any) (string, bool)) string {
 	var b strings.Builder
 	b.WriteByte('[')
 	for i, v := range l.Items {
 		if i > 0 {
 			b.WriteString(", ")
 		}
-		b.WriteString(inlineString(v))
+		b.WriteString(inlineString(v, text))
 	}
 	b.WriteByte(']')
 	return b.String()
@@ -118,7 +126,7 @@ func FormatComplex(c complex128) string {
 }
 
 // inlineString is the one-line form of a value, used inside lists and records.
-func inlineString(v any) string {
+func inlineString(v any, text func(any) (string, bool)) string {
 	switch x := v.(type) {
 	case string:
 		return quote(x)
@@ -135,11 +143,15 @@ func inlineString(v any) string {
 	case *lsys.System:
 		return "(" + systemSummary(x) + ")"
 	}
-	return FormatValue(v)
+	return formatValue(v, text)
 }
 
-// FormatValue is the text form of any value, as print shows it.
-func FormatValue(v any) string {
+// FormatValue is the language's own text form of any value; analysis
+// results show as "(a mode table; show(x) displays it)". Session.Format
+// shows them with the session's text option instead.
+func FormatValue(v any) string { return formatValue(v, nil) }
+
+func formatValue(v any, text func(any) (string, bool)) string {
 	switch x := v.(type) {
 	case nil:
 		return "(nothing)"
@@ -159,24 +171,20 @@ func FormatValue(v any) string {
 		return systemText(x)
 	case *Builtin:
 		return "built-in " + x.Signature()
+	case *Record:
+		return x.TextWith(text)
+	case *List:
+		return x.TextWith(text)
 	case fmt.Stringer:
 		return x.String()
 	}
-	if textFormatter != nil {
-		if t, ok := textFormatter(v); ok {
+	if text != nil {
+		if t, ok := text(v); ok {
 			return t
 		}
 	}
 	return "(" + typeName(v) + "; show(x) displays it)"
 }
-
-var textFormatter func(v any) (string, bool)
-
-// SetTextFormatter installs the text form used by print and inspect for
-// values the language does not format itself (the results of analysis).
-// The kernel and the runner set it to the text/plain rendering of package
-// display, which the language cannot import.
-func SetTextFormatter(f func(v any) (string, bool)) { textFormatter = f }
 
 func formatMatrix(dims func() (int, int), at func(i, j int) string) string {
 	r, c := dims()

@@ -67,7 +67,7 @@ func TestFunctionParametersInBlocksErrors(t *testing.T) {
 // k = 5 against the derivative of that closed form:
 // d s/dk = j / (2 m w_d), d s/dc = -1/2m - j c / (4 m^2 w_d).
 func TestFamilyLocusAndSensitivityClosedForm(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	v, err := s.Run(context.Background(), mountFamily+"locus(family, k: linear(1, 10, n: 19))", &recorder{})
 	if err != nil {
 		t.Fatal(err)
@@ -149,7 +149,7 @@ func TestSlicing(t *testing.T) {
 // their block sources go with them (the session keeps sources under weak
 // keys), while a system still bound keeps its source for sensitivity.
 func TestLocusDoesNotKeepItsSystems(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	if _, err := s.Run(context.Background(), mountFamily+"kept = family(2)\nl = locus(family, k: linear(1, 10, n: 2000))", &recorder{}); err != nil {
 		t.Fatal(err)
 	}

@@ -27,7 +27,7 @@ func init() {
 			case *Builtin:
 				text = builtinHelp(v)
 			default:
-				text = typeName(v) + "\n\n" + FormatValue(v)
+				text = typeName(v) + "\n\n" + c.Format(v)
 			}
 			out := c.Out()
 			if p, ok := out.(Pager); ok {

@@ -8,7 +8,7 @@ import (
 // BenchmarkEquationBlock: parse and compile the four-state gimbal block
 // into A, B, C, D.
 func BenchmarkEquationBlock(b *testing.B) {
-	s := NewSession("")
+	s := NewSession(Options{})
 	for i := 0; i < b.N; i++ {
 		if _, err := s.Run(context.Background(), gimbalCell, nil); err != nil {
 			b.Fatal(err)
@@ -19,7 +19,7 @@ func BenchmarkEquationBlock(b *testing.B) {
 // BenchmarkLinearizeEquilibrium: Newton's equilibrium and the linearization
 // of the pendulum.
 func BenchmarkLinearizeEquilibrium(b *testing.B) {
-	s := NewSession("")
+	s := NewSession(Options{})
 	if _, err := s.Run(context.Background(), pendulumCell, nil); err != nil {
 		b.Fatal(err)
 	}
@@ -32,7 +32,7 @@ func BenchmarkLinearizeEquilibrium(b *testing.B) {
 
 // BenchmarkRecursion: evaluation speed of user functions (fact(20) 1000 times).
 func BenchmarkRecursion(b *testing.B) {
-	s := NewSession("")
+	s := NewSession(Options{})
 	if _, err := s.Run(context.Background(), "fact(n) = if n <= 1 then 1 else n*fact(n - 1)", nil); err != nil {
 		b.Fatal(err)
 	}
@@ -48,7 +48,7 @@ func BenchmarkRecursion(b *testing.B) {
 // the block, extracts A by automatic differentiation and takes its
 // eigenvalues).
 func BenchmarkLocusBlockFamily(b *testing.B) {
-	s := NewSession("")
+	s := NewSession(Options{})
 	if _, err := s.Run(context.Background(), mountFamily, nil); err != nil {
 		b.Fatal(err)
 	}

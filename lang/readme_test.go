@@ -13,7 +13,7 @@ import (
 // front page never shows a cell that fails. A block that starts with
 // "line " is a quoted error message, not a cell.
 func TestREADMETourRuns(t *testing.T) {
-	data, err := os.ReadFile(filepath.Join("..", "..", "README.md"))
+	data, err := os.ReadFile(filepath.Join("..", "README.md"))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -21,7 +21,7 @@ func TestREADMETourRuns(t *testing.T) {
 	if i := strings.Index(text, "## Language reference"); i >= 0 {
 		text = text[:i]
 	}
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	cells := 0
 	var cell []string
 	inBlock, runIt := false, false

@@ -14,7 +14,7 @@ import (
 
 func stRun(t *testing.T, src string) any {
 	t.Helper()
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	v, err := s.Run(context.Background(), src, &recorder{})
 	if err != nil {
 		t.Fatalf("%s\n%v", src, err)
@@ -24,7 +24,7 @@ func stRun(t *testing.T, src string) any {
 
 func stRunErr(t *testing.T, src, frag string) {
 	t.Helper()
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	_, err := s.Run(context.Background(), src, &recorder{})
 	if err == nil || !strings.Contains(err.Error(), frag) {
 		t.Errorf("%s: want an error containing %q, got %v", src, frag, err)

@@ -31,11 +31,37 @@ type Output interface {
 	ClearOutput(wait bool)
 }
 
+// Options are what a front end passes to a new session. The language sets
+// no package globals from outside: two sessions with different options can
+// run side by side in one process.
+type Options struct {
+	// Dir is the folder load() reads data files from (the notebook's
+	// folder); "" is the current folder.
+	Dir string
+	// Text formats, for print, inspect and the members of lists and
+	// records, the values the language does not format itself (the results
+	// of analysis). Front ends pass the text/plain renderer of package
+	// display, which the language cannot import. nil leaves such values as
+	// "(a mode table; show(x) displays it)".
+	Text func(v any) (string, bool)
+	// Limits bound one cell's work; zero fields take the defaults.
+	Limits Limits
+}
+
+// Limits bound the work of one cell so that a runaway loop or recursion
+// ends with a message instead of hanging a front end.
+type Limits struct {
+	Steps int64 // evaluation steps per cell (default MaxSteps)
+	Depth int   // nesting of user function calls (default MaxDepth)
+}
+
 // Session holds the bindings of one notebook session. Its methods may be
 // called from several goroutines (the kernel answers completion requests
 // while a cell runs); Run calls are serialised.
 type Session struct {
-	dir string
+	dir    string
+	text   func(v any) (string, bool)
+	limits Limits
 
 	runMu   sync.Mutex // one cell at a time
 	mu      sync.RWMutex
@@ -47,11 +73,21 @@ type Session struct {
 	sources map[weak.Pointer[lsys.System]]*blockSource
 }
 
-// NewSession starts an empty session; dir is the folder that load() reads
-// data files from (the notebook's folder).
-func NewSession(dir string) *Session {
-	return &Session{dir: dir, globals: map[string]any{}, sources: map[weak.Pointer[lsys.System]]*blockSource{}}
+// NewSession starts an empty session with the given options.
+func NewSession(opt Options) *Session {
+	lim := opt.Limits
+	if lim.Steps <= 0 {
+		lim.Steps = MaxSteps
+	}
+	if lim.Depth <= 0 {
+		lim.Depth = MaxDepth
+	}
+	return &Session{dir: opt.Dir, text: opt.Text, limits: lim, globals: map[string]any{}, sources: map[weak.Pointer[lsys.System]]*blockSource{}}
 }
+
+// Format is the text form of v as print shows it in this session: the
+// language's own form, or the session's Text option for analysis results.
+func (s *Session) Format(v any) string { return formatValue(v, s.text) }
 
 // remember records the block behind a system built from it; the entry
 // goes when the system is garbage collected.

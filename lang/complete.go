@@ -348,7 +348,7 @@ func (s *Session) Inspect(src string, cursor int) (text string, found bool) {
 				has = has && err == nil
 			}
 			if has {
-				return fmt.Sprintf("%s: %s\n\n%s", name, typeName(fv), FormatValue(fv)), true
+				return fmt.Sprintf("%s: %s\n\n%s", name, typeName(fv), s.Format(fv)), true
 			}
 		}
 	}
@@ -360,7 +360,7 @@ func (s *Session) Inspect(src string, cursor int) (text string, found bool) {
 		name = oc.callee
 	}
 	if v, ok := s.Get(name); ok {
-		return bindingHelp(name, v), true
+		return s.bindingHelp(name, v), true
 	}
 	if b, ok := Lookup(name); ok {
 		return builtinHelp(b), true
@@ -392,7 +392,7 @@ func builtinHelp(b *Builtin) string {
 		for _, p := range b.Params {
 			fmt.Fprintf(&sb, "\n  %s", p.Name)
 			if p.Default != nil {
-				fmt.Fprintf(&sb, " (default %s)", inlineString(p.Default))
+				fmt.Fprintf(&sb, " (default %s)", inlineString(p.Default, nil))
 			} else if p.Optional {
 				sb.WriteString(" (optional)")
 			}
@@ -418,7 +418,7 @@ func builtinHelp(b *Builtin) string {
 }
 
 // bindingHelp summarises a bound value for inspect.
-func bindingHelp(name string, v any) string {
+func (s *Session) bindingHelp(name string, v any) string {
 	var text string
 	switch t := v.(type) {
 	case *lsys.System:
@@ -426,7 +426,7 @@ func bindingHelp(name string, v any) string {
 	case *Function:
 		text = "function " + t.String()
 	default:
-		text = FormatValue(v)
+		text = s.Format(v)
 	}
 	const limit = 4000
 	if len(text) > limit {

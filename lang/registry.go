@@ -10,7 +10,7 @@ package lang
 // # Adding built-ins from your own file
 //
 // Engineers who own a part of the library add their built-ins in a file of
-// their own in this package, e.g. kernel/lang/builtins_structure.go, without
+// their own in this package, e.g. lang/builtins_structure.go, without
 // touching any other file:
 //
 //	package lang
@@ -52,7 +52,7 @@ package lang
 //     and read c.Extra. Variadic last parameters: c.Rest. Files beside the
 //     notebook: c.Dir(). Calling a user function: c.Apply(f, args...).
 //   - After adding or changing a built-in, regenerate the reference in the
-//     README: go test ./kernel/lang -run Reference -update.
+//     README: go test ./lang -run Reference -update.
 
 import (
 	"context"
@@ -124,7 +124,7 @@ func (b *Builtin) Signature() string {
 		case p.Variadic:
 			parts = append(parts, p.Name+"...")
 		case p.Default != nil:
-			parts = append(parts, p.Name+": "+inlineString(p.Default))
+			parts = append(parts, p.Name+": "+inlineString(p.Default, nil))
 		case p.Optional:
 			parts = append(parts, p.Name+"?")
 		default:
@@ -292,6 +292,9 @@ func (c *Call) Out() Output { return c.ev.out }
 // Dir is the folder data files are read from (the notebook's folder), for
 // built-ins such as load.
 func (c *Call) Dir() string { return c.ev.s.dir }
+
+// Format is the text form of v as print shows it in this session.
+func (c *Call) Format(v any) string { return c.ev.s.Format(v) }
 
 // Pos is the position of the call.
 func (c *Call) Pos() Pos { return c.pos }

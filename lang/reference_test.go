@@ -19,7 +19,7 @@ const (
 // generated from the registry; with -update it rewrites the text between
 // the markers (and nothing else).
 func TestReferenceInREADME(t *testing.T) {
-	path := filepath.Join("..", "..", "README.md")
+	path := filepath.Join("..", "README.md")
 	data, err := os.ReadFile(path)
 	if err != nil {
 		t.Fatalf("reading README.md: %v", err)
@@ -27,7 +27,7 @@ func TestReferenceInREADME(t *testing.T) {
 	text := string(data)
 	i, j := strings.Index(text, refStart), strings.Index(text, refEnd)
 	if i < 0 || j < 0 || j < i {
-		t.Fatalf("README.md must contain the markers %s and %s (in that order) where the language reference goes; add them, then run go test ./kernel/lang -run Reference -update", refStart, refEnd)
+		t.Fatalf("README.md must contain the markers %s and %s (in that order) where the language reference goes; add them, then run go test ./lang -run Reference -update", refStart, refEnd)
 	}
 	want := refStart + "\n" + Reference() + refEnd
 	got := text[i : j+len(refEnd)]
@@ -42,7 +42,7 @@ func TestReferenceInREADME(t *testing.T) {
 		t.Logf("rewrote the language reference in %s", path)
 		return
 	}
-	t.Errorf("the language reference in README.md is out of date with the registry; run: go test ./kernel/lang -run Reference -update")
+	t.Errorf("the language reference in README.md is out of date with the registry; run: go test ./lang -run Reference -update")
 }
 
 func TestReferenceContents(t *testing.T) {

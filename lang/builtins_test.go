@@ -120,7 +120,7 @@ func TestBuiltinErrors(t *testing.T) {
 }
 
 func TestPrintShowClear(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	r := &recorder{}
 	cleared := 0
 	out := &clearCounter{recorder: r, n: &cleared}
@@ -144,7 +144,7 @@ func (c *clearCounter) ClearOutput(bool) { *c.n++ }
 
 // pause ends at once when the cell is interrupted.
 func TestPauseInterrupted(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
 	_, err := s.Run(ctx, "pause(60)", nil)
@@ -157,7 +157,7 @@ func TestPauseInterrupted(t *testing.T) {
 // wn = 2, zeta = 0.1 (A = [[0, 1], [-4, -0.4]]): natural frequency 2 rad/s,
 // damping ratio 0.1 (textbook second-order form, common practice).
 func TestSystemAndModes(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	g := run(t, s, "G = system([[0, 1], [-4, -0.4]], [0, 4], [1, 0], states: [\"position\", \"velocity\"], inputs: [\"force\"], outputs: [\"position\"])\nG").(*lsys.System)
 	if g.N() != 2 || g.M() != 1 || g.P() != 1 || g.StateNames[1] != "velocity" || g.InputNames[0] != "force" {
 		t.Fatalf("system %v", FormatValue(g))
@@ -196,7 +196,7 @@ func TestSystemAndModes(t *testing.T) {
 // and the sum are those of the factors (facts of the trade), and the
 // steady-state gain of a series connection is the product of the gains.
 func TestTransferFunctionsAndConnections(t *testing.T) {
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	g := run(t, s, "system(5/(s^2 + 2*s + 5))").(*lsys.System)
 	if g.N() != 2 {
 		t.Fatalf("order %d, want 2", g.N())
@@ -300,19 +300,29 @@ func TestEveryBuiltinTested(t *testing.T) {
 	}
 }
 
-func TestTextFormatter(t *testing.T) {
+// The text option of a session formats analysis results for print and
+// inspect, in records and lists too; a session without it, or another
+// session in the same process, is not affected.
+func TestTextOption(t *testing.T) {
 	type opaque struct{ a int }
 	if got := FormatValue(&opaque{1}); !strings.Contains(got, "show(x) displays it") {
 		t.Errorf("without a formatter: %q", got)
 	}
-	SetTextFormatter(func(v any) (string, bool) {
+	text := func(v any) (string, bool) {
 		if _, ok := v.(*opaque); ok {
 			return "opaque text", true
 		}
 		return "", false
-	})
-	defer SetTextFormatter(nil)
-	if got := FormatValue(&opaque{1}); got != "opaque text" {
+	}
+	s := NewSession(Options{Text: text})
+	if got := s.Format(&opaque{1}); got != "opaque text" {
 		t.Errorf("with a formatter: %q", got)
+	}
+	rec := &Record{Names: []string{"x"}, Values: []any{&List{Items: []any{&opaque{1}}}}}
+	if got := s.Format(rec); got != "{x: [opaque text]}" {
+		t.Errorf("record with a formatter: %q", got)
+	}
+	if got := NewSession(Options{}).Format(&opaque{1}); !strings.Contains(got, "show(x) displays it") {
+		t.Errorf("a second session without the option: %q", got)
 	}
 }

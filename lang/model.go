@@ -451,8 +451,8 @@ func (me *meval) call(x *CallExpr) (mval, error) {
 			}
 			frame[f.Params[i]] = v
 		}
-		if me.depth >= MaxDepth {
-			return mval{}, me.ev.errorAt(x.Pos(), fmt.Sprintf("functions call each other more than %d levels deep", MaxDepth), "Look for a function that calls itself without reaching its end case.")
+		if me.depth >= me.ev.s.limits.Depth {
+			return mval{}, me.ev.errorAt(x.Pos(), fmt.Sprintf("functions call each other more than %d levels deep", me.ev.s.limits.Depth), "Look for a function that calls itself without reaching its end case.")
 		}
 		me.depth++
 		me.frames = append(me.frames, frame)

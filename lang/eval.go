@@ -15,9 +15,9 @@ import (
 // Limits that keep one cell from taking the session down. Each is reported
 // with a message that names it.
 const (
-	// MaxSteps is the number of evaluation steps one cell may take.
+	// MaxSteps is the default number of evaluation steps one cell may take.
 	MaxSteps = 10_000_000
-	// MaxDepth is how deeply user functions may call each other.
+	// MaxDepth is the default depth to which user functions may call each other.
 	MaxDepth = 200
 	// MaxEntries is the largest number of entries of one matrix.
 	MaxEntries = 1_000_000
@@ -52,8 +52,8 @@ func (ev *evaluator) step(pos Pos) error {
 			return ev.interrupted(pos, err)
 		}
 	}
-	if ev.steps > MaxSteps {
-		return ev.errorAt(pos, fmt.Sprintf("the cell took more than %d evaluation steps", MaxSteps),
+	if ev.steps > ev.s.limits.Steps {
+		return ev.errorAt(pos, fmt.Sprintf("the cell took more than %d evaluation steps", ev.s.limits.Steps),
 			"Look for a function that calls itself without end, or split the work over several cells.")
 	}
 	return nil
@@ -588,8 +588,8 @@ func (ev *evaluator) callFunction(f *Function, vals []any, poss []Pos, named []N
 			return nil, ev.errorAt(pos, fmt.Sprintf("%s needs the argument '%s'", f.Name, p), fmt.Sprintf("It is defined as %s.", f))
 		}
 	}
-	if ev.depth >= MaxDepth {
-		return nil, ev.errorAt(pos, fmt.Sprintf("functions call each other more than %d levels deep", MaxDepth),
+	if ev.depth >= ev.s.limits.Depth {
+		return nil, ev.errorAt(pos, fmt.Sprintf("functions call each other more than %d levels deep", ev.s.limits.Depth),
 			"Look for a function that calls itself without reaching its end case.")
 	}
 	ev.depth++

@@ -15,7 +15,7 @@ import (
 
 func runOne(t *testing.T, dir, src string) any {
 	t.Helper()
-	s := NewSession(dir)
+	s := NewSession(Options{Dir: dir})
 	v, err := s.Run(context.Background(), src, &recorder{})
 	if err != nil {
 		t.Fatalf("%s\n%v", src, err)
@@ -151,7 +151,7 @@ func TestResponseBuiltinsErrors(t *testing.T) {
 
 func TestResponseProgress(t *testing.T) {
 	// a 200-state chain of first-order lags shows progress and then empties it
-	s := NewSession(t.TempDir())
+	s := NewSession(Options{Dir: t.TempDir()})
 	rec := &recorder{}
 	g, err := lsys.FromMatrices(negIdentity(200), unitCol(200), unitRow(200), nil, 0)
 	if err != nil {

@@ -110,7 +110,7 @@ func FuzzParse(f *testing.F) {
 func FuzzEval(f *testing.F) {
 	seedFuzz(f)
 	f.Fuzz(func(t *testing.T, src string) {
-		s := NewSession("")
+		s := NewSession(Options{})
 		ctx, cancel := context.WithTimeout(context.Background(), 200*time.Millisecond)
 		defer cancel()
 		_, err := s.Run(ctx, src, nil)
