@@ -12,6 +12,7 @@ import (
 	"fmt"
 	"html"
 	"reflect"
+	"runtime/debug"
 	"sort"
 	"strings"
 	"sync"
@@ -102,6 +103,19 @@ func Render(v any, opt Options) Bundle {
 		return NewBundle(s.String())
 	}
 	return NewBundle(fmt.Sprintf("%v", v))
+}
+
+// RenderSafe renders v like Render, but a renderer that panics costs only
+// the picture: the bundle becomes a text note and err carries the panic and
+// its stack for the front end's log.
+func RenderSafe(v any, opt Options) (b Bundle, err error) {
+	defer func() {
+		if p := recover(); p != nil {
+			err = fmt.Errorf("rendering %T panicked: %v\n%s", v, p, debug.Stack())
+			b = NewBundle(fmt.Sprintf("(the result was computed but could not be displayed: %v; please report this cell)", p))
+		}
+	}()
+	return Render(v, opt), nil
 }
 
 // textWither is a composite value (a list or record of a language) whose

@@ -1,6 +1,7 @@
 package lang
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"sort"
@@ -191,4 +192,30 @@ func didYouMean(name string, candidates []string) string {
 		return fmt.Sprintf("; did you mean '%s'?", c)
 	}
 	return ""
+}
+
+// Describe splits a cell's error into what both front ends show: a kind
+// ("Error", or "Interrupted" when the cell was cancelled), the headline
+// (the first line) and all lines of the message.
+func Describe(err error) (kind, headline string, lines []string) {
+	if errors.Is(err, context.Canceled) {
+		kind = "Interrupted"
+		headline = "the cell was interrupted; bindings made before the interrupt are kept"
+		return kind, headline, []string{kind + ": " + headline}
+	}
+	msg := err.Error()
+	headline = msg
+	if i := strings.IndexByte(msg, '\n'); i >= 0 {
+		headline = msg[:i]
+	}
+	return "Error", headline, strings.Split(msg, "\n")
+}
+
+// Line is the line of the cell an error points at, or 0 when it has none.
+func Line(err error) int {
+	var e *Error
+	if errors.As(err, &e) && e.Pos.IsValid() {
+		return e.Pos.Line
+	}
+	return 0
 }

@@ -55,6 +55,18 @@ type Limits struct {
 	Depth int   // nesting of user function calls (default MaxDepth)
 }
 
+// LanguageInfo describes the language as notebooks record it (the
+// metadata's language_info); both front ends hand out this one map.
+func LanguageInfo() map[string]any {
+	return map[string]any{
+		"name":           "lsys",
+		"version":        "1",
+		"mimetype":       "text/x-lsys",
+		"file_extension": ".lsys",
+		"pygments_lexer": "text",
+	}
+}
+
 // Session holds the bindings of one notebook session. Its methods may be
 // called from several goroutines (the kernel answers completion requests
 // while a cell runs); Run calls are serialised.
