@@ -210,12 +210,3 @@ func Describe(err error) (kind, headline string, lines []string) {
 	}
 	return "Error", headline, strings.Split(msg, "\n")
 }
-
-// Line is the line of the cell an error points at, or 0 when it has none.
-func Line(err error) int {
-	var e *Error
-	if errors.As(err, &e) && e.Pos.IsValid() {
-		return e.Pos.Line
-	}
-	return 0
-}

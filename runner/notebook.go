@@ -86,17 +86,57 @@ func splitMIME(mime string) bool {
 	return strings.HasPrefix(mime, "text/") || mime == "image/svg+xml" || mime == "application/javascript"
 }
 
+// ScriptCell is one cell of a script.
+type ScriptCell struct {
+	Source string
+	Tags   []string
+}
+
+// SplitScript cuts an lsys script into cells at lines "# %%"; words after
+// the marker are the cell's tags ("# %% parameters" marks the cell that
+// --set overrides). A script without markers is one cell.
+func SplitScript(src string) []ScriptCell {
+	var cells []ScriptCell
+	cur := ScriptCell{}
+	var lines []string
+	flush := func() {
+		text := strings.Trim(strings.Join(lines, "\n"), "\n")
+		if text != "" || len(cur.Tags) > 0 {
+			cur.Source = text
+			cells = append(cells, cur)
+		}
+	}
+	for _, line := range strings.Split(strings.ReplaceAll(src, "\r\n", "\n"), "\n") {
+		if rest, ok := strings.CutPrefix(strings.TrimSpace(line), "# %%"); ok {
+			flush()
+			cur, lines = ScriptCell{Tags: strings.Fields(rest)}, nil
+			continue
+		}
+		lines = append(lines, line)
+	}
+	flush()
+	return cells
+}
+
 // NewNotebook makes a notebook of code cells (from a script).
-func NewNotebook(sources []string) *Notebook {
-	cells := make([]any, len(sources))
-	for i, src := range sources {
-		cells[i] = map[string]any{
-			"cell_type": "code", "id": fmt.Sprintf("cell-%02d", i), "metadata": map[string]any{},
-			"source": src, "outputs": []any{}, "execution_count": nil,
+func NewNotebook(cells []ScriptCell) *Notebook {
+	list := make([]any, len(cells))
+	for i, c := range cells {
+		tags := make([]any, len(c.Tags))
+		for j, t := range c.Tags {
+			tags[j] = t
+		}
+		md := map[string]any{}
+		if len(tags) > 0 {
+			md["tags"] = tags
+		}
+		list[i] = map[string]any{
+			"cell_type": "code", "id": fmt.Sprintf("cell-%02d", i), "metadata": md,
+			"source": c.Source, "outputs": []any{}, "execution_count": nil,
 		}
 	}
 	return &Notebook{tree: map[string]any{
-		"cells": cells,
+		"cells": list,
 		"metadata": map[string]any{
 			// The kernel's registration (lsys kernelspec), so Jupyter opens the result with lsys.
 			"kernelspec": map[string]any{"display_name": "lsys (linear systems)", "language": "lsys", "name": "lsys"},

@@ -48,10 +48,13 @@ func (f Failure) String() string {
 	if f.ID != "" {
 		where += " (" + f.ID + ")"
 	}
+	head, _, _ := strings.Cut(f.Error, "\n")
+	if strings.HasPrefix(head, "line ") {
+		return where + ", " + head // the message names line and column
+	}
 	if f.Line > 0 {
 		where += fmt.Sprintf(", line %d", f.Line)
 	}
-	head, _, _ := strings.Cut(f.Error, "\n")
 	return where + ": " + head
 }
 
@@ -138,7 +141,7 @@ func Run(ctx context.Context, nb *Notebook, opt Options) (*Result, error) {
 		count++
 		start := time.Now()
 		if opt.Progress != nil {
-			fmt.Fprintf(opt.Progress, "lsys run: [%d/%d] cell %d%s ", count, total, i+1, idNote(c))
+			fmt.Fprintf(opt.Progress, "lsys run: [%d/%d] cell %d%s: ", count, total, i+1, idNote(c))
 		}
 		out := &collector{cell: i, c: c, ids: ids, nb: nb}
 		c.m["outputs"] = []any{}
@@ -152,7 +155,7 @@ func Run(ctx context.Context, nb *Notebook, opt Options) (*Result, error) {
 			}
 			out.add(map[string]any{"output_type": "error", "ename": kind, "evalue": head, "traceback": tb})
 			if !c.HasTag(errorsTag) {
-				res.Failures = append(res.Failures, Failure{Cell: i, ID: c.ID(), Line: lang.Line(err), Error: err.Error()})
+				res.Failures = append(res.Failures, Failure{Cell: i, ID: c.ID(), Line: lineOf(err), Error: err.Error()})
 				stopped = !opt.KeepGoing
 			}
 		} else if value != nil {
@@ -192,13 +195,20 @@ func Run(ctx context.Context, nb *Notebook, opt Options) (*Result, error) {
 	return res, nil
 }
 
+func lineOf(err error) int {
+	if p, ok := lang.Position(err); ok {
+		return p.Line
+	}
+	return 0
+}
+
 func runnable(c Cell) bool { return c.Type() == "code" && strings.TrimSpace(c.Source()) != "" }
 
 func idNote(c Cell) string {
 	if c.ID() == "" {
 		return ""
 	}
-	return "(" + c.ID() + ")"
+	return " (" + c.ID() + ")"
 }
 
 var setRE = regexp.MustCompile(`^([A-Za-z_][A-Za-z_0-9]*)=(.*)$`)
