@@ -67,7 +67,7 @@ func sxModesTitle(t *lsys.ModeTable) string {
 // sxVerdictNote states how the reached and seen verdicts were decided and
 // their two tolerances.
 func sxVerdictNote(t *lsys.ModeTable) string {
-	return fmt.Sprintf("verdicts: PBH test per mode in the balanced system (states balanced, inputs and outputs scaled to the size of A by powers of two, so units do not matter); reached if the margin exceeds %s x ||B~|| = %s, seen if it exceeds %s x ||C~|| = %s",
+	return fmt.Sprintf("verdicts: PBH test per mode, reach on (A, B) and visibility on (A, C), each pair balanced on its own (states, inputs and outputs scaled by powers of two, so units do not matter); reached if the margin exceeds %s x ||B~|| = %s, seen if it exceeds %s x ||C~|| = %s",
 		fmtNum(t.RelTol), fmtNum(t.ReachTol), fmtNum(t.RelTol), fmtNum(t.ObserveTol))
 }
 

@@ -197,7 +197,7 @@ func renderJordan(v any, _ Options) Bundle {
 		rows = append(rows, []string{fmtComplex(c.Value, pair), strconv.Itoa(c.Algebraic), strconv.Itoa(c.Geometric), sxInts(c.Blocks), verdict, ranks, fmtNum(c.Spread), fmtNum(c.Tol), fmtNum(c.Cond)})
 	}
 	gridTable(t, h, []string{"eigenvalue", "alg.", "geom.", "blocks", "verdict", "ranks of powers", "spread", "cluster tol", "cond"}, rows, 0)
-	note(t, h, fmt.Sprintf("Eigenvalues i, j are one cluster when |l_i - l_j| <= %s u ||A|| max(cond_i, cond_j) (at most %s%s); block sizes from the ranks of (A - l I)^k, singular values below %s of the largest, or below (2 x spread)^k, counted as zero; real parts within %s of zero shown as 0. %d defective.",
+	note(t, h, fmt.Sprintf("Decided on A balanced by powers of two (the same in any units). Eigenvalues i, j are one cluster when |l_i - l_j| <= %s u ||A|| max(cond_i, cond_j) (at most %s%s); block sizes from the ranks of (A - l I)^k, singular values below %s ||A - l I||^k, or below (2 x spread)^k, counted as zero; real parts within %s of zero shown as 0. %d defective.",
 		fmtNum(js.ClusterFactor), fmtNum(js.CapTol), map[bool]string{true: ", or closer than " + fmtNum(js.AbsTol), false: ""}[js.AbsTol > 0], fmtNum(js.RankTol), fmtNum(js.ZeroTol), defective))
 	return c.bundle()
 }
@@ -228,7 +228,7 @@ func renderStructure(v any, _ Options) Bundle {
 		rows = append(rows, []string{p.Name, strconv.Itoa(p.Dim), sxValues(p.Modes)})
 	}
 	gridTable(t, h, []string{"part", "states", "modes"}, rows, 0)
-	note(t, h, fmt.Sprintf("Orthogonal staircase forms of the balanced system (states balanced, inputs and outputs scaled to the size of A by powers of two, so a tolerance means the same in any units) decide every rank at %s x the norm of [A B] (or [A; C]); a small kept value marks a weakly reached or seen direction (the mode table's PBH margins measure each mode); the Krylov matrix is not used. Reachable and unobservable subspaces intersected at principal-angle tolerance %s; Kalman transformation condition number %s.",
+	note(t, h, fmt.Sprintf("Orthogonal staircase forms decide every rank, reachability on (A, B) alone and observability on (A, C) alone, each pair balanced on its own (states, and inputs or outputs, scaled by powers of two, so a tolerance means the same in any units), at %s x the norm of [A B] (or [A; C]); a small kept value marks a weakly reached or seen direction (the mode table's PBH margins measure each mode); the Krylov matrix is not used. Reachable and unobservable subspaces intersected at principal-angle tolerance %s; Kalman transformation condition number %s.",
 		fmtNum(st.RelTol), fmtNum(st.AngleTol), fmtNum(st.Cond)))
 	b := c.bundle()
 	parts := make([]any, 4)

@@ -91,16 +91,17 @@ func Poles(s *System) ([]complex128, error) {
 	if s.N() == 0 {
 		return nil, nil
 	}
-	es, err := Eigen(s.A)
+	es, us, err := decisionEigen(s.A)
 	if err != nil {
 		return nil, err
 	}
-	tol := boundaryTol(s.A)
+	tol := boundaryTol(us.A)
 	// A multiple pole split by rounding (a double pole comes out about
 	// sqrt(u) |p| apart, as a close pair) is reported as its cluster's
-	// mean, repeated, with the clustering of the mode table (see Jordan).
+	// mean, repeated, with the clustering of the mode table (see Jordan),
+	// decided in unit-free coordinates (see unitScaling).
 	vals := append([]complex128(nil), es.Values...)
-	normA := mat.Norm(s.A, 2)
+	normA := mat.Norm(us.A, 2)
 	for _, g := range clusterEigenvalues(vals, es.Cond, normA, 1e-3*math.Max(normA, dlamchE), 0) {
 		if len(g.idx) < 2 {
 			continue
@@ -127,6 +128,8 @@ func Poles(s *System) ([]complex128, error) {
 
 // boundaryTol is 1000 u max(1, ||A||_F), below which the computation does
 // not resolve the distance of an eigenvalue from the stability boundary.
+// Callers pass the balanced A (see unitScaling), so it does not depend on
+// units.
 func boundaryTol(A *mat.Dense) float64 {
 	return 1e3 * dlamchE * math.Max(1, mat.Norm(A, 2))
 }

@@ -64,7 +64,10 @@ type JordanStructure struct {
 // Review 18(4)). absTol > 0 also clusters eigenvalues closer than absTol;
 // relTol <= 0 means DefaultRelTol for the rank decisions. Whether an
 // eigenvalue is defective is a numerical judgement: the tolerances are
-// reported with every cluster.
+// reported with every cluster. Every decision is made on A balanced by
+// powers of two (see unitScaling), with the norms, conditions and
+// tolerances of the balanced matrix, so the structure found is the same in
+// any units; the rank tolerance of the j-th power is relTol ||A - lambda I||^j.
 func Jordan(A *mat.Dense, absTol, relTol float64) (*JordanStructure, error) {
 	if A == nil {
 		return &JordanStructure{}, nil
@@ -73,15 +76,17 @@ func Jordan(A *mat.Dense, absTol, relTol float64) (*JordanStructure, error) {
 	if n != c {
 		return nil, &ShapeError{What: "the Jordan structure needs a square matrix", Got: Shape(A), Other: fmt.Sprintf("%dx%d", n, n)}
 	}
-	es, err := Eigen(A)
+	es, us, err := decisionEigen(A)
 	if err != nil {
 		return nil, err
 	}
-	return jordanFrom(A, es, absTol, relTol, 0)
+	return jordanFrom(us.A, es, absTol, relTol, 0)
 }
 
 const jordanClusterFactor = 1e3
 
+// jordanFrom computes the Jordan structure from an eigen-structure of
+// decisionEigen; A is the balanced matrix it was computed from.
 func jordanFrom(A *mat.Dense, es *EigenStructure, absTol, relTol, ts float64) (*JordanStructure, error) {
 	n, _ := A.Dims()
 	if relTol <= 0 || math.IsNaN(relTol) {
@@ -283,6 +288,7 @@ func jordanBlocks(A *mat.Dense, lam complex128, k int, relTol, spreadTol float64
 	if halve {
 		target = n - 2*k
 	}
+	norm1 := 0.0
 	for j := 1; j <= k; j++ {
 		if j > 1 {
 			P.Mul(P, &M)
@@ -292,10 +298,14 @@ func jordanBlocks(A *mat.Dense, lam complex128, k int, relTol, spreadTol float64
 			return nil, nil, errors.New("jordan: singular value decomposition did not converge")
 		}
 		sv := svd.Values(nil)
-		tol := relTol * sv[0]
-		if sv[0] == 0 {
-			tol = 0
+		if j == 1 {
+			norm1 = sv[0]
 		}
+		// Relative to ||M||^j, the size the j-th power would have without
+		// the cluster: a power that vanishes on the cluster (a defective
+		// pair whose quadratic factor squared is 0) has only rounding left,
+		// and a tolerance relative to that would count rounding as rank.
+		tol := relTol * math.Pow(norm1, float64(j))
 		tol = math.Max(tol, math.Pow(spreadTol, float64(j)))
 		r := 0
 		for _, v := range sv {

@@ -108,22 +108,27 @@ func TestJordanHiddenDefective(t *testing.T) {
 
 func TestJordanNearDefective(t *testing.T) {
 	// [[-1, 1], [d, -1]] has eigenvalues -1 +- sqrt(d): for d = 1e-10 they
-	// are distinct (+-1e-5 apart) and the matrix is diagonalizable, but each
-	// eigenvalue has condition about 1/(2 sqrt(d)) = 5e4 (closed form:
-	// v = (1, +-sqrt d), w = (+-sqrt d, 1)). The verdict must be two simple
-	// eigenvalues, reported as ill-conditioned.
+	// are distinct (+-1e-5 apart) and the matrix is diagonalizable. In these
+	// coordinates each eigenvalue has condition 1/(2 sqrt(d)) = 5e4, but a
+	// change of units (state 2 scaled by 2^17, the power of two nearest
+	// 1/sqrt(d)) makes it the nearly symmetric [[-1, b], [c, -1]] with
+	// b = 2^-17, c = d 2^17, whose eigenvalues have condition
+	// (b + c) / (2 sqrt(b c)) (closed form: v = (sqrt b, +-sqrt c),
+	// w = (sqrt c, +-sqrt b)). Decisions are made in those unit-free
+	// coordinates: two simple, well-conditioned eigenvalues.
 	A := mat.NewDense(2, 2, []float64{-1, 1, 1e-10, -1})
 	js := jordanOf(t, A)
 	if len(js.Clusters) != 2 {
 		t.Fatalf("%d clusters, want 2 simple eigenvalues", len(js.Clusters))
 	}
-	for _, c := range js.Clusters {
-		if c.Algebraic != 1 || c.Defective() {
-			t.Errorf("cluster %+v", c)
+	b, c := math.Exp2(-17), 1e-10*math.Exp2(17)
+	wantCond := (b + c) / (2 * math.Sqrt(b*c))
+	for _, cl := range js.Clusters {
+		if cl.Algebraic != 1 || cl.Defective() {
+			t.Errorf("cluster %+v", cl)
 		}
-		wantCond := (1 + 1e-10) / (2 * 1e-5)
-		if math.Abs(c.Cond-wantCond)/wantCond > 1e-4 {
-			t.Errorf("cond %.6g, want %.6g", c.Cond, wantCond)
+		if math.Abs(cl.Cond-wantCond)/wantCond > 1e-6 {
+			t.Errorf("cond %.6g, want %.6g", cl.Cond, wantCond)
 		}
 	}
 	// The same matrix hidden by an orthogonal similarity.

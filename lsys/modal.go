@@ -73,11 +73,11 @@ func Modal(s *System) (*ModalForm, error) {
 	if s.N() == 0 {
 		return nil, errors.New("modal: a static gain has no modes")
 	}
-	es, err := Eigen(s.A)
+	es, us, err := decisionEigen(s.A)
 	if err != nil {
 		return nil, err
 	}
-	js, err := jordanFrom(s.A, es, 0, DefaultRelTol, s.Ts)
+	js, err := jordanFrom(us.A, es, 0, DefaultRelTol, s.Ts)
 	if err != nil {
 		return nil, err
 	}

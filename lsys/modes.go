@@ -111,15 +111,15 @@ func StabilityOf(s *System) (Stability, error) {
 	if s.N() == 0 {
 		return st, nil
 	}
-	es, err := Eigen(s.A)
+	es, us, err := decisionEigen(s.A)
 	if err != nil {
 		return Stability{}, err
 	}
-	js, err := jordanFrom(s.A, es, 0, DefaultRelTol, s.Ts)
+	js, err := jordanFrom(us.A, es, 0, DefaultRelTol, s.Ts)
 	if err != nil {
 		return Stability{}, err
 	}
-	st.Tol = 1e3 * dlamchE * math.Max(1, mat.Norm(s.A, 2))
+	st.Tol = boundaryTol(us.A)
 	for _, c := range js.Clusters {
 		// A cluster off the real axis stands for its conjugate too; a
 		// cluster is judged by its mean (its members straddle it).
@@ -157,11 +157,14 @@ func Modes(s *System) (*ModeTable, error) {
 
 // ModesTol is Modes with a chosen relative tolerance (0 means the default).
 //
-// The PBH verdicts are decided in the balanced system of the structure
-// and zeros analyses (see balanceSystem: states balanced as in Osborne
-// 1960 and Parlett & Reinsch 1969, inputs and outputs scaled to the size
-// of A, all by powers of two): A~ = T A T^-1, B~ = T B Su, C~ = Sy C T^-1
-// with the unit left and right eigenvectors of A~. Otherwise the verdicts
+// The eigenvalues, their clusters and Jordan blocks are decided on A
+// balanced alone, the reached verdicts on (A, B) balanced together and the
+// seen verdicts on (A, C) balanced together (see unitScaling: states
+// balanced as in Osborne 1960 and Parlett & Reinsch 1969, decoupled parts
+// scaled as a whole, inputs and outputs scaled to the size of A, all by
+// powers of two): A~ = T A T^-1, B~ = T B Su, C~ = Sy C T^-1 with the unit
+// left and right eigenvectors there, so reachability depends on (A, B)
+// only and observability on (A, C) only. Otherwise the verdicts
 // would depend on units: in SI units a floor of 2000 t driven in N has
 // b = 5e-7 next to k/m = 2000, and a tolerance relative to ||[A B]|| calls
 // every mode unreached; a tolerance on ||C v|| relative to ||[A B]|| is set
@@ -175,16 +178,19 @@ func ModesTol(s *System, relTol float64) (*ModeTable, error) {
 	if s.N() == 0 {
 		return mt, nil
 	}
-	es, err := Eigen(s.A)
+	es, eus, err := decisionEigen(s.A)
 	if err != nil {
 		return nil, err
 	}
-	js, err := jordanFrom(s.A, es, 0, relTol, s.Ts)
+	js, err := jordanFrom(eus.A, es, 0, relTol, s.Ts)
 	if err != nil {
 		return nil, err
 	}
 	n, nu, ny := s.N(), s.M(), s.P()
-	bA, bB, bC, _, _, _, sx := balanceSystem(s.A, s.B, s.C, nil)
+	// Reach is judged on (A, B) alone and visibility on (A, C) alone,
+	// each balanced in unit-free coordinates of its own (see unitScaling).
+	ur, uo := balanceReach(s.A, s.B), balanceSeen(s.A, s.C)
+	bB, bC := ur.B, uo.C
 	if bB != nil {
 		mt.ReachTol = relTol * mat.Norm(bB, 2)
 	}
@@ -213,8 +219,9 @@ func ModesTol(s *System, relTol float64) (*ModeTable, error) {
 		}
 		fillFigures(&m, s.Ts)
 		// Reach and visibility along the unit left and right eigenvectors
-		// of the members in the balanced coordinates x~ = diag(sx)^-1 x:
-		// v~ = v ./ sx and w~ = w .* sx (the largest over a cluster).
+		// of the members in the balanced coordinates x~ = diag(S)^-1 x of
+		// each: w~ = w .* S for reach, v~ = v ./ S for visibility (the
+		// largest over a cluster).
 		m.Reach = make([]float64, nu)
 		m.Visibility = make([]float64, ny)
 		var wb2, cv2 float64
@@ -226,11 +233,7 @@ func ModesTol(s *System, relTol float64) (*ModeTable, error) {
 			if first < 0 {
 				first = k
 			}
-			w, v := make([]complex128, n), make([]complex128, n)
-			for i := 0; i < n; i++ {
-				w[i] = es.Left[k][i] * complex(sx[i], 0)
-				v[i] = es.Right[k][i] / complex(sx[i], 0)
-			}
+			w, v := ur.toBalanced(es.Left[k], true), uo.toBalanced(es.Right[k], false)
 			unitNormalize(w)
 			unitNormalize(v)
 			var wbk, cvk float64
@@ -265,8 +268,8 @@ func ModesTol(s *System, relTol float64) (*ModeTable, error) {
 		} else {
 			// A cluster: the PBH ranks of [A~ - lambda I, B~] and
 			// [A~ - lambda I; C~] by singular values.
-			m.ReachMargin = pbhMargin(bA, bB, lam, false)
-			m.ObserveMargin = pbhMargin(bA, bC, lam, true)
+			m.ReachMargin = pbhMargin(ur.A, bB, lam, false)
+			m.ObserveMargin = pbhMargin(uo.A, bC, lam, true)
 		}
 		m.Reachable = m.ReachMargin > m.ReachTol
 		m.Observable = m.ObserveMargin > m.ObserveTol

@@ -1,17 +1,26 @@
 package lsys
 
 import (
-	"bytes"
+	"encoding/json"
+	"fmt"
+	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"sort"
 	"testing"
 )
 
 // checkRefFresh runs tools/ref/<script> with Debian's Python (numpy, scipy)
-// into a temporary file and requires it to equal lsys/testdata/<data> byte
-// for byte. It fails, never skips, when Python or its packages are missing:
-// ./install and .ci/run install them, and CI must really regenerate.
+// into a temporary file and requires it to agree with
+// lsys/testdata/<data>: the same structure and strings, and every number
+// within refFreshRel relative (plus refFreshAbs absolute, for entries that
+// are rounding residue around 0). The last digits of LAPACK results depend
+// on the BLAS kernels of the machine (OpenBLAS picks them by processor), so
+// byte equality would fail on a machine other than the one that wrote the
+// file; a number tuned by hand still shows. It fails, never skips, when
+// Python or its packages are missing: ./install and .ci/run install them,
+// and CI must really regenerate.
 func checkRefFresh(t *testing.T, script, data string) {
 	t.Helper()
 	const py = "/usr/bin/python3"
@@ -23,15 +32,74 @@ func checkRefFresh(t *testing.T, script, data string) {
 	if msg, err := cmd.CombinedOutput(); err != nil {
 		t.Fatalf("reference script failed: %v\n%s", err, msg)
 	}
-	fresh, err := os.ReadFile(out)
-	if err != nil {
-		t.Fatal(err)
+	var fresh, committed any
+	for _, f := range []struct {
+		path string
+		v    *any
+	}{{out, &fresh}, {filepath.Join("testdata", data), &committed}} {
+		b, err := os.ReadFile(f.path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := json.Unmarshal(b, f.v); err != nil {
+			t.Fatalf("%s: %v", f.path, err)
+		}
 	}
-	committed, err := os.ReadFile(filepath.Join("testdata", data))
-	if err != nil {
-		t.Fatal(err)
+	var diffs []string
+	refDiff(fresh, committed, "", &diffs)
+	if len(diffs) > 0 {
+		if len(diffs) > 5 {
+			diffs = append(diffs[:5], fmt.Sprintf("... and %d more", len(diffs)-5))
+		}
+		t.Fatalf("lsys/testdata/%s differs from what tools/ref/%s writes: %v; regenerate it with /usr/bin/python3 tools/ref/%s lsys/testdata/%s and review the change", data, script, diffs, script, data)
 	}
-	if !bytes.Equal(fresh, committed) {
-		t.Fatalf("lsys/testdata/%s differs from what tools/ref/%s writes; regenerate it with /usr/bin/python3 tools/ref/%s lsys/testdata/%s and review the change", data, script, script, data)
+}
+
+const (
+	refFreshRel = 1e-9
+	refFreshAbs = 1e-12
+)
+
+func refDiff(a, b any, path string, diffs *[]string) {
+	switch x := a.(type) {
+	case map[string]any:
+		y, ok := b.(map[string]any)
+		if !ok {
+			*diffs = append(*diffs, path+": type differs")
+			return
+		}
+		keys := map[string]bool{}
+		for k := range x {
+			keys[k] = true
+		}
+		for k := range y {
+			keys[k] = true
+		}
+		sorted := make([]string, 0, len(keys))
+		for k := range keys {
+			sorted = append(sorted, k)
+		}
+		sort.Strings(sorted)
+		for _, k := range sorted {
+			refDiff(x[k], y[k], path+"/"+k, diffs)
+		}
+	case []any:
+		y, ok := b.([]any)
+		if !ok || len(x) != len(y) {
+			*diffs = append(*diffs, path+": length or type differs")
+			return
+		}
+		for i := range x {
+			refDiff(x[i], y[i], fmt.Sprintf("%s/%d", path, i), diffs)
+		}
+	case float64:
+		y, ok := b.(float64)
+		if !ok || math.Abs(x-y) > refFreshRel*math.Max(math.Abs(x), math.Abs(y))+refFreshAbs {
+			*diffs = append(*diffs, fmt.Sprintf("%s: %v vs %v", path, a, b))
+		}
+	default:
+		if a != b {
+			*diffs = append(*diffs, fmt.Sprintf("%s: %v vs %v", path, a, b))
+		}
 	}
 }

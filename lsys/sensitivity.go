@@ -61,13 +61,13 @@ func EigenvalueSensitivity(A *mat.Dense, dA []*mat.Dense, names []string, values
 			return nil, err
 		}
 	}
-	es, err := Eigen(A)
+	es, us, err := decisionEigen(A)
 	if err != nil {
 		return nil, err
 	}
 	// Repeated eigenvalues: clusters of the Jordan structure (Golub &
 	// Wilkinson 1976), with the default tolerances of Jordan.
-	js, err := jordanFrom(A, es, 0, 0, 0)
+	js, err := jordanFrom(us.A, es, 0, 0, 0)
 	if err != nil {
 		return nil, err
 	}

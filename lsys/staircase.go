@@ -83,8 +83,10 @@ func (st *Staircase) basis(c0, c1, n int) *mat.Dense {
 }
 
 // StaircasesOf returns the controllability and observability staircases of
-// s computed on the balanced system (see balanceSystem: states balanced,
-// inputs and outputs scaled by powers of two to the size of A), so that a
+// s, each computed in unit-free coordinates of its own (see unitScaling):
+// the controllability staircase on (A, B) balanced together, the
+// observability staircase on (A, C) balanced together, so reachability
+// depends on A and B alone and observability on A and C alone, and a
 // relative tolerance means the same in any units: in SI units an actuator
 // entry 1/m = 1e-4 next to stiffness entries k/m = 1e3 would otherwise be
 // dropped by a tolerance relative to ||[A B]||, and steps through the
@@ -93,14 +95,14 @@ func (st *Staircase) basis(c0, c1, n int) *mat.Dense {
 // and unobservable subspaces do not depend on these scalings; use
 // LeadingBasis and TrailingBasis to read them in the original coordinates.
 func StaircasesOf(s *System, relTol float64) (reach, observe *Staircase, err error) {
-	bA, bB, bC, _, _, _, sx := balanceSystem(s.A, s.B, s.C, nil)
-	if reach, err = ControllabilityStaircase(bA, bB, relTol); err != nil {
+	ur, uo := balanceReach(s.A, s.B), balanceSeen(s.A, s.C)
+	if reach, err = ControllabilityStaircase(ur.A, ur.B, relTol); err != nil {
 		return nil, nil, err
 	}
-	if observe, err = ObservabilityStaircase(bA, bC, relTol); err != nil {
+	if observe, err = ObservabilityStaircase(uo.A, uo.C, relTol); err != nil {
 		return nil, nil, err
 	}
-	reach.Scale, observe.Scale = sx, sx
+	reach.Scale, observe.Scale = ur.S, uo.S
 	return reach, observe, nil
 }
 

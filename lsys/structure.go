@@ -314,16 +314,17 @@ func Transform(s *System, T *mat.Dense) (*System, error) {
 
 // Minimal returns a minimal realization of s: the reachable part of the
 // controllability staircase, then the observable part of its dual staircase
-// (Van Dooren 1981). Both steps are orthogonal; before them the system is
-// balanced (states, inputs and outputs, by powers of two; see
-// balanceSystem) so the rank decisions do not depend on units, and the
-// input and output scalings are undone at the end. States are named z1..zk.
+// (Van Dooren 1981). Both steps are orthogonal; before each the pair it
+// decides on is balanced by powers of two ((A, B) for the first, (A, C)
+// of the reachable part for the second; see unitScaling) so the rank
+// decisions do not depend on units, and the scalings are undone at the
+// end. States are named z1..zk.
 func Minimal(s *System, relTol float64) (*System, error) {
 	if s.N() == 0 {
 		return s.Copy(), nil
 	}
-	bA, bB, bC, _, su, sy, _ := balanceSystem(s.A, s.B, s.C, nil)
-	rs, err := ControllabilityStaircase(bA, bB, relTol)
+	ur := balanceReach(s.A, s.B)
+	rs, err := ControllabilityStaircase(ur.A, ur.B, relTol)
 	if err != nil {
 		return nil, err
 	}
@@ -332,18 +333,32 @@ func Minimal(s *System, relTol float64) (*System, error) {
 	if k == 0 {
 		return NewSystemNamed(0, s.M(), s.P(), nil, nil, nil, s.D, s.Ts, nil, s.InputNames, s.OutputNames)
 	}
+	// The reachable part in the staircase coordinates x = diag(S) Z xs,
+	// with the input scaling undone.
 	Ar := mat.DenseCopyOf(rs.A.Slice(0, k, 0, k))
 	var Br *mat.Dense
 	if rs.B != nil {
 		Br = mat.DenseCopyOf(rs.B.Slice(0, k, 0, s.M()))
+		for j, f := range ur.U {
+			for i := 0; i < k; i++ {
+				Br.Set(i, j, Br.At(i, j)/f)
+			}
+		}
 	}
 	var Cr *mat.Dense
-	if bC != nil {
+	if s.C != nil {
+		SZ := mat.DenseCopyOf(rs.Z.Slice(0, n, 0, k))
+		for i := 0; i < n; i++ {
+			for j := 0; j < k; j++ {
+				SZ.Set(i, j, SZ.At(i, j)*ur.S[i])
+			}
+		}
 		var t mat.Dense
-		t.Mul(bC, rs.Z.Slice(0, n, 0, k))
+		t.Mul(s.C, SZ)
 		Cr = &t
 	}
-	os, err := ObservabilityStaircase(Ar, Cr, relTol)
+	uo := balanceSeen(Ar, Cr)
+	os, err := ObservabilityStaircase(uo.A, uo.C, relTol)
 	if err != nil {
 		return nil, err
 	}
@@ -353,21 +368,24 @@ func Minimal(s *System, relTol float64) (*System, error) {
 	}
 	Z := os.Z.Slice(0, k, 0, q)
 	var A, B, C, tmp mat.Dense
-	tmp.Mul(Ar, Z)
+	tmp.Mul(uo.A, Z)
 	A.Mul(Z.T(), &tmp)
 	var Bp, Cp *mat.Dense
 	if Br != nil {
-		B.Mul(Z.T(), Br)
-		for j, f := range su {
-			for i := 0; i < q; i++ {
-				B.Set(i, j, B.At(i, j)/f)
+		// B = Z^T diag(S)^-1 Br.
+		Bs := mat.DenseCopyOf(Br)
+		for i := 0; i < k; i++ {
+			for j := 0; j < s.M(); j++ {
+				Bs.Set(i, j, Bs.At(i, j)/uo.S[i])
 			}
 		}
+		B.Mul(Z.T(), Bs)
 		Bp = &B
 	}
-	if Cr != nil {
-		C.Mul(Cr, Z)
-		for i, f := range sy {
+	if uo.C != nil {
+		// C = diag(Y)^-1 C~ Z.
+		C.Mul(uo.C, Z)
+		for i, f := range uo.Y {
 			for j := 0; j < q; j++ {
 				C.Set(i, j, C.At(i, j)/f)
 			}
@@ -399,7 +417,7 @@ func Reachable(s *System, relTol float64) (*Subspace, error) {
 	}
 	V := rs.LeadingBasis()
 	sub := newSubspace("reachable subspace", s, s.A, V, math.Max(1e3*float64(s.N())*dlamchE, rs.Tol/math.Max(1, mat.Norm(rs.A, 2))))
-	sub.Note = fmt.Sprintf("controllability staircase of the balanced system, steps %v, rank tolerance %.3g = %.3g x the norm of the balanced [A B] (smallest kept singular value per step %s, largest dropped %.3g)", rs.Steps, rs.Tol, rs.Tol/stackedNorm(rs.A, rs.B), fmtFloats(rs.StepKept), rs.Dropped)
+	sub.Note = fmt.Sprintf("controllability staircase of (A, B) balanced together, steps %v, rank tolerance %.3g = %.3g x the norm of the balanced [A B] (smallest kept singular value per step %s, largest dropped %.3g)", rs.Steps, rs.Tol, rs.Tol/stackedNorm(rs.A, rs.B), fmtFloats(rs.StepKept), rs.Dropped)
 	return sub, nil
 }
 
@@ -416,7 +434,7 @@ func Unobservable(s *System, relTol float64) (*Subspace, error) {
 	n := s.N()
 	V := os.TrailingBasis()
 	sub := newSubspace("unobservable subspace", s, s.A, V, math.Max(1e3*float64(n)*dlamchE, os.Tol/math.Max(1, mat.Norm(os.A, 2))))
-	sub.Note = fmt.Sprintf("observability staircase of the balanced system, steps %v, rank tolerance %.3g = %.3g x the norm of the balanced [A; C] (smallest kept singular value per step %s, largest dropped %.3g)", os.Steps, os.Tol, os.Tol/stackedNorm(os.A, os.B), fmtFloats(os.StepKept), os.Dropped)
+	sub.Note = fmt.Sprintf("observability staircase of (A, C) balanced together, steps %v, rank tolerance %.3g = %.3g x the norm of the balanced [A; C] (smallest kept singular value per step %s, largest dropped %.3g)", os.Steps, os.Tol, os.Tol/stackedNorm(os.A, os.B), fmtFloats(os.StepKept), os.Dropped)
 	return sub, nil
 }
 
