@@ -6,6 +6,7 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"lsys/lang/syntax"
 	"lsys/lsys"
 )
 
@@ -17,19 +18,19 @@ func (s *Session) IsComplete(src string) (status, indent string) {
 			status, indent = "invalid", ""
 		}
 	}()
-	var sc Scanner
+	var sc syntax.Scanner
 	sc.Init(src)
-	var stack []Token
+	var stack []syntax.Token
 	for {
 		tok, _, _ := sc.Scan()
-		if tok == EOF {
+		if tok == syntax.EOF {
 			break
 		}
 		switch tok {
-		case LPAREN, LBRACK, LBRACE:
+		case syntax.LPAREN, syntax.LBRACK, syntax.LBRACE:
 			stack = append(stack, tok)
-		case RPAREN, RBRACK, RBRACE:
-			want := map[Token]Token{RPAREN: LPAREN, RBRACK: LBRACK, RBRACE: LBRACE}[tok]
+		case syntax.RPAREN, syntax.RBRACK, syntax.RBRACE:
+			want := map[syntax.Token]syntax.Token{syntax.RPAREN: syntax.LPAREN, syntax.RBRACK: syntax.LBRACK, syntax.RBRACE: syntax.LBRACE}[tok]
 			if len(stack) == 0 || stack[len(stack)-1] != want {
 				return "invalid", ""
 			}
@@ -46,19 +47,19 @@ func (s *Session) IsComplete(src string) (status, indent string) {
 	if len(stack) > 0 {
 		return "incomplete", strings.Repeat("  ", len(stack))
 	}
-	if _, err := ParseCell(src); err != nil {
+	if _, err := syntax.ParseCell(src); err != nil {
 		return "invalid", ""
 	}
 	return "complete", ""
 }
 
-func isIdentRune(r rune) bool { return isLetter(r) || isDigit(r) }
+func isIdentRune(r rune) bool { return syntax.IsLetter(r) || syntax.IsDigit(r) }
 
 // openContext describes the innermost open bracket before a point.
 type openContext struct {
-	tok      Token  // LPAREN, LBRACK, LBRACE or EOF when none
-	callee   string // name before '(' when it is a call
-	block    bool   // a system block
+	tok      syntax.Token // LPAREN, LBRACK, LBRACE or EOF when none
+	callee   string       // name before '(' when it is a call
+	block    bool         // a system block
 	declared []string
 	given    []string // named arguments already written in the call
 	recordIn string   // inside a record that is an argument of a call whose first argument is this name
@@ -66,10 +67,10 @@ type openContext struct {
 
 // contextAt scans src[:off] (byte offset) for the innermost open bracket.
 func contextAt(src string) openContext {
-	var sc Scanner
+	var sc syntax.Scanner
 	sc.Init(src)
 	type frame struct {
-		tok      Token
+		tok      syntax.Token
 		callee   string
 		block    bool
 		declared []string
@@ -77,12 +78,12 @@ func contextAt(src string) openContext {
 		firstArg string // a name written as the first argument of a call
 	}
 	var stack []*frame
-	prev, prevLit := EOF, ""
+	prev, prevLit := syntax.EOF, ""
 	pendingBlock := false // saw "system every": the next '{' opens a block
 	declKind := ""
 	for {
 		tok, _, lit := sc.Scan()
-		if tok == EOF {
+		if tok == syntax.EOF {
 			break
 		}
 		var top *frame
@@ -90,51 +91,51 @@ func contextAt(src string) openContext {
 			top = stack[len(stack)-1]
 		}
 		switch tok {
-		case LPAREN, LBRACK, LBRACE:
+		case syntax.LPAREN, syntax.LBRACK, syntax.LBRACE:
 			f := &frame{tok: tok}
-			if tok == LPAREN && prev == IDENT {
+			if tok == syntax.LPAREN && prev == syntax.IDENT {
 				f.callee = prevLit
 			}
-			if tok == LBRACE && ((prev == IDENT && prevLit == "system") || pendingBlock) {
+			if tok == syntax.LBRACE && ((prev == syntax.IDENT && prevLit == "system") || pendingBlock) {
 				f.block = true
 				pendingBlock = false
 			}
 			stack = append(stack, f)
-		case RPAREN, RBRACK, RBRACE:
+		case syntax.RPAREN, syntax.RBRACK, syntax.RBRACE:
 			if len(stack) > 0 {
 				stack = stack[:len(stack)-1]
 			}
-		case COLON:
-			if top != nil && top.tok == LPAREN && prev == IDENT {
+		case syntax.COLON:
+			if top != nil && top.tok == syntax.LPAREN && prev == syntax.IDENT {
 				top.given = append(top.given, prevLit)
 			}
-		case IDENT:
-			if top != nil && top.tok == LPAREN && prev == LPAREN {
+		case syntax.IDENT:
+			if top != nil && top.tok == syntax.LPAREN && prev == syntax.LPAREN {
 				top.firstArg = lit
 			}
-			if lit == "every" && prev == IDENT && prevLit == "system" {
+			if lit == "every" && prev == syntax.IDENT && prevLit == "system" {
 				pendingBlock = true
 			}
 			if top != nil && top.block {
-				if (lit == "states" || lit == "inputs" || lit == "outputs") && (prev == NEWLINE || prev == LBRACE) {
+				if (lit == "states" || lit == "inputs" || lit == "outputs") && (prev == syntax.NEWLINE || prev == syntax.LBRACE) {
 					declKind = lit
 				} else if declKind != "" {
 					top.declared = append(top.declared, lit)
 				}
 			}
-		case NEWLINE:
+		case syntax.NEWLINE:
 			declKind = ""
 			pendingBlock = false
 		}
 		prev, prevLit = tok, lit
 	}
 	if len(stack) == 0 {
-		return openContext{tok: EOF}
+		return openContext{tok: syntax.EOF}
 	}
 	f := stack[len(stack)-1]
 	oc := openContext{tok: f.tok, callee: f.callee, block: f.block, given: f.given}
-	if len(stack) > 1 && f.tok == LBRACE && !f.block {
-		if p := stack[len(stack)-2]; p.tok == LPAREN {
+	if len(stack) > 1 && f.tok == syntax.LBRACE && !f.block {
+		if p := stack[len(stack)-2]; p.tok == syntax.LPAREN {
 			oc.recordIn = p.firstArg
 		}
 	}
@@ -189,7 +190,7 @@ func (s *Session) Complete(src string, cursor int) (matches []string, start, end
 		return nil, cursor, cursor
 	}
 	oc := contextAt(before)
-	if oc.tok == LPAREN && oc.callee != "" {
+	if oc.tok == syntax.LPAREN && oc.callee != "" {
 		var params []string
 		given := map[string]bool{}
 		for _, g := range oc.given {
@@ -230,13 +231,13 @@ func (s *Session) Complete(src string, cursor int) (matches []string, start, end
 			add(names, ": ")
 		}
 	}
-	if prefix == "" && oc.tok != LPAREN && !oc.block {
+	if prefix == "" && oc.tok != syntax.LPAREN && !oc.block {
 		return matches, start, cursor
 	}
 	add(s.Names(), "")
 	add(builtinNames(), "")
 	var kws []string
-	for k := range keywords {
+	for k := range syntax.Keywords {
 		kws = append(kws, k)
 	}
 	if prefix != "" {
@@ -352,9 +353,9 @@ func (s *Session) Inspect(src string, cursor int) (text string, found bool) {
 			}
 		}
 	}
-	if name == "" || isDigit(runes[start]) {
+	if name == "" || syntax.IsDigit(runes[start]) {
 		oc := contextAt(string(runes[:cursor]))
-		if oc.tok != LPAREN || oc.callee == "" {
+		if oc.tok != syntax.LPAREN || oc.callee == "" {
 			return "", false
 		}
 		name = oc.callee
@@ -365,7 +366,7 @@ func (s *Session) Inspect(src string, cursor int) (text string, found bool) {
 	if b, ok := Lookup(name); ok {
 		return builtinHelp(b), true
 	}
-	if IsKeyword(name) {
+	if syntax.IsKeyword(name) {
 		return keywordHelp[name], keywordHelp[name] != ""
 	}
 	return "", false

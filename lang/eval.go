@@ -9,6 +9,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang/syntax"
 	"lsys/lsys"
 )
 
@@ -34,18 +35,18 @@ type evaluator struct {
 	frames []map[string]any
 }
 
-func (ev *evaluator) errorAt(pos Pos, msg, hint string) error {
-	return &Error{Pos: pos, Msg: msg, Hint: hint, Source: lineAt(ev.src, pos.Line), Where: ev.where}
+func (ev *evaluator) errorAt(pos syntax.Pos, msg, hint string) error {
+	return &syntax.Error{Pos: pos, Msg: msg, Hint: hint, Source: syntax.LineAt(ev.src, pos.Line), Where: ev.where}
 }
 
-func (ev *evaluator) interrupted(pos Pos, cause error) error {
-	e := ev.errorAt(pos, "interrupted", "The cell was stopped; bindings made before this line are kept.").(*Error)
+func (ev *evaluator) interrupted(pos syntax.Pos, cause error) error {
+	e := ev.errorAt(pos, "interrupted", "The cell was stopped; bindings made before this line are kept.").(*syntax.Error)
 	e.Err = cause
 	return e
 }
 
 // step counts one evaluation step and checks for interrupts every 1024.
-func (ev *evaluator) step(pos Pos) error {
+func (ev *evaluator) step(pos syntax.Pos) error {
 	ev.steps++
 	if ev.steps&1023 == 0 {
 		if err := ev.ctx.Err(); err != nil {
@@ -59,7 +60,7 @@ func (ev *evaluator) step(pos Pos) error {
 	return nil
 }
 
-func (ev *evaluator) run(stmts []Stmt) (any, error) {
+func (ev *evaluator) run(stmts []syntax.Stmt) (any, error) {
 	var last any
 	for i, st := range stmts {
 		if err := ev.ctx.Err(); err != nil {
@@ -67,7 +68,7 @@ func (ev *evaluator) run(stmts []Stmt) (any, error) {
 		}
 		last = nil
 		switch s := st.(type) {
-		case *AssignStmt:
+		case *syntax.AssignStmt:
 			if err := ev.checkBindable(s.Name); err != nil {
 				return nil, err
 			}
@@ -80,7 +81,7 @@ func (ev *evaluator) run(stmts []Stmt) (any, error) {
 					"Bind the result of a computation; print, warn and show give nothing back.")
 			}
 			ev.s.bind(s.Name.Name, v)
-		case *FuncDef:
+		case *syntax.FuncDef:
 			if err := ev.checkBindable(s.Name); err != nil {
 				return nil, err
 			}
@@ -89,7 +90,7 @@ func (ev *evaluator) run(stmts []Stmt) (any, error) {
 				params[k] = p.Name
 			}
 			ev.s.bind(s.Name.Name, &Function{Name: s.Name.Name, Params: params, Body: s.Body, src: ev.src})
-		case *ExprStmt:
+		case *syntax.ExprStmt:
 			v, err := ev.eval(s.X)
 			if err != nil {
 				return nil, err
@@ -104,11 +105,11 @@ func (ev *evaluator) run(stmts []Stmt) (any, error) {
 
 // checkBindable: a binding may hide a built-in of the same name (gain = 2
 // is a natural thing to write); calling it then says what happened.
-func (ev *evaluator) checkBindable(id *Ident) error {
+func (ev *evaluator) checkBindable(id *syntax.Ident) error {
 	return nil
 }
 
-func (ev *evaluator) lookup(id *Ident) (any, error) {
+func (ev *evaluator) lookup(id *syntax.Ident) (any, error) {
 	if n := len(ev.frames); n > 0 {
 		if v, ok := ev.frames[n-1][id.Name]; ok {
 			return v, nil
@@ -133,25 +134,25 @@ func (ev *evaluator) lookup(id *Ident) (any, error) {
 		"Bind it first (name = value), or check the spelling.")
 }
 
-func (ev *evaluator) eval(e Expr) (v any, err error) {
+func (ev *evaluator) eval(e syntax.Expr) (v any, err error) {
 	if err := ev.step(e.Pos()); err != nil {
 		return nil, err
 	}
 	switch x := e.(type) {
-	case *Ident:
+	case *syntax.Ident:
 		return ev.lookup(x)
-	case *NumberLit:
+	case *syntax.NumberLit:
 		if x.Imag {
 			return complex(0, x.Value), nil
 		}
 		return x.Value, nil
-	case *StringLit:
+	case *syntax.StringLit:
 		return x.Value, nil
-	case *BoolLit:
+	case *syntax.BoolLit:
 		return x.Value, nil
-	case *ListLit:
+	case *syntax.ListLit:
 		return ev.evalList(x)
-	case *RecordLit:
+	case *syntax.RecordLit:
 		r := &Record{}
 		for _, f := range x.Fields {
 			v, err := ev.eval(f.Value)
@@ -165,12 +166,12 @@ func (ev *evaluator) eval(e Expr) (v any, err error) {
 			r.Values = append(r.Values, v)
 		}
 		return r, nil
-	case *UnaryExpr:
+	case *syntax.UnaryExpr:
 		v, err := ev.eval(x.X)
 		if err != nil {
 			return nil, err
 		}
-		if x.Op == NOT {
+		if x.Op == syntax.NOT {
 			b, ok := v.(bool)
 			if !ok {
 				return nil, ev.errorAt(x.OpPos, fmt.Sprintf("'not' needs true or false, not %s", typeName(v)), "Use a comparison, such as not (k > 0).")
@@ -178,8 +179,8 @@ func (ev *evaluator) eval(e Expr) (v any, err error) {
 			return !b, nil
 		}
 		return ev.negate(v, x.OpPos)
-	case *BinaryExpr:
-		if x.Op == AND || x.Op == OR {
+	case *syntax.BinaryExpr:
+		if x.Op == syntax.AND || x.Op == syntax.OR {
 			return ev.logic(x)
 		}
 		a, err := ev.eval(x.X)
@@ -191,17 +192,17 @@ func (ev *evaluator) eval(e Expr) (v any, err error) {
 			return nil, err
 		}
 		return ev.binary(x.Op, a, b, x.OpPos, x)
-	case *CallExpr:
+	case *syntax.CallExpr:
 		return ev.evalCall(x)
-	case *IndexExpr:
+	case *syntax.IndexExpr:
 		return ev.evalIndex(x)
-	case *FieldExpr:
+	case *syntax.FieldExpr:
 		v, err := ev.eval(x.X)
 		if err != nil {
 			return nil, err
 		}
 		return ev.field(v, x.Name)
-	case *IfExpr:
+	case *syntax.IfExpr:
 		c, err := ev.eval(x.Cond)
 		if err != nil {
 			return nil, err
@@ -215,13 +216,13 @@ func (ev *evaluator) eval(e Expr) (v any, err error) {
 			return ev.eval(x.Then)
 		}
 		return ev.eval(x.Else)
-	case *SystemBlock:
+	case *syntax.SystemBlock:
 		return ev.evalSystemBlock(x)
 	}
 	return nil, ev.errorAt(e.Pos(), "cannot evaluate this expression", "This is a bug in lsys; please report it with this cell.")
 }
 
-func (ev *evaluator) logic(x *BinaryExpr) (any, error) {
+func (ev *evaluator) logic(x *syntax.BinaryExpr) (any, error) {
 	a, err := ev.eval(x.X)
 	if err != nil {
 		return nil, err
@@ -230,7 +231,7 @@ func (ev *evaluator) logic(x *BinaryExpr) (any, error) {
 	if !ok {
 		return nil, ev.errorAt(x.X.Pos(), fmt.Sprintf("'%s' needs true or false on both sides, not %s", x.Op, typeName(a)), "Use comparisons: k > 0 and b < 1.")
 	}
-	if (x.Op == AND && !ab) || (x.Op == OR && ab) {
+	if (x.Op == syntax.AND && !ab) || (x.Op == syntax.OR && ab) {
 		return ab, nil
 	}
 	b, err := ev.eval(x.Y)
@@ -246,7 +247,7 @@ func (ev *evaluator) logic(x *BinaryExpr) (any, error) {
 
 // evalList turns [..] into a column vector (all numbers), a matrix (rows
 // that are vectors of one length), or a List otherwise.
-func (ev *evaluator) evalList(x *ListLit) (any, error) {
+func (ev *evaluator) evalList(x *syntax.ListLit) (any, error) {
 	vals := make([]any, len(x.Elems))
 	for i, el := range x.Elems {
 		v, err := ev.eval(el)
@@ -360,15 +361,15 @@ func vecAt(v any, i int) complex128 {
 	return 0
 }
 
-func (ev *evaluator) tooBig(pos Pos, r, c int) error {
+func (ev *evaluator) tooBig(pos syntax.Pos, r, c int) error {
 	return ev.errorAt(pos, fmt.Sprintf("a %dx%d matrix is larger than the limit of %d entries", r, c, MaxEntries),
 		"Work with a smaller model, or reduce it first.")
 }
 
-func (ev *evaluator) evalCall(x *CallExpr) (any, error) {
+func (ev *evaluator) evalCall(x *syntax.CallExpr) (any, error) {
 	var fn any
 	var err error
-	if id, ok := x.Fun.(*Ident); ok {
+	if id, ok := x.Fun.(*syntax.Ident); ok {
 		fn, err = ev.lookup(id)
 	} else {
 		fn, err = ev.eval(x.Fun)
@@ -376,7 +377,7 @@ func (ev *evaluator) evalCall(x *CallExpr) (any, error) {
 	if err != nil {
 		return nil, err
 	}
-	var pos []Pos
+	var pos []syntax.Pos
 	var vals []any
 	var named []NamedValue
 	for _, a := range x.Args {
@@ -418,17 +419,17 @@ func (ev *evaluator) evalCall(x *CallExpr) (any, error) {
 		return number(v), nil
 	}
 	hint := "Only functions can be called; to index a matrix use M[2, 1]."
-	if id, ok := x.Fun.(*Ident); ok {
+	if id, ok := x.Fun.(*syntax.Ident); ok {
 		if b, ok := Lookup(id.Name); ok && b.Fn != nil {
 			hint = fmt.Sprintf("Your binding '%s' hides the built-in %s; give your value another name.", id.Name, b.Signature())
 		}
 	}
-	return nil, ev.errorAt(x.Lparen, fmt.Sprintf("%s is %s, not a function", ExprString(x.Fun), typeName(fn)), hint)
+	return nil, ev.errorAt(x.Lparen, fmt.Sprintf("%s is %s, not a function", syntax.ExprString(x.Fun), typeName(fn)), hint)
 }
 
 // apply calls f with values (used by built-ins that take functions).
-func (ev *evaluator) apply(f any, vals []any, named []NamedValue, pos Pos) (any, error) {
-	poss := make([]Pos, len(vals))
+func (ev *evaluator) apply(f any, vals []any, named []NamedValue, pos syntax.Pos) (any, error) {
+	poss := make([]syntax.Pos, len(vals))
 	for i := range poss {
 		poss[i] = pos
 	}
@@ -441,10 +442,10 @@ func (ev *evaluator) apply(f any, vals []any, named []NamedValue, pos Pos) (any,
 	return nil, ev.errorAt(pos, fmt.Sprintf("expected a function, got %s", typeName(f)), "Define one first: f(k) = ...")
 }
 
-func (ev *evaluator) callBuiltin(b *Builtin, vals []any, poss []Pos, named []NamedValue, pos Pos) (result any, err error) {
+func (ev *evaluator) callBuiltin(b *Builtin, vals []any, poss []syntax.Pos, named []NamedValue, pos syntax.Pos) (result any, err error) {
 	c := &Call{Builtin: b, ev: ev, pos: pos}
 	n := len(b.Params)
-	c.vals, c.poss, c.given = make([]any, n), make([]Pos, n), make([]bool, n)
+	c.vals, c.poss, c.given = make([]any, n), make([]syntax.Pos, n), make([]bool, n)
 	for i, v := range vals {
 		switch {
 		case i < n && !b.Params[i].Variadic:
@@ -558,7 +559,7 @@ func sampleTimes(v any) []float64 {
 // debugPanics adds Go stack traces to caught panics (tests set it).
 var debugPanics = false
 
-func (ev *evaluator) callFunction(f *Function, vals []any, poss []Pos, named []NamedValue, pos Pos) (any, error) {
+func (ev *evaluator) callFunction(f *Function, vals []any, poss []syntax.Pos, named []NamedValue, pos syntax.Pos) (any, error) {
 	if len(vals) > len(f.Params) {
 		return nil, ev.errorAt(poss[len(f.Params)], fmt.Sprintf("%s takes %s", f.Name, plural(len(f.Params), "argument")),
 			fmt.Sprintf("It is defined as %s.", f))
@@ -616,7 +617,7 @@ func (ev *evaluator) callFunction(f *Function, vals []any, poss []Pos, named []N
 	return v, nil
 }
 
-func (ev *evaluator) index1(e Expr, size int, what string) (int, error) {
+func (ev *evaluator) index1(e syntax.Expr, size int, what string) (int, error) {
 	v, err := ev.eval(e)
 	if err != nil {
 		return 0, err
@@ -641,8 +642,8 @@ func (ev *evaluator) index1(e Expr, size int, what string) (int, error) {
 // span reads one index: a position or a range lo:hi. It returns the
 // 0-based first and last positions (both included) and whether it was a
 // range.
-func (ev *evaluator) span(e Expr, size int, what string) (lo, hi int, isRange bool, err error) {
-	r, ok := e.(*RangeExpr)
+func (ev *evaluator) span(e syntax.Expr, size int, what string) (lo, hi int, isRange bool, err error) {
+	r, ok := e.(*syntax.RangeExpr)
 	if !ok {
 		i, err := ev.index1(e, size, what)
 		return i, i, false, err
@@ -668,7 +669,7 @@ func (ev *evaluator) span(e Expr, size int, what string) (lo, hi int, isRange bo
 	return lo, hi, true, nil
 }
 
-func (ev *evaluator) evalIndex(x *IndexExpr) (any, error) {
+func (ev *evaluator) evalIndex(x *syntax.IndexExpr) (any, error) {
 	v, err := ev.eval(x.X)
 	if err != nil {
 		return nil, err
@@ -748,7 +749,7 @@ func (ev *evaluator) evalIndex(x *IndexExpr) (any, error) {
 		return nil, ev.errorAt(x.Lbrack, "a matrix takes one or two indices", "Write v[3] or M[2, 1].")
 	}
 	for _, e := range x.Indices {
-		if r, ok := e.(*RangeExpr); ok {
+		if r, ok := e.(*syntax.RangeExpr); ok {
 			return nil, ev.errorAt(r.Colon, fmt.Sprintf("%s cannot be sliced", typeName(v)), "Ranges a:b select entries of vectors, matrices and lists.")
 		}
 	}
@@ -758,7 +759,7 @@ func (ev *evaluator) evalIndex(x *IndexExpr) (any, error) {
 // systemFields are the fixed fields of a system; signal names follow.
 var systemFields = []string{"A", "B", "C", "D", "states", "inputs", "outputs", "every"}
 
-func (ev *evaluator) field(v any, name *Ident) (any, error) {
+func (ev *evaluator) field(v any, name *syntax.Ident) (any, error) {
 	var fields []string
 	switch t := v.(type) {
 	case *Record:
@@ -939,7 +940,7 @@ func systemField(g *lsys.System, name string) (any, bool, error) {
 // toSystem converts v to a linear system where that makes sense: systems,
 // transfer functions, transfer matrices and static gains. It returns
 // (nil, nil) when v is something else entirely.
-func (ev *evaluator) toSystem(v any, pos Pos) (*lsys.System, error) {
+func (ev *evaluator) toSystem(v any, pos syntax.Pos) (*lsys.System, error) {
 	switch t := v.(type) {
 	case *lsys.System:
 		return t, nil
@@ -1015,7 +1016,7 @@ func asRational(v any) (*lsys.Rational, bool) {
 	return nil, false
 }
 
-func (ev *evaluator) realize(rows [][]*lsys.Rational, pos Pos) (*lsys.System, error) {
+func (ev *evaluator) realize(rows [][]*lsys.Rational, pos syntax.Pos) (*lsys.System, error) {
 	// The sample time of a transfer matrix is the one its entries in z
 	// carry; entries in z whose sample time is still open, and constants,
 	// take it (SPEC section 8).

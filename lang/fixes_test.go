@@ -7,6 +7,7 @@ import (
 	"strings"
 	"testing"
 
+	"lsys/lang/syntax"
 	"lsys/lsys"
 )
 
@@ -157,7 +158,7 @@ func TestDerivativeOnRightHandSide(t *testing.T) {
 	})
 	s := NewSession(Options{Dir: t.TempDir()})
 	_, err := s.Run(context.Background(), head+"  omega' = -(v'/2)\n}", &recorder{})
-	var l ErrorList
+	var l syntax.ErrorList
 	if !errors.As(err, &l) || len(l) != 1 {
 		t.Errorf("want exactly one error, got %v", err)
 	}

@@ -5,6 +5,8 @@ import (
 	"errors"
 	"strings"
 	"testing"
+
+	"lsys/lang/syntax"
 )
 
 // recorder is an Output that keeps everything for the tests.
@@ -51,7 +53,7 @@ func runCells(t *testing.T, cells []cell) {
 			if h := hintOf(err); h == "" {
 				t.Errorf("%q: the error says nothing about what to do:\n%v", c.src, err)
 			}
-			pos, ok := Position(err)
+			pos, ok := syntax.Position(err)
 			if !ok {
 				t.Errorf("%q: error without a position: %v", c.src, err)
 				continue
@@ -248,7 +250,7 @@ func TestInterrupt(t *testing.T) {
 	if !errors.Is(err, context.Canceled) {
 		t.Fatalf("want an error wrapping context.Canceled, got %v", err)
 	}
-	if _, ok := Position(err); !ok {
+	if _, ok := syntax.Position(err); !ok {
 		t.Errorf("interrupt error has no position: %v", err)
 	}
 }
@@ -381,11 +383,11 @@ func TestRegistryEntries(t *testing.T) {
 
 // hintOf returns the "what to do" line of the first error.
 func hintOf(err error) string {
-	var l ErrorList
+	var l syntax.ErrorList
 	if errors.As(err, &l) && len(l) > 0 {
 		return l[0].Hint
 	}
-	var e *Error
+	var e *syntax.Error
 	if errors.As(err, &e) {
 		return e.Hint
 	}

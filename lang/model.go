@@ -20,22 +20,23 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang/syntax"
 	"lsys/lsys"
 )
 
 // blockSource is a compiled equation block.
 type blockSource struct {
 	src                     string
-	block                   *SystemBlock
+	block                   *syntax.SystemBlock
 	states, inputs, outputs []string
 	ts                      float64
-	plain                   []*Equation // outputs and helpers, in source order
-	stateEq                 []*Equation // by state index
-	outEq                   []*Equation // by output index; nil: the output is the state of that name
+	plain                   []*syntax.Equation // outputs and helpers, in source order
+	stateEq                 []*syntax.Equation // by state index
+	outEq                   []*syntax.Equation // by output index; nil: the output is the state of that name
 	params                  map[string]float64
 	paramOrder              []string
 	funcs                   map[string]*Function
-	firstNL                 Expr // first nonlinear term, nil when linear
+	firstNL                 syntax.Expr // first nonlinear term, nil when linear
 }
 
 // NonlinearModel is the value of an equation block whose right-hand sides
@@ -67,17 +68,17 @@ func (m *NonlinearModel) String() string {
 	}
 	for i, s := range bs.states {
 		e := bs.stateEq[i]
-		if e.Kind == EqNext {
-			fmt.Fprintf(&b, "\n  next %s = %s", s, ExprString(e.Rhs))
+		if e.Kind == syntax.EqNext {
+			fmt.Fprintf(&b, "\n  next %s = %s", s, syntax.ExprString(e.Rhs))
 		} else {
-			fmt.Fprintf(&b, "\n  %s' = %s", s, ExprString(e.Rhs))
+			fmt.Fprintf(&b, "\n  %s' = %s", s, syntax.ExprString(e.Rhs))
 		}
 	}
 	for _, e := range bs.plain {
-		fmt.Fprintf(&b, "\n  %s = %s", e.Name.Name, ExprString(e.Rhs))
+		fmt.Fprintf(&b, "\n  %s = %s", e.Name.Name, syntax.ExprString(e.Rhs))
 	}
 	fmt.Fprintf(&b, "\nfirst nonlinear term: %s (line %d, column %d); linearize it for linear analysis",
-		ExprString(bs.firstNL), bs.firstNL.Pos().Line, bs.firstNL.Pos().Column)
+		syntax.ExprString(bs.firstNL), bs.firstNL.Pos().Line, bs.firstNL.Pos().Column)
 	return b.String()
 }
 
@@ -108,10 +109,10 @@ func (m *NonlinearModel) FieldNames() []string {
 	return []string{"states", "inputs", "outputs", "parameters", "every"}
 }
 
-func (m *NonlinearModel) needLinearize(ev *evaluator, pos Pos) error {
+func (m *NonlinearModel) needLinearize(ev *evaluator, pos syntax.Pos) error {
 	t := m.bs.firstNL
 	return ev.errorAt(pos, fmt.Sprintf("this is a nonlinear model, not a linear system: its first nonlinear term is %s (line %d, column %d of the cell that defines it)",
-		ExprString(t), t.Pos().Line, t.Pos().Column),
+		syntax.ExprString(t), t.Pos().Line, t.Pos().Column),
 		"Linearize it first: linearize(model, at: {state: value, ..., input: value}); equilibrium(model, inputs: {...}) finds an operating point.")
 }
 
@@ -127,21 +128,21 @@ type meval struct {
 	ev         *evaluator
 	bs         *blockSource
 	vars       map[string]mval // states, inputs, names defined so far
-	later      map[string]*Equation
+	later      map[string]*syntax.Equation
 	frames     []map[string]mval
 	structural bool // compile pass: find nonlinear terms, skip numeric checks
 	compiling  bool // resolve parameters from the session (else the snapshot)
 	pseed      string
 	params     map[string]float64
 	depth      int
-	callSite   Expr // the outermost user-function call being evaluated
+	callSite   syntax.Expr // the outermost user-function call being evaluated
 }
 
 var equationFuncs = map[string]bool{"sin": true, "cos": true, "tan": true, "exp": true, "log": true, "sqrt": true, "abs": true}
 
 // nonlinear records a nonlinear term; the first in source order wins.
 // Inside a user function the term is the call in the block.
-func (me *meval) nonlinear(e Expr) {
+func (me *meval) nonlinear(e syntax.Expr) {
 	if !me.structural {
 		return
 	}
@@ -153,12 +154,12 @@ func (me *meval) nonlinear(e Expr) {
 	}
 }
 
-func (me *meval) numErr(e Expr, msg string) error {
+func (me *meval) numErr(e syntax.Expr, msg string) error {
 	return me.ev.errorAt(e.Pos(), msg+" at this operating point",
 		"Choose another operating point, or check the equation.")
 }
 
-func (me *meval) lookup(id *Ident) (mval, error) {
+func (me *meval) lookup(id *syntax.Ident) (mval, error) {
 	if n := len(me.frames); n > 0 {
 		if v, ok := me.frames[n-1][id.Name]; ok {
 			return v, nil
@@ -243,30 +244,30 @@ func contains(l []string, s string) bool {
 	return false
 }
 
-func (me *meval) eval(e Expr) (mval, error) {
+func (me *meval) eval(e syntax.Expr) (mval, error) {
 	if err := me.ev.step(e.Pos()); err != nil {
 		return mval{}, err
 	}
 	switch x := e.(type) {
-	case *Ident:
+	case *syntax.Ident:
 		return me.lookup(x)
-	case *NumberLit:
+	case *syntax.NumberLit:
 		if x.Imag {
 			return mval{}, me.ev.errorAt(x.LitPos, "complex numbers cannot appear in equations", "States, inputs and parameters are real.")
 		}
 		return mval{x: lsys.Const(x.Value)}, nil
-	case *UnaryExpr:
-		if x.Op != SUB {
+	case *syntax.UnaryExpr:
+		if x.Op != syntax.SUB {
 			return mval{}, me.ev.errorAt(x.OpPos, "'not' cannot appear in an equation outside an if condition", "Write if not (x > 0) then ... else ...")
 		}
 		v, err := me.eval(x.X)
 		v.x = v.x.Neg()
 		return v, err
-	case *BinaryExpr:
+	case *syntax.BinaryExpr:
 		return me.binary(x)
-	case *CallExpr:
+	case *syntax.CallExpr:
 		return me.call(x)
-	case *IfExpr:
+	case *syntax.IfExpr:
 		c, dep, err := me.cond(x.Cond)
 		if err != nil {
 			return mval{}, err
@@ -282,10 +283,10 @@ func (me *meval) eval(e Expr) (mval, error) {
 		}
 		v.dep = v.dep || dep
 		return v, err
-	case *FieldExpr:
+	case *syntax.FieldExpr:
 		// A field of a record bound in the session is a parameter named
 		// by its path, e.g. "p.k".
-		key := ExprString(x)
+		key := syntax.ExprString(x)
 		if v, ok := me.params[key]; ok {
 			h := lsys.Const(v)
 			if key == me.pseed {
@@ -306,22 +307,22 @@ func (me *meval) eval(e Expr) (mval, error) {
 			return mval{}, me.ev.errorAt(x.Name.NamePos, fmt.Sprintf("%s is %s; equations need real numbers", key, typeName(v)), "Use a field that holds a number.")
 		}
 	}
-	return mval{}, me.ev.errorAt(e.Pos(), fmt.Sprintf("%s cannot appear in an equation", ExprString(e)),
+	return mval{}, me.ev.errorAt(e.Pos(), fmt.Sprintf("%s cannot appear in an equation", syntax.ExprString(e)),
 		"Equations use numbers, names, + - * / ^, and sin, cos, tan, exp, log, sqrt, abs.")
 }
 
-func (me *meval) cond(e Expr) (bool, bool, error) {
+func (me *meval) cond(e syntax.Expr) (bool, bool, error) {
 	switch x := e.(type) {
-	case *BoolLit:
+	case *syntax.BoolLit:
 		return x.Value, false, nil
-	case *UnaryExpr:
-		if x.Op == NOT {
+	case *syntax.UnaryExpr:
+		if x.Op == syntax.NOT {
 			b, dep, err := me.cond(x.X)
 			return !b, dep, err
 		}
-	case *BinaryExpr:
+	case *syntax.BinaryExpr:
 		switch x.Op {
-		case AND, OR:
+		case syntax.AND, syntax.OR:
 			a, da, err := me.cond(x.X)
 			if err != nil {
 				return false, false, err
@@ -330,11 +331,11 @@ func (me *meval) cond(e Expr) (bool, bool, error) {
 			if err != nil {
 				return false, false, err
 			}
-			if x.Op == AND {
+			if x.Op == syntax.AND {
 				return a && b, da || db, nil
 			}
 			return a || b, da || db, nil
-		case LSS, LEQ, GTR, GEQ, EQL, NEQ:
+		case syntax.LSS, syntax.LEQ, syntax.GTR, syntax.GEQ, syntax.EQL, syntax.NEQ:
 			a, err := me.eval(x.X)
 			if err != nil {
 				return false, false, err
@@ -344,16 +345,16 @@ func (me *meval) cond(e Expr) (bool, bool, error) {
 				return false, false, err
 			}
 			av, bv := a.x.V, b.x.V
-			r := map[Token]bool{LSS: av < bv, LEQ: av <= bv, GTR: av > bv, GEQ: av >= bv, EQL: av == bv, NEQ: av != bv}[x.Op]
+			r := map[syntax.Token]bool{syntax.LSS: av < bv, syntax.LEQ: av <= bv, syntax.GTR: av > bv, syntax.GEQ: av >= bv, syntax.EQL: av == bv, syntax.NEQ: av != bv}[x.Op]
 			return r, a.dep || b.dep, nil
 		}
 	}
 	return false, false, me.ev.errorAt(e.Pos(), "the condition of 'if' must be a comparison", "Write it like if angle > 0 then ... else ...")
 }
 
-func (me *meval) binary(x *BinaryExpr) (mval, error) {
+func (me *meval) binary(x *syntax.BinaryExpr) (mval, error) {
 	switch x.Op {
-	case ADD, SUB, MUL, DIV, POW:
+	case syntax.ADD, syntax.SUB, syntax.MUL, syntax.DIV, syntax.POW:
 	default:
 		return mval{}, me.ev.errorAt(x.OpPos, fmt.Sprintf("'%s' gives true or false, which an equation cannot use", x.Op), "Use it inside if ... then ... else ...")
 	}
@@ -368,16 +369,16 @@ func (me *meval) binary(x *BinaryExpr) (mval, error) {
 	dep := a.dep || b.dep
 	var r lsys.HyperDual
 	switch x.Op {
-	case ADD:
+	case syntax.ADD:
 		r = a.x.Add(b.x)
-	case SUB:
+	case syntax.SUB:
 		r = a.x.Sub(b.x)
-	case MUL:
+	case syntax.MUL:
 		if a.dep && b.dep {
 			me.nonlinear(x)
 		}
 		r = a.x.Mul(b.x)
-	case DIV:
+	case syntax.DIV:
 		if b.dep {
 			me.nonlinear(x)
 		}
@@ -385,7 +386,7 @@ func (me *meval) binary(x *BinaryExpr) (mval, error) {
 			return mval{}, me.numErr(x, "division by zero")
 		}
 		r = a.x.Div(b.x)
-	case POW:
+	case syntax.POW:
 		if b.dep {
 			me.nonlinear(x)
 			if a.x.V <= 0 && !me.structural {
@@ -417,8 +418,8 @@ func (me *meval) binary(x *BinaryExpr) (mval, error) {
 	return mval{x: r, dep: dep}, nil
 }
 
-func (me *meval) call(x *CallExpr) (mval, error) {
-	id, ok := x.Fun.(*Ident)
+func (me *meval) call(x *syntax.CallExpr) (mval, error) {
+	id, ok := x.Fun.(*syntax.Ident)
 	if !ok {
 		return mval{}, me.ev.errorAt(x.Pos(), "only named functions can be called in an equation", "Call sin, cos, tan, exp, log, sqrt, abs or a function you defined with f(x) = ...")
 	}
@@ -516,7 +517,7 @@ func (me *meval) call(x *CallExpr) (mval, error) {
 }
 
 // evalSystemBlock compiles a block into a system or a nonlinear model.
-func (ev *evaluator) evalSystemBlock(b *SystemBlock) (any, error) {
+func (ev *evaluator) evalSystemBlock(b *syntax.SystemBlock) (any, error) {
 	bs, err := ev.compileBlock(b)
 	if err != nil {
 		return nil, err
@@ -532,7 +533,7 @@ func (ev *evaluator) evalSystemBlock(b *SystemBlock) (any, error) {
 	if err != nil {
 		return nil, err
 	}
-	check := func(eq *Equation, v lsys.HyperDual, name string) error {
+	check := func(eq *syntax.Equation, v lsys.HyperDual, name string) error {
 		if v.V != 0 {
 			return ev.errorAt(eq.Rhs.Pos(), fmt.Sprintf("the equation for '%s' has a constant part (%s) that depends on no state or input", name, FormatNumber(v.V)),
 				"A linear system has no constant terms: make it an input (inputs load; ... + load), or measure the variable from its operating point.")
@@ -579,7 +580,7 @@ func (bs *blockSource) evalAt(ev *evaluator, x, u []float64, seed int, pseed str
 	if params == nil {
 		params = bs.params
 	}
-	me := &meval{ev: ev, bs: bs, vars: map[string]mval{}, later: map[string]*Equation{}, pseed: pseed, params: params}
+	me := &meval{ev: ev, bs: bs, vars: map[string]mval{}, later: map[string]*syntax.Equation{}, pseed: pseed, params: params}
 	oldSrc, oldWhere := ev.src, ev.where
 	ev.src = bs.src
 	if ev.where == "" {
@@ -675,7 +676,7 @@ func (bs *blockSource) jacobians(ev *evaluator, x, u []float64, pseed string, pa
 
 // compileBlock checks a block's declarations and equations and finds its
 // parameters and its first nonlinear term.
-func (ev *evaluator) compileBlock(b *SystemBlock) (*blockSource, error) {
+func (ev *evaluator) compileBlock(b *syntax.SystemBlock) (*blockSource, error) {
 	bs := &blockSource{src: ev.src, block: b, params: map[string]float64{}, funcs: map[string]*Function{}}
 	if b.Every != nil {
 		v, err := ev.eval(b.Every)
@@ -690,11 +691,11 @@ func (ev *evaluator) compileBlock(b *SystemBlock) (*blockSource, error) {
 		bs.ts = t
 	}
 	kindOf := map[string]string{}
-	declPos := map[string]Pos{}
-	var eqs []*Equation
+	declPos := map[string]syntax.Pos{}
+	var eqs []*syntax.Equation
 	for _, it := range b.Items {
 		switch d := it.(type) {
-		case *Decl:
+		case *syntax.Decl:
 			for _, id := range d.Names {
 				kind := strings.TrimSuffix(d.Kind, "s")
 				if prev, dup := kindOf[id.Name]; dup {
@@ -719,20 +720,20 @@ func (ev *evaluator) compileBlock(b *SystemBlock) (*blockSource, error) {
 					bs.outputs = append(bs.outputs, id.Name)
 				}
 			}
-		case *Equation:
+		case *syntax.Equation:
 			eqs = append(eqs, d)
 		}
 	}
-	bs.stateEq = make([]*Equation, len(bs.states))
-	bs.outEq = make([]*Equation, len(bs.outputs))
+	bs.stateEq = make([]*syntax.Equation, len(bs.states))
+	bs.outEq = make([]*syntax.Equation, len(bs.outputs))
 	stateIdx := indexOf(bs.states)
 	outIdx := indexOf(bs.outputs)
-	helpers := map[string]*Equation{}
-	var firstTimeEq *Equation
+	helpers := map[string]*syntax.Equation{}
+	var firstTimeEq *syntax.Equation
 	for _, eq := range eqs {
 		name := eq.Name.Name
 		switch eq.Kind {
-		case EqDerivative, EqNext:
+		case syntax.EqDerivative, syntax.EqNext:
 			if firstTimeEq != nil && firstTimeEq.Kind != eq.Kind {
 				return nil, ev.errorAt(eq.Start, fmt.Sprintf("continuous (x' = ...) and sampled (next x = ...) equations are mixed; line %d has the other kind", firstTimeEq.Start.Line),
 					"A block is either continuous (x' = ...) or sampled (system every T { next x = ... }).")
@@ -740,11 +741,11 @@ func (ev *evaluator) compileBlock(b *SystemBlock) (*blockSource, error) {
 			if firstTimeEq == nil {
 				firstTimeEq = eq
 			}
-			if eq.Kind == EqDerivative && bs.ts > 0 {
+			if eq.Kind == syntax.EqDerivative && bs.ts > 0 {
 				return nil, ev.errorAt(eq.Start, fmt.Sprintf("%s' = ... is a continuous-time equation, but this system is sampled (every %s)", name, FormatNumber(bs.ts)),
 					fmt.Sprintf("In a sampled system write next %s = ...", name))
 			}
-			if eq.Kind == EqNext && bs.ts == 0 {
+			if eq.Kind == syntax.EqNext && bs.ts == 0 {
 				return nil, ev.errorAt(eq.Start, fmt.Sprintf("next %s = ... is a sampled equation, but this system is continuous", name),
 					"Give the sample time: system every 0.01 { ... }, or write "+name+"' = ... for a continuous system.")
 			}
@@ -764,7 +765,7 @@ func (ev *evaluator) compileBlock(b *SystemBlock) (*blockSource, error) {
 					"Each state has exactly one equation.")
 			}
 			bs.stateEq[i] = eq
-		case EqPlain:
+		case syntax.EqPlain:
 			switch kindOf[name] {
 			case "state":
 				d := name + "' = ..."
@@ -841,7 +842,7 @@ func (ev *evaluator) compileBlock(b *SystemBlock) (*blockSource, error) {
 	}
 	// Structural pass at the origin: resolves every name (copying the
 	// parameters from the session) and finds the first nonlinear term.
-	me := &meval{ev: ev, bs: bs, vars: map[string]mval{}, later: map[string]*Equation{}, structural: true, compiling: true, params: bs.params}
+	me := &meval{ev: ev, bs: bs, vars: map[string]mval{}, later: map[string]*syntax.Equation{}, structural: true, compiling: true, params: bs.params}
 	for _, s := range bs.states {
 		me.vars[s] = mval{dep: true}
 	}

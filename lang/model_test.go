@@ -9,6 +9,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang/syntax"
 	"lsys/lsys"
 )
 
@@ -206,7 +207,7 @@ tank = system {
 	if err == nil || !strings.Contains(err.Error(), "equilibrium:") {
 		t.Errorf("want a Newton failure, got %v", err)
 	}
-	if _, ok := Position(err); !ok {
+	if _, ok := syntax.Position(err); !ok {
 		t.Errorf("failure without position: %v", err)
 	}
 }
@@ -311,7 +312,7 @@ func TestLocus(t *testing.T) {
 		if err == nil || !strings.Contains(err.Error(), c.err) {
 			t.Errorf("%q: error %v, want %q", c.src, err, c.err)
 		}
-		if _, ok := Position(err); !ok {
+		if _, ok := syntax.Position(err); !ok {
 			t.Errorf("%q: no position", c.src)
 		}
 	}
@@ -389,11 +390,11 @@ func TestNonlinearDetection(t *testing.T) {
 		m, nl := v.(*NonlinearModel)
 		switch {
 		case c.term == "" && nl:
-			t.Errorf("%s: linear, but a nonlinear model (%s)", c.rhs, ExprString(m.bs.firstNL))
+			t.Errorf("%s: linear, but a nonlinear model (%s)", c.rhs, syntax.ExprString(m.bs.firstNL))
 		case c.term != "" && !nl:
 			t.Errorf("%s: nonlinear, but %s", c.rhs, typeName(v))
-		case nl && ExprString(m.bs.firstNL) != c.term:
-			t.Errorf("%s: first nonlinear term %s, want %s", c.rhs, ExprString(m.bs.firstNL), c.term)
+		case nl && syntax.ExprString(m.bs.firstNL) != c.term:
+			t.Errorf("%s: first nonlinear term %s, want %s", c.rhs, syntax.ExprString(m.bs.firstNL), c.term)
 		}
 	}
 }

@@ -7,6 +7,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang/syntax"
 	"lsys/lsys"
 )
 
@@ -37,7 +38,7 @@ func isNumber(v any) bool {
 	return false
 }
 
-func (ev *evaluator) negate(v any, pos Pos) (any, error) {
+func (ev *evaluator) negate(v any, pos syntax.Pos) (any, error) {
 	switch x := v.(type) {
 	case float64:
 		return -x, nil
@@ -59,25 +60,25 @@ func (ev *evaluator) negate(v any, pos Pos) (any, error) {
 	case *lsys.Rational:
 		return x.Neg(), nil
 	case *lsys.System:
-		return ev.binary(MUL, -1.0, x, pos, nil)
+		return ev.binary(syntax.MUL, -1.0, x, pos, nil)
 	}
 	return nil, ev.errorAt(pos, fmt.Sprintf("cannot negate %s", typeName(v)), "Numbers, matrices, transfer functions and systems can be negated.")
 }
 
-var opVerb = map[Token]string{ADD: "add", SUB: "subtract", MUL: "multiply", DIV: "divide", POW: "raise"}
+var opVerb = map[syntax.Token]string{syntax.ADD: "add", syntax.SUB: "subtract", syntax.MUL: "multiply", syntax.DIV: "divide", syntax.POW: "raise"}
 
-func (ev *evaluator) opError(op Token, a, b any, pos Pos, hint string) error {
+func (ev *evaluator) opError(op syntax.Token, a, b any, pos syntax.Pos, hint string) error {
 	var msg string
 	switch op {
-	case ADD:
+	case syntax.ADD:
 		msg = fmt.Sprintf("cannot add %s and %s", typeName(a), typeName(b))
-	case SUB:
+	case syntax.SUB:
 		msg = fmt.Sprintf("cannot subtract %s from %s", typeName(b), typeName(a))
-	case MUL:
+	case syntax.MUL:
 		msg = fmt.Sprintf("cannot multiply %s by %s", typeName(a), typeName(b))
-	case DIV:
+	case syntax.DIV:
 		msg = fmt.Sprintf("cannot divide %s by %s", typeName(a), typeName(b))
-	case POW:
+	case syntax.POW:
 		msg = fmt.Sprintf("cannot raise %s to the power %s", typeName(a), typeName(b))
 	default:
 		msg = fmt.Sprintf("cannot compare %s with %s using '%s'", typeName(a), typeName(b), op)
@@ -86,9 +87,9 @@ func (ev *evaluator) opError(op Token, a, b any, pos Pos, hint string) error {
 }
 
 // binary applies op to a and b. node is the expression (may be nil).
-func (ev *evaluator) binary(op Token, a, b any, pos Pos, node *BinaryExpr) (any, error) {
+func (ev *evaluator) binary(op syntax.Token, a, b any, pos syntax.Pos, node *syntax.BinaryExpr) (any, error) {
 	switch op {
-	case EQL, NEQ, LSS, LEQ, GTR, GEQ:
+	case syntax.EQL, syntax.NEQ, syntax.LSS, syntax.LEQ, syntax.GTR, syntax.GEQ:
 		return ev.compare(op, a, b, pos)
 	}
 	// Numbers.
@@ -96,7 +97,7 @@ func (ev *evaluator) binary(op Token, a, b any, pos Pos, node *BinaryExpr) (any,
 		return ev.scalar(op, a, b, pos)
 	}
 	if sa, ok := a.(string); ok {
-		if sb, ok := b.(string); ok && op == ADD {
+		if sb, ok := b.(string); ok && op == syntax.ADD {
 			return sa + sb, nil
 		}
 	}
@@ -135,25 +136,25 @@ func (ev *evaluator) binary(op Token, a, b any, pos Pos, node *BinaryExpr) (any,
 	return nil, ev.opError(op, a, b, pos, "")
 }
 
-func (ev *evaluator) scalar(op Token, a, b any, pos Pos) (any, error) {
+func (ev *evaluator) scalar(op syntax.Token, a, b any, pos syntax.Pos) (any, error) {
 	fa, okA := a.(float64)
 	fb, okB := b.(float64)
 	inputsFinite := finite(a) && finite(b)
 	var r any
 	if okA && okB {
 		switch op {
-		case ADD:
+		case syntax.ADD:
 			r = fa + fb
-		case SUB:
+		case syntax.SUB:
 			r = fa - fb
-		case MUL:
+		case syntax.MUL:
 			r = fa * fb
-		case DIV:
+		case syntax.DIV:
 			if fb == 0 {
 				return nil, ev.errorAt(pos, "division by zero", "The divisor is zero here; check the values it is made of.")
 			}
 			r = fa / fb
-		case POW:
+		case syntax.POW:
 			if fa == 0 && fb < 0 {
 				return nil, ev.errorAt(pos, "zero to a negative power is division by zero", "The base is zero here; check the values it is made of.")
 			}
@@ -166,18 +167,18 @@ func (ev *evaluator) scalar(op Token, a, b any, pos Pos) (any, error) {
 	} else {
 		ca, cb := toComplex(a), toComplex(b)
 		switch op {
-		case ADD:
+		case syntax.ADD:
 			r = number(ca + cb)
-		case SUB:
+		case syntax.SUB:
 			r = number(ca - cb)
-		case MUL:
+		case syntax.MUL:
 			r = number(ca * cb)
-		case DIV:
+		case syntax.DIV:
 			if cb == 0 {
 				return nil, ev.errorAt(pos, "division by zero", "The divisor is zero here; check the values it is made of.")
 			}
 			r = number(ca / cb)
-		case POW:
+		case syntax.POW:
 			if ca == 0 && real(cb) < 0 {
 				return nil, ev.errorAt(pos, "zero to a negative power is division by zero", "The base is zero here; check the values it is made of.")
 			}
@@ -216,8 +217,8 @@ func cpowInt(c complex128, k int) complex128 {
 	return out
 }
 
-func (ev *evaluator) compare(op Token, a, b any, pos Pos) (any, error) {
-	if op == EQL || op == NEQ {
+func (ev *evaluator) compare(op syntax.Token, a, b any, pos syntax.Pos) (any, error) {
+	if op == syntax.EQL || op == syntax.NEQ {
 		var eq bool
 		switch {
 		case isNumber(a) && isNumber(b):
@@ -246,7 +247,7 @@ func (ev *evaluator) compare(op Token, a, b any, pos Pos) (any, error) {
 				return nil, ev.opError(op, a, b, pos, "Only numbers, strings, booleans and matrices can be compared.")
 			}
 		}
-		if op == NEQ {
+		if op == syntax.NEQ {
 			eq = !eq
 		}
 		return eq, nil
@@ -261,17 +262,17 @@ func (ev *evaluator) compare(op Token, a, b any, pos Pos) (any, error) {
 		return nil, ev.opError(op, a, b, pos, hint)
 	}
 	switch op {
-	case LSS:
+	case syntax.LSS:
 		return fa < fb, nil
-	case LEQ:
+	case syntax.LEQ:
 		return fa <= fb, nil
-	case GTR:
+	case syntax.GTR:
 		return fa > fb, nil
 	}
 	return fa >= fb, nil
 }
 
-func (ev *evaluator) matrixOp(op Token, a, b any, pos Pos) (any, error) {
+func (ev *evaluator) matrixOp(op syntax.Token, a, b any, pos syntax.Pos) (any, error) {
 	ma, aMat := a.(*mat.Dense)
 	mb, bMat := b.(*mat.Dense)
 	fa, aNum := a.(float64)
@@ -282,17 +283,17 @@ func (ev *evaluator) matrixOp(op Token, a, b any, pos Pos) (any, error) {
 		ar, ac := ma.Dims()
 		br, bc := mb.Dims()
 		switch op {
-		case ADD, SUB:
+		case syntax.ADD, syntax.SUB:
 			if ar != br || ac != bc {
 				return nil, ev.errorAt(pos, fmt.Sprintf("cannot %s a %dx%d and a %dx%d matrix: the shapes differ", opVerb[op], ar, ac, br, bc),
 					"Both sides of + and - need the same number of rows and columns.")
 			}
-			if op == ADD {
+			if op == syntax.ADD {
 				out.Add(ma, mb)
 			} else {
 				out.Sub(ma, mb)
 			}
-		case MUL:
+		case syntax.MUL:
 			if ac != br {
 				return nil, ev.errorAt(pos, fmt.Sprintf("cannot multiply a %dx%d by a %dx%d matrix: %d columns against %d rows", ar, ac, br, bc, ac, br),
 					"In A*B the columns of A must match the rows of B; transpose(v) turns a column into a row.")
@@ -301,27 +302,27 @@ func (ev *evaluator) matrixOp(op Token, a, b any, pos Pos) (any, error) {
 				return nil, ev.tooBig(pos, ar, bc)
 			}
 			out.Mul(ma, mb)
-		case DIV:
+		case syntax.DIV:
 			return nil, ev.errorAt(pos, "cannot divide by a matrix", "Use solve(A, b) for A x = b, or inverse(A).")
-		case POW:
+		case syntax.POW:
 			return nil, ev.errorAt(pos, "the power must be a whole number", "Write M^2, M^-1.")
 		}
 	case aMat && bNum:
 		switch op {
-		case MUL:
+		case syntax.MUL:
 			out.Scale(fb, ma)
-		case DIV:
+		case syntax.DIV:
 			if fb == 0 {
 				return nil, ev.errorAt(pos, "division by zero", "The divisor is zero here; check the values it is made of.")
 			}
 			out.Scale(1/fb, ma)
-		case POW:
+		case syntax.POW:
 			return ev.matrixPow(ma, fb, pos)
 		default:
 			return nil, ev.opError(op, a, b, pos, "To shift the diagonal write M + k*identity(n).")
 		}
 	case aNum && bMat:
-		if op != MUL {
+		if op != syntax.MUL {
 			return nil, ev.opError(op, a, b, pos, "To shift the diagonal write k*identity(n) + M.")
 		}
 		out.Scale(fa, mb)
@@ -338,7 +339,7 @@ func (ev *evaluator) matrixOp(op Token, a, b any, pos Pos) (any, error) {
 	return &out, nil
 }
 
-func (ev *evaluator) matrixPow(m *mat.Dense, k float64, pos Pos) (any, error) {
+func (ev *evaluator) matrixPow(m *mat.Dense, k float64, pos syntax.Pos) (any, error) {
 	r, c := m.Dims()
 	if r != c {
 		return nil, ev.errorAt(pos, fmt.Sprintf("only a square matrix has powers, not a %dx%d one", r, c), "For the product of M with its transpose write M * transpose(M).")
@@ -380,8 +381,8 @@ func (ev *evaluator) matrixPow(m *mat.Dense, k float64, pos Pos) (any, error) {
 	return out, nil
 }
 
-func (ev *evaluator) rationalOp(op Token, a, b any, pos Pos) (any, error) {
-	if op == POW {
+func (ev *evaluator) rationalOp(op syntax.Token, a, b any, pos syntax.Pos) (any, error) {
+	if op == syntax.POW {
 		ra, ok := a.(*lsys.Rational)
 		k, okk := b.(float64)
 		if !ok || !okk || k != math.Trunc(k) || math.Abs(k) > 100 {
@@ -405,13 +406,13 @@ func (ev *evaluator) rationalOp(op Token, a, b any, pos Pos) (any, error) {
 	var r *lsys.Rational
 	var err error
 	switch op {
-	case ADD:
+	case syntax.ADD:
 		r, err = ra.Add(rb)
-	case SUB:
+	case syntax.SUB:
 		r, err = ra.Sub(rb)
-	case MUL:
+	case syntax.MUL:
 		r, err = ra.Mul(rb)
-	case DIV:
+	case syntax.DIV:
 		r, err = ra.Div(rb)
 	}
 	if err != nil {
@@ -426,7 +427,7 @@ func (ev *evaluator) rationalOp(op Token, a, b any, pos Pos) (any, error) {
 // MaxDegree bounds the degree of polynomials in transfer functions.
 const MaxDegree = 200
 
-func (ev *evaluator) checkDegree(r *lsys.Rational, pos Pos) error {
+func (ev *evaluator) checkDegree(r *lsys.Rational, pos syntax.Pos) error {
 	if n, d := r.Degree(); n > MaxDegree || d > MaxDegree {
 		return ev.errorAt(pos, fmt.Sprintf("a transfer function of degree %d is beyond the limit of %d", max(n, d), MaxDegree),
 			"High-order models are better written as systems (state-space) than as polynomials.")
@@ -447,10 +448,10 @@ func simplifyRational(r *lsys.Rational) any {
 
 // systemOp: G*K is the series connection (K feeds G), G+H and G-H the
 // parallel ones. Numbers and transfer functions are turned into systems.
-func (ev *evaluator) systemOp(op Token, a, b any, pos Pos) (any, error) {
-	if op != ADD && op != SUB && op != MUL {
+func (ev *evaluator) systemOp(op syntax.Token, a, b any, pos syntax.Pos) (any, error) {
+	if op != syntax.ADD && op != syntax.SUB && op != syntax.MUL {
 		hint := "Between systems, * is the series connection and + and - the parallel ones."
-		if op == DIV {
+		if op == syntax.DIV {
 			hint = "To close a loop use closeloop(G, K); there is no division of systems."
 		}
 		return nil, ev.opError(op, a, b, pos, hint)
@@ -488,9 +489,9 @@ func (ev *evaluator) systemOp(op Token, a, b any, pos Pos) (any, error) {
 		return nil, ev.opError(op, a, b, pos, "Systems combine with systems, transfer functions, numbers and matrices of numbers (static gains).")
 	}
 	// A number is a static gain of matching size.
-	if f, ok := a.(float64); ok && op == MUL {
+	if f, ok := a.(float64); ok && op == syntax.MUL {
 		ga, err = scalarGain(f, gb.P(), gb.Ts)
-	} else if f, ok := b.(float64); ok && op == MUL {
+	} else if f, ok := b.(float64); ok && op == syntax.MUL {
 		gb, err = scalarGain(f, ga.M(), ga.Ts)
 	} else if f, ok := a.(float64); ok {
 		ga, err = scalarGain(f, gb.P(), gb.Ts)
@@ -508,21 +509,21 @@ func (ev *evaluator) systemOp(op Token, a, b any, pos Pos) (any, error) {
 	}
 	var g *lsys.System
 	switch op {
-	case MUL:
+	case syntax.MUL:
 		if ga.M() != gb.P() {
 			return nil, ev.errorAt(pos, fmt.Sprintf("cannot connect in series: the left system has %s but the right one has %s",
 				plural(ga.M(), "input"), plural(gb.P(), "output")),
 				"In G * K the outputs of K feed the inputs of G, so their numbers must match.")
 		}
 		err = guard(func() (err error) { g, err = lsys.Series(ga, gb); return })
-	case ADD, SUB:
+	case syntax.ADD, syntax.SUB:
 		if ga.M() != gb.M() || ga.P() != gb.P() {
 			return nil, ev.errorAt(pos, fmt.Sprintf("cannot connect in parallel a system with %s and %s to one with %s and %s",
 				plural(ga.M(), "input"), plural(ga.P(), "output"), plural(gb.M(), "input"), plural(gb.P(), "output")),
 				"Both sides of + and - need the same numbers of inputs and outputs.")
 		}
 		sign := 1.0
-		if op == SUB {
+		if op == syntax.SUB {
 			sign = -1
 		}
 		err = guard(func() (err error) { g, err = lsys.Parallel(ga, gb, sign); return })
@@ -650,7 +651,7 @@ func realIfPossible(m *mat.CDense) any {
 
 // complexMatrixOp: + - * between complex (or mixed) matrices, and scaling
 // by complex numbers, entry by entry in complex arithmetic.
-func (ev *evaluator) complexMatrixOp(op Token, a, b any, pos Pos) (any, error) {
+func (ev *evaluator) complexMatrixOp(op syntax.Token, a, b any, pos syntax.Pos) (any, error) {
 	ma, aMat := asCMatrix(a)
 	mb, bMat := asCMatrix(b)
 	var out *mat.CDense
@@ -659,7 +660,7 @@ func (ev *evaluator) complexMatrixOp(op Token, a, b any, pos Pos) (any, error) {
 		ar, ac := ma.Dims()
 		br, bc := mb.Dims()
 		switch op {
-		case ADD, SUB:
+		case syntax.ADD, syntax.SUB:
 			if ar != br || ac != bc {
 				return nil, ev.errorAt(pos, fmt.Sprintf("cannot %s a %dx%d and a %dx%d matrix: the shapes differ", opVerb[op], ar, ac, br, bc),
 					"Both sides of + and - need the same number of rows and columns.")
@@ -667,14 +668,14 @@ func (ev *evaluator) complexMatrixOp(op Token, a, b any, pos Pos) (any, error) {
 			out = mat.NewCDense(ar, ac, nil)
 			for i := 0; i < ar; i++ {
 				for j := 0; j < ac; j++ {
-					if op == ADD {
+					if op == syntax.ADD {
 						out.Set(i, j, ma.At(i, j)+mb.At(i, j))
 					} else {
 						out.Set(i, j, ma.At(i, j)-mb.At(i, j))
 					}
 				}
 			}
-		case MUL:
+		case syntax.MUL:
 			if ac != br {
 				return nil, ev.errorAt(pos, fmt.Sprintf("cannot multiply a %dx%d by a %dx%d matrix: %d columns against %d rows", ar, ac, br, bc, ac, br),
 					"In A*B the columns of A must match the rows of B.")
@@ -695,16 +696,16 @@ func (ev *evaluator) complexMatrixOp(op Token, a, b any, pos Pos) (any, error) {
 		default:
 			return nil, ev.opError(op, a, b, pos, "Complex matrices support +, - and *.")
 		}
-	case aMat && isNumber(b) && (op == MUL || op == DIV):
+	case aMat && isNumber(b) && (op == syntax.MUL || op == syntax.DIV):
 		k := toComplex(b)
-		if op == DIV {
+		if op == syntax.DIV {
 			if k == 0 {
 				return nil, ev.errorAt(pos, "division by zero", "The divisor is zero here; check the values it is made of.")
 			}
 			k = 1 / k
 		}
 		out = scaleC(ma, k)
-	case isNumber(a) && bMat && op == MUL:
+	case isNumber(a) && bMat && op == syntax.MUL:
 		out = scaleC(mb, toComplex(a))
 	default:
 		return nil, ev.opError(op, a, b, pos, "Matrices combine with matrices (+, -, *) and are scaled by numbers (*, /).")

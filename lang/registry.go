@@ -69,6 +69,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang/syntax"
 	"lsys/lsys"
 )
 
@@ -155,7 +156,7 @@ func Register(b *Builtin) {
 	if (b.Fn == nil) == (b.Value == nil) {
 		panic("lang.Register: " + b.Name + ": set exactly one of Fn and Value")
 	}
-	if IsKeyword(b.Name) {
+	if syntax.IsKeyword(b.Name) {
 		panic("lang.Register: " + b.Name + " is a keyword")
 	}
 	if _, dup := registry[b.Name]; dup {
@@ -255,13 +256,13 @@ func (r *typeRegistry) lookup(v any) (string, bool) {
 type Call struct {
 	Builtin *Builtin
 	ev      *evaluator
-	pos     Pos // of the call
+	pos     syntax.Pos // of the call
 	vals    []any
-	poss    []Pos
+	poss    []syntax.Pos
 	given   []bool
 	// Rest holds the values of a variadic parameter, RestPos their positions.
 	Rest    []any
-	RestPos []Pos
+	RestPos []syntax.Pos
 	// Extra holds named arguments that are not parameters (AnyNamed only).
 	Extra []NamedValue
 }
@@ -270,8 +271,8 @@ type Call struct {
 type NamedValue struct {
 	Name     string
 	Value    any
-	Pos      Pos // of the name
-	ValuePos Pos // of the value
+	Pos      syntax.Pos // of the name
+	ValuePos syntax.Pos // of the value
 }
 
 func (c *Call) index(name string) int {
@@ -297,7 +298,7 @@ func (c *Call) Dir() string { return c.ev.s.dir }
 func (c *Call) Format(v any) string { return c.ev.s.Format(v) }
 
 // Pos is the position of the call.
-func (c *Call) Pos() Pos { return c.pos }
+func (c *Call) Pos() syntax.Pos { return c.pos }
 
 // Check returns an error when the cell was interrupted or ran out of its
 // evaluation budget. Call it in long loops.
@@ -327,7 +328,7 @@ func (c *Call) Value(name string) any {
 }
 
 // ArgPos returns where the argument was written (the call when defaulted).
-func (c *Call) ArgPos(name string) Pos {
+func (c *Call) ArgPos(name string) syntax.Pos {
 	i := c.index(name)
 	if c.given[i] {
 		return c.poss[i]
@@ -468,11 +469,11 @@ func (c *Call) Progress(id string, v any, first bool) {
 
 // wrapErr turns an error returned by a built-in into a positioned one.
 func (c *Call) wrapErr(err error) error {
-	var e *Error
+	var e *syntax.Error
 	if errors.As(err, &e) {
 		return err
 	}
-	var l ErrorList
+	var l syntax.ErrorList
 	if errors.As(err, &l) {
 		return err
 	}
@@ -488,7 +489,7 @@ func (c *Call) wrapErr(err error) error {
 	if !strings.HasPrefix(msg, c.Builtin.Name+":") {
 		msg = c.Builtin.Name + ": " + msg
 	}
-	ee := c.ev.errorAt(c.pos, msg, hint).(*Error)
+	ee := c.ev.errorAt(c.pos, msg, hint).(*syntax.Error)
 	ee.Err = err
 	return ee
 }

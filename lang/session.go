@@ -1,19 +1,23 @@
-// Package lang is the lsys system-description language: scanner, parser,
-// evaluator and the one registry of built-in functions that drives
-// evaluation, completion, inspection and the language reference.
+// Package lang is the lsys system-description language: the evaluator and
+// the one registry of built-in functions that drives evaluation,
+// completion, inspection and the language reference. The scanner, syntax
+// tree and parser are in lang/syntax.
 //
 // The kernel and the headless runner use it only through Session.
 package lang
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"runtime"
 	"runtime/debug"
 	"sort"
+	"strings"
 	"sync"
 	"weak"
 
+	"lsys/lang/syntax"
 	"lsys/lsys"
 )
 
@@ -162,19 +166,19 @@ func (s *Session) Run(ctx context.Context, src string, out Output) (value any, e
 			if debugPanics {
 				msg += "\n" + string(debug.Stack())
 			}
-			err = &Error{Pos: Pos{Line: 1, Column: 1}, Msg: msg,
-				Hint: "This is a bug in lsys, not in your cell; please report it with this cell.", Source: lineAt(src, 1)}
+			err = &syntax.Error{Pos: syntax.Pos{Line: 1, Column: 1}, Msg: msg,
+				Hint: "This is a bug in lsys, not in your cell; please report it with this cell.", Source: syntax.LineAt(src, 1)}
 		}
 	}()
-	stmts, perr := ParseCell(src)
+	stmts, perr := syntax.ParseCell(src)
 	if perr != nil {
-		attachSource(perr, src)
+		syntax.AttachSource(perr, src)
 		return nil, perr
 	}
 	ev := &evaluator{s: s, ctx: ctx, out: out, src: src}
 	value, err = ev.run(stmts)
 	if err != nil {
-		attachSource(err, src)
+		syntax.AttachSource(err, src)
 		return nil, err
 	}
 	return value, nil
@@ -190,4 +194,21 @@ func (s *Session) Names() []string {
 	}
 	sort.Strings(names)
 	return names
+}
+
+// Describe splits a cell's error into what both front ends show: a kind
+// ("Error", or "Interrupted" when the cell was cancelled), the headline
+// (the first line) and all lines of the message.
+func Describe(err error) (kind, headline string, lines []string) {
+	if errors.Is(err, context.Canceled) {
+		kind = "Interrupted"
+		headline = "the cell was interrupted; bindings made before the interrupt are kept"
+		return kind, headline, []string{kind + ": " + headline}
+	}
+	msg := err.Error()
+	headline = msg
+	if i := strings.IndexByte(msg, '\n'); i >= 0 {
+		headline = msg[:i]
+	}
+	return "Error", headline, strings.Split(msg, "\n")
 }

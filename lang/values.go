@@ -11,6 +11,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang/syntax"
 	"lsys/lsys"
 )
 
@@ -82,12 +83,12 @@ func (l *List) TextWith(text func(any) (string, bool)) string {
 type Function struct {
 	Name   string
 	Params []string
-	Body   Expr
+	Body   syntax.Expr
 	src    string // the cell it was defined in, for error messages
 }
 
 func (f *Function) String() string {
-	return fmt.Sprintf("%s(%s) = %s", f.Name, strings.Join(f.Params, ", "), ExprString(f.Body))
+	return fmt.Sprintf("%s(%s) = %s", f.Name, strings.Join(f.Params, ", "), syntax.ExprString(f.Body))
 }
 
 // FormatNumber writes a real number with up to 10 significant digits.
@@ -129,7 +130,7 @@ func FormatComplex(c complex128) string {
 func inlineString(v any, text func(any) (string, bool)) string {
 	switch x := v.(type) {
 	case string:
-		return quote(x)
+		return syntax.Quote(x)
 	case *mat.Dense:
 		r, c := x.Dims()
 		if c == 1 && r <= 8 {

@@ -7,6 +7,7 @@ import (
 	"unicode"
 
 	"lsys/lang"
+	"lsys/lang/syntax"
 )
 
 // markdown renders the Markdown that notebook prose uses: headings,
@@ -174,7 +175,7 @@ func highlight(src string) string {
 			word := string(rs[i:j])
 			_, builtin := lang.Lookup(word)
 			switch {
-			case lang.IsKeyword(word):
+			case syntax.IsKeyword(word):
 				span(&b, "k", word)
 			case builtin && j < len(rs) && rs[j] == '(':
 				span(&b, "b", word)

@@ -16,6 +16,7 @@ import (
 
 	"lsys/display"
 	"lsys/lang"
+	"lsys/lang/syntax"
 )
 
 // Options configure a run.
@@ -196,7 +197,7 @@ func Run(ctx context.Context, nb *Notebook, opt Options) (*Result, error) {
 }
 
 func lineOf(err error) int {
-	if p, ok := lang.Position(err); ok {
+	if p, ok := syntax.Position(err); ok {
 		return p.Line
 	}
 	return 0
@@ -234,13 +235,13 @@ func parseSets(args []string) ([][2]string, error) {
 
 // boundNames lists the names a cell binds at its top level, in order.
 func boundNames(src string) []string {
-	stmts, err := lang.ParseCell(src)
+	stmts, err := syntax.ParseCell(src)
 	if err != nil {
 		return nil
 	}
 	var names []string
 	for _, st := range stmts {
-		if a, ok := st.(*lang.AssignStmt); ok && !contains(names, a.Name.Name) {
+		if a, ok := st.(*syntax.AssignStmt); ok && !contains(names, a.Name.Name) {
 			names = append(names, a.Name.Name)
 		}
 	}

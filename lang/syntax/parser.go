@@ -1,4 +1,4 @@
-package lang
+package syntax
 
 import (
 	"fmt"
@@ -262,7 +262,7 @@ func (p *parser) parseOr() Expr {
 	for p.tok == OR {
 		pos := p.pos
 		p.next()
-		x = &BinaryExpr{X: x, OpPos: pos, Op: OR, Y: p.parseAnd()}
+		x = &BinaryExpr{Start: x.Pos(), X: x, OpPos: pos, Op: OR, Y: p.parseAnd()}
 	}
 	return x
 }
@@ -272,7 +272,7 @@ func (p *parser) parseAnd() Expr {
 	for p.tok == AND {
 		pos := p.pos
 		p.next()
-		x = &BinaryExpr{X: x, OpPos: pos, Op: AND, Y: p.parseNot()}
+		x = &BinaryExpr{Start: x.Pos(), X: x, OpPos: pos, Op: AND, Y: p.parseNot()}
 	}
 	return x
 }
@@ -294,7 +294,7 @@ func (p *parser) parseCmp() Expr {
 	case EQL, NEQ, LSS, LEQ, GTR, GEQ:
 		op, pos := p.tok, p.pos
 		p.next()
-		x = &BinaryExpr{X: x, OpPos: pos, Op: op, Y: p.parseAdd()}
+		x = &BinaryExpr{Start: x.Pos(), X: x, OpPos: pos, Op: op, Y: p.parseAdd()}
 		switch p.tok {
 		case EQL, NEQ, LSS, LEQ, GTR, GEQ:
 			p.errorAt(p.pos, "comparisons cannot be chained", "Write a < b and b < c.")
@@ -309,7 +309,7 @@ func (p *parser) parseAdd() Expr {
 	for p.tok == ADD || p.tok == SUB {
 		op, pos := p.tok, p.pos
 		p.next()
-		x = &BinaryExpr{X: x, OpPos: pos, Op: op, Y: p.parseMul()}
+		x = &BinaryExpr{Start: x.Pos(), X: x, OpPos: pos, Op: op, Y: p.parseMul()}
 	}
 	return x
 }
@@ -319,7 +319,7 @@ func (p *parser) parseMul() Expr {
 	for p.tok == MUL || p.tok == DIV {
 		op, pos := p.tok, p.pos
 		p.next()
-		x = &BinaryExpr{X: x, OpPos: pos, Op: op, Y: p.parseUnary()}
+		x = &BinaryExpr{Start: x.Pos(), X: x, OpPos: pos, Op: op, Y: p.parseUnary()}
 	}
 	return x
 }
@@ -348,7 +348,7 @@ func (p *parser) parsePow() Expr {
 		defer p.leave()
 		pos := p.pos
 		p.next()
-		return &BinaryExpr{X: x, OpPos: pos, Op: POW, Y: p.parseUnary()}
+		return &BinaryExpr{Start: x.Pos(), X: x, OpPos: pos, Op: POW, Y: p.parseUnary()}
 	}
 	return x
 }
@@ -363,7 +363,10 @@ func (p *parser) parseIndexItem() Expr {
 			return lo
 		}
 	}
-	r := &RangeExpr{Lo: lo, Colon: p.pos}
+	r := &RangeExpr{Start: p.pos, Lo: lo, Colon: p.pos}
+	if lo != nil {
+		r.Start = lo.Pos()
+	}
 	p.next()
 	if p.tok != COMMA && p.tok != RBRACK {
 		r.Hi = p.parseExpr()
@@ -405,7 +408,7 @@ func (p *parser) parsePostfix() Expr {
 				p.errorAt(lb, "an index needs a position, as in v[1] or M[2, 1]", "Positions count from 1.")
 				panic(bailout{})
 			}
-			x = &IndexExpr{X: x, Lbrack: lb, Indices: idx, Rbrack: rb}
+			x = &IndexExpr{Start: x.Pos(), X: x, Lbrack: lb, Indices: idx, Rbrack: rb}
 		case DOT:
 			dot := p.pos
 			p.next()
@@ -413,7 +416,7 @@ func (p *parser) parsePostfix() Expr {
 				p.errorAt(p.pos, fmt.Sprintf("expected a field name after '.', found %s", p.describe()), "Write it like r.angle.")
 				panic(bailout{})
 			}
-			x = &FieldExpr{X: x, Dot: dot, Name: &Ident{NamePos: p.pos, Name: p.lit}}
+			x = &FieldExpr{Start: x.Pos(), X: x, Dot: dot, Name: &Ident{NamePos: p.pos, Name: p.lit}}
 			p.next()
 		default:
 			return x
@@ -447,7 +450,7 @@ func (p *parser) parseCall(fun Expr) Expr {
 		p.next()
 	}
 	rp := p.expect(RPAREN, "')' to close the call")
-	return &CallExpr{Fun: fun, Lparen: lp, Args: args, Rparen: rp}
+	return &CallExpr{Start: fun.Pos(), Fun: fun, Lparen: lp, Args: args, Rparen: rp}
 }
 
 func (p *parser) parsePrimary() Expr {

@@ -1,4 +1,4 @@
-package lang
+package syntax
 
 // Node is any node of the syntax tree; Pos is where it starts.
 type Node interface{ Pos() Pos }
@@ -63,6 +63,7 @@ type (
 	}
 	// BinaryExpr is x op y.
 	BinaryExpr struct {
+		Start Pos // where the node begins, kept so Pos is O(1)
 		X     Expr
 		OpPos Pos
 		Op    Token
@@ -70,6 +71,7 @@ type (
 	}
 	// CallExpr is f(args).
 	CallExpr struct {
+		Start  Pos // where the node begins, kept so Pos is O(1)
 		Fun    Expr
 		Lparen Pos
 		Args   []*Arg
@@ -83,6 +85,7 @@ type (
 	// IndexExpr is x[i] or x[i, j] (1-based); an index may be a
 	// RangeExpr.
 	IndexExpr struct {
+		Start   Pos // where the node begins, kept so Pos is O(1)
 		X       Expr
 		Lbrack  Pos
 		Indices []Expr
@@ -92,15 +95,17 @@ type (
 	// included); Lo or Hi is nil when left out (from the first, to the
 	// last).
 	RangeExpr struct {
+		Start Pos // where the node begins, kept so Pos is O(1)
 		Lo    Expr
 		Colon Pos
 		Hi    Expr
 	}
 	// FieldExpr is x.name.
 	FieldExpr struct {
-		X    Expr
-		Dot  Pos
-		Name *Ident
+		Start Pos // where the node begins, kept so Pos is O(1)
+		X     Expr
+		Dot   Pos
+		Name  *Ident
 	}
 	// IfExpr is if cond then a else b.
 	IfExpr struct {
@@ -172,23 +177,18 @@ type (
 	}
 )
 
-func (x *Ident) Pos() Pos      { return x.NamePos }
-func (x *NumberLit) Pos() Pos  { return x.LitPos }
-func (x *StringLit) Pos() Pos  { return x.LitPos }
-func (x *BoolLit) Pos() Pos    { return x.LitPos }
-func (x *ListLit) Pos() Pos    { return x.Lbrack }
-func (x *RecordLit) Pos() Pos  { return x.Lbrace }
-func (x *UnaryExpr) Pos() Pos  { return x.OpPos }
-func (x *BinaryExpr) Pos() Pos { return x.X.Pos() }
-func (x *CallExpr) Pos() Pos   { return x.Fun.Pos() }
-func (x *IndexExpr) Pos() Pos  { return x.X.Pos() }
-func (x *FieldExpr) Pos() Pos  { return x.X.Pos() }
-func (x *RangeExpr) Pos() Pos {
-	if x.Lo != nil {
-		return x.Lo.Pos()
-	}
-	return x.Colon
-}
+func (x *Ident) Pos() Pos       { return x.NamePos }
+func (x *NumberLit) Pos() Pos   { return x.LitPos }
+func (x *StringLit) Pos() Pos   { return x.LitPos }
+func (x *BoolLit) Pos() Pos     { return x.LitPos }
+func (x *ListLit) Pos() Pos     { return x.Lbrack }
+func (x *RecordLit) Pos() Pos   { return x.Lbrace }
+func (x *UnaryExpr) Pos() Pos   { return x.OpPos }
+func (x *BinaryExpr) Pos() Pos  { return x.Start }
+func (x *CallExpr) Pos() Pos    { return x.Start }
+func (x *IndexExpr) Pos() Pos   { return x.Start }
+func (x *FieldExpr) Pos() Pos   { return x.Start }
+func (x *RangeExpr) Pos() Pos   { return x.Start }
 func (x *IfExpr) Pos() Pos      { return x.IfPos }
 func (x *SystemBlock) Pos() Pos { return x.SystemPos }
 func (x *Decl) Pos() Pos        { return x.KindPos }

@@ -1,4 +1,4 @@
-package lang
+package syntax
 
 import (
 	"strconv"
@@ -6,7 +6,7 @@ import (
 )
 
 // quote writes a string literal with the language's escapes only.
-func quote(s string) string {
+func Quote(s string) string {
 	r := strings.NewReplacer("\\", "\\\\", "\"", "\\\"", "\n", "\\n", "\t", "\\t")
 	return "\"" + r.Replace(s) + "\""
 }
@@ -47,7 +47,7 @@ func writeExpr(b *strings.Builder, e Expr, outer int) {
 			b.WriteByte('j')
 		}
 	case *StringLit:
-		b.WriteString(quote(x.Value))
+		b.WriteString(Quote(x.Value))
 	case *BoolLit:
 		b.WriteString(strconv.FormatBool(x.Value))
 	case *ListLit:

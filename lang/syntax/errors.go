@@ -1,7 +1,6 @@
-package lang
+package syntax
 
 import (
-	"context"
 	"errors"
 	"fmt"
 	"sort"
@@ -108,7 +107,7 @@ func Position(err error) (p Pos, ok bool) {
 }
 
 // lineAt returns the text of the 1-based line of src.
-func lineAt(src string, line int) string {
+func LineAt(src string, line int) string {
 	for i := 1; i < line; i++ {
 		k := strings.IndexByte(src, '\n')
 		if k < 0 {
@@ -123,90 +122,18 @@ func lineAt(src string, line int) string {
 }
 
 // attachSource fills in Source lines of errors without one.
-func attachSource(err error, src string) {
+func AttachSource(err error, src string) {
 	var l ErrorList
 	if errors.As(err, &l) {
 		for _, e := range l {
 			if e.Source == "" && e.Pos.IsValid() {
-				e.Source = lineAt(src, e.Pos.Line)
+				e.Source = LineAt(src, e.Pos.Line)
 			}
 		}
 		return
 	}
 	var e *Error
 	if errors.As(err, &e) && e.Source == "" && e.Pos.IsValid() {
-		e.Source = lineAt(src, e.Pos.Line)
+		e.Source = LineAt(src, e.Pos.Line)
 	}
-}
-
-// editDistance is the Levenshtein distance between a and b, in runes.
-func editDistance(a, b string) int {
-	ra, rb := []rune(a), []rune(b)
-	prev := make([]int, len(rb)+1)
-	cur := make([]int, len(rb)+1)
-	for j := range prev {
-		prev[j] = j
-	}
-	for i := 1; i <= len(ra); i++ {
-		cur[0] = i
-		for j := 1; j <= len(rb); j++ {
-			cost := 1
-			if ra[i-1] == rb[j-1] {
-				cost = 0
-			}
-			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
-		}
-		prev, cur = cur, prev
-	}
-	return prev[len(rb)]
-}
-
-// closest returns the candidate nearest to name by edit distance, if it is
-// near enough to be a likely misspelling; ties go to the first in sorted order.
-func closest(name string, candidates []string) string {
-	best, bestD := "", 1<<30
-	limit := 1 + utf8.RuneCountInString(name)/3
-	if limit > 3 {
-		limit = 3
-	}
-	sorted := append([]string(nil), candidates...)
-	sort.Strings(sorted)
-	for _, c := range sorted {
-		if c == name {
-			continue
-		}
-		d := editDistance(strings.ToLower(name), strings.ToLower(c))
-		if d < bestD {
-			best, bestD = c, d
-		}
-	}
-	if bestD <= limit {
-		return best
-	}
-	return ""
-}
-
-// didYouMean returns "; did you mean 'x'?" or "".
-func didYouMean(name string, candidates []string) string {
-	if c := closest(name, candidates); c != "" {
-		return fmt.Sprintf("; did you mean '%s'?", c)
-	}
-	return ""
-}
-
-// Describe splits a cell's error into what both front ends show: a kind
-// ("Error", or "Interrupted" when the cell was cancelled), the headline
-// (the first line) and all lines of the message.
-func Describe(err error) (kind, headline string, lines []string) {
-	if errors.Is(err, context.Canceled) {
-		kind = "Interrupted"
-		headline = "the cell was interrupted; bindings made before the interrupt are kept"
-		return kind, headline, []string{kind + ": " + headline}
-	}
-	msg := err.Error()
-	headline = msg
-	if i := strings.IndexByte(msg, '\n'); i >= 0 {
-		headline = msg[:i]
-	}
-	return "Error", headline, strings.Split(msg, "\n")
 }

@@ -1,4 +1,4 @@
-package lang
+package syntax
 
 import (
 	"fmt"
@@ -87,13 +87,13 @@ func (t Token) String() string {
 	return fmt.Sprintf("token(%d)", int(t))
 }
 
-var keywords = map[string]Token{
+var Keywords = map[string]Token{
 	"true": TRUE, "false": FALSE, "and": AND, "or": OR, "not": NOT,
 	"if": IF, "then": THEN, "else": ELSE,
 }
 
 // IsKeyword reports whether name is reserved and cannot be bound.
-func IsKeyword(name string) bool { _, ok := keywords[name]; return ok }
+func IsKeyword(name string) bool { _, ok := Keywords[name]; return ok }
 
 // Scanner splits a cell into tokens. Like go/scanner it never stops at an
 // error: it records it and carries on, so the parser can report several.
@@ -153,8 +153,8 @@ func (s *Scanner) error(p Pos, msg, hint string) {
 	s.Errors = append(s.Errors, &Error{Pos: p, Msg: msg, Hint: hint})
 }
 
-func isLetter(r rune) bool { return r == '_' || unicode.IsLetter(r) }
-func isDigit(r rune) bool  { return '0' <= r && r <= '9' }
+func IsLetter(r rune) bool { return r == '_' || unicode.IsLetter(r) }
+func IsDigit(r rune) bool  { return '0' <= r && r <= '9' }
 
 // Scan returns the next token, its position and its literal text (for
 // names, numbers and strings; the string literal is already unquoted).
@@ -189,17 +189,17 @@ func (s *Scanner) Scan() (tok Token, pos Pos, lit string) {
 	switch {
 	case ch < 0:
 		return EOF, pos, ""
-	case isLetter(ch):
+	case IsLetter(ch):
 		start := s.off
-		for isLetter(s.ch) || isDigit(s.ch) {
+		for IsLetter(s.ch) || IsDigit(s.ch) {
 			s.next()
 		}
 		lit = s.src[start:s.off]
-		if kw, ok := keywords[lit]; ok {
+		if kw, ok := Keywords[lit]; ok {
 			return kw, pos, lit
 		}
 		return IDENT, pos, lit
-	case isDigit(ch) || (ch == '.' && isDigit(s.peek())):
+	case IsDigit(ch) || (ch == '.' && IsDigit(s.peek())):
 		return s.number(pos)
 	case ch == '"':
 		return STRING, pos, s.str(pos)
@@ -284,39 +284,39 @@ func (s *Scanner) Scan() (tok Token, pos Pos, lit string) {
 
 func (s *Scanner) number(pos Pos) (Token, Pos, string) {
 	start := s.off
-	for isDigit(s.ch) {
+	for IsDigit(s.ch) {
 		s.next()
 	}
-	if s.ch == '.' && !isLetter(s.peek()) {
+	if s.ch == '.' && !IsLetter(s.peek()) {
 		s.next()
-		for isDigit(s.ch) {
+		for IsDigit(s.ch) {
 			s.next()
 		}
 	}
 	if s.ch == 'e' || s.ch == 'E' {
 		p := s.peek()
-		if isDigit(p) || p == '+' || p == '-' {
+		if IsDigit(p) || p == '+' || p == '-' {
 			s.next()
 			if s.ch == '+' || s.ch == '-' {
 				s.next()
 			}
-			if !isDigit(s.ch) {
+			if !IsDigit(s.ch) {
 				s.error(s.pos(), "exponent has no digits", "Write it like 1e-3.")
 			}
-			for isDigit(s.ch) {
+			for IsDigit(s.ch) {
 				s.next()
 			}
 		}
 	}
 	lit := s.src[start:s.off]
 	tok := NUMBER
-	if s.ch == 'j' && !isLetter(s.peek()) && !isDigit(s.peek()) {
+	if s.ch == 'j' && !IsLetter(s.peek()) && !IsDigit(s.peek()) {
 		s.next()
 		tok = IMAG
 	}
-	if isLetter(s.ch) || isDigit(s.ch) {
+	if IsLetter(s.ch) || IsDigit(s.ch) {
 		bad := s.pos()
-		for isLetter(s.ch) || isDigit(s.ch) {
+		for IsLetter(s.ch) || IsDigit(s.ch) {
 			s.next()
 		}
 		s.error(bad, fmt.Sprintf("a number runs into a name: %q", s.src[start:s.off]),
