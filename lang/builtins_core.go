@@ -439,15 +439,9 @@ func gridBuiltin(name, help, example string, logScale bool) *Builtin {
 		Doc:      "Grids for sweeps such as locus(f, k: linear(1, 10)) and for frequency ranges.",
 		Examples: []string{example},
 		Fn: func(c *Call) (any, error) {
-			a, err := c.Float("a")
-			if err != nil {
-				return nil, err
-			}
-			b, err := c.Float("b")
-			if err != nil {
-				return nil, err
-			}
-			n, err := c.Int("n")
+			var a, b float64
+			var n int
+			err := c.Bind("a", &a, "b", &b, "n", &n)
 			if err != nil {
 				return nil, err
 			}

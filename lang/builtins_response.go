@@ -361,19 +361,8 @@ func responseBuiltins() []*Builtin {
 			Doc:      "Between samples the input is taken as linear (first-order hold), an O(h^2) approximation of the sine with the step h the response uses.",
 			Examples: []string{respExample + "response(G, sine(2), until: 20)"},
 			Fn: func(c *Call) (any, error) {
-				w, err := c.Float("w")
-				if err != nil {
-					return nil, err
-				}
-				a, err := c.Float("amplitude")
-				if err != nil {
-					return nil, err
-				}
-				ph, err := c.Float("phase")
-				if err != nil {
-					return nil, err
-				}
-				st, err := c.Float("start")
+				var w, a, ph, st float64
+				err := c.Bind("w", &w, "amplitude", &a, "phase", &ph, "start", &st)
 				if err != nil {
 					return nil, err
 				}
@@ -707,11 +696,9 @@ func responseBuiltins() []*Builtin {
 				"(I - sign*D_G*D_K invertible). For a controller C in the forward path write closeloop(G*C).",
 			Examples: []string{"P = 2 / (s*(s + 1))\nT = closeloop(P * (s + 3)/(s + 5))\nresponse(T, step)"},
 			Fn: func(c *Call) (any, error) {
-				g, err := c.System("G")
-				if err != nil {
-					return nil, err
-				}
-				sign, err := c.Float("sign")
+				var g *lsys.System
+				var sign float64
+				err := c.Bind("G", &g, "sign", &sign)
 				if err != nil {
 					return nil, err
 				}
@@ -806,20 +793,10 @@ func responseBuiltins() []*Builtin {
 				"(triangle hold); tustin: bilinear substitution, optionally prewarped; matched: poles and zeros mapped by z = e^(sT) (SISO).",
 			Examples: []string{respExample + "Gd = sample(G, 0.1)\nresponse(Gd, step)", respExample + "sample(G, 0.1, method: \"tustin\", prewarp: 2)"},
 			Fn: func(c *Call) (any, error) {
-				g, err := c.System("system")
-				if err != nil {
-					return nil, err
-				}
-				T, err := c.Float("T")
-				if err != nil {
-					return nil, err
-				}
-				method, err := c.String("method")
-				if err != nil {
-					return nil, err
-				}
-				pw, err := c.Float("prewarp")
-				if err != nil {
+				var g *lsys.System
+				var T, pw float64
+				var method string
+				if err := c.Bind("system", &g, "T", &T, "method", &method, "prewarp", &pw); err != nil {
 					return nil, err
 				}
 				return lsys.Sample(g, T, method, pw)
@@ -836,16 +813,10 @@ func responseBuiltins() []*Builtin {
 			Doc:      "zoh and foh: through the principal matrix logarithm (refused when a pole lies on the negative real axis of the z-plane); tustin: the inverse bilinear map (refused for a pole at z = -1).",
 			Examples: []string{respExample + "continuous(sample(G, 0.1))"},
 			Fn: func(c *Call) (any, error) {
-				g, err := c.System("system")
-				if err != nil {
-					return nil, err
-				}
-				method, err := c.String("method")
-				if err != nil {
-					return nil, err
-				}
-				pw, err := c.Float("prewarp")
-				if err != nil {
+				var g *lsys.System
+				var method string
+				var pw float64
+				if err := c.Bind("system", &g, "method", &method, "prewarp", &pw); err != nil {
 					return nil, err
 				}
 				return lsys.Continuous(g, method, pw)
@@ -861,12 +832,9 @@ func responseBuiltins() []*Builtin {
 			Doc:      "The diagonal [n/n] Pade approximant (Golub & Van Loan, Matrix Computations, Section 9.3.1): all-pass, phase exact to order (wT)^(2n+1).",
 			Examples: []string{"P = 1/(s + 1) * delay(0.2, order: 3)\nresponse(P, step)"},
 			Fn: func(c *Call) (any, error) {
-				T, err := c.Float("T")
-				if err != nil {
-					return nil, err
-				}
-				n, err := c.Int("order")
-				if err != nil {
+				var T float64
+				var n int
+				if err := c.Bind("T", &T, "order", &n); err != nil {
 					return nil, err
 				}
 				return lsys.Pade(T, n)

@@ -203,12 +203,9 @@ func structureBuiltins() []*Builtin {
 			Doc:      "The transfer function is unchanged. A nearly singular T is refused with its condition number.",
 			Examples: []string{msd + "transform(G, [[1, 0], [1, 1]])", msd + "transform(G, [[1, 0], [1, 1]], states: [\"position\", \"sum\"])"},
 			Fn: func(c *Call) (any, error) {
-				g, err := c.System("system")
-				if err != nil {
-					return nil, err
-				}
-				T, err := c.Matrix("T")
-				if err != nil {
+				var g *lsys.System
+				var T *mat.Dense
+				if err := c.Bind("system", &g, "T", &T); err != nil {
 					return nil, err
 				}
 				if r, cc := T.Dims(); r != g.N() || cc != g.N() {

@@ -449,6 +449,58 @@ func (c *Call) System(name string) (*lsys.System, error) {
 	return g, nil
 }
 
+// Bind reads arguments into Go variables in one step, by name:
+//
+//	var g *lsys.System
+//	var from, to float64
+//	if err := c.Bind("system", &g, "from", &from, "to", &to); err != nil {
+//		return nil, err
+//	}
+//
+// The variable's type says what the argument must be, with the same rules
+// and messages as the typed getters: *float64 (a real number), *int (a
+// whole number), *string, *bool, **mat.Dense (a real matrix; a number is
+// 1x1), *[]string (names; one string is one name), **lsys.System (a
+// system; transfer functions are realized), *any (as given). An optional
+// argument that was not written and has no default leaves its variable as
+// it was, so set defaults before the call.
+func (c *Call) Bind(pairs ...any) error {
+	if len(pairs)%2 != 0 {
+		panic("lang: Bind takes name, pointer pairs")
+	}
+	for i := 0; i < len(pairs); i += 2 {
+		name := pairs[i].(string)
+		if !c.Has(name) {
+			continue
+		}
+		var err error
+		switch p := pairs[i+1].(type) {
+		case *float64:
+			*p, err = c.Float(name)
+		case *int:
+			*p, err = c.Int(name)
+		case *string:
+			*p, err = c.String(name)
+		case *bool:
+			*p, err = c.Bool(name)
+		case **mat.Dense:
+			*p, err = c.Matrix(name)
+		case *[]string:
+			*p, err = c.Strings(name)
+		case **lsys.System:
+			*p, err = c.System(name)
+		case *any:
+			*p = c.Value(name)
+		default:
+			panic(fmt.Sprintf("lang: Bind cannot fill a %T (argument %s of %s)", p, name, c.Builtin.Name))
+		}
+		if err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
 // Apply calls a function value (user function or built-in) with
 // positional arguments, as a cell would.
 func (c *Call) Apply(f any, args ...any) (any, error) {
