@@ -32,6 +32,10 @@ type JordanCluster struct {
 	// Cond is the largest eigenvalue condition number in the cluster; +Inf
 	// when the cluster is defective.
 	Cond float64
+	// BoundaryTol = ZeroTol x max(1, condition) for a simple eigenvalue,
+	// ZeroTol for a cluster: a value closer than this to the stability
+	// boundary is on it.
+	BoundaryTol float64
 
 	idx []int // indices of the members in the EigenStructure
 }
@@ -119,7 +123,17 @@ func jordanFrom(A *mat.Dense, es *EigenStructure, absTol, relTol, ts float64) (*
 		}
 		// A real part within 1000 u ||A|| of zero is below what the
 		// computation resolves (rigid-body modes, integrators): say 0.
-		if math.Abs(real(mean)) <= js.ZeroTol {
+		// A simple eigenvalue is accurate to about u ||A|| times its
+		// condition (first-order perturbation bound), so the boundary
+		// tolerance grows with it: an integrator in badly balanced
+		// coordinates is still at 0. The mean of a cluster is far more
+		// accurate than its members (their conditions measure their
+		// spread), so it keeps ZeroTol.
+		bt := js.ZeroTol
+		if len(g.idx) == 1 {
+			bt *= math.Max(1, maxCond)
+		}
+		if math.Abs(real(mean)) <= bt {
 			mean = complex(0, imag(mean))
 		}
 		spread := 0.0
@@ -132,7 +146,7 @@ func jordanFrom(A *mat.Dense, es *EigenStructure, absTol, relTol, ts float64) (*
 			}
 			return imag(members[a]) > imag(members[b])
 		})
-		jc := JordanCluster{Value: mean, Members: members, Algebraic: len(members), Spread: spread, Tol: g.tol, RankTol: relTol, Cond: maxCond, idx: g.idx}
+		jc := JordanCluster{Value: mean, Members: members, Algebraic: len(members), Spread: spread, Tol: g.tol, RankTol: relTol, Cond: maxCond, BoundaryTol: bt, idx: g.idx}
 		if jc.Algebraic == 1 {
 			jc.Geometric, jc.Blocks = 1, []int{1}
 		} else {
@@ -299,12 +313,21 @@ func jordanBlocks(A *mat.Dense, lam complex128, k int, relTol, spreadTol float64
 		}
 		sv := svd.Values(nil)
 		if j == 1 {
-			norm1 = sv[0]
+			// The scale of the factor M: ||A||_F + |lambda| (squared for
+			// the quadratic factor), or ||M|| if larger. A scalar
+			// matrix has M = rounding only, and a tolerance relative to
+			// ||M|| alone would count that rounding as rank.
+			base := mat.Norm(A, 2) + cmplx.Abs(lam)
+			if halve {
+				base *= base
+			}
+			norm1 = math.Max(sv[0], base)
 		}
-		// Relative to ||M||^j, the size the j-th power would have without
-		// the cluster: a power that vanishes on the cluster (a defective
-		// pair whose quadratic factor squared is 0) has only rounding left,
-		// and a tolerance relative to that would count rounding as rank.
+		// Relative to the j-th power of that scale, the size the power
+		// would have without the cluster: a power that vanishes on the
+		// cluster (a defective pair whose quadratic factor squared is 0)
+		// has only rounding left, and a tolerance relative to its own
+		// norm would count rounding as rank.
 		tol := relTol * math.Pow(norm1, float64(j))
 		tol = math.Max(tol, math.Pow(spreadTol, float64(j)))
 		r := 0

@@ -131,10 +131,13 @@ func StabilityOf(s *System) (Stability, error) {
 		if s.Ts > 0 {
 			d = cmplx.Abs(c.Value) - 1
 		}
+		// The mean is accurate to about u ||A|| times its members'
+		// condition, so that widens the boundary (see JordanCluster).
+		tol := st.Tol * math.Max(1, c.BoundaryTol/math.Max(js.ZeroTol, dlamchE))
 		switch {
-		case d > st.Tol:
+		case d > tol:
 			st.Unstable += w
-		case d >= -st.Tol:
+		case d >= -tol:
 			st.Boundary += w
 			if c.Defective() {
 				st.Unstable += w

@@ -47,10 +47,6 @@ import (
 // Inputs and outputs (columns of B, rows of C) are scaled to ref too. What
 // remains unit-dependent is only what no change of units can alter: exact
 // zeros. All factors are powers of two, so the scaling adds no rounding.
-//
-// Entries at or below n u ||A||_F (u the unit roundoff) in the coordinates
-// given are taken as rounding residue when the coupling graph is built: they
-// are what a change of coordinates leaves behind in an exact zero.
 type unitScaling struct {
 	A, B, C *mat.Dense // scaled copies; B or C nil when not asked for
 	// S is the state scaling, x = diag(S) x~; U the input scaling
@@ -93,13 +89,13 @@ func balanceUnits(A, B, C *mat.Dense) *unitScaling {
 		return us
 	}
 
-	// The coupling graph, rounding residue removed: edge j -> i when
-	// A[i][j] != 0, i != j.
-	noise := float64(n) * dlamchE * mat.Norm(A, 2)
+	// The coupling graph: edge j -> i when A[i][j] != 0, i != j. Only
+	// exact zeros count as missing: in units a million apart a real
+	// coupling can be 1e-24 of ||A||, below any rounding threshold.
 	edge := make([]bool, n*n)
 	for i := 0; i < n; i++ {
 		for j := 0; j < n; j++ {
-			edge[i*n+j] = i != j && math.Abs(A.At(i, j)) > noise
+			edge[i*n+j] = i != j && A.At(i, j) != 0
 		}
 	}
 	link := func(i, j int) bool { return edge[i*n+j] }

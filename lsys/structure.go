@@ -146,8 +146,12 @@ func kalman(s *System, rs, os *Staircase, relTol float64) (*Decomposition, float
 		sys.StateNames = kalmanStateNames(n, 0, 0, 0)
 		return &Decomposition{From: s, System: sys, T: identity(n), Sizes: [4]int{n, 0, 0, 0}, Cond: 1}, angTol, nil
 	}
-	R := rs.LeadingBasis()
-	N := os.TrailingBasis()
+	// The angles between subspaces change with units, so the intersection
+	// and complements are taken in the coordinates of (A, B, C) balanced
+	// together (see unitScaling), x = diag(S) x~, and mapped back.
+	us := balanceUnits(s.A, s.B, s.C)
+	R := rescaleBasis(rs.LeadingBasis(), us.S, true)
+	N := rescaleBasis(os.TrailingBasis(), us.S, true)
 	var V1, V2, V3, V4 *mat.Dense
 	if R != nil && N != nil {
 		_, r := R.Dims()
@@ -170,6 +174,7 @@ func kalman(s *System, rs, os *Staircase, relTol float64) (*Decomposition, float
 		return stOrth(J, angTol)
 	}()
 	V3 = stComplement(RN, n)
+	V1, V2, V3, V4 = rescaleBasis(V1, us.S, false), rescaleBasis(V2, us.S, false), rescaleBasis(V3, us.S, false), rescaleBasis(V4, us.S, false)
 	Tinv := stHcat(n, V1, V2, V3, V4) // x = Tinv z
 	cols := 0
 	if Tinv != nil {
@@ -467,4 +472,29 @@ func fmtFloats(v []float64) string {
 		out += fmt.Sprintf("%.4g", x)
 	}
 	return out + "]"
+}
+
+// rescaleBasis maps the columns of V (nil stays nil) between original and
+// scaled coordinates, x = diag(S) x~ (toScaled: x~ = x ./ S), and makes
+// them orthonormal again (a diagonal scaling keeps them independent).
+func rescaleBasis(V *mat.Dense, S []float64, toScaled bool) *mat.Dense {
+	if V == nil {
+		return nil
+	}
+	n, k := V.Dims()
+	W := mat.DenseCopyOf(V)
+	for i := 0; i < n; i++ {
+		f := S[i]
+		if toScaled {
+			f = 1 / f
+		}
+		for j := 0; j < k; j++ {
+			W.Set(i, j, W.At(i, j)*f)
+		}
+	}
+	var qr mat.QR
+	qr.Factorize(W)
+	var Q mat.Dense
+	qr.QTo(&Q)
+	return mat.DenseCopyOf(Q.Slice(0, n, 0, k))
 }
