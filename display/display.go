@@ -96,6 +96,9 @@ func Render(v any, opt Options) Bundle {
 		embedChart(&b)
 		return b
 	}
+	if m, ok := v.(members); ok {
+		return renderMembers(m, opt)
+	}
 	if tw, ok := v.(textWither); ok {
 		return NewBundle(tw.TextWith(TextOf))
 	}

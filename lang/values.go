@@ -39,6 +39,10 @@ func (r *Record) Get(name string) (any, bool) {
 
 func (r *Record) String() string { return r.TextWith(nil) }
 
+// Members returns the field names and values, so a front end's renderer
+// can show each member with its own display.
+func (r *Record) Members() (names []string, values []any) { return r.Names, r.Values }
+
 // TextWith is the record's text form with text formatting the members the
 // language does not format itself; package display calls it with its own
 // text renderer, so a record of results shows each result's text.
@@ -64,6 +68,9 @@ type List struct {
 }
 
 func (l *List) String() string { return l.TextWith(nil) }
+
+// Members returns the items (names is nil for a list).
+func (l *List) Members() (names []string, values []any) { return nil, l.Items }
 
 // TextWith is the list's text form; see Record.TextWith.
 func (l *List) TextWith(text func(any) (string, bool)) string {

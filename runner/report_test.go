@@ -176,3 +176,19 @@ func TestMarkdown(t *testing.T) {
 		}
 	}
 }
+
+// Lists and records of results render rich through both front ends: each
+// member with its own HTML.
+func TestRecordOfResults(t *testing.T) {
+	nb := NewNotebook(SplitScript("G = system([[-1, 0], [0, -2]], [1, 1], [1, 0])\n{plant: G, poles: poles(G), modes: [modes(G)]}"))
+	if _, err := Run(context.Background(), nb, Options{}); err != nil {
+		t.Fatal(err)
+	}
+	data := nb.Cells()[0].Outputs()[0]["data"].(map[string]any)
+	h, _ := data["text/html"].(string)
+	for _, want := range []string{"lsys-members", ">plant</div>", "lsys-system", ">modes</div>"} {
+		if !strings.Contains(h, want) {
+			t.Errorf("HTML lacks %q", want)
+		}
+	}
+}
