@@ -197,7 +197,7 @@ func renderJordan(v any, _ Options) Bundle {
 		rows = append(rows, []string{fmtComplex(c.Value, pair), strconv.Itoa(c.Algebraic), strconv.Itoa(c.Geometric), sxInts(c.Blocks), verdict, ranks, fmtNum(c.Spread), fmtNum(c.Tol), fmtNum(c.Cond)})
 	}
 	gridTable(t, h, []string{"eigenvalue", "alg.", "geom.", "blocks", "verdict", "ranks of powers", "spread", "cluster tol", "cond"}, rows, 0)
-	note(t, h, fmt.Sprintf("Decided on A balanced by powers of two (the same in any units). Eigenvalues i, j are one cluster when |l_i - l_j| <= %s u ||A|| max(cond_i, cond_j) (at most %s%s); block sizes from the ranks of (A - l I)^k, singular values below %s ||A - l I||^k, or below (2 x spread)^k, counted as zero; real parts within %s of zero shown as 0. %d defective.",
+	note(t, h, fmt.Sprintf("Decided on A balanced by powers of two (the same in any units). Eigenvalues i, j are one cluster when |l_i - l_j| <= %s u ||A|| max(cond_i, cond_j), cond_i taken in the eigenvalue's own irreducible block of A (at most %s%s); block sizes from the ranks of (A - l I)^k, singular values below %s ||A - l I||^k, or below (2 x spread)^k, counted as zero; real parts within %s of zero shown as 0. %d defective.",
 		fmtNum(js.ClusterFactor), fmtNum(js.CapTol), map[bool]string{true: ", or closer than " + fmtNum(js.AbsTol), false: ""}[js.AbsTol > 0], fmtNum(js.RankTol), fmtNum(js.ZeroTol), defective))
 	return c.bundle()
 }

@@ -27,6 +27,10 @@ type EigenStructure struct {
 	// (Wilkinson 1965, The Algebraic Eigenvalue Problem, ch. 2). It is +Inf
 	// when w and v are orthogonal (a defective eigenvalue).
 	Cond []float64
+	// decide, when set (see decisionEigen), holds the condition numbers
+	// the clustering decides with: those of each eigenvalue in its own
+	// irreducible block. Cond stays that of the whole balanced matrix.
+	decide []float64
 }
 
 // Eigen computes the eigen-structure of the square matrix a by balancing,
@@ -102,7 +106,11 @@ func Poles(s *System) ([]complex128, error) {
 	// decided in unit-free coordinates (see unitScaling).
 	vals := append([]complex128(nil), es.Values...)
 	normA := mat.Norm(us.A, 2)
-	for _, g := range clusterEigenvalues(vals, es.Cond, normA, 1e-3*math.Max(normA, dlamchE), 0) {
+	decide := es.Cond
+	if es.decide != nil {
+		decide = es.decide
+	}
+	for _, g := range clusterEigenvalues(vals, decide, normA, 1e-3*math.Max(normA, dlamchE), 0) {
 		if len(g.idx) < 2 {
 			continue
 		}

@@ -101,16 +101,21 @@ func jordanFrom(A *mat.Dense, es *EigenStructure, absTol, relTol, ts float64) (*
 	}
 	normA := mat.Norm(A, 2)
 	js := &JordanStructure{N: n, ClusterFactor: jordanClusterFactor, CapTol: 1e-3 * math.Max(normA, dlamchE), AbsTol: absTol, RankTol: relTol, ZeroTol: 1e3 * dlamchE * normA}
-	groups := clusterEigenvalues(es.Values, es.Cond, normA, js.CapTol, absTol)
+	decide := es.Cond
+	if es.decide != nil {
+		decide = es.decide
+	}
+	groups := clusterEigenvalues(es.Values, decide, normA, js.CapTol, absTol)
 	var err error
 	for _, g := range groups {
 		var mean complex128
-		maxCond := 0.0
+		maxCond, maxDecide := 0.0, 0.0
 		members := make([]complex128, len(g.idx))
 		for i, k := range g.idx {
 			mean += es.Values[k]
 			members[i] = es.Values[k]
 			maxCond = math.Max(maxCond, es.Cond[k])
+			maxDecide = math.Max(maxDecide, decide[k])
 		}
 		mean /= complex(float64(len(g.idx)), 0)
 		if imag(mean) < 0 {
@@ -131,7 +136,7 @@ func jordanFrom(A *mat.Dense, es *EigenStructure, absTol, relTol, ts float64) (*
 		// spread), so it keeps ZeroTol.
 		bt := js.ZeroTol
 		if len(g.idx) == 1 {
-			bt *= math.Max(1, maxCond)
+			bt *= math.Max(1, maxDecide)
 		}
 		if math.Abs(real(mean)) <= bt {
 			mean = complex(0, imag(mean))

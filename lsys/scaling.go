@@ -412,7 +412,8 @@ func unitLargestReal(v []complex128) []complex128 {
 	return v
 }
 
-// partEigenvalues replaces the eigenvalues and condition numbers of es
+// partEigenvalues replaces the eigenvalues of es, and sets the condition
+// numbers the decisions use,
 // (computed on the whole balanced matrix) by those of the irreducible
 // diagonal blocks, matching each computed value to the nearest block value
 // (closest pairs first), so the vectors of es stay with their values.
@@ -455,12 +456,13 @@ func partEigenvalues(us *unitScaling, es *EigenStructure) error {
 		return pairs[a].j < pairs[b].j
 	})
 	usedI, usedJ := make([]bool, n), make([]bool, n)
+	es.decide = make([]float64, n)
 	for _, p := range pairs {
 		if usedI[p.i] || usedJ[p.j] {
 			continue
 		}
 		usedI[p.i], usedJ[p.j] = true, true
-		es.Values[p.i], es.Cond[p.i] = vals[p.j], conds[p.j]
+		es.Values[p.i], es.decide[p.i] = vals[p.j], conds[p.j]
 	}
 	return nil
 }
