@@ -27,7 +27,7 @@ func init() {
 			case "parameters":
 				return namesList(s.Parameters), true
 			case "values":
-				return floatVector(s.Values), true
+				return realVector(s.Values), true
 			case "derivatives", "relative":
 				if len(s.Eigenvalues) == 0 || len(s.Parameters) == 0 {
 					return nil, false
@@ -44,7 +44,7 @@ func init() {
 				}
 				return m, true
 			case "condition":
-				return floatVector(s.Cond), true
+				return realVector(s.Cond), true
 			}
 			return nil, false
 		}})
@@ -55,7 +55,7 @@ func init() {
 			case "parameter":
 				return l.Parameter, true
 			case "values":
-				return floatVector(l.Values), true
+				return realVector(l.Values), true
 			case "branches":
 				out := &List{}
 				for _, b := range l.Branches {
@@ -73,13 +73,6 @@ func complexList(v []complex128) any {
 		m.Set(i, 0, c)
 	}
 	return m
-}
-
-func floatVector(v []float64) *mat.Dense {
-	if len(v) == 0 {
-		return nil
-	}
-	return mat.NewDense(len(v), 1, append([]float64(nil), v...))
 }
 
 const pendulumExample = `g = 9.81; len = 0.5; damping = 0.2

@@ -40,7 +40,7 @@ func init() {
 			r := v.(*lsys.Response)
 			switch name {
 			case "t":
-				return colVec(r.T), true
+				return realVector(r.T), true
 			case "y":
 				return responseMatrix(r.Y, len(r.T)), true
 			case "u":
@@ -82,7 +82,7 @@ func init() {
 				for i, r := range m.Rows {
 					out[i] = f(r)
 				}
-				return colVec(out)
+				return realVector(out)
 			}
 			switch name {
 			case "rise_time":
@@ -149,7 +149,7 @@ func init() {
 			}
 			switch name {
 			case "w":
-				return colVec(f.W), true
+				return realVector(f.W), true
 			case "magnitude":
 				return cols(func(i, j int) []float64 {
 					mg := f.Magnitude(i, j)
@@ -170,7 +170,7 @@ func init() {
 			sv := v.(*lsys.SingularValues)
 			switch name {
 			case "w":
-				return colVec(sv.Frequency.W), true
+				return realVector(sv.Frequency.W), true
 			case "values":
 				if len(sv.S) == 0 || len(sv.S[0]) == 0 {
 					return nil, false
@@ -203,13 +203,6 @@ func init() {
 			}
 			return mat.NewCDense(len(vals), 1, append([]complex128(nil), vals...)), true
 		}})
-}
-
-func colVec(v []float64) *mat.Dense {
-	if len(v) == 0 {
-		return mat.NewDense(1, 1, []float64{math.NaN()})
-	}
-	return mat.NewDense(len(v), 1, append([]float64(nil), v...))
 }
 
 // responseMatrix puts the samples of every (output, channel) pair in

@@ -14,49 +14,6 @@ import (
 	"lsys/lsys"
 )
 
-// stComplexVector is a column vector of complex values: a real vector when
-// every imaginary part is zero, an empty list when there are none.
-func stComplexVector(vals []complex128) any {
-	if len(vals) == 0 {
-		return &List{}
-	}
-	allReal := true
-	for _, v := range vals {
-		if imag(v) != 0 {
-			allReal = false
-		}
-	}
-	if allReal {
-		m := mat.NewDense(len(vals), 1, nil)
-		for i, v := range vals {
-			m.Set(i, 0, realPart(v))
-		}
-		return m
-	}
-	m := mat.NewCDense(len(vals), 1, nil)
-	for i, v := range vals {
-		m.Set(i, 0, v)
-	}
-	return m
-}
-
-func realPart(v complex128) float64 { return real(v) }
-
-func stRealVector(vals []float64) any {
-	if len(vals) == 0 {
-		return &List{}
-	}
-	return mat.NewDense(len(vals), 1, append([]float64(nil), vals...))
-}
-
-func stIntVector(vals []int) any {
-	f := make([]float64, len(vals))
-	for i, v := range vals {
-		f[i] = float64(v)
-	}
-	return stRealVector(f)
-}
-
 func stMatrixOrEmpty(m *mat.Dense) any {
 	if m == nil {
 		return &List{}
@@ -130,7 +87,7 @@ func structureBuiltins() []*Builtin {
 				if err != nil {
 					return nil, err
 				}
-				return stComplexVector(p), nil
+				return complexVector(p), nil
 			},
 		},
 		{
@@ -428,13 +385,13 @@ func registerStructureTypes() {
 			z := v.(*lsys.ZeroSet)
 			switch f {
 			case "invariant":
-				return stComplexVector(z.Invariant), true
+				return complexVector(z.Invariant), true
 			case "transmission":
-				return stComplexVector(z.Transmission), true
+				return complexVector(z.Transmission), true
 			case "input_decoupling":
-				return stComplexVector(z.InputDecoupling), true
+				return complexVector(z.InputDecoupling), true
 			case "output_decoupling":
-				return stComplexVector(z.OutputDecoupling), true
+				return complexVector(z.OutputDecoupling), true
 			case "tol":
 				return z.Tol, true
 			}
@@ -459,13 +416,13 @@ func registerStructureTypes() {
 			}
 			switch f {
 			case "values":
-				return stComplexVector(e.Values), true
+				return complexVector(e.Values), true
 			case "right":
 				return vecs(e.Right), true
 			case "left":
 				return vecs(e.Left), true
 			case "cond":
-				return stRealVector(e.Cond), true
+				return realVector(e.Cond), true
 			}
 			return nil, false
 		}))
@@ -504,11 +461,11 @@ func registerStructureTypes() {
 			}
 			switch f {
 			case "values":
-				return stComplexVector(vals), true
+				return complexVector(vals), true
 			case "algebraic":
-				return stIntVector(alg), true
+				return intVector(alg), true
 			case "geometric":
-				return stIntVector(geo), true
+				return intVector(geo), true
 			case "defective":
 				return def, true
 			}
@@ -528,13 +485,13 @@ func registerStructureTypes() {
 			case "detectable":
 				return st.Detectable, true
 			case "uncontrollable":
-				return stComplexVector(st.UncontrollableModes), true
+				return complexVector(st.UncontrollableModes), true
 			case "unobservable":
-				return stComplexVector(st.UnobservableModes), true
+				return complexVector(st.UnobservableModes), true
 			case "parts":
 				l := &List{}
 				for _, p := range st.Parts {
-					l.Items = append(l.Items, &Record{Names: []string{"name", "states", "modes"}, Values: []any{p.Name, float64(p.Dim), stComplexVector(p.Modes)}})
+					l.Items = append(l.Items, &Record{Names: []string{"name", "states", "modes"}, Values: []any{p.Name, float64(p.Dim), complexVector(p.Modes)}})
 				}
 				return l, true
 			}
@@ -550,7 +507,7 @@ func registerStructureTypes() {
 			case "T":
 				return d.T, true
 			case "sizes":
-				return stIntVector(d.Sizes[:]), true
+				return intVector(d.Sizes[:]), true
 			case "cond":
 				return d.Cond, true
 			}
@@ -567,7 +524,7 @@ func registerStructureTypes() {
 		case "invariant":
 			return s.Invariant, true
 		case "values":
-			return stComplexVector(s.Values), true
+			return complexVector(s.Values), true
 		}
 		return nil, false
 	}
@@ -602,17 +559,17 @@ func registerStructureTypes() {
 			}
 			switch f {
 			case "eigenvalues":
-				return stComplexVector(ev), true
+				return complexVector(ev), true
 			case "frequencies":
-				return stRealVector(wn), true
+				return realVector(wn), true
 			case "hz":
-				return stRealVector(hz), true
+				return realVector(hz), true
 			case "damping":
-				return stRealVector(z), true
+				return realVector(z), true
 			case "time_constants":
-				return stRealVector(tau), true
+				return realVector(tau), true
 			case "multiplicity":
-				return stRealVector(mult), true
+				return realVector(mult), true
 			case "reachable":
 				return &List{Items: reach}, true
 			case "observable":

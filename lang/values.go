@@ -334,3 +334,46 @@ func wordsOfType(v any) string {
 	}
 	return "a result (" + b.String() + ")"
 }
+
+// The one conversion of result slices to language values: a column vector,
+// or an empty list when there is nothing (no zeros, no crossovers), so an
+// empty result prints as [] and has length 0 whatever built-in made it.
+
+// realVector is a real column vector.
+func realVector(vals []float64) any {
+	if len(vals) == 0 {
+		return &List{}
+	}
+	return mat.NewDense(len(vals), 1, append([]float64(nil), vals...))
+}
+
+// intVector is a column vector of whole numbers.
+func intVector(vals []int) any {
+	f := make([]float64, len(vals))
+	for i, v := range vals {
+		f[i] = float64(v)
+	}
+	return realVector(f)
+}
+
+// complexVector is a column vector of complex values: a real vector when
+// every imaginary part is zero.
+func complexVector(vals []complex128) any {
+	if len(vals) == 0 {
+		return &List{}
+	}
+	allReal := true
+	for _, v := range vals {
+		if imag(v) != 0 {
+			allReal = false
+		}
+	}
+	if allReal {
+		m := mat.NewDense(len(vals), 1, nil)
+		for i, v := range vals {
+			m.Set(i, 0, real(v))
+		}
+		return m
+	}
+	return mat.NewCDense(len(vals), 1, append([]complex128(nil), vals...))
+}

@@ -314,7 +314,7 @@ func jordanBlocks(A *mat.Dense, lam complex128, k int, relTol, spreadTol float64
 		}
 		var svd mat.SVD
 		if !svd.Factorize(P, mat.SVDNone) {
-			return nil, nil, errors.New("jordan: singular value decomposition did not converge")
+			return nil, nil, errors.New("singular value decomposition did not converge")
 		}
 		sv := svd.Values(nil)
 		if j == 1 {

@@ -39,7 +39,7 @@ type Metrics struct {
 // than from the second-order formulas.
 func ResponseMetrics(r *Response) (*Metrics, error) {
 	if r == nil || len(r.T) < 2 {
-		return nil, errors.New("metrics: the response has fewer than two samples")
+		return nil, errors.New("the response has fewer than two samples")
 	}
 	out := &Metrics{Response: r}
 	var gain []float64

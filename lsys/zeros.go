@@ -126,7 +126,7 @@ func invariantZeros(s *System, relTol float64) ([]complex128, int, float64, erro
 		W = identity(nf + mf)
 	}
 	if W == nil {
-		return nil, nf, tol, errors.New("zeros: the reduced pencil could not be compressed")
+		return nil, nf, tol, errors.New("the reduced pencil could not be compressed")
 	}
 	AB := stHcat(nf, f.A, f.B)
 	IE := mat.NewDense(nf, nf+mf, nil)
@@ -142,7 +142,7 @@ func invariantZeros(s *System, relTol float64) ([]complex128, int, float64, erro
 		// The reductions leave D invertible (Emami-Naeini & Van Dooren
 		// 1982, sec. 3), so this pencil is square unless a rank decision
 		// was borderline.
-		return nil, nf, tol, fmt.Errorf("zeros: the reduced pencil is %dx%d, not square: a rank decision is borderline at tolerance %.3g; try another tolerance", nf, k, tol)
+		return nil, nf, tol, fmt.Errorf("the reduced pencil is %dx%d, not square: a rank decision is borderline at tolerance %.3g; try another tolerance", nf, k, tol)
 	}
 	W1 := W.Slice(0, nf+mf, 0, nf)
 	var Af, Ef mat.Dense
