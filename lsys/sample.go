@@ -428,26 +428,6 @@ func matched(g *System, T float64) (*System, error) {
 	return d, nil
 }
 
-// polyFromRoots returns the monic real polynomial (ascending) with the
-// given roots; complex roots must come in conjugate pairs (imaginary
-// parts of the product are rounding and are dropped).
-func polyFromRoots(roots []complex128) []float64 {
-	c := []complex128{1}
-	for _, r := range roots {
-		next := make([]complex128, len(c)+1)
-		for i, v := range c {
-			next[i+1] += v
-			next[i] -= r * v
-		}
-		c = next
-	}
-	out := make([]float64, len(c))
-	for i, v := range c {
-		out[i] = real(v)
-	}
-	return out
-}
-
 func polyAtC(p []float64, z complex128) complex128 {
 	var acc complex128
 	for i := len(p) - 1; i >= 0; i-- {
