@@ -326,3 +326,28 @@ func TestTextOption(t *testing.T) {
 		t.Errorf("a second session without the option: %q", got)
 	}
 }
+
+// Evaluation, completion and inspection read fields through one protocol:
+// a field of an analysis result completes and inspects like a record's.
+func TestOneFieldProtocol(t *testing.T) {
+	s := NewSession(Options{Dir: t.TempDir()})
+	if _, err := s.Run(context.Background(), "G = system([[-1, 0], [0, -2]], [[1], [1]], [[1, 1]])\nz = zeros(G)\nr = {z: z}", nil); err != nil {
+		t.Fatal(err)
+	}
+	for _, src := range []string{"z.invariant", "r.z.invariant", "G.A"} {
+		if _, err := s.Run(context.Background(), src, nil); err != nil {
+			t.Errorf("%s: %v", src, err)
+		}
+		if text, found := s.Inspect(src, len([]rune(src))); !found || !strings.HasPrefix(text, src[strings.LastIndexByte(src, '.')+1:]+": ") {
+			t.Errorf("inspect %s: %v %q", src, found, text)
+		}
+	}
+	matches, _, _ := s.Complete("r.z.inv", len("r.z.inv"))
+	if len(matches) != 1 || matches[0] != "invariant" {
+		t.Errorf("completion after r.z.: %v", matches)
+	}
+	_, err := s.Run(context.Background(), "z.invarient", nil)
+	if err == nil || !strings.Contains(err.Error(), "did you mean 'invariant'") {
+		t.Errorf("misspelt field: %v", err)
+	}
+}

@@ -287,24 +287,12 @@ func (s *Session) valueBefore(runes []rune) (any, bool) {
 		return nil, false
 	}
 	for _, f := range chain[1:] {
-		var next any
-		switch t := v.(type) {
-		case *Record:
-			next, ok = t.Get(f)
-		case *lsys.System:
-			var err error
-			next, ok, err = systemField(t, f)
-			ok = ok && err == nil
-		default:
-			if fn, has := valueFields(v); has {
-				next, ok = fn(f)
-			} else if ti, has := typeNames.info(v); has && ti.Field != nil {
-				next, ok = ti.Field(v, f)
-			} else {
-				ok = false
-			}
+		fr, has := fieldsOf(v)
+		if !has {
+			return nil, false
 		}
-		if !ok {
+		next, found, err := fr.get(f)
+		if !found || err != nil {
 			return nil, false
 		}
 		v = next
@@ -339,13 +327,10 @@ func (s *Session) Inspect(src string, cursor int) (text string, found bool) {
 	if name != "" && start > 0 && runes[start-1] == '.' {
 		if v, ok := s.valueBefore(runes[:start-1]); ok {
 			var fv any
-			var has bool
-			switch t := v.(type) {
-			case *Record:
-				fv, has = t.Get(name)
-			case *lsys.System:
+			has := false
+			if fr, ok := fieldsOf(v); ok {
 				var err error
-				fv, has, err = systemField(t, name)
+				fv, has, err = fr.get(name)
 				has = has && err == nil
 			}
 			if has {

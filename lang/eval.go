@@ -760,41 +760,22 @@ func (ev *evaluator) evalIndex(x *syntax.IndexExpr) (any, error) {
 var systemFields = []string{"A", "B", "C", "D", "states", "inputs", "outputs", "every"}
 
 func (ev *evaluator) field(v any, name *syntax.Ident) (any, error) {
-	var fields []string
-	switch t := v.(type) {
-	case *Record:
-		if f, ok := t.Get(name.Name); ok {
-			return f, nil
-		}
-		fields = t.Names
-	case *lsys.System:
-		if f, ok, err := systemField(t, name.Name); ok {
-			if err != nil {
-				return nil, ev.errorAt(name.NamePos, err.Error(), "Fields of a system: A, B, C, D, states, inputs, outputs, every, and its signal names.")
-			}
-			return f, nil
-		}
-		fields = fieldNames(t)
-	default:
-		if ti, ok := typeNames.info(v); ok && ti.Field != nil {
-			var f any
-			var found bool
-			if err := guard(func() error { f, found = ti.Field(v, name.Name); return nil }); err != nil {
-				return nil, ev.errorAt(name.NamePos, err.Error(), "This is a bug in lsys, not in your cell; please report it.")
-			}
-			if found {
-				return f, nil
-			}
-			fields = ti.Fields
-		} else if fn, ok := valueFields(v); ok {
-			if f, ok := fn(name.Name); ok {
-				return f, nil
-			}
-			fields = fieldNames(v)
-		} else {
-			return nil, ev.errorAt(name.NamePos, fmt.Sprintf("%s has no fields", typeName(v)), "Records, systems, models and results of analysis have fields; completion after '.' lists them.")
-		}
+	fr, ok := fieldsOf(v)
+	if !ok {
+		return nil, ev.errorAt(name.NamePos, fmt.Sprintf("%s has no fields", typeName(v)), "Records, systems, models and results of analysis have fields; completion after '.' lists them.")
 	}
+	f, found, err := fr.get(name.Name)
+	if err != nil {
+		hint := "This is a bug in lsys, not in your cell; please report it."
+		if _, isSys := v.(*lsys.System); isSys {
+			hint = "Fields of a system: A, B, C, D, states, inputs, outputs, every, and its signal names."
+		}
+		return nil, ev.errorAt(name.NamePos, err.Error(), hint)
+	}
+	if found {
+		return f, nil
+	}
+	fields := fr.names()
 	hint := ""
 	if len(fields) > 0 {
 		hint = "Its fields are: " + strings.Join(fields, ", ") + "."
@@ -826,32 +807,78 @@ func (ev *evaluator) field(v any, name *syntax.Ident) (any, error) {
 
 // fieldNames lists what may follow '.' after v, for completion and hints.
 func fieldNames(v any) []string {
-	switch t := v.(type) {
-	case *Record:
-		return t.Names
-	case *lsys.System:
-		out := append([]string(nil), systemFields...)
-		seen := map[string]bool{}
-		for _, f := range out {
-			seen[f] = true
-		}
-		for _, l := range [][]string{t.StateNames, t.InputNames, t.OutputNames} {
-			for _, n := range l {
-				if !seen[n] {
-					seen[n] = true
-					out = append(out, n)
-				}
-			}
-		}
-		return out
-	}
-	if ti, ok := typeNames.info(v); ok {
-		return ti.Fields
-	}
-	if names, ok := valueFieldNames(v); ok {
-		return names
+	if fr, ok := fieldsOf(v); ok {
+		return fr.names()
 	}
 	return nil
+}
+
+// fieldReader is the one field protocol: evaluation (r.name), completion
+// after '.', inspection and the "did you mean" of errors all read fields
+// through fieldsOf, so they agree on every kind of value.
+type fieldReader struct {
+	names func() []string
+	// get reads a field; found is false when v has no such field, err
+	// set when it has one that cannot be read (A of a static gain).
+	get func(name string) (v any, found bool, err error)
+}
+
+// fieldsOf gives the fields of records, systems (matrices, names and
+// signals), results of analysis (their registered TypeInfo) and the
+// language's own values with fields (models, equilibria).
+func fieldsOf(v any) (fieldReader, bool) {
+	switch t := v.(type) {
+	case *Record:
+		return fieldReader{
+			names: func() []string { return t.Names },
+			get: func(n string) (any, bool, error) {
+				f, ok := t.Get(n)
+				return f, ok, nil
+			},
+		}, true
+	case *lsys.System:
+		return fieldReader{
+			names: func() []string { return systemFieldNames(t) },
+			get:   func(n string) (any, bool, error) { return systemField(t, n) },
+		}, true
+	}
+	if ti, ok := typeNames.info(v); ok && ti.Field != nil {
+		return fieldReader{
+			names: func() []string { return ti.Fields },
+			get: func(n string) (f any, found bool, err error) {
+				err = guard(func() error { f, found = ti.Field(v, n); return nil })
+				return f, found, err
+			},
+		}, true
+	}
+	if fd, ok := v.(fielder); ok {
+		return fieldReader{
+			names: fd.FieldNames,
+			get: func(n string) (any, bool, error) {
+				f, ok := fd.Field(n)
+				return f, ok, nil
+			},
+		}, true
+	}
+	return fieldReader{}, false
+}
+
+// systemFieldNames are a system's fields and then its signal names.
+func systemFieldNames(g *lsys.System) []string {
+	out := append([]string(nil), systemFields...)
+	seen := map[string]bool{}
+	for _, f := range out {
+		seen[f] = true
+	}
+	for _, l := range [][]string{g.StateNames, g.InputNames, g.OutputNames} {
+		for _, n := range l {
+			if !seen[n] {
+				seen[n] = true
+				out = append(out, n)
+			}
+		}
+	}
+	return out
 }
 
 func namesList(names []string) *List {
@@ -1066,20 +1093,6 @@ func (ev *evaluator) realize(rows [][]*lsys.Rational, pos syntax.Pos) (*lsys.Sys
 type fielder interface {
 	Field(name string) (any, bool)
 	FieldNames() []string
-}
-
-func valueFields(v any) (func(string) (any, bool), bool) {
-	if f, ok := v.(fielder); ok {
-		return f.Field, true
-	}
-	return nil, false
-}
-
-func valueFieldNames(v any) ([]string, bool) {
-	if f, ok := v.(fielder); ok {
-		return f.FieldNames(), true
-	}
-	return nil, false
 }
 
 func entries(k int) string {
