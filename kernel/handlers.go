@@ -4,7 +4,6 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"path"
 	"runtime/debug"
 	"sort"
 	"strings"
@@ -324,7 +323,7 @@ func (k *Kernel) historyRequest(r *Request) {
 		// Newest first, so "unique" keeps the latest of each input.
 		for i := len(k.history) - 1; i >= 0; i-- {
 			h := k.history[i]
-			if ok, _ := path.Match(pattern, h.input); !ok {
+			if !globMatch(pattern, h.input) {
 				continue
 			}
 			if req.Unique {

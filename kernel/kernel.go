@@ -13,6 +13,7 @@ import (
 	"io"
 	"log"
 	"os"
+	"strings"
 	"sync"
 	"time"
 
@@ -29,7 +30,27 @@ type Config struct {
 	HelpURL string      // where the language reference lives, for help_links
 	Dir     string      // working folder for load(); "" means the current one
 	Log     *log.Logger // nil logs to stderr
+
+	// MaxMessageSize is the largest message, in bytes, a peer may send on
+	// shell, control or stdin; 0 means DefaultMaxMessageSize. A peer that
+	// sends more is disconnected before the bytes are read.
+	MaxMessageSize int64
 }
+
+// Wire limits. Real cells and their replies are far below them; they exist
+// so that no peer, with or without the key, can make the kernel hold
+// memory or wait for ever.
+const (
+	DefaultMaxMessageSize = 64 << 20
+	// handshakeTimeout bounds a new connection's ZMTP handshake.
+	handshakeTimeout = 10 * time.Second
+	// writeTimeout drops a peer that has not taken a frame for this long.
+	writeTimeout = 30 * time.Second
+	// hbMaxMessage bounds heartbeat pings, which are a few bytes.
+	hbMaxMessage = 64 << 10
+	// hbWriteTimeout drops a heartbeat peer that does not read its echoes.
+	hbWriteTimeout = 2 * time.Second
+)
 
 // Kernel is one running lsys kernel.
 type Kernel struct {
@@ -42,6 +63,7 @@ type Kernel struct {
 	iopubMu                          sync.Mutex
 
 	shellMux, controlMux *Mux
+	seen                 *replayGuard // signatures already acted on
 
 	lang        *lang.Session
 	execCount   int
@@ -71,7 +93,12 @@ func New(cfg Config) (*Kernel, error) {
 	if cfg.Dir == "" {
 		cfg.Dir, _ = os.Getwd()
 	}
-	k := &Kernel{cfg: cfg, signer: s, session: newID(), log: cfg.Log, lang: lang.NewSession(lang.Options{Dir: cfg.Dir, Text: display.TextOf})}
+	if cfg.MaxMessageSize <= 0 {
+		cfg.MaxMessageSize = DefaultMaxMessageSize
+	}
+	k := &Kernel{cfg: cfg, signer: s, session: newID(), log: cfg.Log,
+		lang: lang.NewSession(lang.Options{Dir: cfg.Dir, Text: display.TextOf}),
+		seen: newReplayGuard(replayMemory)}
 	k.shellMux = NewMux()
 	k.controlMux = NewMux()
 	k.routes()
@@ -85,11 +112,21 @@ func (k *Kernel) Serve(ctx context.Context) (restart bool, err error) {
 	ctx, k.stop = context.WithCancel(ctx)
 	defer k.stop()
 	c := k.cfg.Conn
-	k.shell = zmq4.NewRouter(ctx)
-	k.control = zmq4.NewRouter(ctx)
-	k.stdin = zmq4.NewRouter(ctx)
-	k.iopub = zmq4.NewPub(ctx)
-	k.hb = zmq4.NewRep(ctx)
+	max := k.cfg.MaxMessageSize
+	// Log lines of the ZMTP layer (refused peers) go to the kernel's log.
+	zlog := log.New(k.log.Writer(), k.log.Prefix()+"zmq: ", k.log.Flags())
+	opts := []zmq4.Option{zmq4.WithLogger(zlog), zmq4.WithMaxMessageSize(max), zmq4.WithMaxInflight(2 * max),
+		zmq4.WithHandshakeTimeout(handshakeTimeout), zmq4.WithWriteTimeout(writeTimeout)}
+	k.shell = zmq4.NewRouter(ctx, opts...)
+	k.control = zmq4.NewRouter(ctx, opts...)
+	k.stdin = zmq4.NewRouter(ctx, opts...)
+	k.iopub = zmq4.NewPub(ctx, opts...)
+	// The heartbeat is a ROUTER that echoes what it gets (a REQ or DEALER
+	// client sees a REP): unlike a REP it can answer each peer on its own,
+	// so one that stops reading cannot stall the echoes of the others.
+	k.hb = zmq4.NewRouter(ctx, zmq4.WithLogger(zlog), zmq4.WithMaxMessageSize(hbMaxMessage),
+		zmq4.WithMaxInflight(64*hbMaxMessage), zmq4.WithHandshakeTimeout(handshakeTimeout),
+		zmq4.WithWriteTimeout(hbWriteTimeout))
 	socks := []struct {
 		s    zmq4.Socket
 		port int
@@ -105,8 +142,9 @@ func (k *Kernel) Serve(ctx context.Context) (restart bool, err error) {
 	defer k.closeAll()
 
 	var wg sync.WaitGroup
-	wg.Add(3)
+	wg.Add(4)
 	go func() { defer wg.Done(); k.heartbeat(ctx) }()
+	go func() { defer wg.Done(); k.drainStdin(ctx) }()
 	go func() { defer wg.Done(); k.serveChannel(ctx, k.control, "control", k.controlMux, nil) }()
 	shellQueue := make(chan *Message, 256)
 	go func() { defer wg.Done(); k.serveChannel(ctx, k.shell, "shell", nil, shellQueue) }()
@@ -145,20 +183,53 @@ func (k *Kernel) Interrupt() {
 	}
 }
 
+// heartbeat echoes every ping to the peer that sent it. Each echo is sent
+// on a goroutine of its own, at most one per peer at a time (a ping that
+// arrives while its peer's previous echo is still being written is dropped),
+// so a peer that does not read holds up only itself, and only until the
+// write timeout drops it.
 func (k *Kernel) heartbeat(ctx context.Context) {
+	var mu sync.Mutex
+	busy := map[string]bool{}
 	for {
 		msg, err := k.hb.Recv()
 		if err != nil {
-			if ctx.Err() == nil && !errors.Is(err, io.EOF) {
-				k.log.Printf("heartbeat: %v", err)
-			}
 			if ctx.Err() != nil {
 				return
 			}
+			if !errors.Is(err, io.EOF) {
+				k.log.Printf("heartbeat: %v", err)
+			}
 			continue
 		}
-		if err := k.hb.Send(msg); err != nil && ctx.Err() == nil {
-			k.log.Printf("heartbeat echo: %v", err)
+		peer := string(msg.Frames[0])
+		mu.Lock()
+		if busy[peer] {
+			mu.Unlock()
+			continue
+		}
+		busy[peer] = true
+		mu.Unlock()
+		go func() {
+			defer func() {
+				mu.Lock()
+				delete(busy, peer)
+				mu.Unlock()
+			}()
+			if err := k.hb.Send(msg); err != nil && ctx.Err() == nil {
+				k.log.Printf("heartbeat echo: %v", err)
+			}
+		}()
+	}
+}
+
+// drainStdin reads and drops what arrives on stdin. The kernel never asks
+// for input (allow_stdin is not used), so nothing there is awaited; unread,
+// it would be held in memory for as long as the kernel runs.
+func (k *Kernel) drainStdin(ctx context.Context) {
+	for {
+		if _, err := k.stdin.Recv(); err != nil && ctx.Err() != nil {
+			return
 		}
 	}
 }
@@ -180,14 +251,25 @@ func (k *Kernel) serveChannel(ctx context.Context, sock zmq4.Socket, name string
 			continue
 		}
 		msg, err := Decode(raw.Frames, k.signer)
-		if err == nil {
-			msg.Received = time.Now()
-		}
 		if err != nil {
-			// A message that fails verification is never acted on.
+			// A message that fails verification is never acted on. One that
+			// verifies but is malformed is answered where the reply can be
+			// addressed, so its client does not wait for ever.
 			k.log.Printf("%s: dropped a message: %v", name, err)
+			var bad *MalformedError
+			if errors.As(err, &bad) && k.seen.first(bad.Signature) {
+				k.replyMalformed(sock, name, bad)
+			}
 			continue
 		}
+		if !k.seen.first(msg.Signature) {
+			// Jupyter's own clients refuse a message whose signature they
+			// have seen before in the session; so do we, so that a captured
+			// request cannot be run again.
+			k.log.Printf("%s: dropped a replayed %s (its signature was already used)", name, msg.Header.MsgType)
+			continue
+		}
+		msg.Received = time.Now()
 		if queue != nil {
 			select {
 			case queue <- msg:
@@ -199,6 +281,34 @@ func (k *Kernel) serveChannel(ctx context.Context, sock zmq4.Socket, name string
 		}
 		k.handle(&Request{k: k, Msg: msg, sock: sock, channel: name}, mux)
 	}
+}
+
+// replyMalformed answers a signed request that could not be read (a header
+// field of the wrong JSON type, say) with an error reply of the matching
+// type, between busy and idle, so that its client is not left waiting. Only
+// a message that names a *_request type and came with a routing identity
+// can be answered.
+func (k *Kernel) replyMalformed(sock zmq4.Socket, channel string, bad *MalformedError) {
+	if len(bad.Identities) == 0 || !strings.HasSuffix(bad.MsgType, "_request") {
+		return
+	}
+	parent := &Message{HeaderRaw: json.RawMessage("{}")}
+	var obj map[string]json.RawMessage
+	if json.Unmarshal(bad.HeaderRaw, &obj) == nil && obj != nil {
+		parent.HeaderRaw = bad.HeaderRaw
+	}
+	k.publishStatus(parent, "busy")
+	defer k.publishStatus(parent, "idle")
+	evalue := "the request could not be read: " + bad.Err.Error() +
+		"; its header must have string fields msg_id, session, username, date, msg_type and version, and its metadata must be a JSON object"
+	m, err := k.newMessage(parent, strings.TrimSuffix(bad.MsgType, "_request")+"_reply",
+		map[string]any{"status": "error", "ename": "ProtocolError", "evalue": evalue, "traceback": []string{"ProtocolError: " + evalue}})
+	if err != nil {
+		k.log.Printf("%s: %v", channel, err)
+		return
+	}
+	m.Identities = bad.Identities
+	k.send(sock, nil, m)
 }
 
 func (k *Kernel) dispatchShell(ctx context.Context, queue <-chan *Message) {

@@ -40,6 +40,7 @@ type Message struct {
 	Content    json.RawMessage
 	Buffers    [][]byte
 	Received   time.Time // when the kernel read it off its socket
+	Signature  []byte    // as received; the kernel refuses one seen before
 }
 
 // Signer signs and verifies messages with HMAC-SHA256; a nil key disables
@@ -92,6 +93,19 @@ func (s *Signer) Verify(sig []byte, frames ...[]byte) bool {
 // ErrBadSignature marks a message whose signature does not verify.
 var ErrBadSignature = errors.New("message signature does not verify")
 
+// MalformedError is a message whose signature verifies but whose header or
+// metadata cannot be read. It carries what is needed to answer it.
+type MalformedError struct {
+	Identities [][]byte
+	HeaderRaw  []byte
+	MsgType    string // from the header, if it could be found there
+	Signature  []byte
+	Err        error
+}
+
+func (e *MalformedError) Error() string { return e.Err.Error() }
+func (e *MalformedError) Unwrap() error { return e.Err }
+
 // Decode parses the frames of a received message and checks its signature.
 func Decode(frames [][]byte, s *Signer) (*Message, error) {
 	i := 0
@@ -109,13 +123,23 @@ func Decode(frames [][]byte, s *Signer) (*Message, error) {
 		return nil, ErrBadSignature
 	}
 	m := &Message{Identities: frames[:i], HeaderRaw: append(json.RawMessage(nil), header...), ParentRaw: append(json.RawMessage(nil), parent...),
-		Content: append(json.RawMessage(nil), content...), Buffers: frames[i+6:]}
+		Content: append(json.RawMessage(nil), content...), Buffers: frames[i+6:], Signature: sig}
+	malformed := func(err error) *MalformedError {
+		e := &MalformedError{Identities: m.Identities, HeaderRaw: m.HeaderRaw, Signature: sig, Err: err}
+		var h struct {
+			MsgType any `json:"msg_type"`
+		}
+		if json.Unmarshal(header, &h) == nil {
+			e.MsgType, _ = h.MsgType.(string)
+		}
+		return e
+	}
 	if err := json.Unmarshal(header, &m.Header); err != nil {
-		return nil, fmt.Errorf("bad header: %v", err)
+		return nil, malformed(fmt.Errorf("bad header: %v", err))
 	}
 	if len(meta) > 0 {
 		if err := json.Unmarshal(meta, &m.Metadata); err != nil {
-			return nil, fmt.Errorf("bad metadata: %v", err)
+			return nil, malformed(fmt.Errorf("bad metadata: %v", err))
 		}
 	}
 	return m, nil
