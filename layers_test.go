@@ -15,9 +15,10 @@ import (
 // package must be added here, at its layer, before this test passes.
 var layers = map[string][]string{
 	"lsys/lsys":        {},
-	"lsys/display":     {"lsys/lsys"},
+	"lsys/lsys/numfmt": {},
+	"lsys/display":     {"lsys/lsys", "lsys/lsys/numfmt"},
 	"lsys/lang/syntax": {},
-	"lsys/lang":        {"lsys/lang/syntax", "lsys/lsys"},
+	"lsys/lang":        {"lsys/lang/syntax", "lsys/lsys", "lsys/lsys/numfmt"},
 	"lsys/kernel":      {"lsys/lang", "lsys/lang/syntax", "lsys/display", "lsys/lsys"},
 	"lsys/runner":      {"lsys/lang", "lsys/lang/syntax", "lsys/display", "lsys/lsys"},
 	"lsys":             {"lsys/kernel", "lsys/runner", "lsys/lang", "lsys/lang/syntax", "lsys/display", "lsys/lsys"},

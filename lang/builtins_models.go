@@ -4,6 +4,7 @@ package lang
 // locus.
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"strings"
@@ -166,8 +167,8 @@ func operatingPoint(c *Call, name string, bs *blockSource, needAll bool) (x, u [
 	switch t := v.(type) {
 	case *Record:
 		rec = t
-	case *Equilibrium:
-		rec = t.point()
+	case *lsys.Equilibrium:
+		rec = equilibriumPoint(t)
 	default:
 		return nil, nil, c.typeError(name, "a record such as {angle: 0, rate: 0, torque: 0}, or an equilibrium", v)
 	}
@@ -236,172 +237,61 @@ func linearizeFn(c *Call) (any, error) {
 	return g, nil
 }
 
-// Equilibrium is a steady state found by equilibrium().
-type Equilibrium struct {
-	States     *Record
-	Inputs     *Record
-	Residual   float64 // max |f| (continuous) or max |f - x| (sampled) at the result
-	Iterations int
+// The equilibrium built-in hands out lsys's own *lsys.Equilibrium; its
+// fields are the states and inputs as records, the verdict, and each state
+// and input by name.
+var equilibriumFields = []string{"states", "inputs", "residual", "iterations", "unique", "free", "rank"}
 
-	// The rank verdict on the Jacobian J = df/dx (minus I when sampled) at
-	// the result: singular values at or below Tol = FamilyTol * the largest
-	// count as zero. When Rank < n the steady state is one member of a
-	// family, and the columns of Free (orthonormal, n x (n - Rank)) span
-	// the null space of J: the directions in which the states can move and
-	// stay at rest, to first order. Free is nil when the state is unique.
-	Rank     int
-	Tol      float64
-	Singular []float64 // singular values of J, largest first
-	Free     *mat.Dense
-
-	minNorm bool // solved as a linear system: the member of least norm
-}
-
-// FamilyTol is the relative tolerance of the rank decision on the
-// Jacobian at an equilibrium; it is the one below which Newton's step
-// treats singular values as zero (newtonStep), so the verdict and the
-// iteration agree.
-const FamilyTol = 1e-12
-
-// setFamily decides the rank of the Jacobian J at the result by its
-// singular values (numerical rank with a relative tolerance: Golub & Van
-// Loan, Matrix Computations, 4th ed. 2013, section 5.4.1) and keeps the
-// null space. Entries of a free direction below 1e-14 of its largest are
-// rounding and set to 0; a single direction has its largest entry positive.
-func (e *Equilibrium) setFamily(J *mat.Dense) {
-	n, _ := J.Dims()
-	var svd mat.SVD
-	if !svd.Factorize(J, mat.SVDFull) {
-		e.Rank = n
-		return
-	}
-	sv := svd.Values(nil)
-	e.Singular = sv
-	smax := 0.0
-	if len(sv) > 0 {
-		smax = sv[0]
-	}
-	e.Tol = FamilyTol * smax
-	rank := 0
-	for _, x := range sv {
-		if x > e.Tol {
-			rank++
-		}
-	}
-	e.Rank = rank
-	if rank == n {
-		return
-	}
-	var V mat.Dense
-	svd.VTo(&V)
-	free := mat.DenseCopyOf(V.Slice(0, n, rank, n))
-	_, k := free.Dims()
-	for j := 0; j < k; j++ {
-		big, at := 0.0, 0
-		for i := 0; i < n; i++ {
-			if a := math.Abs(free.At(i, j)); a > big {
-				big, at = a, i
+func init() {
+	RegisterType((*lsys.Equilibrium)(nil), TypeInfo{Name: "a steady state (equilibrium)",
+		Fields: equilibriumFields,
+		FieldNames: func(v any) []string {
+			e := v.(*lsys.Equilibrium)
+			out := append([]string(nil), equilibriumFields...)
+			out = append(out, e.StateNames...)
+			return append(out, e.InputNames...)
+		},
+		Field: func(v any, name string) (any, bool) {
+			e := v.(*lsys.Equilibrium)
+			switch name {
+			case "states":
+				return numberRecord(e.StateNames, e.X), true
+			case "inputs":
+				return numberRecord(e.InputNames, e.U), true
+			case "residual":
+				return e.Residual, true
+			case "iterations":
+				return float64(e.Iterations), true
+			case "unique":
+				return e.Free == nil, true
+			case "free":
+				// The free directions as columns, one row per state; [] when unique.
+				if e.Free == nil {
+					return &List{}, true
+				}
+				return mat.DenseCopyOf(e.Free), true
+			case "rank":
+				return float64(e.Rank), true
 			}
-		}
-		sign := 1.0
-		if k == 1 && free.At(at, j) < 0 {
-			sign = -1
-		}
-		for i := 0; i < n; i++ {
-			v := sign * free.At(i, j)
-			if math.Abs(v) < 1e-14*big {
-				v = 0
+			if x, ok := e.State(name); ok {
+				return x, true
 			}
-			free.Set(i, j, v)
-		}
-	}
-	e.Free = free
+			return nil, false
+		}})
 }
 
-// FreeDirections lists the free directions as records over the states.
-func (e *Equilibrium) FreeDirections() []*Record {
-	if e.Free == nil {
-		return nil
+// numberRecord is {name: value, ...}.
+func numberRecord(names []string, vals []float64) *Record {
+	r := &Record{Names: append([]string(nil), names...), Values: make([]any, len(vals))}
+	for i, v := range vals {
+		r.Values[i] = v
 	}
-	n, k := e.Free.Dims()
-	out := make([]*Record, k)
-	for j := 0; j < k; j++ {
-		r := &Record{}
-		for i := 0; i < n; i++ {
-			r.Names = append(r.Names, e.States.Names[i])
-			r.Values = append(r.Values, e.Free.At(i, j))
-		}
-		out[j] = r
-	}
-	return out
-}
-
-func (e *Equilibrium) point() *Record {
-	r := &Record{}
-	r.Names = append(append(r.Names, e.States.Names...), e.Inputs.Names...)
-	r.Values = append(append(r.Values, e.States.Values...), e.Inputs.Values...)
 	return r
 }
 
-func (e *Equilibrium) String() string {
-	s := fmt.Sprintf("equilibrium after %d Newton steps, residual %.3g\nstates: %s\ninputs: %s",
-		e.Iterations, e.Residual, e.States, e.Inputs)
-	if e.Free == nil {
-		return s
-	}
-	n, k := e.Free.Dims()
-	smax := 0.0
-	if len(e.Singular) > 0 {
-		smax = e.Singular[0]
-	}
-	s += fmt.Sprintf("\nnot unique: the Jacobian df/dx here has rank %d of %d (singular values at or below %.3g x the largest, %.3g, count as zero), "+
-		"so this is one member of a family of steady states; to first order the states can move along %s and stay at rest:",
-		e.Rank, n, FamilyTol, smax, plural(k, "direction"))
-	for j, d := range e.FreeDirections() {
-		s += fmt.Sprintf("\n  free direction %d: %s", j+1, d)
-	}
-	if e.minNorm {
-		s += "\nOf the family, the state of least norm is given."
-	} else {
-		s += "\nThe guess decides which member Newton returns."
-	}
-	return s
-}
-
-// Field reads e.states, e.inputs, e.residual, e.iterations or a state or
-// input by name.
-func (e *Equilibrium) Field(name string) (any, bool) {
-	switch name {
-	case "states":
-		return e.States, true
-	case "inputs":
-		return e.Inputs, true
-	case "residual":
-		return e.Residual, true
-	case "iterations":
-		return float64(e.Iterations), true
-	case "unique":
-		return e.Free == nil, true
-	case "free":
-		// The free directions as columns, one row per state; [] when unique.
-		if e.Free == nil {
-			return &List{}, true
-		}
-		return mat.DenseCopyOf(e.Free), true
-	case "rank":
-		return float64(e.Rank), true
-	}
-	if v, ok := e.States.Get(name); ok {
-		return v, true
-	}
-	return e.Inputs.Get(name)
-}
-
-// FieldNames lists the fields of an equilibrium.
-func (e *Equilibrium) FieldNames() []string {
-	out := []string{"states", "inputs", "residual", "iterations", "unique", "free", "rank"}
-	out = append(out, e.States.Names...)
-	return append(out, e.Inputs.Names...)
+// equilibriumPoint is the record of states and inputs linearize reads.
+func equilibriumPoint(e *lsys.Equilibrium) *Record {
+	return numberRecord(append(append([]string(nil), e.StateNames...), e.InputNames...), append(append([]float64(nil), e.X...), e.U...))
 }
 
 func equilibriumFn(c *Call) (any, error) {
@@ -456,97 +346,19 @@ func equilibriumFn(c *Call) (any, error) {
 		}
 		return F, A, nil
 	}
-	norm := func(F []float64) float64 {
-		m := 0.0
-		for _, f := range F {
-			m = math.Max(m, math.Abs(f))
+	x, res, iter, J, err := lsys.SolveSteady(eval, x, c.Check)
+	var ne *lsys.NewtonError
+	if errors.As(err, &ne) {
+		hint := "Try another guess: equilibrium(model, inputs: {...}, guess: {...})."
+		if ne.Kind == lsys.NewtonSingular {
+			hint = "Try another guess, or check that the inputs admit a steady state."
 		}
-		return m
+		return nil, c.Errorf("", hint, "equilibrium: %v", err)
 	}
-	sq := func(F []float64) float64 {
-		s := 0.0
-		for _, f := range F {
-			s += f * f
-		}
-		return s
-	}
-	const maxIter = 100
-	F, J, err := eval(x, true)
 	if err != nil {
 		return nil, err
 	}
-	iter := 0
-	for ; iter < maxIter; iter++ {
-		if err := c.Check(); err != nil {
-			return nil, err
-		}
-		r := norm(F)
-		if r == 0 {
-			break
-		}
-		// Newton step J dx = -F; a (nearly) singular J falls back to the
-		// least-squares step from the SVD.
-		dx, ok := newtonStep(J, F)
-		if !ok {
-			return nil, c.Errorf("", "Try another guess, or check that the inputs admit a steady state.",
-				"equilibrium: the Jacobian is singular at step %d (residual %.3g); Newton cannot go on", iter+1, r)
-		}
-		phi0 := sq(F)
-		t := 1.0
-		var xn, Fn []float64
-		accepted := false
-		for t > 1e-10 {
-			xn = make([]float64, n)
-			for i := range xn {
-				xn[i] = x[i] + t*dx[i]
-			}
-			var e error
-			Fn, _, e = eval(xn, false)
-			if e == nil && sq(Fn) <= (1-2e-4*t)*phi0 {
-				accepted = true
-				break
-			}
-			t /= 2
-		}
-		if !accepted {
-			if r <= 1e-12*math.Max(1, maxAbs(x)) {
-				break // already at the rounding level
-			}
-			return nil, c.Errorf("", "Try another guess: equilibrium(model, inputs: {...}, guess: {...}).",
-				"equilibrium: the line search cannot reduce the residual %.3g at step %d; the iteration is stuck (near a minimum of |f| that is not zero?)", r, iter+1)
-		}
-		small := true
-		for i := range dx {
-			if math.Abs(t*dx[i]) > 1e-15*math.Max(1, math.Abs(x[i])) {
-				small = false
-			}
-		}
-		x = xn
-		F, J, err = eval(x, true)
-		if err != nil {
-			return nil, err
-		}
-		if small || norm(F) <= 1e-15*math.Max(1, maxAbs(x)) {
-			iter++
-			break
-		}
-	}
-	res := norm(F)
-	if res > 1e-9*math.Max(1, maxAbs(x)) {
-		return nil, c.Errorf("", "Try another guess: equilibrium(model, inputs: {...}, guess: {...}).",
-			"equilibrium: no steady state found after %d Newton steps; the residual is still %.3g", iter, res)
-	}
-	e := &Equilibrium{States: &Record{}, Inputs: &Record{}, Residual: res, Iterations: iter}
-	e.setFamily(J)
-	for i, s := range bs.states {
-		e.States.Names = append(e.States.Names, s)
-		e.States.Values = append(e.States.Values, x[i])
-	}
-	for j, s := range bs.inputs {
-		e.Inputs.Names = append(e.Inputs.Names, s)
-		e.Inputs.Values = append(e.Inputs.Values, u[j])
-	}
-	return e, nil
+	return lsys.NewEquilibrium(bs.states, bs.inputs, x, u, res, iter, J, false), nil
 }
 
 // linearEquilibrium solves A x + B u = 0 (continuous) or A x + B u = x
@@ -560,104 +372,12 @@ func linearEquilibrium(c *Call, g *lsys.System) (any, error) {
 	if err := recordInto(c, "inputs", g.InputNames, "an input of this system", "a record such as {torque: 0}", u); err != nil {
 		return nil, err
 	}
-	J := mat.DenseCopyOf(g.A)
-	if g.Ts > 0 {
-		for i := 0; i < n; i++ {
-			J.Set(i, i, J.At(i, i)-1)
-		}
+	e, err := lsys.LinearEquilibrium(g, u)
+	var se *lsys.SteadyError
+	if errors.As(err, &se) {
+		return nil, c.Errorf("inputs", "A system with an integrator has a steady state only for inputs that leave it at rest.", "%v", err)
 	}
-	F := make([]float64, n)
-	for i := 0; i < n; i++ {
-		for j := 0; j < m; j++ {
-			F[i] += g.B.At(i, j) * u[j]
-		}
-	}
-	x := make([]float64, n)
-	if maxAbs(F) > 0 {
-		dx, ok := newtonStep(J, F)
-		if !ok {
-			return nil, c.Errorf("inputs", "A system with an integrator has a steady state only for inputs that leave it at rest.",
-				"no steady state for these inputs: the state matrix is zero, every state integrates its inputs")
-		}
-		x = dx
-	}
-	res := 0.0
-	for i := 0; i < n; i++ {
-		r := F[i]
-		for j := 0; j < n; j++ {
-			r += J.At(i, j) * x[j]
-		}
-		res = math.Max(res, math.Abs(r))
-	}
-	if res > 1e-9*math.Max(1, maxAbs(x)) {
-		return nil, c.Errorf("inputs", "A system with an integrator has a steady state only for inputs that leave it at rest.",
-			"no steady state for these inputs: the closest state leaves a residual of %.3g (the state matrix is singular)", res)
-	}
-	e := &Equilibrium{States: &Record{}, Inputs: &Record{}, Residual: res, Iterations: 1, minNorm: true}
-	e.setFamily(J)
-	for i, s := range g.StateNames {
-		e.States.Names = append(e.States.Names, s)
-		e.States.Values = append(e.States.Values, x[i])
-	}
-	for j, s := range g.InputNames {
-		e.Inputs.Names = append(e.Inputs.Names, s)
-		e.Inputs.Values = append(e.Inputs.Values, u[j])
-	}
-	return e, nil
-}
-
-func maxAbs(v []float64) float64 {
-	m := 0.0
-	for _, x := range v {
-		m = math.Max(m, math.Abs(x))
-	}
-	return m
-}
-
-// newtonStep solves J dx = -F by LU with partial pivoting; when J is
-// singular or its condition exceeds 1e12 it takes the minimum-norm
-// least-squares step from the SVD, truncating singular values below
-// 1e-12 of the largest. ok is false when J is zero.
-func newtonStep(J *mat.Dense, F []float64) ([]float64, bool) {
-	n := len(F)
-	rhs := mat.NewVecDense(n, nil)
-	for i, f := range F {
-		rhs.SetVec(i, -f)
-	}
-	var lu mat.LU
-	lu.Factorize(J)
-	if c := lu.Cond(); !math.IsInf(c, 0) && c < 1e12 {
-		var dx mat.VecDense
-		if err := lu.SolveVecTo(&dx, false, rhs); err == nil {
-			return dx.RawVector().Data, true
-		}
-	}
-	var svd mat.SVD
-	if !svd.Factorize(J, mat.SVDFull) {
-		return nil, false
-	}
-	s := svd.Values(nil)
-	if len(s) == 0 || s[0] == 0 {
-		return nil, false
-	}
-	var U, V mat.Dense
-	svd.UTo(&U)
-	svd.VTo(&V)
-	dx := make([]float64, n)
-	for k, sk := range s {
-		if sk <= 1e-12*s[0] {
-			break
-		}
-		var coef float64
-		for i := 0; i < n; i++ {
-			coef += U.At(i, k) * rhs.AtVec(i)
-		}
-		coef /= sk
-		for i := 0; i < n; i++ {
-			dx[i] += coef * V.At(i, k)
-		}
-	}
-	return dx, true
+	return e, err
 }
 
 func sensitivityFn(c *Call) (any, error) {

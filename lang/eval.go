@@ -844,7 +844,12 @@ func fieldsOf(v any) (fieldReader, bool) {
 	}
 	if ti, ok := typeNames.info(v); ok && ti.Field != nil {
 		return fieldReader{
-			names: func() []string { return ti.Fields },
+			names: func() []string {
+				if ti.FieldNames != nil {
+					return ti.FieldNames(v)
+				}
+				return ti.Fields
+			},
 			get: func(n string) (f any, found bool, err error) {
 				err = guard(func() error { f, found = ti.Field(v, n); return nil })
 				return f, found, err

@@ -171,17 +171,17 @@ func TestLinearizePendulum(t *testing.T) {
 func TestEquilibrium(t *testing.T) {
 	s := NewSession(Options{Dir: t.TempDir()})
 	run(t, s, pendulumCell)
-	e := run(t, s, "equilibrium(pendulum, inputs: {torque: 1}, guess: {angle: 0.1})").(*Equilibrium)
+	e := run(t, s, "equilibrium(pendulum, inputs: {torque: 1}, guess: {angle: 0.1})").(*lsys.Equilibrium)
 	want := math.Asin(1 * 0.5 / 9.81)
-	if a, _ := e.States.Get("angle"); math.Abs(a.(float64)-want) > 1e-12 {
+	if a, _ := e.State("angle"); math.Abs(a-want) > 1e-12 {
 		t.Errorf("angle %v, want %v", a, want)
 	}
 	if e.Residual >= 1e-10 {
 		t.Errorf("residual %v", e.Residual)
 	}
 	// The inverted branch from a guess near pi.
-	e2 := run(t, s, "equilibrium(pendulum, inputs: {torque: 1}, guess: {angle: 3})").(*Equilibrium)
-	if a, _ := e2.States.Get("angle"); math.Abs(a.(float64)-(math.Pi-want)) > 1e-12 || e2.Residual >= 1e-10 {
+	e2 := run(t, s, "equilibrium(pendulum, inputs: {torque: 1}, guess: {angle: 3})").(*lsys.Equilibrium)
+	if a, _ := e2.State("angle"); math.Abs(a-(math.Pi-want)) > 1e-12 || e2.Residual >= 1e-10 {
 		t.Errorf("angle %v, want %v (residual %v)", a, math.Pi-want, e2.Residual)
 	}
 	// linearize accepts the equilibrium.
@@ -198,8 +198,8 @@ tank = system {
   inputs inflow
   level' = (inflow - k*sqrt(level)) / area
 }`)
-	e3 := run(t, s, "equilibrium(tank, inputs: {inflow: 0.3}, guess: {level: 1})").(*Equilibrium)
-	if l, _ := e3.States.Get("level"); math.Abs(l.(float64)-0.36) > 1e-12 || e3.Residual >= 1e-10 {
+	e3 := run(t, s, "equilibrium(tank, inputs: {inflow: 0.3}, guess: {level: 1})").(*lsys.Equilibrium)
+	if l, _ := e3.State("level"); math.Abs(l-0.36) > 1e-12 || e3.Residual >= 1e-10 {
 		t.Errorf("tank level %v, want 0.36 (residual %v)", l, e3.Residual)
 	}
 	// No steady state: the torque exceeds what gravity can hold (g/L = 19.62).
@@ -433,8 +433,8 @@ growth = system every 1 {
   inputs u
   next x = x + r*x*(1 - x/K) + u
 }`)
-	e := run(t, s, "equilibrium(growth, inputs: {u: 0}, guess: {x: 40})").(*Equilibrium)
-	if x, _ := e.States.Get("x"); math.Abs(x.(float64)-50) > 1e-10 || e.Residual >= 1e-10 {
+	e := run(t, s, "equilibrium(growth, inputs: {u: 0}, guess: {x: 40})").(*lsys.Equilibrium)
+	if x, _ := e.State("x"); math.Abs(x-50) > 1e-10 || e.Residual >= 1e-10 {
 		t.Errorf("x = %v, want 50 (residual %v)", x, e.Residual)
 	}
 	lin := run(t, s, "linearize(growth, at: equilibrium(growth, inputs: {u: 0}, guess: {x: 40}))").(*lsys.System)
@@ -472,13 +472,13 @@ func TestSignalHidesSessionNumber(t *testing.T) {
 // position settles at 2 (static gain 1, second-order form, common practice).
 func TestLinearEquilibrium(t *testing.T) {
 	s := NewSession(Options{Dir: t.TempDir()})
-	e := run(t, s, "G = system([[0, 1], [-4, -0.4]], [0, 4], [1, 0])\nequilibrium(G, inputs: {u1: 2})").(*Equilibrium)
-	if x, _ := e.States.Get("x1"); math.Abs(x.(float64)-2) > 1e-14 {
+	e := run(t, s, "G = system([[0, 1], [-4, -0.4]], [0, 4], [1, 0])\nequilibrium(G, inputs: {u1: 2})").(*lsys.Equilibrium)
+	if x, _ := e.State("x1"); math.Abs(x-2) > 1e-14 {
 		t.Errorf("x1 = %v, want 2", x)
 	}
 	// Sampled: x = a x + (1 - a) u settles at x = u.
-	d := run(t, s, "equilibrium(system([[0.9]], [0.1], every: 1), inputs: {u1: 3})").(*Equilibrium)
-	if x, _ := d.States.Get("x1"); math.Abs(x.(float64)-3) > 1e-13 {
+	d := run(t, s, "equilibrium(system([[0.9]], [0.1], every: 1), inputs: {u1: 3})").(*lsys.Equilibrium)
+	if x, _ := d.State("x1"); math.Abs(x-3) > 1e-13 {
 		t.Errorf("sampled x1 = %v, want 3", x)
 	}
 	// An integrator driven by a constant input has no steady state.

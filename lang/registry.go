@@ -214,6 +214,9 @@ func builtinNames() []string {
 type TypeInfo struct {
 	Name   string   // for messages: "a step response"
 	Fields []string // field names, for completion after '.'
+	// FieldNames, when set, lists the fields of one value (names that
+	// depend on it, such as an equilibrium's states); else Fields.
+	FieldNames func(v any) []string
 	// Field returns the named field; ok false when there is none.
 	Field func(v any, name string) (value any, ok bool)
 }

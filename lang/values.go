@@ -2,8 +2,6 @@ package lang
 
 import (
 	"fmt"
-	"math"
-	"math/cmplx"
 	"reflect"
 	"strconv"
 	"strings"
@@ -13,6 +11,7 @@ import (
 
 	"lsys/lang/syntax"
 	"lsys/lsys"
+	"lsys/lsys/numfmt"
 )
 
 // Values handed out by the language are plain Go values where one fits:
@@ -99,39 +98,10 @@ func (f *Function) String() string {
 }
 
 // FormatNumber writes a real number with up to 10 significant digits.
-func FormatNumber(v float64) string {
-	switch {
-	case math.IsInf(v, 1):
-		return "inf"
-	case math.IsInf(v, -1):
-		return "-inf"
-	case math.IsNaN(v):
-		return "nan"
-	case v == 0:
-		return "0" // no "-0"
-	}
-	return strconv.FormatFloat(v, 'g', 10, 64)
-}
+func FormatNumber(v float64) string { return numfmt.Number(v) }
 
 // FormatComplex writes a + bj (or a - bj).
-func FormatComplex(c complex128) string {
-	re, im := real(c), imag(c)
-	if cmplx.IsNaN(c) {
-		return "nan"
-	}
-	if im == 0 {
-		return FormatNumber(re)
-	}
-	if re == 0 {
-		return FormatNumber(im) + "j"
-	}
-	sign := " + "
-	if im < 0 || (im == 0 && math.Signbit(im)) {
-		sign = " - "
-		im = -im
-	}
-	return FormatNumber(re) + sign + FormatNumber(im) + "j"
-}
+func FormatComplex(c complex128) string { return numfmt.Complex(c) }
 
 // inlineString is the one-line form of a value, used inside lists and records.
 func inlineString(v any, text func(any) (string, bool)) string {
@@ -304,8 +274,6 @@ func typeName(v any) string {
 		return "a mode table"
 	case *NonlinearModel:
 		return "a nonlinear model"
-	case *Equilibrium:
-		return "a steady state (equilibrium)"
 	}
 	if n, ok := typeNames.lookup(v); ok {
 		return n
