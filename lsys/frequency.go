@@ -23,6 +23,9 @@ type FrequencyResponse struct {
 	Hz      bool    // display frequencies in Hz
 	Nyquist float64 // pi/Ts for sampled systems, else 0
 	Rule    string  // how the range and grid were chosen
+	// InfiniteDC is set when the gain at zero frequency is infinite (an
+	// integrator): polar charts then frame the finite part of the curve.
+	InfiniteDC bool
 }
 
 // FrequencyOptions choose the grid; zero values choose it from the modes
@@ -69,6 +72,9 @@ func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) 
 	f := &FrequencyResponse{System: g, Inputs: append([]string(nil), g.InputNames...), Outputs: append([]string(nil), g.OutputNames...), Hz: opt.Hz}
 	if g.Sampled() {
 		f.Nyquist = math.Pi / g.Ts
+	}
+	if _, finite := DCGain(g); !finite {
+		f.InfiniteDC = true
 	}
 	ev := newFreqEval(g)
 	if opt.Grid != nil {

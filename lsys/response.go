@@ -145,6 +145,10 @@ type Response struct {
 	U        [][]float64 // input response: U[input][k], the input applied
 	Rule     string      // how the horizon and step were chosen
 	Sampled  bool        // sampled system: values hold between samples
+	// Final holds, for the step response of a stable system, the values
+	// it settles at (the DC gain, outputs x inputs); nil otherwise. The
+	// response carries it so a display draws it without recomputing.
+	Final *mat.Dense
 }
 
 // ResponseOptions set the horizon and step. Zero values choose them from
@@ -404,6 +408,11 @@ func freeOrForced(ctx context.Context, g *System, kind string, x0 []float64, opt
 	}
 	n, m, p := g.N(), g.M(), g.P()
 	r := &Response{System: g, Kind: kind, T: t, Outputs: append([]string(nil), g.OutputNames...), Rule: rule, Sampled: g.Sampled()}
+	if kind == "step" && Stable(g) {
+		if G, ok := DCGain(g); ok && G != nil {
+			r.Final = G
+		}
+	}
 	nch := m
 	if kind == "initial" {
 		nch = 1
