@@ -39,15 +39,24 @@ package lang
 //   - Names are plain English words of the trade, lower case.
 //   - Every example must run (TestRegistryExamples runs them all) and every
 //     built-in needs at least one test of its own.
+//   - Read arguments in one step with c.Bind("system", &g, "tol", &tol):
+//     the variable's type says what the argument must be, and an optional
+//     argument that was not written leaves its variable (the default) as it
+//     was. One argument may also be read with its typed getter (c.System).
 //   - Fn must not panic on user input (a panic is still caught and reported
-//     as an error at the call, but that is a bug). Return errors: the Call
-//     helpers (c.Float, c.System, c.Errorf, ...) return errors that point at
-//     the offending argument; any other error is reported at the call.
+//     as an error at the call, but that is a bug). Return errors: Bind, the
+//     Call helpers (c.Float, c.System, c.Errorf, ...) return errors that
+//     point at the offending argument; any other error is reported at the
+//     call, prefixed with the built-in's name (so lsys's errors carry none).
 //   - Long loops call c.Check() (cancellation, step budget) and may show
 //     progress with c.Progress.
 //   - Go types handed out that the language should know by name (for
 //     messages) or whose fields r.name reads are described with
-//     RegisterType, also from an init function in your file.
+//     RegisterType, also from an init function in your file. Its field list
+//     serves evaluation, completion, inspection and the "did you mean" of
+//     errors alike (fieldsOf in eval.go is the one field protocol).
+//   - Hand out lsys's own result types; numerics (Newton, rank decisions)
+//     belong in lsys, their rendering in display.
 //   - Named arguments beyond the parameters (locus(f, k: ...)): set AnyNamed
 //     and read c.Extra. Variadic last parameters: c.Rest. Files beside the
 //     notebook: c.Dir(). Calling a user function: c.Apply(f, args...).
