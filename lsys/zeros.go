@@ -508,26 +508,15 @@ func mergeMultiple(vals []complex128, rel float64) []complex128 {
 	if n < 2 {
 		return vals
 	}
-	parent := make([]int, n)
-	for i := range parent {
-		parent[i] = i
-	}
-	var find func(int) int
-	find = func(i int) int {
-		for parent[i] != i {
-			i = parent[i]
-		}
-		return i
-	}
+	sets := newUnionFind(n)
 	for i := 0; i < n; i++ {
 		for j := i + 1; j < n; j++ {
 			if cmplx.Abs(vals[i]-vals[j]) <= rel*math.Max(cmplx.Abs(vals[i]), cmplx.Abs(vals[j])) {
-				if a, b := find(i), find(j); a != b {
-					parent[b] = a
-				}
+				sets.join(i, j)
 			}
 		}
 	}
+	find := sets.root
 	sum := make(map[int]complex128)
 	cnt := make(map[int]int)
 	for i, v := range vals {
