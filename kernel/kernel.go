@@ -46,8 +46,11 @@ const (
 	handshakeTimeout = 10 * time.Second
 	// writeTimeout drops a peer that has not taken a frame for this long.
 	writeTimeout = 30 * time.Second
-	// hbMaxMessage bounds heartbeat pings, which are a few bytes.
-	hbMaxMessage = 64 << 10
+	// smallMessage bounds what peers send on iopub (subscriptions) and the
+	// heartbeat (pings): a few bytes each.
+	smallMessage = 64 << 10
+	// stdinMaxMessage bounds stdin, where the kernel never asks for input.
+	stdinMaxMessage = 1 << 20
 	// hbWriteTimeout drops a heartbeat peer that does not read its echoes.
 	hbWriteTimeout = 2 * time.Second
 )
@@ -115,18 +118,18 @@ func (k *Kernel) Serve(ctx context.Context) (restart bool, err error) {
 	max := k.cfg.MaxMessageSize
 	// Log lines of the ZMTP layer (refused peers) go to the kernel's log.
 	zlog := log.New(k.log.Writer(), k.log.Prefix()+"zmq: ", k.log.Flags())
-	opts := []zmq4.Option{zmq4.WithLogger(zlog), zmq4.WithMaxMessageSize(max), zmq4.WithMaxInflight(2 * max),
-		zmq4.WithHandshakeTimeout(handshakeTimeout), zmq4.WithWriteTimeout(writeTimeout)}
-	k.shell = zmq4.NewRouter(ctx, opts...)
-	k.control = zmq4.NewRouter(ctx, opts...)
-	k.stdin = zmq4.NewRouter(ctx, opts...)
-	k.iopub = zmq4.NewPub(ctx, opts...)
+	opts := func(max int64, write time.Duration) []zmq4.Option {
+		return []zmq4.Option{zmq4.WithLogger(zlog), zmq4.WithMaxMessageSize(max), zmq4.WithMaxInflight(2 * max),
+			zmq4.WithHandshakeTimeout(handshakeTimeout), zmq4.WithWriteTimeout(write)}
+	}
+	k.shell = zmq4.NewRouter(ctx, opts(max, writeTimeout)...)
+	k.control = zmq4.NewRouter(ctx, opts(max, writeTimeout)...)
+	k.stdin = zmq4.NewRouter(ctx, opts(stdinMaxMessage, writeTimeout)...)
+	k.iopub = zmq4.NewPub(ctx, opts(smallMessage, writeTimeout)...)
 	// The heartbeat is a ROUTER that echoes what it gets (a REQ or DEALER
 	// client sees a REP): unlike a REP it can answer each peer on its own,
 	// so one that stops reading cannot stall the echoes of the others.
-	k.hb = zmq4.NewRouter(ctx, zmq4.WithLogger(zlog), zmq4.WithMaxMessageSize(hbMaxMessage),
-		zmq4.WithMaxInflight(64*hbMaxMessage), zmq4.WithHandshakeTimeout(handshakeTimeout),
-		zmq4.WithWriteTimeout(hbWriteTimeout))
+	k.hb = zmq4.NewRouter(ctx, opts(smallMessage, hbWriteTimeout)...)
 	socks := []struct {
 		s    zmq4.Socket
 		port int

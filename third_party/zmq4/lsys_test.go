@@ -293,3 +293,27 @@ func quietLog(t *testing.T) *log.Logger {
 type testWriter struct{ t *testing.T }
 
 func (w testWriter) Write(p []byte) (int, error) { w.t.Log(string(p)); return len(p), nil }
+
+func TestWriteTimeoutDropsPeerThatDoesNotRead(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	r := NewRouter(ctx, WithLogger(quietLog(t)), WithWriteTimeout(200*time.Millisecond))
+	defer r.Close()
+	listen(t, r)
+	c := rawHandshake(t, r.Addr(), "DEALER") // never reads again
+	c.Write([]byte{0, 2, 'h', 'i'})
+	m, err := r.Recv()
+	if err != nil {
+		t.Fatal(err)
+	}
+	id := m.Frames[0]
+	big := make([]byte, 1<<20)
+	within(t, 10*time.Second, "sending to a peer that does not read", func() error {
+		for i := 0; i < 64; i++ {
+			if err := r.Send(NewMsgFrom(id, big)); err != nil {
+				return nil // dropped: the send failed instead of blocking
+			}
+		}
+		return errors.New("64 MiB went to a peer that reads nothing")
+	})
+}
