@@ -9,6 +9,7 @@ package main
 
 import (
 	"context"
+	"errors"
 	"flag"
 	"fmt"
 	"os"
@@ -36,6 +37,11 @@ func main() {
 		err = runKernel(os.Args[2:])
 	case "kernelspec":
 		err = runKernelspec(os.Args[2:])
+	case "run":
+		err = runHeadless(os.Args[2:], os.Stdout, os.Stderr)
+		if errors.Is(err, errFailed) {
+			os.Exit(1) // the failing cells are already named on stderr
+		}
 	case "version", "--version":
 		fmt.Println("lsys", version)
 	case "help", "-h", "--help":
@@ -56,6 +62,9 @@ func usage() {
   lsys kernel <connection file>   serve a Jupyter front end (Jupyter starts this)
   lsys kernelspec [--user | --prefix DIR | --sys-prefix] [--name NAME]
                                   register the kernel with Jupyter
+  lsys run NOTEBOOK.ipynb | SCRIPT.lsys [--html REPORT.html] [--inplace | -o OUT.ipynb]
+           [--keep-going] [--set name=value ...] [-q]
+                                  run without Jupyter: an executed notebook, a report
   lsys version                    print the version
 `)
 }

@@ -12,6 +12,7 @@ import (
 	"fmt"
 	"html"
 	"reflect"
+	"runtime/debug"
 	"sort"
 	"strings"
 	"sync"
@@ -95,10 +96,44 @@ func Render(v any, opt Options) Bundle {
 		embedChart(&b)
 		return b
 	}
+	if m, ok := v.(members); ok {
+		return renderMembers(m, opt)
+	}
+	if tw, ok := v.(textWither); ok {
+		return NewBundle(tw.TextWith(TextOf))
+	}
 	if s, ok := v.(fmt.Stringer); ok {
 		return NewBundle(s.String())
 	}
 	return NewBundle(fmt.Sprintf("%v", v))
+}
+
+// RenderSafe renders v like Render, but a renderer that panics costs only
+// the picture: the bundle becomes a text note and err carries the panic and
+// its stack for the front end's log.
+func RenderSafe(v any, opt Options) (b Bundle, err error) {
+	defer func() {
+		if p := recover(); p != nil {
+			err = fmt.Errorf("rendering %T panicked: %v\n%s", v, p, debug.Stack())
+			b = NewBundle(fmt.Sprintf("(the result was computed but could not be displayed: %v; please report this cell)", p))
+		}
+	}()
+	return Render(v, opt), nil
+}
+
+// textWither is a composite value (a list or record of a language) whose
+// text form shows its members with a text formatter it is given, so that
+// members this package renders show their own text.
+type textWither interface {
+	TextWith(text func(any) (string, bool)) string
+}
+
+// TextOf is the text/plain rendering of v. Front ends pass it to the
+// language as its text option, so print and inspect show analysis results
+// as a notebook does.
+func TextOf(v any) (string, bool) {
+	s, ok := Render(v, Options{}).Data[Text].(string)
+	return s, ok
 }
 
 // embedChart puts a bundle's SVG chart into its HTML part as an image.

@@ -95,13 +95,11 @@ func renderResponse(v any, opt Options) Bundle {
 		text += fmt.Sprintf("\n(chart shows the first %d outputs and %d channels)", rows, cols)
 	}
 	var gain []float64
-	if r.Kind == "step" && lsys.Stable(r.System) {
-		if G, ok := lsys.DCGain(r.System); ok && G != nil {
-			_, m := G.Dims()
-			for i := 0; i < len(r.Outputs); i++ {
-				for j := 0; j < m; j++ {
-					gain = append(gain, G.At(i, j))
-				}
+	if G := r.Final; G != nil {
+		_, m := G.Dims()
+		for i := 0; i < len(r.Outputs); i++ {
+			for j := 0; j < m; j++ {
+				gain = append(gain, G.At(i, j))
 			}
 		}
 	}

@@ -148,7 +148,7 @@ func renderPolar(v any, opt Options) Bundle {
 			sorted := append([]float64(nil), mags...)
 			sort.Float64s(sorted)
 			R := math.Inf(1)
-			if _, finite := lsys.DCGain(f.System); !finite {
+			if f.InfiniteDC {
 				R = math.Max(1.2, sorted[int(0.85*float64(n-1))]*1.1)
 			}
 			xmin, xmax, ymin, ymax := -1.2, 0.2, -0.2, 0.2

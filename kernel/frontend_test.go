@@ -14,13 +14,14 @@ import (
 // TestNotebooksExecute runs every notebook in notebooks/ through Jupyter
 // (nbconvert --execute, as ./install does), checks that each stored output
 // is what a fresh run gives byte for byte (notebooks are stored executed,
-// and same input must give same output), then renders the HTML report.
+// and same input must give same output), checks that lsys run writes the
+// same notebook byte for byte, then renders Jupyter's HTML.
 // Regenerate a notebook after a deliberate display change with
 // jupyter nbconvert --to notebook --execute --inplace
 // --ExecutePreprocessor.record_timing=False notebooks/NAME.ipynb
 func TestNotebooksExecute(t *testing.T) {
 	needJupyter(t, "nbconvert", "nbclient", "jupyter_client")
-	_, env := buildKernel(t)
+	bin, env := buildKernel(t)
 	nbs, _ := filepath.Glob("../notebooks/*.ipynb")
 	if len(nbs) == 0 {
 		t.Fatal("no notebooks in notebooks/")
@@ -43,6 +44,16 @@ func TestNotebooksExecute(t *testing.T) {
 				"--ExecutePreprocessor.timeout=600", "--ExecutePreprocessor.record_timing=False",
 				"--output-dir", out, nb)
 			compareOutputs(t, nb, fresh)
+			// The headless front end writes the very bytes Jupyter stores
+			// from this kernel, whether or not the stored notebook is fresh.
+			headless := filepath.Join(out, base+".run.ipynb")
+			if b, err := exec.Command(bin, "run", "-q", nb, "-o", headless).CombinedOutput(); err != nil {
+				t.Fatalf("lsys run: %v\n%s", err, b)
+			}
+			want, _ := os.ReadFile(fresh)
+			if got, _ := os.ReadFile(headless); string(got) != string(want) {
+				t.Errorf("lsys run and Jupyter with the kernel wrote different notebooks:\n%s", firstDiff(string(got), string(want)))
+			}
 			run("--to", "html", "--output-dir", out, fresh)
 			html, err := os.ReadFile(filepath.Join(out, base+".html"))
 			if err != nil {

@@ -10,17 +10,8 @@ import (
 	"time"
 
 	"lsys/display"
-	"lsys/kernel/lang"
+	"lsys/lang"
 )
-
-// LanguageInfo is what kernel_info tells front ends about the language.
-var LanguageInfo = map[string]any{
-	"name":           "lsys",
-	"version":        "1",
-	"mimetype":       "text/x-lsys",
-	"file_extension": ".lsys",
-	"pygments_lexer": "text",
-}
 
 func (k *Kernel) routes() {
 	for _, mux := range []*Mux{k.shellMux, k.controlMux} {
@@ -56,7 +47,7 @@ func (k *Kernel) kernelInfo(r *Request) {
 		"protocol_version":       ProtocolVersion,
 		"implementation":         "lsys",
 		"implementation_version": k.cfg.Version,
-		"language_info":          LanguageInfo,
+		"language_info":          lang.LanguageInfo(),
 		"banner": "lsys " + k.cfg.Version + ": linear dynamic systems in notebooks.\n" +
 			"Results describe models; validate them against tests of the real plant.",
 		"help_links": links,
@@ -184,22 +175,11 @@ func (e *internalError) Error() string {
 // and traceback lines.
 func describeError(err error) (ename, evalue string, traceback []string) {
 	var ie *internalError
-	switch {
-	case errors.Is(err, context.Canceled):
-		ename = "Interrupted"
-		evalue = "the cell was interrupted; bindings made before the interrupt are kept"
-		return ename, evalue, []string{ename + ": " + evalue}
-	case errors.As(err, &ie):
-		ename = "InternalError"
-	default:
-		ename = "Error"
+	if errors.As(err, &ie) {
+		msg := err.Error()
+		return "InternalError", strings.SplitN(msg, "\n", 2)[0], strings.Split(msg, "\n")
 	}
-	msg := err.Error()
-	evalue = msg
-	if i := strings.IndexByte(msg, '\n'); i >= 0 {
-		evalue = msg[:i]
-	}
-	return ename, evalue, strings.Split(msg, "\n")
+	return lang.Describe(err)
 }
 
 func errorContent(ename, evalue string, tb []string, count int) map[string]any {
@@ -431,12 +411,10 @@ func (discard) ClearOutput(bool)          {}
 
 // render renders a value for the front end. A renderer that panics must not
 // cost the cell its reply: the panic becomes a text note instead.
-func (k *Kernel) render(v any) (b display.Bundle) {
-	defer func() {
-		if p := recover(); p != nil {
-			k.log.Printf("rendering %T panicked: %v\n%s", v, p, debug.Stack())
-			b = display.NewBundle(fmt.Sprintf("(the result was computed but could not be displayed: %v; please report this cell)", p))
-		}
-	}()
-	return display.Render(v, display.Options{})
+func (k *Kernel) render(v any) display.Bundle {
+	b, err := display.RenderSafe(v, display.Options{})
+	if err != nil {
+		k.log.Print(err)
+	}
+	return b
 }

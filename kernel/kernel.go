@@ -20,7 +20,7 @@ import (
 	"github.com/go-zeromq/zmq4"
 
 	"lsys/display"
-	"lsys/kernel/lang"
+	"lsys/lang"
 )
 
 // Config configures a kernel.
@@ -81,15 +81,6 @@ type Kernel struct {
 	restart  bool
 }
 
-// print and inspect in the language show analysis results by their text
-// form, which package display owns and the language cannot import.
-func init() {
-	lang.SetTextFormatter(func(v any) (string, bool) {
-		s, ok := display.Render(v, display.Options{}).Data[display.Text].(string)
-		return s, ok
-	})
-}
-
 // New prepares a kernel; Serve binds its sockets and runs it.
 func New(cfg Config) (*Kernel, error) {
 	if cfg.Conn == nil {
@@ -108,7 +99,8 @@ func New(cfg Config) (*Kernel, error) {
 	if cfg.MaxMessageSize <= 0 {
 		cfg.MaxMessageSize = DefaultMaxMessageSize
 	}
-	k := &Kernel{cfg: cfg, signer: s, session: newID(), log: cfg.Log, lang: lang.NewSession(cfg.Dir),
+	k := &Kernel{cfg: cfg, signer: s, session: newID(), log: cfg.Log,
+		lang: lang.NewSession(lang.Options{Dir: cfg.Dir, Text: display.TextOf}),
 		seen: newReplayGuard(replayMemory)}
 	k.shellMux = NewMux()
 	k.controlMux = NewMux()

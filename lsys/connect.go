@@ -114,10 +114,10 @@ func Parallel(g, h *System, sign float64) (*System, error) {
 // g's; the inputs, which carry the reference r, are named r1, r2, ...
 func Feedback(g, k *System, sign float64) (*System, error) {
 	if g == nil || k == nil {
-		return nil, errors.New("closeloop: a system is missing")
+		return nil, errors.New("a system is missing")
 	}
 	if sign != 1 && sign != -1 {
-		return nil, fmt.Errorf("closeloop: sign must be +1 or -1, got %v", sign)
+		return nil, fmt.Errorf("sign must be +1 or -1, got %v", sign)
 	}
 	if k.M() != g.P() || k.P() != g.M() {
 		return nil, &ShapeError{
@@ -140,7 +140,7 @@ func Feedback(g, k *System, sign float64) (*System, error) {
 	var lu mat.LU
 	lu.Factorize(E)
 	if c := lu.Cond(); c > 1e12 || lu.Det() == 0 {
-		return nil, fmt.Errorf("closeloop: the loop is algebraic and ill-posed: I - sign*Dg*Dk is singular (condition %.3g); add dynamics or change the direct feedthrough", c)
+		return nil, fmt.Errorf("the loop is algebraic and ill-posed: I - sign*Dg*Dk is singular (condition %.3g); add dynamics or change the direct feedthrough", c)
 	}
 	solveE := func(b *mat.Dense) *mat.Dense {
 		if b == nil {
@@ -164,7 +164,7 @@ func Feedback(g, k *System, sign float64) (*System, error) {
 	B := blocks([]int{ng, nk}, []int{m}, [][]*mat.Dense{{mul(g.B, Du)}, {mul(k.B, Dy)}})
 	s, err := NewSystem(n, m, p, A, B, Cy, Dy, ts)
 	if err != nil {
-		return nil, fmt.Errorf("closeloop: %w", err)
+		return nil, err
 	}
 	s.StateNames = unique(concat(g.StateNames, k.StateNames))
 	s.InputNames = unique(defaultNames("r", m))
@@ -177,11 +177,11 @@ func Feedback(g, k *System, sign float64) (*System, error) {
 // blocks share one.
 func Stack(systems ...*System) (*System, error) {
 	if len(systems) == 0 {
-		return nil, errors.New("stack: give at least one system")
+		return nil, errors.New("give at least one system")
 	}
 	for i, s := range systems {
 		if s == nil {
-			return nil, fmt.Errorf("stack: system %d is missing", i+1)
+			return nil, fmt.Errorf("system %d is missing", i+1)
 		}
 	}
 	ts, err := commonTs("stack", systems...)
@@ -205,7 +205,7 @@ func Stack(systems ...*System) (*System, error) {
 	}
 	out, err := NewSystem(n, m, p, blocks(ns, ns, As), blocks(ns, ms, Bs), blocks(ps, ns, Cs), blocks(ps, ms, Ds), ts)
 	if err != nil {
-		return nil, fmt.Errorf("stack: %w", err)
+		return nil, err
 	}
 	out.StateNames, out.InputNames, out.OutputNames = unique(sn), unique(in), unique(on)
 	return out, nil
@@ -220,17 +220,17 @@ func Stack(systems ...*System) (*System, error) {
 // well posed (I - P D invertible, reciprocal condition above 1e-12).
 func Connect(systems []*System, outputs []string) (*System, error) {
 	if len(systems) == 0 {
-		return nil, errors.New("connect: give at least one system")
+		return nil, errors.New("give at least one system")
 	}
 	outIndex := map[string]int{}
 	var outNames []string
 	for bi, s := range systems {
 		if s == nil {
-			return nil, fmt.Errorf("connect: system %d is missing", bi+1)
+			return nil, fmt.Errorf("system %d is missing", bi+1)
 		}
 		for _, name := range s.OutputNames {
 			if _, dup := outIndex[name]; dup {
-				return nil, fmt.Errorf("connect: output %q is produced by two blocks (block %d is the second); rename one so each signal has one source", name, bi+1)
+				return nil, fmt.Errorf("output %q is produced by two blocks (block %d is the second); rename one so each signal has one source", name, bi+1)
 			}
 			outIndex[name] = len(outNames)
 			outNames = append(outNames, name)
@@ -239,7 +239,7 @@ func Connect(systems []*System, outputs []string) (*System, error) {
 	// Raw stacked matrices (names handled here, not by Stack's suffixes).
 	st, err := Stack(systems...)
 	if err != nil {
-		return nil, fmt.Errorf("connect: %w", err)
+		return nil, err
 	}
 	n, mAll, pAll := st.N(), st.M(), st.P()
 	var extNames []string
@@ -283,7 +283,7 @@ func Connect(systems []*System, outputs []string) (*System, error) {
 		var lu mat.LU
 		lu.Factorize(F)
 		if c := lu.Cond(); c > 1e12 || lu.Det() == 0 {
-			return nil, fmt.Errorf("connect: the algebraic loop through the direct feedthroughs is ill-posed (condition %.3g); add dynamics in the loop", c)
+			return nil, fmt.Errorf("the algebraic loop through the direct feedthroughs is ill-posed (condition %.3g); add dynamics in the loop", c)
 		}
 		sol := func(b *mat.Dense) *mat.Dense {
 			if b == nil {
@@ -310,7 +310,7 @@ func Connect(systems []*System, outputs []string) (*System, error) {
 	for i, name := range sel {
 		j, ok := outIndex[name]
 		if !ok {
-			return nil, fmt.Errorf("connect: %q is not an output of any block; the outputs are %v", name, outNames)
+			return nil, fmt.Errorf("%q is not an output of any block; the outputs are %v", name, outNames)
 		}
 		S.Set(i, j, 1)
 	}
@@ -320,7 +320,7 @@ func Connect(systems []*System, outputs []string) (*System, error) {
 	Dy := mul(st.D, Du)
 	out, err := NewSystem(n, r, q, A, B, mul(S, Cy), mul(S, Dy), st.Ts)
 	if err != nil {
-		return nil, fmt.Errorf("connect: %w", err)
+		return nil, err
 	}
 	out.StateNames = st.StateNames
 	out.InputNames = extNames

@@ -17,10 +17,10 @@ import (
 // span more than 20 decades and the realization is ill-conditioned.
 func Pade(T float64, n int) (*Rational, error) {
 	if math.IsNaN(T) || math.IsInf(T, 0) || T < 0 {
-		return nil, fmt.Errorf("delay: the dead time must be a finite number >= 0 s, got %v", T)
+		return nil, fmt.Errorf("the dead time must be a finite number >= 0 s, got %v", T)
 	}
 	if n < 1 || n > 10 {
-		return nil, fmt.Errorf("delay: the order must be between 1 and 10, got %d", n)
+		return nil, fmt.Errorf("the order must be between 1 and 10, got %d", n)
 	}
 	if T == 0 {
 		return &Rational{Num: Poly{1}, Den: Poly{1}}, nil
@@ -57,7 +57,7 @@ func Delay(T float64, n int) (*System, error) {
 	}
 	s, err := Realize([][]*Rational{{r}}, 0)
 	if err != nil {
-		return nil, fmt.Errorf("delay: %w", err)
+		return nil, err
 	}
 	if T == 0 {
 		return s.WithNames(nil, []string{"in"}, []string{"out"})
@@ -65,7 +65,7 @@ func Delay(T float64, n int) (*System, error) {
 	A, B := scale(1/T, s.A), scale(1/T, s.B)
 	s, err = NewSystem(s.N(), 1, 1, A, B, s.C, s.D, 0)
 	if err != nil {
-		return nil, fmt.Errorf("delay: %w", err)
+		return nil, err
 	}
 	return s.WithNames(nil, []string{"in"}, []string{"out"})
 }

@@ -23,6 +23,9 @@ type FrequencyResponse struct {
 	Hz      bool    // display frequencies in Hz
 	Nyquist float64 // pi/Ts for sampled systems, else 0
 	Rule    string  // how the range and grid were chosen
+	// InfiniteDC is set when the gain at zero frequency is infinite (an
+	// integrator): polar charts then frame the finite part of the curve.
+	InfiniteDC bool
 }
 
 // FrequencyOptions choose the grid; zero values choose it from the modes
@@ -61,20 +64,23 @@ func Frequency(ctx context.Context, g *System, opt FrequencyOptions) (*Frequency
 // phase crossovers of a SISO loop too (see bracketRange).
 func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) (*FrequencyResponse, error) {
 	if g == nil {
-		return nil, errors.New("frequency: the system is missing")
+		return nil, errors.New("the system is missing")
 	}
 	if g.M() == 0 || g.P() == 0 {
-		return nil, errors.New("frequency: the system has no inputs or no outputs, so no frequency response")
+		return nil, errors.New("the system has no inputs or no outputs, so no frequency response")
 	}
 	f := &FrequencyResponse{System: g, Inputs: append([]string(nil), g.InputNames...), Outputs: append([]string(nil), g.OutputNames...), Hz: opt.Hz}
 	if g.Sampled() {
 		f.Nyquist = math.Pi / g.Ts
 	}
+	if _, finite := DCGain(g); !finite {
+		f.InfiniteDC = true
+	}
 	ev := newFreqEval(g)
 	if opt.Grid != nil {
 		for i, w := range opt.Grid {
 			if !(w >= 0) || math.IsInf(w, 0) || i > 0 && !(w > opt.Grid[i-1]) {
-				return nil, fmt.Errorf("frequency: the grid must be finite, >= 0 and increasing (entry %d is %g)", i+1, w)
+				return nil, fmt.Errorf("the grid must be finite, >= 0 and increasing (entry %d is %g)", i+1, w)
 			}
 		}
 		f.W = append([]float64(nil), opt.Grid...)
@@ -83,7 +89,7 @@ func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) 
 		for k, w := range f.W {
 			if k&63 == 0 {
 				if err := ctx.Err(); err != nil {
-					return nil, fmt.Errorf("frequency: interrupted: %w", err)
+					return nil, fmt.Errorf("interrupted: %w", err)
 				}
 				if opt.Progress != nil {
 					opt.Progress(float64(k) / float64(len(f.W)))
@@ -91,7 +97,7 @@ func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) 
 			}
 			v, err := ev.at(w)
 			if err != nil {
-				return nil, fmt.Errorf("frequency: at %g rad/s: %w", w, err)
+				return nil, fmt.Errorf("at %g rad/s: %w", w, err)
 			}
 			f.G[k] = v
 		}
@@ -115,7 +121,7 @@ func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) 
 			hi = opt.To
 		}
 		if !(hi > lo) || math.IsInf(hi, 0) {
-			return nil, fmt.Errorf("frequency: the range must satisfy 0 < from < to, got from %g to %g rad/s", lo, hi)
+			return nil, fmt.Errorf("the range must satisfy 0 < from < to, got from %g to %g rad/s", lo, hi)
 		}
 		rule = "range given"
 	}
@@ -150,7 +156,7 @@ func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) 
 			v, err = ev.at(w * (1 + 1e-9))
 		}
 		if err != nil {
-			return nil, fmt.Errorf("frequency: at %g rad/s: %w", w, err)
+			return nil, fmt.Errorf("at %g rad/s: %w", w, err)
 		}
 		pts[w] = v
 		return v, nil
@@ -162,7 +168,7 @@ func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) 
 	}
 	for pass := 0; pass < 8 && len(W) < 5000; pass++ {
 		if err := ctx.Err(); err != nil {
-			return nil, fmt.Errorf("frequency: interrupted: %w", err)
+			return nil, fmt.Errorf("interrupted: %w", err)
 		}
 		var next []float64
 		added := 0
@@ -408,14 +414,14 @@ func (e *freqEval) at(w float64) ([]complex128, error) {
 // G(e^{jwTs}) for a sampled system, as a p x m row-major slice.
 func GainAt(g *System, w float64) ([]complex128, error) {
 	if g == nil {
-		return nil, errors.New("gain: the system is missing")
+		return nil, errors.New("the system is missing")
 	}
 	if math.IsNaN(w) || math.IsInf(w, 0) || w < 0 {
-		return nil, fmt.Errorf("gain: the frequency must be a finite number >= 0 rad/s, got %v", w)
+		return nil, fmt.Errorf("the frequency must be a finite number >= 0 rad/s, got %v", w)
 	}
 	v, err := newFreqEval(g).at(w)
 	if err != nil {
-		return nil, fmt.Errorf("gain: at %g rad/s: %w (the system has a pole there)", w, err)
+		return nil, fmt.Errorf("at %g rad/s: %w (the system has a pole there)", w, err)
 	}
 	return v, nil
 }
@@ -488,7 +494,7 @@ func Singular(f *FrequencyResponse) (*SingularValues, error) {
 		}
 		var svd mat.SVD
 		if !svd.Factorize(R, mat.SVDNone) {
-			return nil, fmt.Errorf("singular: the SVD failed at %g rad/s", f.W[k])
+			return nil, fmt.Errorf("the SVD failed at %g rad/s", f.W[k])
 		}
 		sv := svd.Values(nil)
 		s := make([]float64, r)

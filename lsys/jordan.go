@@ -193,18 +193,8 @@ type eigGroup struct {
 // |l_i - l_j| <= min(cap, max(abs, c u ||A|| max(cond_i, cond_j))).
 func clusterEigenvalues(vals []complex128, cond []float64, normA, capTol, absTol float64) []eigGroup {
 	n := len(vals)
-	parent := make([]int, n)
-	for i := range parent {
-		parent[i] = i
-	}
-	var find func(int) int
-	find = func(i int) int {
-		for parent[i] != i {
-			parent[i] = parent[parent[i]]
-			i = parent[i]
-		}
-		return i
-	}
+	sets := newUnionFind(n)
+	find := sets.root
 	pairTol := func(i, j int) float64 {
 		t := jordanClusterFactor * dlamchE * math.Max(normA, dlamchE) * math.Max(cond[i], cond[j])
 		if math.IsNaN(t) || t > capTol {
@@ -217,10 +207,7 @@ func clusterEigenvalues(vals []complex128, cond []float64, normA, capTol, absTol
 		for j := i + 1; j < n; j++ {
 			t := pairTol(i, j)
 			if cmplx.Abs(vals[i]-vals[j]) <= t {
-				a, b := find(i), find(j)
-				if a != b {
-					parent[b] = a
-				}
+				sets.join(i, j)
 				tols[i] = math.Max(tols[i], t)
 				tols[j] = math.Max(tols[j], t)
 			}
@@ -314,7 +301,7 @@ func jordanBlocks(A *mat.Dense, lam complex128, k int, relTol, spreadTol float64
 		}
 		var svd mat.SVD
 		if !svd.Factorize(P, mat.SVDNone) {
-			return nil, nil, errors.New("jordan: singular value decomposition did not converge")
+			return nil, nil, errors.New("singular value decomposition did not converge")
 		}
 		sv := svd.Values(nil)
 		if j == 1 {

@@ -69,10 +69,10 @@ type Margins struct {
 // edge is not reported as a crossing or extremum: Notes say so.
 func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins, error) {
 	if L == nil {
-		return nil, errors.New("margins: the loop is missing")
+		return nil, errors.New("the loop is missing")
 	}
 	if L.M() != 1 || L.P() != 1 {
-		return nil, errors.New("margins: the loop must have one input and one output; pick one channel of a MIMO loop")
+		return nil, errors.New("the loop must have one input and one output; pick one channel of a MIMO loop")
 	}
 	f, err := frequency(ctx, L, opt, true)
 	if err != nil {

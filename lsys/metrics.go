@@ -61,7 +61,7 @@ const crossTol = 1e-12
 // system holds its values between samples: figures are sample times.
 func ResponseMetrics(r *Response) (*Metrics, error) {
 	if r == nil || len(r.T) < 2 {
-		return nil, errors.New("metrics: the response has fewer than two samples")
+		return nil, errors.New("the response has fewer than two samples")
 	}
 	out := &Metrics{Response: r}
 	if r.Sampled {

@@ -71,7 +71,7 @@ const modalXBound = 1e3
 // Anal. 16(2)), and says so in Note.
 func Modal(s *System) (*ModalForm, error) {
 	if s.N() == 0 {
-		return nil, errors.New("modal: a static gain has no modes")
+		return nil, errors.New("a static gain has no modes")
 	}
 	es, us, err := decisionEigen(s.A)
 	if err != nil {
@@ -165,7 +165,7 @@ func modalFromVectors(s *System, es *EigenStructure, js *JordanStructure) (*Moda
 		col += 2
 	}
 	if col != n {
-		return nil, fmt.Errorf("modal: %d columns for %d states", col, n)
+		return nil, fmt.Errorf("%d columns for %d states", col, n)
 	}
 	T, cond, err := stInverse(V)
 	mf.Cond = cond
@@ -241,7 +241,7 @@ func modalFromSchur(s *System, js *JordanStructure, why string) (*ModalForm, err
 				if i != ks {
 					_, _, ok := impl.Dtrexc(lapack.UpdateSchur, n, tr.Data, tr.Stride, zr.Data, zr.Stride, i, ks, work)
 					if !ok {
-						return nil, errors.New("modal: reordering the Schur form failed; eigenvalues too close to separate")
+						return nil, errors.New("reordering the Schur form failed; eigenvalues too close to separate")
 					}
 				}
 				ks += size
@@ -333,7 +333,7 @@ func modalFromSchur(s *System, js *JordanStructure, why string) (*ModalForm, err
 	}
 	Tm, cond, err := stInverse(W)
 	if err != nil {
-		return nil, fmt.Errorf("modal: %v", err)
+		return nil, fmt.Errorf("%v", err)
 	}
 	sys, err := transformWith(s, Tm, W)
 	if err != nil {

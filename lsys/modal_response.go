@@ -48,7 +48,7 @@ type ModalResponse struct {
 // the balanced model; its outputs are the same.
 func ByMode(ctx context.Context, g *System, kind string, x0 []float64, u *Signal, opt ResponseOptions) (*ModalResponse, error) {
 	if g == nil {
-		return nil, errors.New("response: the system is missing")
+		return nil, errors.New("the system is missing")
 	}
 	run := func(s *System) (*Response, error) {
 		switch kind {
@@ -60,11 +60,11 @@ func ByMode(ctx context.Context, g *System, kind string, x0 []float64, u *Signal
 			return Initial(ctx, s, x0, opt)
 		case "input":
 			if u == nil {
-				return nil, errors.New("response: the input signal is missing")
+				return nil, errors.New("the input signal is missing")
 			}
 			return Simulate(ctx, s, *u, x0, opt)
 		}
-		return nil, fmt.Errorf("response: unknown kind %q", kind)
+		return nil, fmt.Errorf("unknown kind %q", kind)
 	}
 	total, err := run(g)
 	if err != nil {

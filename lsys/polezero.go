@@ -22,7 +22,7 @@ type PoleZeroMap struct {
 // not be computed; the map then says so.
 func PoleZero(g *System, zeros []complex128, known bool) (*PoleZeroMap, error) {
 	if g == nil {
-		return nil, errors.New("polezero: the system is missing")
+		return nil, errors.New("the system is missing")
 	}
 	poles, err := Poles(g)
 	if err != nil {

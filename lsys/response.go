@@ -49,22 +49,22 @@ func StepSignal(height float64) Signal { return Signal{Kind: "step", Amp: height
 // TableSignal returns a tabulated signal (times t, one row of values per time).
 func TableSignal(t []float64, u [][]float64, name string) (Signal, error) {
 	if len(t) == 0 || len(t) != len(u) {
-		return Signal{}, fmt.Errorf("table: %d times but %d rows of values; give one row per time", len(t), len(u))
+		return Signal{}, fmt.Errorf("%d times but %d rows of values; give one row per time", len(t), len(u))
 	}
 	w := len(u[0])
 	for i := range t {
 		if math.IsNaN(t[i]) || math.IsInf(t[i], 0) {
-			return Signal{}, fmt.Errorf("table: time in row %d is %v; every entry must be finite", i+1, t[i])
+			return Signal{}, fmt.Errorf("time in row %d is %v; every entry must be finite", i+1, t[i])
 		}
 		if i > 0 && !(t[i] > t[i-1]) {
-			return Signal{}, fmt.Errorf("table: times must increase, but row %d has %g after %g", i+1, t[i], t[i-1])
+			return Signal{}, fmt.Errorf("times must increase, but row %d has %g after %g", i+1, t[i], t[i-1])
 		}
 		if len(u[i]) != w || w == 0 {
-			return Signal{}, fmt.Errorf("table: row %d has %d values but row 1 has %d", i+1, len(u[i]), w)
+			return Signal{}, fmt.Errorf("row %d has %d values but row 1 has %d", i+1, len(u[i]), w)
 		}
 		for j, v := range u[i] {
 			if math.IsNaN(v) || math.IsInf(v, 0) {
-				return Signal{}, fmt.Errorf("table: row %d, column %d is %v; every entry must be finite", i+1, j+1, v)
+				return Signal{}, fmt.Errorf("row %d, column %d is %v; every entry must be finite", i+1, j+1, v)
 			}
 		}
 	}
@@ -152,6 +152,10 @@ type Response struct {
 	signal *Signal
 	states []float64
 	x0     []float64
+	// Final holds, for the step response of a stable system, the values
+	// it settles at (the DC gain, outputs x inputs); nil otherwise. The
+	// response carries it so a display draws it without recomputing.
+	Final *mat.Dense
 }
 
 // ResponseOptions set the horizon and step. Zero values choose them from
@@ -391,11 +395,11 @@ func Impulse(ctx context.Context, g *System, opt ResponseOptions) (*Response, er
 // Initial returns the free response from the initial state x0.
 func Initial(ctx context.Context, g *System, x0 []float64, opt ResponseOptions) (*Response, error) {
 	if len(x0) != g.N() {
-		return nil, fmt.Errorf("response: the initial state has %d entries but the system has %d states (%v)", len(x0), g.N(), g.StateNames)
+		return nil, fmt.Errorf("the initial state has %d entries but the system has %d states (%v)", len(x0), g.N(), g.StateNames)
 	}
 	for i, v := range x0 {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return nil, fmt.Errorf("response: initial state entry %d (%s) is %v; it must be finite", i+1, g.StateNames[i], v)
+			return nil, fmt.Errorf("initial state entry %d (%s) is %v; it must be finite", i+1, g.StateNames[i], v)
 		}
 	}
 	r, err := freeOrForced(ctx, g, "initial", x0, opt)
@@ -407,14 +411,19 @@ func Initial(ctx context.Context, g *System, x0 []float64, opt ResponseOptions) 
 
 func freeOrForced(ctx context.Context, g *System, kind string, x0 []float64, opt ResponseOptions) (*Response, error) {
 	if g == nil {
-		return nil, errors.New("response: the system is missing")
+		return nil, errors.New("the system is missing")
 	}
 	t, h, rule, err := opt.grid(g)
 	if err != nil {
-		return nil, fmt.Errorf("response: %w", err)
+		return nil, err
 	}
 	n, m, p := g.N(), g.M(), g.P()
 	r := &Response{System: g, Kind: kind, T: t, Outputs: append([]string(nil), g.OutputNames...), Rule: rule, Sampled: g.Sampled()}
+	if kind == "step" && Stable(g) {
+		if G, ok := DCGain(g); ok && G != nil {
+			r.Final = G
+		}
+	}
 	nch := m
 	if kind == "initial" {
 		nch = 1
@@ -422,7 +431,7 @@ func freeOrForced(ctx context.Context, g *System, kind string, x0 []float64, opt
 	} else {
 		r.Channels = append([]string(nil), g.InputNames...)
 		if m == 0 {
-			return nil, fmt.Errorf("response: the system has no inputs, so it has no %s response; use initial: x0", kind)
+			return nil, fmt.Errorf("the system has no inputs, so it has no %s response; use initial: x0", kind)
 		}
 	}
 	N := len(t)
@@ -449,7 +458,7 @@ func freeOrForced(ctx context.Context, g *System, kind string, x0 []float64, opt
 				Phi, err = Expm(scale(h, g.A))
 			}
 			if err != nil {
-				return nil, fmt.Errorf("response: the transition over one step: %w", err)
+				return nil, fmt.Errorf("the transition over one step: %w", err)
 			}
 		}
 	}
@@ -483,7 +492,7 @@ func freeOrForced(ctx context.Context, g *System, kind string, x0 []float64, opt
 	for k := 0; k < N; k++ {
 		if k&255 == 0 {
 			if err := ctx.Err(); err != nil {
-				return nil, fmt.Errorf("response: interrupted: %w", err)
+				return nil, fmt.Errorf("interrupted: %w", err)
 			}
 			if opt.Progress != nil {
 				opt.Progress(float64(k) / float64(N))
@@ -524,7 +533,7 @@ func checkFiniteResponse(r *Response) error {
 		for c := range r.Y[i] {
 			for k, v := range r.Y[i][c] {
 				if math.IsNaN(v) || math.IsInf(v, 0) {
-					return fmt.Errorf("response: output %s overflows at t = %g s (the system grows too fast for this horizon); shorten it with until:", r.Outputs[i], r.T[k])
+					return fmt.Errorf("output %s overflows at t = %g s (the system grows too fast for this horizon); shorten it with until:", r.Outputs[i], r.T[k])
 				}
 			}
 		}
@@ -545,24 +554,24 @@ func checkFiniteResponse(r *Response) error {
 // at most.
 func Simulate(ctx context.Context, g *System, u Signal, x0 []float64, opt ResponseOptions) (*Response, error) {
 	if g == nil {
-		return nil, errors.New("response: the system is missing")
+		return nil, errors.New("the system is missing")
 	}
 	n, m, p := g.N(), g.M(), g.P()
 	if m == 0 {
-		return nil, errors.New("response: the system has no inputs to drive")
+		return nil, errors.New("the system has no inputs to drive")
 	}
 	if ch := u.Channels(); ch != 1 && ch != m {
-		return nil, fmt.Errorf("response: the input table has %d columns but the system has %d inputs (%v); give one column, or one per input", ch, m, g.InputNames)
+		return nil, fmt.Errorf("the input table has %d columns but the system has %d inputs (%v); give one column, or one per input", ch, m, g.InputNames)
 	}
 	if x0 != nil && len(x0) != n {
-		return nil, fmt.Errorf("response: the initial state has %d entries but the system has %d states", len(x0), n)
+		return nil, fmt.Errorf("the initial state has %d entries but the system has %d states", len(x0), n)
 	}
 	if opt.Until == 0 && u.Kind == "table" {
 		opt.Until = u.T[len(u.T)-1] + u.Delay
 	}
 	t, h, rule, err := opt.grid(g)
 	if err != nil {
-		return nil, fmt.Errorf("response: %w", err)
+		return nil, err
 	}
 	N := len(t)
 	r := &Response{System: g, Kind: "input", T: t, Outputs: append([]string(nil), g.OutputNames...), Rule: rule, Sampled: g.Sampled()}
@@ -583,7 +592,7 @@ func Simulate(ctx context.Context, g *System, u Signal, x0 []float64, opt Respon
 			}
 			v, err := u.At(tk, ch)
 			if err != nil {
-				return nil, fmt.Errorf("response: input at t = %g s: %w", tk, err)
+				return nil, fmt.Errorf("input at t = %g s: %w", tk, err)
 			}
 			r.U[j][k] = v
 		}
@@ -628,7 +637,7 @@ func Simulate(ctx context.Context, g *System, u Signal, x0 []float64, opt Respon
 	for k := 0; k < N; k++ {
 		if k&255 == 0 {
 			if err := ctx.Err(); err != nil {
-				return nil, fmt.Errorf("response: interrupted: %w", err)
+				return nil, fmt.Errorf("interrupted: %w", err)
 			}
 			if opt.Progress != nil {
 				opt.Progress(float64(k) / float64(N))
@@ -651,7 +660,7 @@ func Simulate(ctx context.Context, g *System, u Signal, x0 []float64, opt Respon
 		}
 		if pw != nil {
 			if err := pw.advance(xv, t[k], t[k+1], h); err != nil {
-				return nil, fmt.Errorf("response: %w", err)
+				return nil, err
 			}
 			continue
 		}

@@ -47,22 +47,22 @@ const (
 // exponential revisited", SIAM J. Matrix Anal. Appl. 26(4)).
 func Sample(g *System, T float64, method string, prewarp float64) (*System, error) {
 	if g == nil {
-		return nil, errors.New("sample: the system is missing")
+		return nil, errors.New("the system is missing")
 	}
 	if g.Sampled() {
-		return nil, fmt.Errorf("sample: the system is already sampled (%s); convert it back with continuous first", tsText(g.Ts))
+		return nil, fmt.Errorf("the system is already sampled (%s); convert it back with continuous first", tsText(g.Ts))
 	}
 	if !(T > 0) || math.IsInf(T, 0) {
-		return nil, fmt.Errorf("sample: the period must be a finite number > 0, got %v", T)
+		return nil, fmt.Errorf("the period must be a finite number > 0, got %v", T)
 	}
 	if math.IsNaN(prewarp) || math.IsInf(prewarp, 0) || prewarp < 0 {
-		return nil, fmt.Errorf("sample: the prewarp frequency must be finite and >= 0 rad/s, got %v", prewarp)
+		return nil, fmt.Errorf("the prewarp frequency must be finite and >= 0 rad/s, got %v", prewarp)
 	}
 	if prewarp > 0 && method != MethodTustin {
-		return nil, fmt.Errorf("sample: prewarp applies to the tustin method only, not %q", method)
+		return nil, fmt.Errorf("prewarp applies to the tustin method only, not %q", method)
 	}
 	if prewarp*T/2 >= math.Pi/2 {
-		return nil, fmt.Errorf("sample: the prewarp frequency %g rad/s must be below the Nyquist frequency pi/T = %g rad/s", prewarp, math.Pi/T)
+		return nil, fmt.Errorf("the prewarp frequency %g rad/s must be below the Nyquist frequency pi/T = %g rad/s", prewarp, math.Pi/T)
 	}
 	n, m, p := g.N(), g.M(), g.P()
 	var out *System
@@ -75,7 +75,7 @@ func Sample(g *System, T float64, method string, prewarp float64) (*System, erro
 		}
 		Phi, Gam, xerr := zohPair(g.A, g.B, T)
 		if xerr != nil {
-			return nil, fmt.Errorf("sample: %w", xerr)
+			return nil, xerr
 		}
 		out, err = NewSystem(n, m, p, Phi, Gam, g.C, g.D, T)
 	case MethodFOH:
@@ -85,7 +85,7 @@ func Sample(g *System, T float64, method string, prewarp float64) (*System, erro
 		}
 		Phi, G1, G2, xerr := fohTriple(g.A, g.B, T)
 		if xerr != nil {
-			return nil, fmt.Errorf("sample: %w", xerr)
+			return nil, xerr
 		}
 		var PmI mat.Dense
 		PmI.Sub(Phi, identity(n))
@@ -100,10 +100,10 @@ func Sample(g *System, T float64, method string, prewarp float64) (*System, erro
 	case MethodMatched:
 		out, err = matched(g, T)
 	default:
-		return nil, fmt.Errorf("sample: unknown method %q; use \"zoh\", \"foh\", \"tustin\" or \"matched\"", method)
+		return nil, fmt.Errorf("unknown method %q; use \"zoh\", \"foh\", \"tustin\" or \"matched\"", method)
 	}
 	if err != nil {
-		return nil, fmt.Errorf("sample: %w", err)
+		return nil, err
 	}
 	out.StateNames = append([]string(nil), g.StateNames...)
 	out.InputNames = append([]string(nil), g.InputNames...)
@@ -128,10 +128,10 @@ func Sample(g *System, T float64, method string, prewarp float64) (*System, erro
 //   - "matched" is not inverted here.
 func Continuous(gd *System, method string, prewarp float64) (*System, error) {
 	if gd == nil {
-		return nil, errors.New("continuous: the system is missing")
+		return nil, errors.New("the system is missing")
 	}
 	if !gd.Sampled() {
-		return nil, errors.New("continuous: the system is already continuous")
+		return nil, errors.New("the system is already continuous")
 	}
 	T := gd.Ts
 	n, m, p := gd.N(), gd.M(), gd.P()
@@ -142,7 +142,7 @@ func Continuous(gd *System, method string, prewarp float64) (*System, error) {
 		h := T
 		if prewarp > 0 {
 			if prewarp*T/2 >= math.Pi/2 {
-				return nil, fmt.Errorf("continuous: the prewarp frequency %g rad/s must be below pi/T = %g rad/s", prewarp, math.Pi/T)
+				return nil, fmt.Errorf("the prewarp frequency %g rad/s must be below pi/T = %g rad/s", prewarp, math.Pi/T)
 			}
 			h = 2 * math.Tan(prewarp*T/2) / prewarp
 		}
@@ -157,11 +157,11 @@ func Continuous(gd *System, method string, prewarp float64) (*System, error) {
 		var lu mat.LU
 		lu.Factorize(&ApI)
 		if c := lu.Cond(); c > 1e12 || lu.Det() == 0 {
-			return nil, errors.New("continuous: the sampled system has a pole at z = -1 (or very near it), which has no continuous counterpart under the tustin map")
+			return nil, errors.New("the sampled system has a pole at z = -1 (or very near it), which has no continuous counterpart under the tustin map")
 		}
 		var inv mat.Dense
 		if err := lu.SolveTo(&inv, false, identity(n)); err != nil {
-			return nil, fmt.Errorf("continuous: %w", err)
+			return nil, err
 		}
 		M := scale(2, &inv)
 		A := scale(2/h, add(identity(n), scale(-1, M)))
@@ -177,7 +177,7 @@ func Continuous(gd *System, method string, prewarp float64) (*System, error) {
 		F := blocks([]int{n, m}, []int{n, m}, [][]*mat.Dense{{gd.A, gd.B}, {nil, identity(m)}})
 		L, lerr := logm(F)
 		if lerr != nil {
-			return nil, fmt.Errorf("continuous: %w", lerr)
+			return nil, lerr
 		}
 		L.Scale(1/T, L)
 		var A, B *mat.Dense
@@ -196,33 +196,33 @@ func Continuous(gd *System, method string, prewarp float64) (*System, error) {
 		// Dd = D + C M2 B.
 		L, lerr := logm(gd.A)
 		if lerr != nil {
-			return nil, fmt.Errorf("continuous: %w", lerr)
+			return nil, lerr
 		}
 		A := scale(1/T, L)
 		_, M1, M2, xerr := fohTriple(A, identity(n), T)
 		if xerr != nil {
-			return nil, fmt.Errorf("continuous: %w", xerr)
+			return nil, xerr
 		}
 		N := add(M1, mul(add(gd.A, scale(-1, identity(n))), M2))
 		var lu mat.LU
 		lu.Factorize(N)
 		if c := lu.Cond(); c > 1e12 || lu.Det() == 0 {
-			return nil, errors.New("continuous: the first-order-hold input map cannot be inverted (singular integral of the exponential)")
+			return nil, errors.New("the first-order-hold input map cannot be inverted (singular integral of the exponential)")
 		}
 		var B *mat.Dense
 		if m > 0 {
 			B = mat.NewDense(n, m, nil)
 			if err := lu.SolveTo(B, false, gd.B); err != nil {
-				return nil, fmt.Errorf("continuous: %w", err)
+				return nil, err
 			}
 		}
 		D := add(gd.D, scale(-1, mul(gd.C, mul(M2, B))))
 		out, err = NewSystem(n, m, p, A, B, gd.C, D, 0)
 	default:
-		return nil, fmt.Errorf("continuous: method %q cannot be inverted here; use \"zoh\", \"foh\" or \"tustin\"", method)
+		return nil, fmt.Errorf("method %q cannot be inverted here; use \"zoh\", \"foh\" or \"tustin\"", method)
 	}
 	if err != nil {
-		return nil, fmt.Errorf("continuous: %w", err)
+		return nil, err
 	}
 	out.StateNames = append([]string(nil), gd.StateNames...)
 	out.InputNames = append([]string(nil), gd.InputNames...)
@@ -259,7 +259,7 @@ func sampleFree(g *System, T float64) (*System, error) {
 	if g.N() > 0 {
 		var err error
 		if Ad, err = Expm(scale(T, g.A)); err != nil {
-			return nil, fmt.Errorf("sample: %w", err)
+			return nil, err
 		}
 	}
 	return NewSystem(g.N(), g.M(), g.P(), Ad, nil, g.C, g.D, T)
@@ -426,26 +426,6 @@ func matched(g *System, T float64) (*System, error) {
 		return nil, err
 	}
 	return d, nil
-}
-
-// polyFromRoots returns the monic real polynomial (ascending) with the
-// given roots; complex roots must come in conjugate pairs (imaginary
-// parts of the product are rounding and are dropped).
-func polyFromRoots(roots []complex128) []float64 {
-	c := []complex128{1}
-	for _, r := range roots {
-		next := make([]complex128, len(c)+1)
-		for i, v := range c {
-			next[i+1] += v
-			next[i] -= r * v
-		}
-		c = next
-	}
-	out := make([]float64, len(c))
-	for i, v := range c {
-		out[i] = real(v)
-	}
-	return out
 }
 
 func polyAtC(p []float64, z complex128) complex128 {

@@ -58,7 +58,7 @@ var kalmanNames = [4]string{"reachable and observable", "reachable, not observab
 // J. Control 1). relTol <= 0 means DefaultRelTol.
 func StructureOf(s *System, relTol float64) (*Structure, error) {
 	if s.N() == 0 {
-		return nil, errors.New("structure: a static gain has no states")
+		return nil, errors.New("a static gain has no states")
 	}
 	if relTol <= 0 || math.IsNaN(relTol) {
 		relTol = DefaultRelTol
@@ -118,7 +118,7 @@ func StructureOf(s *System, relTol float64) (*Structure, error) {
 // Decompose returns the Kalman decomposition of s (see StructureOf).
 func Decompose(s *System, relTol float64) (*Decomposition, error) {
 	if s.N() == 0 {
-		return nil, errors.New("decompose: a static gain has no states")
+		return nil, errors.New("a static gain has no states")
 	}
 	if relTol <= 0 || math.IsNaN(relTol) {
 		relTol = DefaultRelTol
@@ -181,7 +181,7 @@ func kalman(s *System, rs, os *Staircase, relTol float64) (*Decomposition, float
 		_, cols = Tinv.Dims()
 	}
 	if cols != n {
-		return nil, angTol, fmt.Errorf("decompose: the four parts have %d states in all, not %d; the reachable and unobservable subspaces are too close to call at angle tolerance %.3g — try another tolerance", cols, n, angTol)
+		return nil, angTol, fmt.Errorf("the four parts have %d states in all, not %d; the reachable and unobservable subspaces are too close to call at angle tolerance %.3g — try another tolerance", cols, n, angTol)
 	}
 	dims := func(V *mat.Dense) int {
 		if V == nil {
@@ -299,10 +299,10 @@ func transformWith(s *System, T, Tinv *mat.Dense) (*System, error) {
 func Transform(s *System, T *mat.Dense) (*System, error) {
 	n := s.N()
 	if n == 0 {
-		return nil, errors.New("transform: a static gain has no states to change")
+		return nil, errors.New("a static gain has no states to change")
 	}
 	if T == nil {
-		return nil, errors.New("transform: T is missing")
+		return nil, errors.New("T is missing")
 	}
 	if r, c := T.Dims(); r != n || c != n {
 		return nil, &ShapeError{What: "T must be n x n with n the number of states", Got: Shape(T), Other: Shape(s.A)}
@@ -312,7 +312,7 @@ func Transform(s *System, T *mat.Dense) (*System, error) {
 	}
 	Tinv, _, err := stInverse(T)
 	if err != nil {
-		return nil, fmt.Errorf("transform: %v", err)
+		return nil, fmt.Errorf("%v", err)
 	}
 	return transformWith(s, T, Tinv)
 }

@@ -213,7 +213,7 @@ func Spectral(s *System, which string) (*Subspace, error) {
 	case "unstable":
 		sel = func(v complex128) bool { return !stableValue(v, s.Ts) }
 	default:
-		return nil, fmt.Errorf("spectral: unknown selection %q; use \"stable\", \"unstable\" or a list of eigenvalues", which)
+		return nil, fmt.Errorf("unknown selection %q; use \"stable\", \"unstable\" or a list of eigenvalues", which)
 	}
 	return spectral(s, which+" subspace", sel)
 }
@@ -250,7 +250,7 @@ func SpectralAt(s *System, values []complex128) (*Subspace, error) {
 			for _, v := range es.Values {
 				list = append(list, fmtComplex(v))
 			}
-			return nil, fmt.Errorf("spectral: %s is not an eigenvalue of A (within 1e-6 relative); the eigenvalues are %s", fmtComplex(want), strings.Join(list, ", "))
+			return nil, fmt.Errorf("%s is not an eigenvalue of A (within 1e-6 relative); the eigenvalues are %s", fmtComplex(want), strings.Join(list, ", "))
 		}
 	}
 	sel := func(v complex128) bool {
@@ -301,7 +301,7 @@ type InvariantCheck struct {
 // tol = 1000 n u (u the unit roundoff) unless relTol asks for more.
 func Invariant(A, V *mat.Dense, relTol float64) (*InvariantCheck, error) {
 	if A == nil || V == nil {
-		return nil, errors.New("invariant: A and V must be non-empty matrices")
+		return nil, errors.New("A and V must be non-empty matrices")
 	}
 	n, c := A.Dims()
 	if n != c {

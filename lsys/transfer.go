@@ -128,8 +128,8 @@ func tfChannel(s *System, i, j int, relTol float64) (*Rational, error) {
 	if best <= 0 {
 		return nil, fmt.Errorf("could not evaluate the channel away from its poles")
 	}
-	num := tfPolyFromRoots(zs)
-	den := tfPolyFromRoots(poles)
+	num := polyFromRoots(zs)
+	den := polyFromRoots(poles)
 	var nx, dx complex128 = 1, 1
 	for _, z := range zs {
 		nx *= x - z
@@ -169,9 +169,10 @@ func tfCleanCoefficients(p Poly) {
 	}
 }
 
-// tfPolyFromRoots returns prod(x - r) in ascending coefficients, real parts
-// kept (conjugate roots give real coefficients).
-func tfPolyFromRoots(roots []complex128) Poly {
+// polyFromRoots returns the monic polynomial prod(x - r) in ascending
+// coefficients; complex roots must come in conjugate pairs (the imaginary
+// parts of the product are rounding and are dropped).
+func polyFromRoots(roots []complex128) Poly {
 	c := []complex128{1}
 	for _, r := range roots {
 		next := make([]complex128, len(c)+1)

@@ -135,7 +135,7 @@ func invariantZeros(s *System, relTol float64) (zeroResult, int, float64, error)
 		W = identity(nf + mf)
 	}
 	if W == nil {
-		return zeroResult{}, nf, tol, errors.New("zeros: the reduced pencil could not be compressed")
+		return zeroResult{}, nf, tol, errors.New("the reduced pencil could not be compressed")
 	}
 	AB := stHcat(nf, f.A, f.B)
 	IE := mat.NewDense(nf, nf+mf, nil)
@@ -151,7 +151,7 @@ func invariantZeros(s *System, relTol float64) (zeroResult, int, float64, error)
 		// The reductions leave D invertible (Emami-Naeini & Van Dooren
 		// 1982, sec. 3), so this pencil is square unless a rank decision
 		// was borderline.
-		return zeroResult{}, nf, tol, fmt.Errorf("zeros: the reduced pencil is %dx%d, not square: a rank decision is borderline at tolerance %.3g; try another tolerance", nf, k, tol)
+		return zeroResult{}, nf, tol, fmt.Errorf("the reduced pencil is %dx%d, not square: a rank decision is borderline at tolerance %.3g; try another tolerance", nf, k, tol)
 	}
 	W1 := W.Slice(0, nf+mf, 0, nf)
 	var Af, Ef mat.Dense
@@ -557,26 +557,15 @@ func mergeMultiple(vals []complex128, rel, scale, zeroTol float64) ([]complex128
 		}
 		return realPencilValues(out), nil
 	}
-	parent := make([]int, n)
-	for i := range parent {
-		parent[i] = i
-	}
-	var find func(int) int
-	find = func(i int) int {
-		for parent[i] != i {
-			i = parent[i]
-		}
-		return i
-	}
+	sets := newUnionFind(n)
 	for i := 0; i < n; i++ {
 		for j := i + 1; j < n; j++ {
 			if cmplx.Abs(vals[i]-vals[j]) <= rel*math.Max(scale, math.Max(cmplx.Abs(vals[i]), cmplx.Abs(vals[j]))) {
-				if a, b := find(i), find(j); a != b {
-					parent[b] = a
-				}
+				sets.join(i, j)
 			}
 		}
 	}
+	find := sets.root
 	sum := make([]complex128, n)
 	cnt := make([]int, n)
 	for i, v := range vals {

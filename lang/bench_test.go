@@ -1,0 +1,60 @@
+package lang
+
+import (
+	"context"
+	"testing"
+)
+
+// BenchmarkEquationBlock: parse and compile the four-state gimbal block
+// into A, B, C, D.
+func BenchmarkEquationBlock(b *testing.B) {
+	s := NewSession(Options{})
+	for i := 0; i < b.N; i++ {
+		if _, err := s.Run(context.Background(), gimbalCell, nil); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkLinearizeEquilibrium: Newton's equilibrium and the linearization
+// of the pendulum.
+func BenchmarkLinearizeEquilibrium(b *testing.B) {
+	s := NewSession(Options{})
+	if _, err := s.Run(context.Background(), pendulumCell, nil); err != nil {
+		b.Fatal(err)
+	}
+	for i := 0; i < b.N; i++ {
+		if _, err := s.Run(context.Background(), "linearize(pendulum, at: equilibrium(pendulum, inputs: {torque: 1}, guess: {angle: 0.1}))", nil); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkRecursion: evaluation speed of user functions (fact(20) 1000 times).
+func BenchmarkRecursion(b *testing.B) {
+	s := NewSession(Options{})
+	if _, err := s.Run(context.Background(), "fact(n) = if n <= 1 then 1 else n*fact(n - 1)", nil); err != nil {
+		b.Fatal(err)
+	}
+	for i := 0; i < b.N; i++ {
+		if _, err := s.Run(context.Background(), "fact(20)", nil); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkLocusBlockFamily: a locus of 1000 values over a two-state
+// family written as an equation block in a function (each value compiles
+// the block, extracts A by automatic differentiation and takes its
+// eigenvalues).
+func BenchmarkLocusBlockFamily(b *testing.B) {
+	s := NewSession(Options{})
+	if _, err := s.Run(context.Background(), mountFamily, nil); err != nil {
+		b.Fatal(err)
+	}
+	for i := 0; i < b.N; i++ {
+		if _, err := s.Run(context.Background(), "locus(family, k: linear(1, 10, n: 1000))", nil); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

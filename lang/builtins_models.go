@@ -1,0 +1,577 @@
+package lang
+
+// Built-ins for equation models: linearize, equilibrium, sensitivity and
+// locus.
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+
+	"gonum.org/v1/gonum/mat"
+
+	"lsys/lsys"
+)
+
+func init() {
+	for _, b := range modelBuiltins() {
+		Register(b)
+	}
+	RegisterType((*lsys.Sensitivity)(nil), TypeInfo{Name: "an eigenvalue sensitivity table",
+		Fields: []string{"eigenvalues", "parameters", "values", "derivatives", "relative", "condition"},
+		Field: func(v any, name string) (any, bool) {
+			s := v.(*lsys.Sensitivity)
+			switch name {
+			case "eigenvalues":
+				return complexList(s.Eigenvalues), true
+			case "parameters":
+				return namesList(s.Parameters), true
+			case "values":
+				return realVector(s.Values), true
+			case "derivatives", "relative":
+				if len(s.Eigenvalues) == 0 || len(s.Parameters) == 0 {
+					return nil, false
+				}
+				m := mat.NewCDense(len(s.Eigenvalues), len(s.Parameters), nil)
+				for k := range s.Eigenvalues {
+					for j := range s.Parameters {
+						if name == "relative" {
+							m.Set(k, j, s.Relative(k, j))
+						} else {
+							m.Set(k, j, s.D[k][j])
+						}
+					}
+				}
+				return m, true
+			case "condition":
+				return realVector(s.Cond), true
+			}
+			return nil, false
+		}})
+	RegisterType((*lsys.Locus)(nil), TypeInfo{Name: "a locus", Fields: []string{"parameter", "values", "branches"},
+		Field: func(v any, name string) (any, bool) {
+			l := v.(*lsys.Locus)
+			switch name {
+			case "parameter":
+				return l.Parameter, true
+			case "values":
+				return realVector(l.Values), true
+			case "branches":
+				out := &List{}
+				for _, b := range l.Branches {
+					out.Items = append(out.Items, complexList(b))
+				}
+				return out, true
+			}
+			return nil, false
+		}})
+}
+
+func complexList(v []complex128) any {
+	m := mat.NewCDense(len(v), 1, nil)
+	for i, c := range v {
+		m.Set(i, 0, c)
+	}
+	return m
+}
+
+const pendulumExample = `g = 9.81; len = 0.5; damping = 0.2
+pendulum = system {
+  states angle, rate
+  inputs torque
+  outputs tip
+  angle' = rate
+  rate' = -g/len*sin(angle) - damping*rate + torque
+  tip = len*sin(angle)
+}
+`
+
+func modelBuiltins() []*Builtin {
+	return []*Builtin{
+		{
+			Name: "linearize", Group: GroupModels,
+			Params: []Param{
+				{Name: "model", Doc: "a nonlinear model (an equation block)"},
+				{Name: "at", Optional: true, Doc: "the operating point: a record with a value for every state and input, or an equilibrium"},
+			},
+			Help: "The linear system of a nonlinear model at an operating point, with exact Jacobians.",
+			Doc: "The matrices A = df/dx, B = df/du, C = dg/dx, D = dg/du are computed by forward-mode automatic differentiation " +
+				"(dual numbers): exact up to rounding, with no step size. The states, inputs and outputs of the result are deviations from " +
+				"the operating point. A linear system is returned as it is.",
+			Examples: []string{pendulumExample + "linearize(pendulum, at: {angle: pi, rate: 0, torque: 0})"},
+			Fn:       linearizeFn,
+		},
+		{
+			Name: "equilibrium", Group: GroupModels,
+			Params: []Param{
+				{Name: "model", Doc: "an equation block (nonlinear model or linear system), or a system in matrix form"},
+				{Name: "inputs", Optional: true, Doc: "a record with the constant input values; inputs left out are 0"},
+				{Name: "guess", Optional: true, Doc: "a record with starting values for the states; states left out start at 0"},
+			},
+			Help: "A steady state of a model for constant inputs, by Newton's method with a line search.",
+			Doc: "Solves f(x, u) = 0 (continuous) or f(x, u) = x (sampled) for the states x. The Jacobian comes from automatic " +
+				"differentiation; each Newton step is shortened until the residual falls (Armijo's rule, Dennis & Schnabel, " +
+				"Numerical Methods for Unconstrained Optimization and Nonlinear Equations, 1983, section 6.3). The result gives " +
+				"the states, the inputs, the residual max|f| and the number of steps, and can be passed to linearize(model, at: ...). " +
+				"When Newton fails, the error says why: a singular Jacobian, a line search that cannot reduce the residual, or too many steps. " +
+				"When the Jacobian df/dx at the result is singular (rank decided by its singular values, those at or below 1e-12 x the largest counting as zero), " +
+				"the steady state is not unique: it is one member of a family, the display says so, and `e.free` holds the free directions " +
+				"(an orthonormal basis of the null space, one column each, one row per state), `e.unique` is false and `e.rank` the rank.",
+			Examples: []string{pendulumExample + "e = equilibrium(pendulum, inputs: {torque: 0}, guess: {angle: 3})\nlinearize(pendulum, at: e)"},
+			Fn:       equilibriumFn,
+		},
+		{
+			Name: "sensitivity", Group: GroupModels,
+			Params: []Param{
+				{Name: "model", Doc: "an equation block: a system built from one, or a nonlinear model"},
+				{Name: "parameters", Optional: true, Doc: `names of parameters used in the block, as strings: ["k", "b"]; left out: every parameter of the block`},
+				{Name: "at", Optional: true, Doc: "operating point (nonlinear models only)"},
+			},
+			Help: "How fast each eigenvalue moves with each named parameter: d(eigenvalue)/d(parameter).",
+			Doc: "For each mode, d lambda/dp = w^H (dA/dp) v / (w^H v) with v, w the right and left eigenvectors of A. dA/dp is " +
+				"exact: second derivatives of the equations by hyper-dual numbers (Fike & Alonso 2011). A defective eigenvalue has no " +
+				"derivative and is marked undefined. The parameters are the values the block used when it was evaluated: numbers bound " +
+				"in the session and the parameters of the function whose body holds the block. So for a family f(k) = system { ... } " +
+				"write sensitivity(f(5), [\"k\"]): the sensitivities at k = 5. Left out, the list is every parameter of the block. " +
+				"The table also gives the relative sensitivity (p/|lambda|) d lambda/dp, the relative change of the eigenvalue per " +
+				"relative change of the parameter, which ranks parameters whatever their units.",
+			Examples: []string{"k = 4; b = 0.4; mass = 1\naxis = system {\n  states position, velocity\n  inputs force\n  position' = velocity\n  velocity' = (force - k*position - b*velocity) / mass\n}\nsensitivity(axis, [\"k\", \"b\"])",
+				"mass = 1; b = 0.4\nmount(k) = system {\n  states position, velocity\n  inputs force\n  position' = velocity\n  velocity' = (force - k*position - b*velocity) / mass\n}\nsensitivity(mount(5))"},
+			Fn: sensitivityFn,
+		},
+		{
+			Name: "locus", Group: GroupModels,
+			Params: []Param{
+				{Name: "family", Doc: "a function of one parameter that gives a system, e.g. f(k) = closeloop(G, k)"},
+			},
+			AnyNamed: true,
+			Help:     "How the modes of f(k) move as the parameter k runs over values: locus(f, k: linear(0, 10)).",
+			Doc: "The named argument gives the parameter's name (that of the function's parameter) and its values. At each value the " +
+				"eigenvalues of the system are matched to those of the previous value by a minimum-distance assignment (Kuhn 1955), so " +
+				"each branch follows one mode, even where modes cross. Long sweeps show their progress. The function's body may be an " +
+				"equation block: its parameter counts as a parameter of the block. The chart draws each branch from a cross at the " +
+				"first value to a square at the last, over the damping and frequency grid, with arrowheads for the direction and the parameter value at a few points; the table says where a mode crosses the stability boundary.",
+			Examples: []string{"axis(k) = system([[0, 1], [-k, -0.4]], [0, 1], [1, 0])\nlocus(axis, k: linear(1, 10, n: 20))",
+				"mass = 1; b = 0.4\nmount(k) = system {\n  states position, velocity\n  inputs force\n  position' = velocity\n  velocity' = (force - k*position - b*velocity) / mass\n}\nlocus(mount, k: linear(0.01, 1, n: 40))"},
+			Fn: locusFn,
+		},
+	}
+}
+
+// operatingPoint reads the values of the states and inputs from a record
+// or an equilibrium.
+func operatingPoint(c *Call, name string, bs *blockSource, needAll bool) (x, u []float64, err error) {
+	v := c.Value(name)
+	var rec *Record
+	switch t := v.(type) {
+	case *Record:
+		rec = t
+	case *lsys.Equilibrium:
+		rec = equilibriumPoint(t)
+	default:
+		return nil, nil, c.typeError(name, "a record such as {angle: 0, rate: 0, torque: 0}, or an equilibrium", v)
+	}
+	known := append(append([]string(nil), bs.states...), bs.inputs...)
+	for i, n := range rec.Names {
+		if !contains(known, n) {
+			return nil, nil, c.Errorf(name, "Give values for the states and inputs only: "+strings.Join(known, ", ")+".",
+				"'%s' is not a state or input of this model%s", n, didYouMean(n, known))
+		}
+		if _, ok := rec.Values[i].(float64); !ok {
+			return nil, nil, c.Errorf(name, "", "the value of '%s' must be a real number, not %s", n, typeName(rec.Values[i]))
+		}
+		if f := rec.Values[i].(float64); math.IsInf(f, 0) {
+			return nil, nil, c.Errorf(name, "", "the value of '%s' must be finite", n)
+		}
+	}
+	get := func(names []string, kind string) ([]float64, error) {
+		out := make([]float64, len(names))
+		for i, n := range names {
+			f, ok := rec.Get(n)
+			if !ok {
+				if needAll {
+					return nil, c.Errorf(name, "Give a value for every state and input: "+strings.Join(known, ", ")+".",
+						"%s gives no value for the %s '%s'", name, kind, n)
+				}
+				continue
+			}
+			out[i] = f.(float64)
+		}
+		return out, nil
+	}
+	if x, err = get(bs.states, "state"); err != nil {
+		return nil, nil, err
+	}
+	if u, err = get(bs.inputs, "input"); err != nil {
+		return nil, nil, err
+	}
+	return x, u, nil
+}
+
+func linearizeFn(c *Call) (any, error) {
+	v := c.Value("model")
+	if g, ok := v.(*lsys.System); ok {
+		return g, nil
+	}
+	bs, ok := c.ev.s.sourceOf(v)
+	if !ok {
+		return nil, c.typeError("model", "a nonlinear model (an equation block)", v)
+	}
+	if !c.Has("at") {
+		return nil, c.Errorf("", "Write linearize(model, at: {"+strings.Join(append(append([]string(nil), bs.states...), bs.inputs...), ": 0, ")+": 0}).",
+			"linearize needs the operating point 'at'")
+	}
+	x, u, err := operatingPoint(c, "at", bs, true)
+	if err != nil {
+		return nil, err
+	}
+	A, B, C, D, err := bs.jacobians(c.ev, x, u, "", nil)
+	if err != nil {
+		return nil, err
+	}
+	g, err := bs.system(A, B, C, D)
+	if err != nil {
+		return nil, c.Errorf("at", "", "%v", err)
+	}
+	return g, nil
+}
+
+// The equilibrium built-in hands out lsys's own *lsys.Equilibrium; its
+// fields are the states and inputs as records, the verdict, and each state
+// and input by name.
+var equilibriumFields = []string{"states", "inputs", "residual", "iterations", "unique", "free", "rank"}
+
+func init() {
+	RegisterType((*lsys.Equilibrium)(nil), TypeInfo{Name: "a steady state (equilibrium)",
+		Fields: equilibriumFields,
+		FieldNames: func(v any) []string {
+			e := v.(*lsys.Equilibrium)
+			out := append([]string(nil), equilibriumFields...)
+			out = append(out, e.StateNames...)
+			return append(out, e.InputNames...)
+		},
+		Field: func(v any, name string) (any, bool) {
+			e := v.(*lsys.Equilibrium)
+			switch name {
+			case "states":
+				return numberRecord(e.StateNames, e.X), true
+			case "inputs":
+				return numberRecord(e.InputNames, e.U), true
+			case "residual":
+				return e.Residual, true
+			case "iterations":
+				return float64(e.Iterations), true
+			case "unique":
+				return e.Free == nil, true
+			case "free":
+				// The free directions as columns, one row per state; [] when unique.
+				if e.Free == nil {
+					return &List{}, true
+				}
+				return mat.DenseCopyOf(e.Free), true
+			case "rank":
+				return float64(e.Rank), true
+			}
+			if x, ok := e.State(name); ok {
+				return x, true
+			}
+			return nil, false
+		}})
+}
+
+// numberRecord is {name: value, ...}.
+func numberRecord(names []string, vals []float64) *Record {
+	r := &Record{Names: append([]string(nil), names...), Values: make([]any, len(vals))}
+	for i, v := range vals {
+		r.Values[i] = v
+	}
+	return r
+}
+
+// equilibriumPoint is the record of states and inputs linearize reads.
+func equilibriumPoint(e *lsys.Equilibrium) *Record {
+	return numberRecord(append(append([]string(nil), e.StateNames...), e.InputNames...), append(append([]float64(nil), e.X...), e.U...))
+}
+
+func equilibriumFn(c *Call) (any, error) {
+	v := c.Value("model")
+	bs, ok := c.ev.s.sourceOf(v)
+	if !ok {
+		if g, isSys := v.(*lsys.System); isSys {
+			return linearEquilibrium(c, g)
+		}
+		if g, err := c.ev.toSystem(v, c.ArgPos("model")); err == nil && g != nil {
+			return linearEquilibrium(c, g)
+		}
+		return nil, c.typeError("model", "a model or a system", v)
+	}
+	n := len(bs.states)
+	if n == 0 {
+		return nil, c.Errorf("model", "", "the model has no states")
+	}
+	u := make([]float64, len(bs.inputs))
+	if err := recordInto(c, "inputs", bs.inputs, "an input of this model", "a record such as {torque: 0}", u); err != nil {
+		return nil, err
+	}
+	x := make([]float64, n)
+	if err := recordInto(c, "guess", bs.states, "a state of this model", "a record such as {angle: 3}", x); err != nil {
+		return nil, err
+	}
+	sampled := bs.ts > 0
+	// residual and Jacobian of F(x) = f(x, u) (- x when sampled).
+	eval := func(x []float64, jac bool) ([]float64, *mat.Dense, error) {
+		f, _, err := bs.evalAt(c.ev, x, u, -1, "", nil)
+		if err != nil {
+			return nil, nil, err
+		}
+		F := make([]float64, n)
+		for i := range F {
+			F[i] = f[i].V
+			if sampled {
+				F[i] -= x[i]
+			}
+		}
+		if !jac {
+			return F, nil, nil
+		}
+		A, _, _, _, err := bs.jacobians(c.ev, x, u, "", nil)
+		if err != nil {
+			return nil, nil, err
+		}
+		if sampled {
+			for i := 0; i < n; i++ {
+				A.Set(i, i, A.At(i, i)-1)
+			}
+		}
+		return F, A, nil
+	}
+	x, res, iter, J, err := lsys.SolveSteady(eval, x, c.Check)
+	var ne *lsys.NewtonError
+	if errors.As(err, &ne) {
+		hint := "Try another guess: equilibrium(model, inputs: {...}, guess: {...})."
+		if ne.Kind == lsys.NewtonSingular {
+			hint = "Try another guess, or check that the inputs admit a steady state."
+		}
+		return nil, c.Errorf("", hint, "equilibrium: %v", err)
+	}
+	if err != nil {
+		return nil, err
+	}
+	return lsys.NewEquilibrium(bs.states, bs.inputs, x, u, res, iter, J, false), nil
+}
+
+// linearEquilibrium solves A x + B u = 0 (continuous) or A x + B u = x
+// (sampled) for a system given by its matrices.
+func linearEquilibrium(c *Call, g *lsys.System) (any, error) {
+	n, m := g.N(), g.M()
+	if n == 0 {
+		return nil, c.Errorf("model", "", "the system has no states")
+	}
+	u := make([]float64, m)
+	if err := recordInto(c, "inputs", g.InputNames, "an input of this system", "a record such as {torque: 0}", u); err != nil {
+		return nil, err
+	}
+	e, err := lsys.LinearEquilibrium(g, u)
+	var se *lsys.SteadyError
+	if errors.As(err, &se) {
+		return nil, c.Errorf("inputs", "A system with an integrator has a steady state only for inputs that leave it at rest.", "%v", err)
+	}
+	return e, err
+}
+
+func sensitivityFn(c *Call) (any, error) {
+	v := c.Value("model")
+	bs, ok := c.ev.s.sourceOf(v)
+	if !ok {
+		if _, isSys := v.(*lsys.System); isSys {
+			return nil, c.Errorf("model", "Write the model as an equation block, system { ... }, using named parameters bound before it.",
+				"sensitivity needs a system written as an equation block, so that its parameters are known; this one was built from matrices")
+		}
+		if f, isFn := v.(*Function); isFn {
+			ex := f.Name + "(...)"
+			if len(f.Params) == 1 {
+				ex = f.Name + "(5)"
+			}
+			return nil, c.Errorf("model", fmt.Sprintf("Evaluate the family at the parameter values you want: sensitivity(%s, [\"%s\"]); the function's parameters count as parameters of its block.", ex, strings.Join(f.Params, "\", \"")),
+				"sensitivity needs a model, not the function %s; sensitivities are taken at one value of the parameters", f.Name)
+		}
+		return nil, c.typeError("model", "an equation block", v)
+	}
+	var names []string
+	if c.Has("parameters") {
+		var err error
+		if names, err = c.Strings("parameters"); err != nil {
+			return nil, err
+		}
+		if len(names) == 0 {
+			return nil, c.Errorf("parameters", "Leave the list out to take every parameter of the model.", "give at least one parameter name")
+		}
+	} else {
+		names = append(names, bs.paramOrder...)
+		if len(names) == 0 {
+			return nil, c.Errorf("model", "Write the coefficients as named parameters bound before the block (k = 4), or as parameters of a function: family(k) = system { ... }.",
+				"this model uses no named parameters: its equations have numbers only")
+		}
+	}
+	for _, p := range names {
+		if _, ok := bs.params[p]; !ok {
+			hint := "The parameters of this model are: " + strings.Join(bs.paramOrder, ", ") + "."
+			if len(bs.paramOrder) == 0 {
+				hint = "This model uses no named parameters: its equations have numbers only."
+			}
+			return nil, c.Errorf("parameters", hint, "'%s' is not a parameter of this model%s", p, didYouMean(p, bs.paramOrder))
+		}
+	}
+	x := make([]float64, len(bs.states))
+	u := make([]float64, len(bs.inputs))
+	if bs.firstNL != nil {
+		if !c.Has("at") {
+			return nil, c.Errorf("", "Give the operating point: sensitivity(model, [...], at: {...}).",
+				"a nonlinear model needs the operating point 'at'")
+		}
+		var err error
+		if x, u, err = operatingPoint(c, "at", bs, true); err != nil {
+			return nil, err
+		}
+	}
+	A, _, _, _, err := bs.jacobians(c.ev, x, u, "", nil)
+	if err != nil {
+		return nil, err
+	}
+	if A == nil {
+		return nil, c.Errorf("model", "", "the model has no states, so no eigenvalues")
+	}
+	var dA []*mat.Dense
+	var vals []float64
+	for _, p := range names {
+		d, _, _, _, err := bs.jacobians(c.ev, x, u, p, nil)
+		if err != nil {
+			return nil, err
+		}
+		dA = append(dA, d)
+		vals = append(vals, bs.params[p])
+	}
+	return lsys.EigenvalueSensitivity(A, dA, names, vals, bs.ts)
+}
+
+// MaxLocusSteps bounds the number of parameter values of one locus.
+const MaxLocusSteps = 100_000
+
+func locusFn(c *Call) (any, error) {
+	f := c.Value("family")
+	var params []string
+	switch t := f.(type) {
+	case *Function:
+		params = t.Params
+	case *Builtin:
+		return nil, c.Errorf("family", "Define a function first: f(k) = ..., then locus(f, k: values).", "locus needs a function of your own, not the built-in %s", t.Name)
+	default:
+		return nil, c.typeError("family", "a function such as f(k) = system(...)", f)
+	}
+	if len(params) != 1 {
+		return nil, c.Errorf("family", "", "the function must have exactly one parameter; it has %d", len(params))
+	}
+	if len(c.Extra) != 1 {
+		return nil, c.Errorf("", fmt.Sprintf("Write locus(f, %s: linear(1, 10)).", params[0]),
+			"locus needs one named argument: the parameter '%s' with its values", params[0])
+	}
+	nv := c.Extra[0]
+	if nv.Name != params[0] {
+		return nil, c.ev.errorAt(nv.Pos, fmt.Sprintf("the function's parameter is '%s', not '%s'", params[0], nv.Name),
+			fmt.Sprintf("Write locus(f, %s: values).", params[0]))
+	}
+	var values []float64
+	switch t := nv.Value.(type) {
+	case *mat.Dense:
+		r, cc := t.Dims()
+		for i := 0; i < r; i++ {
+			for j := 0; j < cc; j++ {
+				values = append(values, t.At(i, j))
+			}
+		}
+	case float64:
+		values = []float64{t}
+	default:
+		return nil, c.ev.errorAt(nv.Pos, fmt.Sprintf("the values of '%s' must be a vector of numbers, not %s", nv.Name, typeName(nv.Value)),
+			"Use linear(a, b, n: 50) or logarithmic(a, b).")
+	}
+	if len(values) > MaxLocusSteps {
+		return nil, c.ev.errorAt(nv.Pos, fmt.Sprintf("%d values are more than the limit of %d", len(values), MaxLocusSteps), "Use fewer values: linear(a, b, n: 200) is usually enough.")
+	}
+	progress := len(values) >= 50
+	const id = "locus-progress"
+	if progress {
+		c.Progress(id, fmt.Sprintf("locus: 0 of %d values", len(values)), true)
+	}
+	var eig [][]complex128
+	ts := 0.0
+	every := max(1, len(values)/10)
+	for k, p := range values {
+		if err := c.Check(); err != nil {
+			return nil, err
+		}
+		r, err := c.Apply(f, p)
+		if err != nil {
+			return nil, err
+		}
+		g, err := c.ev.toSystem(r, c.pos)
+		if err != nil {
+			return nil, err
+		}
+		if g == nil {
+			return nil, c.Errorf("family", "", "at %s = %s the function gives %s, not a system", nv.Name, FormatNumber(p), typeName(r))
+		}
+		if g.N() == 0 {
+			return nil, c.Errorf("family", "", "at %s = %s the system has no states, so no modes", nv.Name, FormatNumber(p))
+		}
+		if k > 0 && g.N() != len(eig[0]) {
+			return nil, c.Errorf("family", "A locus follows a fixed number of modes.",
+				"at %s = %s the system has %s, but %d at the first value", nv.Name, FormatNumber(p), plural(g.N(), "state"), len(eig[0]))
+		}
+		es, err := lsys.Eigen(g.A)
+		if err != nil {
+			return nil, c.Errorf("family", "", "at %s = %s: %v", nv.Name, FormatNumber(p), err)
+		}
+		eig = append(eig, es.Values)
+		ts = g.Ts
+		if progress && (k+1)%every == 0 && k+1 < len(values) {
+			c.Progress(id, fmt.Sprintf("locus: %d of %d values", k+1, len(values)), false)
+		}
+	}
+	if progress {
+		c.Progress(id, fmt.Sprintf("locus: %d values done", len(values)), false)
+	}
+	return lsys.NewLocus(nv.Name, values, eig, ts)
+}
+
+// recordInto reads the record argument param (if given) into dst, whose
+// entries are named by names: each field must be one of names and a finite
+// real number. what names an entry in messages ("an input of this model");
+// example shows the expected form.
+func recordInto(c *Call, param string, names []string, what, example string, dst []float64) error {
+	if !c.Has(param) {
+		return nil
+	}
+	r, ok := c.Value(param).(*Record)
+	if !ok {
+		return c.typeError(param, example, c.Value(param))
+	}
+	for i, name := range r.Names {
+		j := -1
+		for k, have := range names {
+			if have == name {
+				j = k
+			}
+		}
+		if j < 0 {
+			return c.Errorf(param, "", "'%s' is not %s%s", name, what, didYouMean(name, names))
+		}
+		f, ok := r.Values[i].(float64)
+		if !ok || math.IsInf(f, 0) {
+			return c.Errorf(param, "", "the value of '%s' must be a finite real number", name)
+		}
+		dst[j] = f
+	}
+	return nil
+}

@@ -1,0 +1,986 @@
+package lang
+
+// Built-ins for responses and connections: time and frequency responses,
+// metrics, margins, pole-zero maps, interconnection, sampling, delays and
+// input signals.
+
+import (
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+
+	"gonum.org/v1/gonum/mat"
+
+	"lsys/lsys"
+)
+
+var (
+	sigStep    = &lsys.Signal{Kind: "step", Amp: 1, Name: "step"}
+	sigImpulse = &lsys.Signal{Kind: "impulse", Amp: 1, Name: "impulse"}
+	sigRamp    = &lsys.Signal{Kind: "ramp", Amp: 1, Name: "ramp"}
+)
+
+const respExample = "G = 4 / (s^2 + 0.8*s + 4)\n"
+
+func init() {
+	for _, b := range responseBuiltins() {
+		Register(b)
+	}
+	RegisterType((*lsys.Signal)(nil), TypeInfo{Name: "an input signal"})
+	RegisterType((*lsys.Response)(nil), TypeInfo{
+		Name:   "a time response",
+		Fields: []string{"t", "y", "u", "kind"},
+		Field: func(v any, name string) (any, bool) {
+			r := v.(*lsys.Response)
+			switch name {
+			case "t":
+				return realVector(r.T), true
+			case "y":
+				return responseMatrix(r.Y, len(r.T)), true
+			case "u":
+				if r.U == nil {
+					return nil, false
+				}
+				return responseMatrix([][][]float64{r.U}, len(r.T)), true
+			case "kind":
+				return r.Kind, true
+			}
+			return nil, false
+		},
+	})
+	RegisterType((*lsys.ModalResponse)(nil), TypeInfo{Name: "a response split by mode", Fields: []string{"response", "modes"},
+		Field: func(v any, name string) (any, bool) {
+			m := v.(*lsys.ModalResponse)
+			switch name {
+			case "response":
+				return m.Response, true
+			case "modes":
+				items := make([]any, len(m.Labels))
+				for i, l := range m.Labels {
+					items[i] = l
+				}
+				return &List{Items: items}, true
+			}
+			return nil, false
+		}})
+	RegisterType((*lsys.Metrics)(nil), TypeInfo{
+		Name:   "response metrics",
+		Fields: []string{"rise_time", "settling_time", "overshoot", "peak", "peak_time", "steady"},
+		Field: func(v any, name string) (any, bool) {
+			m := v.(*lsys.Metrics)
+			get := func(f func(r lsys.Metric) float64) any {
+				if len(m.Rows) == 1 {
+					return f(m.Rows[0])
+				}
+				out := make([]float64, len(m.Rows))
+				for i, r := range m.Rows {
+					out[i] = f(r)
+				}
+				return realVector(out)
+			}
+			switch name {
+			case "rise_time":
+				return get(func(r lsys.Metric) float64 { return r.RiseTime }), true
+			case "settling_time":
+				return get(func(r lsys.Metric) float64 { return r.SettlingTime }), true
+			case "overshoot":
+				return get(func(r lsys.Metric) float64 { return r.Overshoot }), true
+			case "peak":
+				return get(func(r lsys.Metric) float64 { return r.Peak }), true
+			case "peak_time":
+				return get(func(r lsys.Metric) float64 { return r.PeakTime }), true
+			case "steady":
+				return get(func(r lsys.Metric) float64 { return r.Steady }), true
+			}
+			return nil, false
+		},
+	})
+	RegisterType((*lsys.Margins)(nil), TypeInfo{
+		Name: "loop margins",
+		Fields: []string{"gain_margin", "gain_margin_db", "phase_crossover", "phase_margin", "gain_crossover",
+			"delay_margin", "bandwidth", "resonant_peak", "resonant_frequency", "stable"},
+		Field: func(v any, name string) (any, bool) {
+			m := v.(*lsys.Margins)
+			switch name {
+			case "gain_margin":
+				return m.GainMargin, true
+			case "gain_margin_db":
+				return m.GainMarginDB, true
+			case "phase_crossover":
+				return m.PhaseCrossover, true
+			case "phase_margin":
+				return m.PhaseMargin, true
+			case "gain_crossover":
+				return m.GainCrossover, true
+			case "delay_margin":
+				return m.DelayMargin, true
+			case "bandwidth":
+				return m.Bandwidth, true
+			case "resonant_peak":
+				return m.ResonantPeak, true
+			case "resonant_frequency":
+				return m.ResonantFreq, true
+			case "stable":
+				return m.ClosedStable, true
+			}
+			return nil, false
+		},
+	})
+	RegisterType((*lsys.FrequencyResponse)(nil), TypeInfo{
+		Name: "a frequency response",
+		// .w is always in rad/s and .f in Hz, whatever hz: the chart shows
+		Fields: []string{"w", "f", "magnitude", "phase"},
+		Field: func(v any, name string) (any, bool) {
+			f := v.(*lsys.FrequencyResponse)
+			p, m := len(f.Outputs), len(f.Inputs)
+			cols := func(get func(i, j int) []float64) any {
+				M := mat.NewDense(len(f.W), p*m, nil)
+				for i := 0; i < p; i++ {
+					for j := 0; j < m; j++ {
+						M.SetCol(i*m+j, get(i, j))
+					}
+				}
+				return M
+			}
+			switch name {
+			case "w":
+				return realVector(f.W), true
+			case "f":
+				return realVector(inHz(f.W)), true
+			case "magnitude":
+				return cols(func(i, j int) []float64 {
+					mg := f.Magnitude(i, j)
+					for k := range mg {
+						mg[k] = 20 * math.Log10(mg[k])
+					}
+					return mg
+				}), true
+			case "phase":
+				return cols(f.Phase), true
+			}
+			return nil, false
+		},
+	})
+	RegisterType((*lsys.PolarChart)(nil), TypeInfo{Name: "a polar chart"})
+	RegisterType((*lsys.SingularValues)(nil), TypeInfo{Name: "singular values against frequency", Fields: []string{"w", "f", "values"},
+		Field: func(v any, name string) (any, bool) {
+			sv := v.(*lsys.SingularValues)
+			switch name {
+			case "w":
+				return realVector(sv.Frequency.W), true
+			case "f":
+				return realVector(inHz(sv.Frequency.W)), true
+			case "values":
+				if len(sv.S) == 0 || len(sv.S[0]) == 0 {
+					return nil, false
+				}
+				M := mat.NewDense(len(sv.S), len(sv.S[0]), nil)
+				for k, row := range sv.S {
+					M.SetRow(k, row)
+				}
+				return M, true
+			}
+			return nil, false
+		}})
+	RegisterType((*lsys.PoleZeroMap)(nil), TypeInfo{Name: "a pole-zero map", Fields: []string{"poles", "zeros"},
+		Field: func(v any, name string) (any, bool) {
+			pz := v.(*lsys.PoleZeroMap)
+			var vals []complex128
+			switch name {
+			case "poles":
+				vals = pz.Poles
+			case "zeros":
+				if !pz.ZerosKnown {
+					return nil, false
+				}
+				vals = pz.Zeros
+			default:
+				return nil, false
+			}
+			if len(vals) == 0 {
+				return &List{}, true
+			}
+			return mat.NewCDense(len(vals), 1, append([]complex128(nil), vals...)), true
+		}})
+}
+
+// responseMatrix puts the samples of every (output, channel) pair in
+// columns: column i*channels + c.
+func responseMatrix(y [][][]float64, n int) *mat.Dense {
+	cols := 0
+	for i := range y {
+		cols += len(y[i])
+	}
+	if cols == 0 || n == 0 {
+		return mat.NewDense(1, 1, []float64{math.NaN()})
+	}
+	M := mat.NewDense(n, cols, nil)
+	k := 0
+	for i := range y {
+		for c := range y[i] {
+			M.SetCol(k, y[i][c])
+			k++
+		}
+	}
+	return M
+}
+
+// optFloat reads an optional real argument (0 when absent).
+func optFloat(c *Call, name string) (float64, error) {
+	if !c.Has(name) || c.Value(name) == nil {
+		return 0, nil
+	}
+	v, err := c.Float(name)
+	if err != nil {
+		return 0, err
+	}
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, c.Errorf(name, "", "%s: '%s' must be a finite number, not %s", c.Builtin.Name, name, FormatNumber(v))
+	}
+	return v, nil
+}
+
+func vectorArg(c *Call, name string) ([]float64, error) {
+	M, err := c.Matrix(name)
+	if err != nil {
+		return nil, err
+	}
+	r, cc := M.Dims()
+	if cc != 1 && r != 1 {
+		return nil, c.Errorf(name, "Write a vector as [1, 2, 3].", "%s: '%s' must be a vector, not a %dx%d matrix", c.Builtin.Name, name, r, cc)
+	}
+	out := make([]float64, 0, r*cc)
+	for i := 0; i < r; i++ {
+		for j := 0; j < cc; j++ {
+			out = append(out, M.At(i, j))
+		}
+	}
+	return out, nil
+}
+
+func freqOptions(c *Call) (lsys.FrequencyOptions, error) {
+	var o lsys.FrequencyOptions
+	var err error
+	if o.From, err = optFloat(c, "from"); err != nil {
+		return o, err
+	}
+	if o.To, err = optFloat(c, "to"); err != nil {
+		return o, err
+	}
+	if o.Hz, err = c.Bool("hz"); err != nil {
+		return o, err
+	}
+	if o.Hz {
+		o.From *= 2 * math.Pi
+		o.To *= 2 * math.Pi
+	}
+	return o, nil
+}
+
+var freqParams = []Param{
+	{Name: "from", Optional: true, Doc: "lowest frequency (rad/s, or Hz with hz: true); default from the modes"},
+	{Name: "to", Optional: true, Doc: "highest frequency; default from the modes (sampled: the Nyquist frequency)"},
+	{Name: "hz", Default: false, Doc: "true: the chart and tables in Hz instead of rad/s; the fields stay .w in rad/s and .f in Hz either way"},
+}
+
+// signalOf turns a value into an input signal: a signal, or a user
+// function of time.
+func signalOf(c *Call, name string) (*lsys.Signal, error) {
+	v := c.Value(name)
+	switch x := v.(type) {
+	case *lsys.Signal:
+		return x, nil
+	case *Function, *Builtin:
+		fname := "u"
+		if f, ok := x.(*Function); ok {
+			fname = f.Name
+		} else {
+			fname = x.(*Builtin).Name
+		}
+		s := lsys.FuncSignal(fname, func(t float64) (float64, error) {
+			if err := c.Check(); err != nil {
+				return 0, err
+			}
+			r, err := c.Apply(v, t)
+			if err != nil {
+				return 0, err
+			}
+			switch y := r.(type) {
+			case float64:
+				return y, nil
+			case complex128:
+				if imag(y) == 0 {
+					return real(y), nil
+				}
+			}
+			return 0, fmt.Errorf("the input function %s(t) must give a real number, but gave %s at t = %s", fname, typeName(r), FormatNumber(t))
+		})
+		return &s, nil
+	}
+	return nil, c.Errorf(name, "Use step, impulse, ramp, sine(w), a table from load(\"file.csv\") or table(t, u), or a function f(t) = ...",
+		"%s: '%s' must be an input signal, not %s", c.Builtin.Name, name, typeName(v))
+}
+
+func responseBuiltins() []*Builtin {
+	return []*Builtin{
+		{
+			Name: "step", Group: GroupResponse, Value: sigStep,
+			Help:     "The unit step input, for response(G, step).",
+			Doc:      "A step of height 1 at t = 0 on each input in turn (one panel per input/output pair).",
+			Examples: []string{respExample + "response(G, step)"},
+		},
+		{
+			Name: "impulse", Group: GroupResponse, Value: sigImpulse,
+			Help:     "The unit impulse input, for response(G, impulse).",
+			Doc:      "A unit impulse at t = 0 on each input in turn. For a continuous system the response is the free response from x(0+) = B; the impulse D*delta(t) of a direct feedthrough is not drawn. For a sampled system it is the unit-pulse response.",
+			Examples: []string{respExample + "response(G, impulse)"},
+		},
+		{
+			Name: "ramp", Group: GroupResponse, Value: sigRamp,
+			Help:     "The unit ramp input u(t) = t, for response(G, ramp).",
+			Doc:      "Propagated exactly: the input is linear between samples (first-order hold through a block matrix exponential, Van Loan 1978).",
+			Examples: []string{respExample + "response(G, ramp, until: 5)"},
+		},
+		{
+			Name: "sine", Group: GroupResponse,
+			Params: []Param{
+				{Name: "w", Doc: "angular frequency in rad/s"},
+				{Name: "amplitude", Default: 1.0, Doc: "amplitude"},
+				{Name: "phase", Default: 0.0, Doc: "phase in rad"},
+				{Name: "start", Default: 0.0, Doc: "the signal is zero before this time (s)"},
+			},
+			Help:     "A sine input amplitude*sin(w t + phase), for response(G, sine(w)).",
+			Doc:      "Between samples the input is taken as linear (first-order hold), an O(h^2) approximation of the sine with the step h the response uses.",
+			Examples: []string{respExample + "response(G, sine(2), until: 20)"},
+			Fn: func(c *Call) (any, error) {
+				var w, a, ph, st float64
+				err := c.Bind("w", &w, "amplitude", &a, "phase", &ph, "start", &st)
+				if err != nil {
+					return nil, err
+				}
+				for _, v := range []float64{w, a, ph, st} {
+					if math.IsNaN(v) || math.IsInf(v, 0) {
+						return nil, c.Errorf("", "", "sine: every argument must be a finite number")
+					}
+				}
+				s := lsys.Sine(w, a)
+				s.Phase, s.Delay = ph, st
+				return &s, nil
+			},
+		},
+		{
+			Name: "table", Group: GroupResponse,
+			Params: []Param{
+				{Name: "t", Doc: "times (s), increasing"},
+				{Name: "u", Doc: "values: a vector (one channel) or a matrix with one row per time and one column per input"},
+				{Name: "hold", Default: "linear", Doc: `"linear" between rows, or "zoh" to hold each row until the next`},
+			},
+			Help:     "An input signal from a table of times and values, built in a cell.",
+			Doc:      "After the last time the last row is held. With one column the same values drive every input.",
+			Examples: []string{respExample + "u = table([0, 1, 2, 10], [0, 1, 1, 1], hold: \"zoh\")\nresponse(G, u)"},
+			Fn: func(c *Call) (any, error) {
+				t, err := vectorArg(c, "t")
+				if err != nil {
+					return nil, err
+				}
+				U, err := c.Matrix("u")
+				if err != nil {
+					return nil, err
+				}
+				r, cc := U.Dims()
+				if r == 1 && cc == len(t) && cc > 1 {
+					U = mat.DenseCopyOf(U.T())
+					r, cc = cc, 1
+				}
+				if r != len(t) {
+					return nil, c.Errorf("u", "", "table: %d times but %d rows of values; give one row per time", len(t), r)
+				}
+				rows := make([][]float64, r)
+				for i := range rows {
+					rows[i] = mat.Row(nil, i, U)
+				}
+				return makeTable(c, t, rows, "table")
+			},
+		},
+		{
+			Name: "load", Group: GroupOutput,
+			Params: []Param{
+				{Name: "file", Doc: "a CSV file beside the notebook: time in the first column, one column per input"},
+				{Name: "hold", Default: "linear", Doc: `"linear" between rows, or "zoh" to hold each row until the next`},
+			},
+			Help: "Read an input signal from a CSV table beside the notebook.",
+			Doc: "The first row may hold column names. Separators: comma (or semicolon). The file must lie in the notebook's folder " +
+				"or below it. Rows must have increasing times and finite numbers.",
+			Examples: []string{"# u = load(\"bench_test.csv\") reads time, then one column per input\nreadings(name) = load(name, hold: \"zoh\")"},
+			Fn: func(c *Call) (any, error) {
+				name, err := c.String("file")
+				if err != nil {
+					return nil, err
+				}
+				return loadTable(c, name)
+			},
+		},
+		{
+			Name: "response", Group: GroupResponse,
+			Params: []Param{
+				{Name: "system", Doc: "a system or transfer function"},
+				{Name: "input", Optional: true, Doc: "step, impulse, ramp, sine(w), a table, or a function f(t); leave out with initial:"},
+				{Name: "initial", Optional: true, Doc: "initial state, a vector with one entry per state"},
+				{Name: "until", Optional: true, Doc: "horizon in s; default from the modes"},
+				{Name: "dt", Optional: true, Doc: "time step in s (continuous systems); default from the modes"},
+				{Name: "by", Optional: true, Doc: `"mode": split the response into the contributions of the modes`},
+			},
+			Help: "Time response to a step, an impulse, an initial state or an input signal.",
+			Doc: "Exact at the samples: continuous systems are propagated through one block matrix exponential per step " +
+				"(Van Loan 1978) with the input held (step, zoh tables) or linear between samples (ramp, sine, tables, functions). " +
+				"Without until/dt the horizon lets the slowest mode settle (6 time constants, 5 periods of an undamped mode, " +
+				"capped at 5 time constants of a growing mode, rounded up to 1, 2 or 5 times a power of ten) and the step resolves " +
+				"the fastest mode with 20 samples per period (200 to 10,000 steps). MIMO step and impulse responses have one panel " +
+				"per input/output pair. by: \"mode\" splits the response into parts per mode (per invariant block where modes cannot be separated) that sum to it.",
+			Examples: []string{
+				respExample + "response(G, step)",
+				"A = [[0, 1], [-4, -0.4]]\nG = system(A, [0, 1], [1, 0])\nresponse(G, initial: [1, 0], until: 10)",
+				respExample + "response(G * 1/(s + 3), step, by: \"mode\")",
+			},
+			Fn: func(c *Call) (any, error) {
+				g, err := c.System("system")
+				if err != nil {
+					return nil, err
+				}
+				var opt lsys.ResponseOptions
+				if opt.Until, err = optFloat(c, "until"); err != nil {
+					return nil, err
+				}
+				if opt.Step, err = optFloat(c, "dt"); err != nil {
+					return nil, err
+				}
+				var x0 []float64
+				if c.Given("initial") {
+					if x0, err = vectorArg(c, "initial"); err != nil {
+						return nil, err
+					}
+					if len(x0) != g.N() {
+						return nil, c.Errorf("initial", "Give one value per state: "+strings.Join(g.StateNames, ", ")+".",
+							"response: the initial state has %d entries but the system has %d states", len(x0), g.N())
+					}
+				}
+				byMode := false
+				if c.Given("by") {
+					by, err := c.String("by")
+					if err != nil {
+						return nil, err
+					}
+					if by != "mode" {
+						return nil, c.Errorf("by", `Write by: "mode".`, "response: by must be \"mode\", not %q", by)
+					}
+					byMode = true
+				}
+				ctx := c.Context()
+				done := func() {}
+				if g.N() >= 200 {
+					opt.Progress, done = progress(c, "response")
+				}
+				defer done()
+				kind := "initial"
+				var sig *lsys.Signal
+				if c.Given("input") {
+					if sig, err = signalOf(c, "input"); err != nil {
+						return nil, err
+					}
+					switch {
+					case sig.Kind == "impulse":
+						if x0 != nil {
+							return nil, c.Errorf("initial", "", "response: an impulse response starts from rest; leave out initial:")
+						}
+						kind = "impulse"
+					case sig.Kind == "step" && x0 == nil:
+						kind = "step"
+					default:
+						kind = "input"
+					}
+				} else if x0 == nil {
+					return nil, c.Errorf("", "Give an input (step, impulse, ramp, sine(w), a table) or an initial state: response(G, initial: [1, 0]).",
+						"response: nothing drives the system")
+				}
+				if byMode {
+					return lsys.ByMode(ctx, g, kind, x0, sig, opt)
+				}
+				switch kind {
+				case "step":
+					return lsys.Step(ctx, g, opt)
+				case "impulse":
+					return lsys.Impulse(ctx, g, opt)
+				case "initial":
+					return lsys.Initial(ctx, g, x0, opt)
+				}
+				return lsys.Simulate(ctx, g, *sig, x0, opt)
+			},
+		},
+		{
+			Name: "metrics", Group: GroupResponse,
+			Params:   []Param{{Name: "r", Doc: "a time response (usually a step response)"}},
+			Help:     "Rise time (10-90 %), settling time (2 % band), overshoot, peak and peak time, steady value of a response.",
+			Doc:      "Measured on the computed response, crossing times interpolated between samples. The steady value of a stable step response is the exact steady-state gain; otherwise the last sample (and the table says so). Definitions as in Ogata, Modern Control Engineering, Section 5-3.",
+			Examples: []string{respExample + "metrics(response(G, step))"},
+			Fn: func(c *Call) (any, error) {
+				switch r := c.Value("r").(type) {
+				case *lsys.Response:
+					return lsys.ResponseMetrics(r)
+				case *lsys.ModalResponse:
+					return lsys.ResponseMetrics(r.Response)
+				default:
+					return nil, c.typeError("r", "a time response", r)
+				}
+			},
+		},
+		{
+			Name: "frequency", Group: GroupResponse,
+			Params: append([]Param{{Name: "system", Doc: "a system or transfer function"}}, freqParams...),
+			Help:   "Frequency response: magnitude (dB) and unwrapped phase (degrees) against frequency.",
+			Doc: "One Hessenberg reduction, then an O(n^2) complex Hessenberg solve per frequency (Laub 1981). " +
+				"The range runs a decade beyond the slowest and fastest modes (sampled: up to the Nyquist frequency); " +
+				"20 points per decade, refined where the magnitude moves more than 1 dB or the phase more than 5 degrees between points. " +
+				"Fields: .w the frequencies in rad/s and .f the same in Hz (whatever hz: the display uses), .magnitude in dB, .phase in degrees.",
+			Examples: []string{respExample + "frequency(G)", respExample + "frequency(G, from: 0.01, to: 10, hz: true)", respExample + "frequency(G, hz: true).f[1]"},
+			Fn: func(c *Call) (any, error) {
+				f, err := respFrequency(c)
+				if err != nil {
+					return nil, err
+				}
+				return f, nil
+			},
+		},
+		{
+			Name: "polar", Group: GroupResponse,
+			Params:   append([]Param{{Name: "system", Doc: "a system or transfer function (often a loop L = G*K)"}}, freqParams...),
+			Help:     "The polar (Nyquist) chart: G(jw) in the complex plane, with the critical point -1.",
+			Doc:      "Positive frequencies solid, their mirror image (negative frequencies) dashed. Near an integrator the curve runs off to infinity; the chart frames the finite part.",
+			Examples: []string{"L = 2 / (s*(s + 1)*(s + 2))\npolar(L)"},
+			Fn: func(c *Call) (any, error) {
+				f, err := respFrequency(c)
+				if err != nil {
+					return nil, err
+				}
+				return &lsys.PolarChart{Frequency: f}, nil
+			},
+		},
+		{
+			Name: "singular", Group: GroupResponse,
+			Params:   append([]Param{{Name: "system", Doc: "a system (MIMO)"}}, freqParams...),
+			Help:     "Singular values of the frequency response against frequency (the MIMO gain).",
+			Doc:      "At every frequency, the singular values of G(jw) from the real SVD of [[Re G, -Im G], [Im G, Re G]].",
+			Examples: []string{"G = system([[-1, 0], [0, -3]], [[1, 0], [1, 1]], [[1, 0], [0, 1]])\nsingular(G)"},
+			Fn: func(c *Call) (any, error) {
+				f, err := respFrequency(c)
+				if err != nil {
+					return nil, err
+				}
+				return lsys.Singular(f)
+			},
+		},
+		{
+			Name: "gain", Group: GroupResponse,
+			Params: []Param{
+				{Name: "system", Doc: "a system or transfer function"},
+				{Name: "at", Optional: true, Doc: "angular frequency w in rad/s: the (complex) response G(jw)"},
+			},
+			Help:     "Steady-state gain G(0) (sampled: G(1)); with at: w the frequency response G(jw).",
+			Doc:      "The steady-state gain is D - C A^-1 B (sampled: D + C (I - A)^-1 B); a pole at s = 0 (z = 1) makes it infinite and gives an error. A SISO system gives a number, a MIMO one a matrix.",
+			Examples: []string{respExample + "gain(G)\ngain(G, at: 2)"},
+			Fn: func(c *Call) (any, error) {
+				g, err := c.System("system")
+				if err != nil {
+					return nil, err
+				}
+				if g.M() == 0 || g.P() == 0 {
+					return nil, c.Errorf("system", "", "gain: the system has no inputs or no outputs")
+				}
+				if !c.Given("at") {
+					G, ok := lsys.DCGain(g)
+					if !ok {
+						return nil, c.Errorf("system", "Look at gain(G, at: w) for a small w, or remove the integrator.",
+							"gain: the system has a pole at %s, so its steady-state gain is infinite", map[bool]string{true: "z = 1", false: "s = 0"}[g.Sampled()])
+					}
+					if g.M() == 1 && g.P() == 1 {
+						return G.At(0, 0), nil
+					}
+					return G, nil
+				}
+				w, err := c.Float("at")
+				if err != nil {
+					return nil, err
+				}
+				v, err := lsys.GainAt(g, w)
+				if err != nil {
+					return nil, err
+				}
+				if len(v) == 1 {
+					return v[0], nil
+				}
+				return mat.NewCDense(g.P(), g.M(), v), nil
+			},
+		},
+		{
+			Name: "margins", Group: GroupResponse,
+			Params: append([]Param{{Name: "loop", Doc: "the loop transfer function L (SISO), negative feedback assumed"}}, freqParams...),
+			Help:   "Gain, phase and delay margins with all crossovers; closed-loop bandwidth and resonant peak; an annotated chart.",
+			Doc: "Crossovers are bracketed on the adaptive frequency grid and refined by bisection. The gain margin is the one of smallest |dB| " +
+				"over the phase crossovers, the phase margin the smallest over the gain crossovers, the delay margin PM/w minimised over gain crossovers. " +
+				"Bandwidth and resonant peak are those of T = L/(1 + L). The margins mean something only if the closed loop is stable; the display says whether it is.",
+			Examples: []string{"L = 2 / (s*(s + 1)*(s + 2))\nmargins(L)"},
+			Fn: func(c *Call) (any, error) {
+				g, err := c.System("loop")
+				if err != nil {
+					return nil, err
+				}
+				o, err := freqOptions(c)
+				if err != nil {
+					return nil, err
+				}
+				return lsys.LoopMargins(c.Context(), g, o)
+			},
+		},
+		{
+			Name: "polezero", Group: GroupResponse,
+			Params: []Param{{Name: "system", Doc: "a system or transfer function"},
+				{Name: "within", Optional: true, Doc: "radius of the region shown (1/s; sampled: in the z-plane); points beyond it are marked at the edge with their value"}},
+			Help: "The pole-zero map: poles as crosses, zeros as circles, with damping and natural-frequency grid (sampled: the unit circle).",
+			Doc: "Zeros are the invariant zeros (zeros(G)), so decoupling zeros show on top of the poles they cancel. " +
+				"Without within: the chart frames the points below the widest gap (a factor of 5 or more in distance from the origin) above the nearer half of them, else up to 10 times the median distance, and marks farther ones at its edge with their value.",
+			Examples: []string{"G = (s + 2) / (s^3 + 2*s^2 + 5*s + 1)\npolezero(G)"},
+			Fn: func(c *Call) (any, error) {
+				g, err := c.System("system")
+				if err != nil {
+					return nil, err
+				}
+				var zeros []complex128
+				known := false
+				if g.N() > 0 && g.M() > 0 && g.P() > 0 {
+					if zs, err := lsys.Zeros(g, 0); err == nil {
+						zeros, known = zs.Invariant, true
+					}
+				} else {
+					known = true
+				}
+				pz, err := lsys.PoleZero(g, zeros, known)
+				if err != nil || !c.Given("within") {
+					return pz, err
+				}
+				r, err := c.Float("within")
+				if err != nil {
+					return nil, err
+				}
+				if !(r > 0) || math.IsInf(r, 0) {
+					return nil, c.Errorf("within", "Give the radius of the region to show, e.g. within: 1e5", "polezero: 'within' must be a positive number, not %s", FormatNumber(r))
+				}
+				pz.Within = r
+				return pz, nil
+			},
+		},
+		{
+			Name: "closeloop", Group: GroupResponse,
+			Params: []Param{
+				{Name: "G", Doc: "the forward path"},
+				{Name: "K", Default: 1.0, Doc: "the return path; 1 is unity feedback"},
+				{Name: "sign", Default: -1.0, Doc: "-1 for negative feedback, +1 for positive"},
+			},
+			Help: "Close a feedback loop around G with K in the return path: u = r + sign*K*y.",
+			Doc: "Outputs are named as G's; the inputs carry the reference and are named r1, r2, ...; states are G's then K's. With direct feedthrough on both sides the loop is algebraic and must be well posed " +
+				"(I - sign*D_G*D_K invertible). For a controller C in the forward path write closeloop(G*C).",
+			Examples: []string{"P = 2 / (s*(s + 1))\nT = closeloop(P * (s + 3)/(s + 5))\nresponse(T, step)"},
+			Fn: func(c *Call) (any, error) {
+				var g *lsys.System
+				var sign float64
+				err := c.Bind("G", &g, "sign", &sign)
+				if err != nil {
+					return nil, err
+				}
+				if sign != 1 && sign != -1 {
+					return nil, c.Errorf("sign", "Write sign: -1 (negative feedback) or sign: +1 (positive).", "closeloop: sign must be +1 or -1, not %s", FormatNumber(sign))
+				}
+				var k *lsys.System
+				if kv, ok := c.Value("K").(float64); ok && g.M() == g.P() {
+					// a number in the return path: that gain on every channel
+					D := mat.NewDense(g.P(), g.P(), nil)
+					for i := 0; i < g.P(); i++ {
+						D.Set(i, i, kv)
+					}
+					if k, err = lsys.NewSystem(0, g.P(), g.M(), nil, nil, nil, D, g.Ts); err != nil {
+						return nil, err
+					}
+				} else if k, err = c.System("K"); err != nil {
+					return nil, err
+				}
+				return lsys.Feedback(g, k, sign)
+			},
+		},
+		{
+			Name: "stack", Group: GroupResponse,
+			Params:   []Param{{Name: "systems", Variadic: true, Doc: "two or more systems"}},
+			Help:     "Block-diagonal combination: the systems side by side, inputs and outputs concatenated.",
+			Doc:      "Names are kept; a repeated name gets a suffix _2, _3, ...",
+			Examples: []string{"stack(1/(s + 1), 2/(s + 3))"},
+			Fn: func(c *Call) (any, error) {
+				gs, err := systemsOf(c)
+				if err != nil {
+					return nil, err
+				}
+				return lsys.Stack(gs...)
+			},
+		},
+		{
+			Name: "connect", Group: GroupResponse,
+			Params: []Param{
+				{Name: "blocks", Variadic: true, Doc: "the systems to connect, with named signals; then optionally outputs: [names] to keep (default: every block output)"},
+			},
+			AnyNamed: true,
+			Help:     "Connect blocks by signal name: every input named like some block's output is fed by it; the other inputs stay external.",
+			Doc: "Output names must be unique across the blocks. Blocks sharing an external input name share that input. " +
+				"Algebraic loops through direct feedthroughs must be well posed.",
+			Examples: []string{
+				"plant = system(2/(s*(s + 1)), inputs: [\"torque\"], outputs: [\"angle\"])\n" +
+					"C = (s + 3)/(s + 5)\n" +
+					"ctrl = system([[C, -C]], inputs: [\"ref\", \"angle\"], outputs: [\"torque\"])\n" +
+					"connect(plant, ctrl, outputs: [\"angle\"])",
+			},
+			Fn: func(c *Call) (any, error) {
+				gs, err := systemsOf(c)
+				if err != nil {
+					return nil, err
+				}
+				var outs []string
+				for _, nv := range c.Extra {
+					if nv.Name != "outputs" {
+						return nil, c.ev.errorAt(nv.Pos, fmt.Sprintf("connect has no argument named '%s'", nv.Name), `Usage: connect(block1, block2, ..., outputs: ["name"]).`)
+					}
+					l, ok := nv.Value.(*List)
+					if s, isStr := nv.Value.(string); isStr {
+						outs = []string{s}
+						continue
+					}
+					if !ok {
+						return nil, c.ev.errorAt(nv.Pos, "connect: outputs must be a list of names", `Write outputs: ["angle"].`)
+					}
+					outs = []string{}
+					for i, it := range l.Items {
+						s, ok := it.(string)
+						if !ok {
+							return nil, c.ev.errorAt(nv.Pos, fmt.Sprintf("connect: output %d must be a name in quotes, not %s", i+1, typeName(it)), `Write outputs: ["angle"].`)
+						}
+						outs = append(outs, s)
+					}
+				}
+				return lsys.Connect(gs, outs)
+			},
+		},
+		{
+			Name: "sample", Group: GroupResponse,
+			Params: []Param{
+				{Name: "system", Doc: "a continuous system"},
+				{Name: "T", Doc: "sample period in s"},
+				{Name: "method", Default: "zoh", Doc: `"zoh", "foh", "tustin" or "matched"`},
+				{Name: "prewarp", Default: 0.0, Doc: "tustin only: frequency (rad/s) where the response is matched exactly"},
+			},
+			Help: "The sampled equivalent of a continuous system.",
+			Doc: "zoh: exact for inputs held between samples (block matrix exponential, Van Loan 1978); foh: exact for inputs linear between samples " +
+				"(triangle hold); tustin: bilinear substitution, optionally prewarped; matched: poles and zeros mapped by z = e^(sT) (SISO).",
+			Examples: []string{respExample + "Gd = sample(G, 0.1)\nresponse(Gd, step)", respExample + "sample(G, 0.1, method: \"tustin\", prewarp: 2)"},
+			Fn: func(c *Call) (any, error) {
+				var g *lsys.System
+				var T, pw float64
+				var method string
+				if err := c.Bind("system", &g, "T", &T, "method", &method, "prewarp", &pw); err != nil {
+					return nil, err
+				}
+				return lsys.Sample(g, T, method, pw)
+			},
+		},
+		{
+			Name: "continuous", Group: GroupResponse,
+			Params: []Param{
+				{Name: "system", Doc: "a sampled system"},
+				{Name: "method", Default: "zoh", Doc: `"zoh", "foh" or "tustin": how it was sampled`},
+				{Name: "prewarp", Default: 0.0, Doc: "tustin only: the prewarp frequency used when sampling"},
+			},
+			Help:     "The continuous system whose sampled equivalent is the given one (the inverse of sample).",
+			Doc:      "zoh and foh: through the principal matrix logarithm (refused when a pole lies on the negative real axis of the z-plane); tustin: the inverse bilinear map (refused for a pole at z = -1).",
+			Examples: []string{respExample + "continuous(sample(G, 0.1))"},
+			Fn: func(c *Call) (any, error) {
+				var g *lsys.System
+				var method string
+				var pw float64
+				if err := c.Bind("system", &g, "method", &method, "prewarp", &pw); err != nil {
+					return nil, err
+				}
+				return lsys.Continuous(g, method, pw)
+			},
+		},
+		{
+			Name: "delay", Group: GroupResponse,
+			Params: []Param{
+				{Name: "T", Doc: "dead time in s"},
+				{Name: "order", Default: 3.0, Doc: "order of the Pade approximant, 1 to 10"},
+			},
+			Help:     "A rational (Pade) approximant of the dead time e^(-sT), as a transfer function.",
+			Doc:      "The diagonal [n/n] Pade approximant (Golub & Van Loan, Matrix Computations, Section 9.3.1): all-pass, phase exact to order (wT)^(2n+1).",
+			Examples: []string{"P = 1/(s + 1) * delay(0.2, order: 3)\nresponse(P, step)"},
+			Fn: func(c *Call) (any, error) {
+				var T float64
+				var n int
+				if err := c.Bind("T", &T, "order", &n); err != nil {
+					return nil, err
+				}
+				return lsys.Pade(T, n)
+			},
+		},
+	}
+}
+
+// progress shows "what: 40 %" in a display that updates in steps of 10 %
+// (update_display_data in the kernel) and empties it when done.
+func progress(c *Call, what string) (func(float64), func()) {
+	const id = "lsys-response-progress"
+	shown, last := false, -1
+	step := func(f float64) {
+		pct := int(f*10) * 10
+		if pct == last {
+			return
+		}
+		last = pct
+		c.Progress(id, fmt.Sprintf("%s: %d %%", what, pct), !shown)
+		shown = true
+	}
+	end := func() {
+		if shown {
+			c.Progress(id, "", false)
+		}
+	}
+	return step, end
+}
+
+func systemsOf(c *Call) ([]*lsys.System, error) {
+	if len(c.Rest) == 0 {
+		return nil, c.Errorf("", c.helpHint(), "%s: give at least one system", c.Builtin.Name)
+	}
+	out := make([]*lsys.System, len(c.Rest))
+	for i, v := range c.Rest {
+		g, err := c.ev.toSystem(v, c.RestPos[i])
+		if err != nil {
+			return nil, err
+		}
+		if g == nil {
+			return nil, c.ev.errorAt(c.RestPos[i], fmt.Sprintf("%s: argument %d must be a system, not %s", c.Builtin.Name, i+1, typeName(v)), c.helpHint())
+		}
+		out[i] = g
+	}
+	return out, nil
+}
+
+func makeTable(c *Call, t []float64, rows [][]float64, name string) (any, error) {
+	hold, err := c.String("hold")
+	if err != nil {
+		return nil, err
+	}
+	if hold != "linear" && hold != "zoh" {
+		return nil, c.Errorf("hold", `Write hold: "linear" or hold: "zoh".`, "%s: hold must be \"linear\" or \"zoh\", not %q", c.Builtin.Name, hold)
+	}
+	s, err := lsys.TableSignal(t, rows, name)
+	if err != nil {
+		return nil, err
+	}
+	s.Hold = hold
+	return &s, nil
+}
+
+// loadTable reads a CSV file from the notebook's folder (or below it).
+func loadTable(c *Call, name string) (any, error) {
+	if name == "" || filepath.IsAbs(name) || strings.Contains(filepath.ToSlash(filepath.Clean(name)), "../") || filepath.Clean(name) == ".." {
+		return nil, c.Errorf("file", "Put the file in the notebook's folder and give its name, e.g. load(\"test_run.csv\").",
+			"load: %q is outside the notebook's folder", name)
+	}
+	dir := c.ev.s.Dir()
+	f, err := os.Open(filepath.Join(dir, filepath.Clean(name)))
+	if err != nil {
+		if errors.Is(err, os.ErrNotExist) {
+			return nil, c.Errorf("file", "Check the name; the file must lie beside the notebook.", "load: there is no file %q beside the notebook", name)
+		}
+		return nil, c.Errorf("file", "", "load: cannot open %q: %v", name, err)
+	}
+	defer f.Close()
+	br := io.LimitReader(f, 64<<20)
+	raw, err := io.ReadAll(br)
+	if err != nil {
+		return nil, c.Errorf("file", "", "load: cannot read %q: %v", name, err)
+	}
+	text := string(raw)
+	sep := ','
+	if !strings.Contains(text, ",") && strings.Contains(text, ";") {
+		sep = ';'
+	}
+	rd := csv.NewReader(strings.NewReader(text))
+	rd.Comma = sep
+	rd.Comment = '#'
+	rd.TrimLeadingSpace = true
+	recs, err := rd.ReadAll()
+	if err != nil {
+		return nil, c.Errorf("file", "Every row needs the same number of columns.", "load: %q is not a valid CSV table: %v", name, err)
+	}
+	var t []float64
+	var rows [][]float64
+	for i, rec := range recs {
+		if len(rec) < 2 {
+			return nil, c.Errorf("file", "Write time in the first column and at least one column of values.", "load: row %d of %q has %d column(s)", i+1, name, len(rec))
+		}
+		vals := make([]float64, len(rec))
+		numeric := true
+		for j, f := range rec {
+			v, err := strconv.ParseFloat(strings.TrimSpace(f), 64)
+			if err != nil {
+				numeric = false
+				break
+			}
+			vals[j] = v
+		}
+		if !numeric {
+			if i == 0 {
+				continue // a header row of names
+			}
+			return nil, c.Errorf("file", "Every row after the header must hold numbers only.", "load: row %d of %q is not all numbers", i+1, name)
+		}
+		t = append(t, vals[0])
+		rows = append(rows, vals[1:])
+	}
+	if len(t) == 0 {
+		return nil, c.Errorf("file", "", "load: %q holds no rows of numbers", name)
+	}
+	return makeTable(c, t, rows, filepath.Base(name))
+}
+
+// respFrequency is the frequency response of the call's "system" argument
+// over the range its frequency arguments give.
+func respFrequency(c *Call) (*lsys.FrequencyResponse, error) {
+	g, err := c.System("system")
+	if err != nil {
+		return nil, err
+	}
+	o, err := freqOptions(c)
+	if err != nil {
+		return nil, err
+	}
+	return lsys.Frequency(c.Context(), g, o)
+}
+
+// inHz converts angular frequencies (rad/s) to Hz.
+func inHz(w []float64) []float64 {
+	f := make([]float64, len(w))
+	for i, v := range w {
+		f[i] = v / (2 * math.Pi)
+	}
+	return f
+}

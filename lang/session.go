@@ -1,0 +1,214 @@
+// Package lang is the lsys system-description language: the evaluator and
+// the one registry of built-in functions that drives evaluation,
+// completion, inspection and the language reference. The scanner, syntax
+// tree and parser are in lang/syntax.
+//
+// The kernel and the headless runner use it only through Session.
+package lang
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"runtime"
+	"runtime/debug"
+	"sort"
+	"strings"
+	"sync"
+	"weak"
+
+	"lsys/lang/syntax"
+	"lsys/lsys"
+)
+
+// Output receives what a cell produces besides its final value. The kernel
+// forwards these to iopub; the headless runner writes them into a report.
+// Values passed to Display are lsys result types or plain Go values that
+// package display knows how to render.
+type Output interface {
+	Stdout(text string)
+	Stderr(text string)
+	// Display shows an extra value. id is "" or a stable id that a later
+	// UpdateDisplay with the same id replaces (used for progress).
+	Display(v any, id string)
+	UpdateDisplay(v any, id string)
+	ClearOutput(wait bool)
+}
+
+// Options are what a front end passes to a new session. The language sets
+// no package globals from outside: two sessions with different options can
+// run side by side in one process.
+type Options struct {
+	// Dir is the folder load() reads data files from (the notebook's
+	// folder); "" is the current folder.
+	Dir string
+	// Text formats, for print, inspect and the members of lists and
+	// records, the values the language does not format itself (the results
+	// of analysis). Front ends pass the text/plain renderer of package
+	// display, which the language cannot import. nil leaves such values as
+	// "(a mode table; show(x) displays it)".
+	Text func(v any) (string, bool)
+	// Limits bound one cell's work; zero fields take the defaults.
+	Limits Limits
+}
+
+// Limits bound the work of one cell so that a runaway loop or recursion
+// ends with a message instead of hanging a front end.
+type Limits struct {
+	Steps int64 // evaluation steps per cell (default MaxSteps)
+	Depth int   // nesting of user function calls (default MaxDepth)
+}
+
+// LanguageInfo describes the language as notebooks record it (the
+// metadata's language_info); both front ends hand out this one map.
+func LanguageInfo() map[string]any {
+	return map[string]any{
+		"name":           "lsys",
+		"version":        "1",
+		"mimetype":       "text/x-lsys",
+		"file_extension": ".lsys",
+		"pygments_lexer": "text",
+	}
+}
+
+// Session holds the bindings of one notebook session. Its methods may be
+// called from several goroutines (the kernel answers completion requests
+// while a cell runs); Run calls are serialised.
+type Session struct {
+	dir    string
+	text   func(v any) (string, bool)
+	limits Limits
+
+	runMu   sync.Mutex // one cell at a time
+	mu      sync.RWMutex
+	globals map[string]any
+	// sources remembers, for systems built from equation blocks, the block
+	// they came from, so parameter sensitivities can be taken later. The
+	// keys are weak: a system nobody holds any more (the thousands a
+	// locus builds) takes its entry with it (see remember).
+	sources map[weak.Pointer[lsys.System]]*blockSource
+}
+
+// NewSession starts an empty session with the given options.
+func NewSession(opt Options) *Session {
+	lim := opt.Limits
+	if lim.Steps <= 0 {
+		lim.Steps = MaxSteps
+	}
+	if lim.Depth <= 0 {
+		lim.Depth = MaxDepth
+	}
+	return &Session{dir: opt.Dir, text: opt.Text, limits: lim, globals: map[string]any{}, sources: map[weak.Pointer[lsys.System]]*blockSource{}}
+}
+
+// Format is the text form of v as print shows it in this session: the
+// language's own form, or the session's Text option for analysis results.
+func (s *Session) Format(v any) string { return formatValue(v, s.text) }
+
+// remember records the block behind a system built from it; the entry
+// goes when the system is garbage collected.
+func (s *Session) remember(g *lsys.System, bs *blockSource) {
+	wp := weak.Make(g)
+	s.mu.Lock()
+	s.sources[wp] = bs
+	s.mu.Unlock()
+	runtime.AddCleanup(g, func(wp weak.Pointer[lsys.System]) {
+		s.mu.Lock()
+		delete(s.sources, wp)
+		s.mu.Unlock()
+	}, wp)
+}
+
+// Dir is the folder data files are read from.
+func (s *Session) Dir() string { return s.dir }
+
+func (s *Session) bind(name string, v any) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	s.globals[name] = v
+}
+
+// Get returns the value bound to name.
+func (s *Session) Get(name string) (any, bool) {
+	s.mu.RLock()
+	defer s.mu.RUnlock()
+	v, ok := s.globals[name]
+	return v, ok
+}
+
+type nopOutput struct{}
+
+func (nopOutput) Stdout(string)             {}
+func (nopOutput) Stderr(string)             {}
+func (nopOutput) Display(any, string)       {}
+func (nopOutput) UpdateDisplay(any, string) {}
+func (nopOutput) ClearOutput(bool)          {}
+
+// Run evaluates one cell. value is what the cell's last expression evaluated
+// to, or nil when the cell ends in a binding (nothing to show). err, when not
+// nil, is meant for people: its Error() text names line and column, quotes
+// the line with a caret and says what to do. A cancelled ctx stops long loops
+// and returns an error wrapping ctx.Err(). Run never panics; bindings made
+// before an error stay.
+func (s *Session) Run(ctx context.Context, src string, out Output) (value any, err error) {
+	s.runMu.Lock()
+	defer s.runMu.Unlock()
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	if out == nil {
+		out = nopOutput{}
+	}
+	defer func() {
+		if r := recover(); r != nil {
+			value = nil
+			msg := fmt.Sprintf("internal error: %v", r)
+			if debugPanics {
+				msg += "\n" + string(debug.Stack())
+			}
+			err = &syntax.Error{Pos: syntax.Pos{Line: 1, Column: 1}, Msg: msg,
+				Hint: "This is a bug in lsys, not in your cell; please report it with this cell.", Source: syntax.LineAt(src, 1)}
+		}
+	}()
+	stmts, perr := syntax.ParseCell(src)
+	if perr != nil {
+		syntax.AttachSource(perr, src)
+		return nil, perr
+	}
+	ev := &evaluator{s: s, ctx: ctx, out: out, src: src}
+	value, err = ev.run(stmts)
+	if err != nil {
+		syntax.AttachSource(err, src)
+		return nil, err
+	}
+	return value, nil
+}
+
+// Names lists the bindings of the session, sorted.
+func (s *Session) Names() []string {
+	s.mu.RLock()
+	defer s.mu.RUnlock()
+	names := make([]string, 0, len(s.globals))
+	for k := range s.globals {
+		names = append(names, k)
+	}
+	sort.Strings(names)
+	return names
+}
+
+// Describe splits a cell's error into what both front ends show: a kind
+// ("Error", or "Interrupted" when the cell was cancelled), the headline
+// (the first line) and all lines of the message.
+func Describe(err error) (kind, headline string, lines []string) {
+	if errors.Is(err, context.Canceled) {
+		kind = "Interrupted"
+		headline = "the cell was interrupted; bindings made before the interrupt are kept"
+		return kind, headline, []string{kind + ": " + headline}
+	}
+	msg := err.Error()
+	headline = msg
+	if i := strings.IndexByte(msg, '\n'); i >= 0 {
+		headline = msg[:i]
+	}
+	return "Error", headline, strings.Split(msg, "\n")
+}
