@@ -53,7 +53,7 @@ func (m *NonlinearModel) String() string {
 	if bs.ts > 0 {
 		kind = "sampled every " + FormatNumber(bs.ts) + " s"
 	}
-	fmt.Fprintf(&b, "nonlinear model: %s, %s, %s, %s", plural(len(bs.states), "state"), plural(len(bs.inputs), "input"), plural(len(bs.outputs), "output"), kind)
+	fmt.Fprintf(&b, "nonlinear model: %s, %s, %s, %s", Plural(len(bs.states), "state"), Plural(len(bs.inputs), "input"), Plural(len(bs.outputs), "output"), kind)
 	fmt.Fprintf(&b, "\nstates:  %s", strings.Join(bs.states, ", "))
 	if len(bs.inputs) > 0 {
 		fmt.Fprintf(&b, "\ninputs:  %s", strings.Join(bs.inputs, ", "))
@@ -86,11 +86,11 @@ func (m *NonlinearModel) String() string {
 func (m *NonlinearModel) Field(name string) (any, bool) {
 	switch name {
 	case "states":
-		return namesList(m.bs.states), true
+		return NameList(m.bs.states), true
 	case "inputs":
-		return namesList(m.bs.inputs), true
+		return NameList(m.bs.inputs), true
 	case "outputs":
-		return namesList(m.bs.outputs), true
+		return NameList(m.bs.outputs), true
 	case "parameters":
 		r := &Record{}
 		for _, p := range m.bs.paramOrder {
@@ -108,6 +108,10 @@ func (m *NonlinearModel) Field(name string) (any, bool) {
 func (m *NonlinearModel) FieldNames() []string {
 	return []string{"states", "inputs", "outputs", "parameters", "every"}
 }
+
+// FirstNonlinearTerm is the first term, in source order, that makes the
+// model nonlinear, as written.
+func (m *NonlinearModel) FirstNonlinearTerm() string { return syntax.ExprString(m.bs.firstNL) }
 
 func (m *NonlinearModel) needLinearize(ev *evaluator, pos syntax.Pos) error {
 	t := m.bs.firstNL
@@ -139,6 +143,10 @@ type meval struct {
 }
 
 var equationFuncs = map[string]bool{"sin": true, "cos": true, "tan": true, "exp": true, "log": true, "sqrt": true, "abs": true}
+
+// EquationFunction reports whether the right-hand sides of equation blocks
+// may call the built-in name (sin, cos, tan, exp, log, sqrt, abs).
+func EquationFunction(name string) bool { return equationFuncs[name] }
 
 // nonlinear records a nonlinear term; the first in source order wins.
 // Inside a user function the term is the call in the block.
@@ -193,10 +201,10 @@ func (me *meval) lookup(id *syntax.Ident) (mval, error) {
 			if me.ev.isLocal(id.Name) {
 				hint = fmt.Sprintf("'%s' is a parameter of the function being called: call it with a number for '%s'.", id.Name, id.Name)
 			}
-			return mval{}, me.ev.errorAt(id.NamePos, fmt.Sprintf("'%s' is %s; a parameter in an equation must be a real number", id.Name, typeName(v)), hint)
+			return mval{}, me.ev.errorAt(id.NamePos, fmt.Sprintf("'%s' is %s; a parameter in an equation must be a real number", id.Name, me.ev.typeName(v)), hint)
 		}
 	}
-	if b, ok := Lookup(id.Name); ok && b.Fn == nil {
+	if b, ok := me.ev.s.reg.Lookup(id.Name); ok && b.Fn == nil {
 		if f, ok := b.Value.(float64); ok {
 			return mval{x: lsys.Const(f)}, nil
 		}
@@ -304,7 +312,7 @@ func (me *meval) eval(e syntax.Expr) (mval, error) {
 				me.bs.paramOrder = append(me.bs.paramOrder, key)
 				return mval{x: lsys.Const(f)}, nil
 			}
-			return mval{}, me.ev.errorAt(x.Name.NamePos, fmt.Sprintf("%s is %s; equations need real numbers", key, typeName(v)), "Use a field that holds a number.")
+			return mval{}, me.ev.errorAt(x.Name.NamePos, fmt.Sprintf("%s is %s; equations need real numbers", key, me.ev.typeName(v)), "Use a field that holds a number.")
 		}
 	}
 	return mval{}, me.ev.errorAt(e.Pos(), fmt.Sprintf("%s cannot appear in an equation", syntax.ExprString(e)),
@@ -442,7 +450,7 @@ func (me *meval) call(x *syntax.CallExpr) (mval, error) {
 			}
 		}
 		if len(x.Args) != len(f.Params) {
-			return mval{}, me.ev.errorAt(x.Lparen, fmt.Sprintf("%s takes %s, not %d", f.Name, plural(len(f.Params), "argument"), len(x.Args)), fmt.Sprintf("It is defined as %s.", f))
+			return mval{}, me.ev.errorAt(x.Lparen, fmt.Sprintf("%s takes %s, not %d", f.Name, Plural(len(f.Params), "argument"), len(x.Args)), fmt.Sprintf("It is defined as %s.", f))
 		}
 		frame := map[string]mval{}
 		for i, a := range x.Args {
@@ -757,7 +765,7 @@ func (ev *evaluator) compileBlock(b *syntax.SystemBlock) (*blockSource, error) {
 				case "output":
 					return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is an output; write %s = ...", name, name), "Outputs are defined by plain equations; only states have x' = ... or next x = ...")
 				}
-				return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is not a declared state%s", name, didYouMean(name, bs.states)),
+				return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is not a declared state%s", name, DidYouMean(name, bs.states)),
 					fmt.Sprintf("Declare it: states %s, ...", name))
 			}
 			if prev := bs.stateEq[i]; prev != nil {
@@ -804,7 +812,7 @@ func (ev *evaluator) compileBlock(b *syntax.SystemBlock) (*blockSource, error) {
 			for _, e := range bs.plain {
 				defined = append(defined, e.Name.Name)
 			}
-			return nil, ev.errorAt(declPos[o], fmt.Sprintf("the output '%s' is never defined%s", o, didYouMean(o, defined)),
+			return nil, ev.errorAt(declPos[o], fmt.Sprintf("the output '%s' is never defined%s", o, DidYouMean(o, defined)),
 				fmt.Sprintf("Add %s = ... (an expression of states and inputs), or remove it from outputs.", o))
 		}
 	}
@@ -919,4 +927,73 @@ func (s *Session) sourceOf(v any) (*blockSource, bool) {
 		return bs, ok
 	}
 	return nil, false
+}
+
+// Block is what built-ins see of an equation block: its signals and
+// parameters, and its right-hand sides and their exact Jacobians at an
+// operating point (evaluated in the calling cell, so errors in the
+// equations point at the block's own lines).
+type Block struct {
+	bs *blockSource
+	ev *evaluator
+}
+
+// Block returns the equation block behind v: a nonlinear model, or a
+// system built from an equation block in this session.
+func (c *Call) Block(v any) (*Block, bool) {
+	bs, ok := c.ev.s.sourceOf(v)
+	if !ok {
+		return nil, false
+	}
+	return &Block{bs: bs, ev: c.ev}, true
+}
+
+// States, Inputs and Outputs are the block's signal names in declaration
+// order (every state when no outputs are declared). Do not modify them.
+func (b *Block) States() []string  { return b.bs.states }
+func (b *Block) Inputs() []string  { return b.bs.inputs }
+func (b *Block) Outputs() []string { return b.bs.outputs }
+
+// Every is the sample time, 0 for a continuous block.
+func (b *Block) Every() float64 { return b.bs.ts }
+
+// Parameters are the names of the numbers the block copied from the
+// session, in the order its equations first use them.
+func (b *Block) Parameters() []string { return b.bs.paramOrder }
+
+// Parameter is the value the block holds for a parameter.
+func (b *Block) Parameter(name string) (float64, bool) {
+	v, ok := b.bs.params[name]
+	return v, ok
+}
+
+// Linear reports whether every right-hand side is linear in the states and
+// inputs.
+func (b *Block) Linear() bool { return b.bs.firstNL == nil }
+
+// Derivatives evaluates the state equations' right-hand sides at states x
+// and inputs u: x' (or next x in a sampled block).
+func (b *Block) Derivatives(x, u []float64) ([]float64, error) {
+	f, _, err := b.bs.evalAt(b.ev, x, u, -1, "", nil)
+	if err != nil {
+		return nil, err
+	}
+	out := make([]float64, len(f))
+	for i := range f {
+		out[i] = f[i].V
+	}
+	return out, nil
+}
+
+// Jacobians returns A = df/dx, B = df/du, C = dg/dx, D = dg/du at (x, u),
+// exact (dual numbers). With param set it returns the derivatives of those
+// matrices with respect to that parameter instead.
+func (b *Block) Jacobians(x, u []float64, param string) (A, B, C, D *mat.Dense, err error) {
+	return b.bs.jacobians(b.ev, x, u, param, nil)
+}
+
+// System is the linear system with the given matrices and the block's
+// signal names and sample time.
+func (b *Block) System(A, B, C, D *mat.Dense) (*lsys.System, error) {
+	return b.bs.system(A, B, C, D)
 }

@@ -2,7 +2,6 @@ package lang
 
 import (
 	"fmt"
-	"sort"
 	"strings"
 )
 
@@ -10,21 +9,9 @@ import (
 // registry: one section per group, one entry per built-in with its
 // signature, help, arguments, doc and examples. The README carries it
 // between the markers <!-- reference:start --> and <!-- reference:end -->.
-func Reference() string {
+func (r *Registry) Reference() string {
 	var b strings.Builder
-	byGroup := map[string][]*Builtin{}
-	for _, bi := range Builtins() {
-		byGroup[bi.Group] = append(byGroup[bi.Group], bi)
-	}
-	groups := append([]string(nil), groupOrder...)
-	var extra []string
-	for g := range byGroup {
-		if !contains(groupOrder, g) {
-			extra = append(extra, g)
-		}
-	}
-	sort.Strings(extra)
-	groups = append(groups, extra...)
+	groups, byGroup := r.ByGroup()
 	b.WriteString("Built-ins by topic:\n")
 	for _, g := range groups {
 		list := byGroup[g]

@@ -1,4 +1,4 @@
-package lang
+package builtins
 
 // Built-ins of modes and structure: poles, zeros, eigen-structure, modal and
 // Jordan forms, coordinates, controllability and observability, the Kalman
@@ -11,18 +11,19 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang"
 	"lsys/lsys"
 )
 
 func stMatrixOrEmpty(m *mat.Dense) any {
 	if m == nil {
-		return &List{}
+		return &lang.List{}
 	}
 	return m
 }
 
 // stTol reads the optional relative tolerance argument "tol".
-func stTol(c *Call) (float64, error) {
+func stTol(c *lang.Call) (float64, error) {
 	if !c.Given("tol") {
 		return 0, nil
 	}
@@ -31,17 +32,17 @@ func stTol(c *Call) (float64, error) {
 		return 0, err
 	}
 	if !(t > 0 && t < 1) {
-		return 0, c.Errorf("tol", "A relative tolerance such as 1e-8: singular values below tol times the norm count as zero.", "tol must be between 0 and 1, not %s", FormatNumber(t))
+		return 0, c.Errorf("tol", "A relative tolerance such as 1e-8: singular values below tol times the norm count as zero.", "tol must be between 0 and 1, not %s", lang.FormatNumber(t))
 	}
 	return t, nil
 }
 
-var stTolParam = Param{Name: "tol", Optional: true, Doc: "relative tolerance of the rank decisions (default 1e-10: below 1e-10 times the norm counts as zero)"}
+var stTolParam = lang.Param{Name: "tol", Optional: true, Doc: "relative tolerance of the rank decisions (default 1e-10: below 1e-10 times the norm counts as zero)"}
 
-var stSystemParam = Param{Name: "system", Doc: "a system, transfer function or linear equation block"}
+var stSystemParam = lang.Param{Name: "system", Doc: "a system, transfer function or linear equation block"}
 
 // stMatrixOrSystem returns the square matrix given, or the A of a system.
-func stMatrixOrSystem(c *Call, name string) (*mat.Dense, error) {
+func stMatrixOrSystem(c *lang.Call, name string) (*mat.Dense, error) {
 	if m, ok := c.Value(name).(*mat.Dense); ok {
 		r, cc := m.Dims()
 		if r != cc {
@@ -61,24 +62,24 @@ func stMatrixOrSystem(c *Call, name string) (*mat.Dense, error) {
 
 func init() {
 	for _, b := range structureBuiltins() {
-		Register(b)
+		register(b)
 	}
-	Register(stModalBuiltin())
+	register(stModalBuiltin())
 	registerStructureTypes()
 }
 
-func structureBuiltins() []*Builtin {
+func structureBuiltins() []*lang.Builtin {
 	const gimbal = "G = system([[0, 1, 0, 0], [-15500, -20, 15500, 20], [0, 0, 0, 1], [5167, 6.67, -5167, -6.67]], [0, 5000, 0, 0], [0, 0, 0, 1], states: [\"motor\", \"motor_rate\", \"load\", \"load_rate\"], inputs: [\"torque\"], outputs: [\"speed\"])\n"
 	const msd = "G = system([[0, 1], [-4, -0.8]], [0, 0.5], [1, 0], states: [\"position\", \"velocity\"], inputs: [\"force\"], outputs: [\"position\"])\n"
-	return []*Builtin{
+	return []*lang.Builtin{
 		{
-			Name: "poles", Group: GroupAnalysis,
-			Params: []Param{stSystemParam},
+			Name: "poles", Group: lang.GroupAnalysis,
+			Params: []lang.Param{stSystemParam},
 			Help:   "The poles of a system: the eigenvalues of A, ordered by natural frequency then damping.",
 			Doc: "Eigenvalues by balancing and the shifted Hessenberg QR algorithm. A conjugate pair appears as two " +
 				"consecutive entries, positive imaginary part first. A static gain has none (an empty list).",
 			Examples: []string{msd + "poles(G)"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				g, err := c.System("system")
 				if err != nil {
 					return nil, err
@@ -87,18 +88,18 @@ func structureBuiltins() []*Builtin {
 				if err != nil {
 					return nil, err
 				}
-				return complexVector(p), nil
+				return lang.ComplexVector(p), nil
 			},
 		},
 		{
-			Name: "transfer", Group: GroupAnalysis,
-			Params: []Param{stSystemParam, stTolParam},
+			Name: "transfer", Group: lang.GroupAnalysis,
+			Params: []lang.Param{stSystemParam, stTolParam},
 			Help:   "The transfer function of each input/output pair (a transfer matrix for several inputs or outputs).",
 			Doc: "Each channel is reduced to a minimal realization; its poles, zeros and gain give numerator and " +
 				"denominator (Varga & Sima 1981), so hidden modes cancel. A single-input single-output system gives one " +
 				"transfer function; otherwise a list of rows (outputs) of entries (inputs).",
 			Examples: []string{msd + "transfer(G)"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				g, err := c.System("system")
 				if err != nil {
 					return nil, err
@@ -114,9 +115,9 @@ func structureBuiltins() []*Builtin {
 				if len(tf) == 1 && len(tf[0]) == 1 {
 					return tf[0][0], nil
 				}
-				rows := &List{}
+				rows := &lang.List{}
 				for _, r := range tf {
-					row := &List{}
+					row := &lang.List{}
 					for _, q := range r {
 						row.Items = append(row.Items, q)
 					}
@@ -126,8 +127,8 @@ func structureBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "zeros", Group: GroupAnalysis,
-			Params: []Param{stSystemParam, stTolParam},
+			Name: "zeros", Group: lang.GroupAnalysis,
+			Params: []lang.Param{stSystemParam, stTolParam},
 			Help:   "Invariant zeros of a system (MIMO too), with transmission and input-/output-decoupling zeros listed separately.",
 			Doc: "The system pencil [[A - sI, B], [C, D]] is reduced by orthogonal row and column compressions " +
 				"(Emami-Naeini & Van Dooren 1982) to a regular pencil whose generalized eigenvalues, found by a QZ " +
@@ -138,13 +139,13 @@ func structureBuiltins() []*Builtin {
 			Fn:       stSystemTol(lsys.Zeros),
 		},
 		{
-			Name: "eigen", Group: GroupMatrices,
-			Params: []Param{{Name: "M", Doc: "a square matrix, or a system (its A)"}},
+			Name: "eigen", Group: lang.GroupMatrices,
+			Params: []lang.Param{{Name: "M", Doc: "a square matrix, or a system (its A)"}},
 			Help:   "Eigenvalues with right and left eigenvectors and the condition number of each eigenvalue.",
 			Doc: "Balancing, Hessenberg QR and back substitution. Eigenvectors have unit 2-norm; the condition number " +
 				"1/|w^H v| says how far the eigenvalue moves under a small change of the matrix. Fields: values, right, left, cond.",
 			Examples: []string{"eigen([[2, 1], [0, 3]])"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				A, err := stMatrixOrSystem(c, "M")
 				if err != nil {
 					return nil, err
@@ -153,13 +154,13 @@ func structureBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "transform", Group: GroupAnalysis,
-			Params: []Param{stSystemParam, {Name: "T", Doc: "an invertible n x n matrix: the new states are z = T x"},
+			Name: "transform", Group: lang.GroupAnalysis,
+			Params: []lang.Param{stSystemParam, {Name: "T", Doc: "an invertible n x n matrix: the new states are z = T x"},
 				{Name: "states", Optional: true, Doc: "names of the new states, a list of strings (default z1, z2, ...)"}},
 			Help:     "The system in new coordinates z = T x (A~ = T A T^-1, B~ = T B, C~ = C T^-1).",
 			Doc:      "The transfer function is unchanged. A nearly singular T is refused with its condition number.",
 			Examples: []string{msd + "transform(G, [[1, 0], [1, 1]])", msd + "transform(G, [[1, 0], [1, 1]], states: [\"position\", \"sum\"])"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				var g *lsys.System
 				var T *mat.Dense
 				if err := c.Bind("system", &g, "T", &T); err != nil {
@@ -177,7 +178,7 @@ func structureBuiltins() []*Builtin {
 					return nil, err
 				}
 				if len(names) != g.N() {
-					return nil, c.Errorf("states", "Give one name per state.", "%d state names given for a system with %s", len(names), plural(g.N(), "state"))
+					return nil, c.Errorf("states", "Give one name per state.", "%d state names given for a system with %s", len(names), lang.Plural(g.N(), "state"))
 				}
 				if err := checkNames(names); err != nil {
 					return nil, c.Errorf("states", "", "%v", err)
@@ -186,8 +187,8 @@ func structureBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "jordan", Group: GroupAnalysis,
-			Params: []Param{
+			Name: "jordan", Group: lang.GroupAnalysis,
+			Params: []lang.Param{
 				{Name: "M", Doc: "a square matrix, or a system (its A)"},
 				{Name: "cluster", Optional: true, Doc: "also treat eigenvalues closer than this (absolute) as one"},
 				stTolParam,
@@ -197,7 +198,7 @@ func structureBuiltins() []*Builtin {
 				"the ranks of powers of (A - lambda I) (Golub & Wilkinson 1976). Whether an eigenvalue is defective is a " +
 				"numerical judgement: every cluster shows its tolerance. Fields: values, algebraic, geometric, defective.",
 			Examples: []string{"jordan([[-1, 1], [0, -1]])", "jordan([[-2, 0], [2, -2]])"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				A, err := stMatrixOrSystem(c, "M")
 				if err != nil {
 					return nil, err
@@ -219,8 +220,8 @@ func structureBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "structure", Group: GroupAnalysis,
-			Params: []Param{stSystemParam, stTolParam},
+			Name: "structure", Group: lang.GroupAnalysis,
+			Params: []lang.Param{stSystemParam, stTolParam},
 			Help:   "Controllable, observable, stabilizable, detectable, and the four Kalman parts with their modes.",
 			Doc: "Decided from orthogonal staircase forms (Van Dooren 1981; Paige 1981) with every rank tolerance shown, " +
 				"never from the rank of the Krylov matrix. Fields: controllable, observable, stabilizable, detectable, " +
@@ -229,8 +230,8 @@ func structureBuiltins() []*Builtin {
 			Fn:       stSystemTol(lsys.StructureOf),
 		},
 		{
-			Name: "decompose", Group: GroupAnalysis,
-			Params: []Param{stSystemParam, stTolParam},
+			Name: "decompose", Group: lang.GroupAnalysis,
+			Params: []lang.Param{stSystemParam, stTolParam},
 			Help:   "The Kalman decomposition: the system in coordinates ordered reachable-and-observable, reachable only, observable only, neither; with T.",
 			Doc: "Built from orthonormal bases of the reachable and unobservable subspaces (staircase forms) and their " +
 				"intersection; the condition number of T is shown. Fields: system, T, sizes, cond.",
@@ -238,37 +239,37 @@ func structureBuiltins() []*Builtin {
 			Fn:       stSystemTol(lsys.Decompose),
 		},
 		{
-			Name: "minimal", Group: GroupAnalysis,
-			Params:   []Param{stSystemParam, stTolParam},
+			Name: "minimal", Group: lang.GroupAnalysis,
+			Params:   []lang.Param{stSystemParam, stTolParam},
 			Help:     "A minimal realization: the reachable and observable part, found by orthogonal staircase reductions.",
 			Doc:      "Same transfer function with as few states as possible (Van Dooren 1981). States are renamed z1, z2, ...",
 			Examples: []string{"minimal(system([[-1, 0], [0, -2]], [1, 0], [1, 1]))"},
 			Fn:       stSystemTol(lsys.Minimal),
 		},
 		{
-			Name: "reachable", Group: GroupAnalysis,
-			Params:   []Param{stSystemParam, stTolParam},
+			Name: "reachable", Group: lang.GroupAnalysis,
+			Params:   []lang.Param{stSystemParam, stTolParam},
 			Help:     "The reachable (controllable) subspace, as an orthonormal basis.",
 			Doc:      "Leading columns of the controllability staircase form. Fields: basis, dim, residual, invariant, values.",
 			Examples: []string{"reachable(system([[-1, 0], [0, -2]], [1, 0], [1, 1]))"},
 			Fn:       stSystemTol(lsys.Reachable),
 		},
 		{
-			Name: "unobservable", Group: GroupAnalysis,
-			Params:   []Param{stSystemParam, stTolParam},
+			Name: "unobservable", Group: lang.GroupAnalysis,
+			Params:   []lang.Param{stSystemParam, stTolParam},
 			Help:     "The unobservable subspace, as an orthonormal basis.",
 			Doc:      "Trailing columns of the observability staircase form. Fields: basis, dim, residual, invariant, values.",
 			Examples: []string{gimbal + "unobservable(G)"},
 			Fn:       stSystemTol(lsys.Unobservable),
 		},
 		{
-			Name: "spectral", Group: GroupAnalysis,
-			Params: []Param{stSystemParam, {Name: "which", Default: "stable", Doc: "\"stable\", \"unstable\", or a list of eigenvalues"}},
+			Name: "spectral", Group: lang.GroupAnalysis,
+			Params: []lang.Param{stSystemParam, {Name: "which", Default: "stable", Doc: "\"stable\", \"unstable\", or a list of eigenvalues"}},
 			Help:   "The invariant subspace of the stable or unstable modes, or of listed eigenvalues, as an orthonormal basis.",
 			Doc: "Leading Schur vectors of the real Schur form reordered so the chosen eigenvalues come first (Bai & Demmel " +
 				"1993 swaps). Listing one member of a conjugate pair selects the pair. Fields: basis, dim, residual, invariant, values.",
 			Examples: []string{"spectral(system([[1, 2], [0, -3]], [0, 1], [1, 0]), \"unstable\")", "spectral(system([[1, 2], [0, -3]], [0, 1], [1, 0]), [-3])"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				g, err := c.System("system")
 				if err != nil {
 					return nil, err
@@ -302,13 +303,13 @@ func structureBuiltins() []*Builtin {
 					}
 					return lsys.SpectralAt(g, vals)
 				default:
-					return nil, c.Errorf("which", "Use \"stable\", \"unstable\" or a list of eigenvalues such as [-1, -2+3j].", "which must be a string or a list of eigenvalues, not %s", typeName(w))
+					return nil, c.Errorf("which", "Use \"stable\", \"unstable\" or a list of eigenvalues such as [-1, -2+3j].", "which must be a string or a list of eigenvalues, not %s", c.TypeName(w))
 				}
 			},
 		},
 		{
-			Name: "invariant", Group: GroupAnalysis,
-			Params: []Param{
+			Name: "invariant", Group: lang.GroupAnalysis,
+			Params: []lang.Param{
 				{Name: "A", Doc: "a square matrix, or a system (its A)"},
 				{Name: "V", Doc: "a matrix whose columns span the subspace (one row per state)"},
 				stTolParam,
@@ -317,7 +318,7 @@ func structureBuiltins() []*Builtin {
 			Doc: "V is orthonormalised (its rank decided by singular values), then ||A Q - Q (Q' A Q)|| / ||A|| is compared " +
 				"with a tolerance near the rounding level. Fields: invariant, residual, basis, rank.",
 			Examples: []string{"invariant([[1, 2], [0, 3]], [1, 0])", "invariant([[1, 2], [0, 3]], [0, 1])"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				A, err := stMatrixOrSystem(c, "A")
 				if err != nil {
 					return nil, err
@@ -351,18 +352,18 @@ func structureBuiltins() []*Builtin {
 }
 
 // stModalBuiltin is the modal built-in.
-func stModalBuiltin() *Builtin {
+func stModalBuiltin() *lang.Builtin {
 	const msd = "G = system([[0, 1], [-4, -0.8]], [0, 0.5], [1, 0], states: [\"position\", \"velocity\"], inputs: [\"force\"], outputs: [\"position\"])\n"
-	return &Builtin{
-		Name: "modal", Group: GroupAnalysis,
-		Params: []Param{stSystemParam},
+	return &lang.Builtin{
+		Name: "modal", Group: lang.GroupAnalysis,
+		Params: []lang.Param{stSystemParam},
 		Help:   "The system in real modal coordinates (1x1 and 2x2 [[sigma, omega], [-omega, sigma]] blocks), with the transformation.",
 		Doc: "The modal coordinates q = T x come from the right eigenvectors (unit mode shapes). When an eigenvalue is " +
 			"defective or the eigenvector basis is ill-conditioned (condition above 1e4), a block-diagonal form from the " +
 			"ordered real Schur form with Sylvester decoupling (Bavely & Stewart 1979) is returned instead, and the " +
 			"display says so. Fields: system, T, shapes (the columns of T^-1), block_diagonal, cond.",
 		Examples: []string{msd + "modal(G)", "modal(system([[-1, 1], [0, -1]], [0, 1], [1, 0]))"},
-		Fn: func(c *Call) (any, error) {
+		Fn: func(c *lang.Call) (any, error) {
 			g, err := c.System("system")
 			if err != nil {
 				return nil, err
@@ -374,37 +375,37 @@ func stModalBuiltin() *Builtin {
 
 // stFields builds a TypeInfo from an ordered list of field names and a
 // getter.
-func stFields(name string, fields []string, get func(v any, f string) (any, bool)) TypeInfo {
-	return TypeInfo{Name: name, Fields: fields, Field: get}
+func stFields(name string, fields []string, get func(v any, f string) (any, bool)) lang.TypeInfo {
+	return lang.TypeInfo{Name: name, Fields: fields, Field: get}
 }
 
 func registerStructureTypes() {
-	RegisterType((*lsys.ZeroSet)(nil), stFields("a set of zeros",
+	registerType((*lsys.ZeroSet)(nil), stFields("a set of zeros",
 		[]string{"invariant", "transmission", "input_decoupling", "output_decoupling", "tol"},
 		func(v any, f string) (any, bool) {
 			z := v.(*lsys.ZeroSet)
 			switch f {
 			case "invariant":
-				return complexVector(z.Invariant), true
+				return lang.ComplexVector(z.Invariant), true
 			case "transmission":
-				return complexVector(z.Transmission), true
+				return lang.ComplexVector(z.Transmission), true
 			case "input_decoupling":
-				return complexVector(z.InputDecoupling), true
+				return lang.ComplexVector(z.InputDecoupling), true
 			case "output_decoupling":
-				return complexVector(z.OutputDecoupling), true
+				return lang.ComplexVector(z.OutputDecoupling), true
 			case "tol":
 				return z.Tol, true
 			}
 			return nil, false
 		}))
-	RegisterType((*lsys.EigenStructure)(nil), stFields("an eigen-structure",
+	registerType((*lsys.EigenStructure)(nil), stFields("an eigen-structure",
 		[]string{"values", "right", "left", "cond"},
 		func(v any, f string) (any, bool) {
 			e := v.(*lsys.EigenStructure)
 			vecs := func(cols [][]complex128) any {
 				n := len(cols)
 				if n == 0 {
-					return &List{}
+					return &lang.List{}
 				}
 				m := mat.NewCDense(n, n, nil)
 				for j, col := range cols {
@@ -416,17 +417,17 @@ func registerStructureTypes() {
 			}
 			switch f {
 			case "values":
-				return complexVector(e.Values), true
+				return lang.ComplexVector(e.Values), true
 			case "right":
 				return vecs(e.Right), true
 			case "left":
 				return vecs(e.Left), true
 			case "cond":
-				return realVector(e.Cond), true
+				return lang.RealVector(e.Cond), true
 			}
 			return nil, false
 		}))
-	RegisterType((*lsys.ModalForm)(nil), stFields("a modal form",
+	registerType((*lsys.ModalForm)(nil), stFields("a modal form",
 		[]string{"system", "T", "shapes", "block_diagonal", "cond"},
 		func(v any, f string) (any, bool) {
 			m := v.(*lsys.ModalForm)
@@ -444,7 +445,7 @@ func registerStructureTypes() {
 			}
 			return nil, false
 		}))
-	RegisterType((*lsys.JordanStructure)(nil), stFields("a Jordan structure",
+	registerType((*lsys.JordanStructure)(nil), stFields("a Jordan structure",
 		[]string{"values", "algebraic", "geometric", "defective"},
 		func(v any, f string) (any, bool) {
 			js := v.(*lsys.JordanStructure)
@@ -461,17 +462,17 @@ func registerStructureTypes() {
 			}
 			switch f {
 			case "values":
-				return complexVector(vals), true
+				return lang.ComplexVector(vals), true
 			case "algebraic":
-				return intVector(alg), true
+				return lang.IntVector(alg), true
 			case "geometric":
-				return intVector(geo), true
+				return lang.IntVector(geo), true
 			case "defective":
 				return def, true
 			}
 			return nil, false
 		}))
-	RegisterType((*lsys.Structure)(nil), stFields("a structure report",
+	registerType((*lsys.Structure)(nil), stFields("a structure report",
 		[]string{"controllable", "observable", "stabilizable", "detectable", "uncontrollable", "unobservable", "parts"},
 		func(v any, f string) (any, bool) {
 			st := v.(*lsys.Structure)
@@ -485,19 +486,19 @@ func registerStructureTypes() {
 			case "detectable":
 				return st.Detectable, true
 			case "uncontrollable":
-				return complexVector(st.UncontrollableModes), true
+				return lang.ComplexVector(st.UncontrollableModes), true
 			case "unobservable":
-				return complexVector(st.UnobservableModes), true
+				return lang.ComplexVector(st.UnobservableModes), true
 			case "parts":
-				l := &List{}
+				l := &lang.List{}
 				for _, p := range st.Parts {
-					l.Items = append(l.Items, &Record{Names: []string{"name", "states", "modes"}, Values: []any{p.Name, float64(p.Dim), complexVector(p.Modes)}})
+					l.Items = append(l.Items, &lang.Record{Names: []string{"name", "states", "modes"}, Values: []any{p.Name, float64(p.Dim), lang.ComplexVector(p.Modes)}})
 				}
 				return l, true
 			}
 			return nil, false
 		}))
-	RegisterType((*lsys.Decomposition)(nil), stFields("a Kalman decomposition",
+	registerType((*lsys.Decomposition)(nil), stFields("a Kalman decomposition",
 		[]string{"system", "T", "sizes", "cond"},
 		func(v any, f string) (any, bool) {
 			d := v.(*lsys.Decomposition)
@@ -507,7 +508,7 @@ func registerStructureTypes() {
 			case "T":
 				return d.T, true
 			case "sizes":
-				return intVector(d.Sizes[:]), true
+				return lang.IntVector(d.Sizes[:]), true
 			case "cond":
 				return d.Cond, true
 			}
@@ -524,14 +525,14 @@ func registerStructureTypes() {
 		case "invariant":
 			return s.Invariant, true
 		case "values":
-			return complexVector(s.Values), true
+			return lang.ComplexVector(s.Values), true
 		}
 		return nil, false
 	}
-	RegisterType((*lsys.Subspace)(nil), stFields("a subspace",
+	registerType((*lsys.Subspace)(nil), stFields("a subspace",
 		[]string{"basis", "dim", "residual", "invariant", "values"},
 		func(v any, f string) (any, bool) { return subspaceField(v.(*lsys.Subspace), f) }))
-	RegisterType((*lsys.InvariantCheck)(nil), stFields("an invariance check",
+	registerType((*lsys.InvariantCheck)(nil), stFields("an invariance check",
 		[]string{"invariant", "residual", "basis", "rank"},
 		func(v any, f string) (any, bool) {
 			ic := v.(*lsys.InvariantCheck)
@@ -540,7 +541,7 @@ func registerStructureTypes() {
 			}
 			return subspaceField(ic.Subspace, f)
 		}))
-	RegisterType((*lsys.ModeTable)(nil), stFields("a mode table",
+	registerType((*lsys.ModeTable)(nil), stFields("a mode table",
 		[]string{"eigenvalues", "frequencies", "hz", "damping", "time_constants", "multiplicity", "reachable", "observable"},
 		func(v any, f string) (any, bool) {
 			mt := v.(*lsys.ModeTable)
@@ -559,21 +560,21 @@ func registerStructureTypes() {
 			}
 			switch f {
 			case "eigenvalues":
-				return complexVector(ev), true
+				return lang.ComplexVector(ev), true
 			case "frequencies":
-				return realVector(wn), true
+				return lang.RealVector(wn), true
 			case "hz":
-				return realVector(hz), true
+				return lang.RealVector(hz), true
 			case "damping":
-				return realVector(z), true
+				return lang.RealVector(z), true
 			case "time_constants":
-				return realVector(tau), true
+				return lang.RealVector(tau), true
 			case "multiplicity":
-				return realVector(mult), true
+				return lang.RealVector(mult), true
 			case "reachable":
-				return &List{Items: reach}, true
+				return &lang.List{Items: reach}, true
 			case "observable":
-				return &List{Items: obs}, true
+				return &lang.List{Items: obs}, true
 			}
 			return nil, false
 		}))
@@ -581,8 +582,8 @@ func registerStructureTypes() {
 
 // stSystemTol adapts an analysis of a system at a tolerance to a built-in's
 // Fn: the "system" argument and the optional "tol".
-func stSystemTol[T any](f func(*lsys.System, float64) (T, error)) func(*Call) (any, error) {
-	return func(c *Call) (any, error) {
+func stSystemTol[T any](f func(*lsys.System, float64) (T, error)) func(*lang.Call) (any, error) {
+	return func(c *lang.Call) (any, error) {
 		g, err := c.System("system")
 		if err != nil {
 			return nil, err
