@@ -349,7 +349,7 @@ func (s *Session) Inspect(src string, cursor int) (text string, found bool) {
 		return s.bindingHelp(name, v), true
 	}
 	if b, ok := s.reg.Lookup(name); ok {
-		return b.HelpText(), true
+		return s.reg.HelpText(b), true
 	}
 	if syntax.IsKeyword(name) {
 		return keywordHelp[name], keywordHelp[name] != ""
@@ -366,43 +366,6 @@ var keywordHelp = map[string]string{
 	"not":   "not a: true when a is false.",
 	"true":  "The boolean true.",
 	"false": "The boolean false.",
-}
-
-// HelpText is the built-in's help as inspection and help() show it:
-// signature, help, arguments, doc and examples.
-func (b *Builtin) HelpText() string {
-	var sb strings.Builder
-	sb.WriteString(b.Signature())
-	sb.WriteString("\n\n")
-	sb.WriteString(b.Help)
-	if len(b.Params) > 0 {
-		sb.WriteString("\n\nArguments:")
-		for _, p := range b.Params {
-			fmt.Fprintf(&sb, "\n  %s", p.Name)
-			if p.Default != nil {
-				fmt.Fprintf(&sb, " (default %s)", inlineString(p.Default, nil))
-			} else if p.Optional {
-				sb.WriteString(" (optional)")
-			}
-			if p.Doc != "" {
-				sb.WriteString(": " + p.Doc)
-			}
-		}
-	}
-	if b.Doc != "" {
-		sb.WriteString("\n\n")
-		sb.WriteString(b.Doc)
-	}
-	for i, ex := range b.Examples {
-		if i == 0 {
-			sb.WriteString("\n\nExample:")
-		}
-		sb.WriteString("\n  " + strings.ReplaceAll(ex, "\n", "\n  "))
-		if i < len(b.Examples)-1 {
-			sb.WriteString("\n")
-		}
-	}
-	return sb.String()
 }
 
 // bindingHelp summarises a bound value for inspect.

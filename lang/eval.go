@@ -771,7 +771,7 @@ func (ev *evaluator) field(v any, name *syntax.Ident) (any, error) {
 	if err != nil {
 		hint := "This is a bug in lsys, not in your cell; please report it."
 		if _, isSys := v.(*lsys.System); isSys {
-			hint = "Fields of a system: A, B, C, D, states, inputs, outputs, every, and its signal names."
+			hint = "Fields of a system: " + strings.Join(systemFields, ", ") + ", and its signal names."
 		}
 		return nil, ev.errorAt(name.NamePos, err.Error(), hint)
 	}
@@ -845,28 +845,11 @@ func (r *Registry) fieldsOf(v any) (fieldReader, bool) {
 			get:   func(n string) (any, bool, error) { return systemField(t, n) },
 		}, true
 	}
-	if ti, ok := r.typeInfo(v); ok && ti.Field != nil {
-		return fieldReader{
-			names: func() []string {
-				if ti.FieldNames != nil {
-					return ti.FieldNames(v)
-				}
-				return ti.Fields
-			},
-			get: func(n string) (f any, found bool, err error) {
-				err = guard(func() error { f, found = ti.Field(v, n); return nil })
-				return f, found, err
-			},
-		}, true
+	if t, ok := fieldTable(v); ok {
+		return tableReader(v, t, nil), true
 	}
-	if fd, ok := v.(fielder); ok {
-		return fieldReader{
-			names: fd.FieldNames,
-			get: func(n string) (any, bool, error) {
-				f, ok := fd.Field(n)
-				return f, ok, nil
-			},
-		}, true
+	if ti, ok := r.typeInfo(v); ok && (len(ti.Fields) > 0 || ti.ByName != nil) {
+		return tableReader(v, ti.Fields, ti.ByName), true
 	}
 	return fieldReader{}, false
 }
@@ -1096,12 +1079,6 @@ func (ev *evaluator) realize(rows [][]*lsys.Rational, pos syntax.Pos) (*lsys.Sys
 		ev.out.Stderr(fmt.Sprintf("line %d, column %d: %s\n", pos.Line, pos.Column, info.Warning))
 	}
 	return g, nil
-}
-
-// fielder is implemented by language values with fields (r.name).
-type fielder interface {
-	Field(name string) (any, bool)
-	FieldNames() []string
 }
 
 func entries(k int) string {

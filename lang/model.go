@@ -82,31 +82,20 @@ func (m *NonlinearModel) String() string {
 	return b.String()
 }
 
-// Field reads model.states, .inputs, .outputs, .parameters, .every.
-func (m *NonlinearModel) Field(name string) (any, bool) {
-	switch name {
-	case "states":
-		return NameList(m.bs.states), true
-	case "inputs":
-		return NameList(m.bs.inputs), true
-	case "outputs":
-		return NameList(m.bs.outputs), true
-	case "parameters":
+// modelFields are the fields of a nonlinear model.
+var modelFields = []Field{
+	FieldOf("states", "the state names", func(m *NonlinearModel) any { return NameList(m.bs.states) }),
+	FieldOf("inputs", "the input names", func(m *NonlinearModel) any { return NameList(m.bs.inputs) }),
+	FieldOf("outputs", "the output names", func(m *NonlinearModel) any { return NameList(m.bs.outputs) }),
+	FieldOf("parameters", "the parameters the block copied from the session, as a record", func(m *NonlinearModel) any {
 		r := &Record{}
 		for _, p := range m.bs.paramOrder {
 			r.Names = append(r.Names, p)
 			r.Values = append(r.Values, m.bs.params[p])
 		}
-		return r, true
-	case "every":
-		return m.bs.ts, true
-	}
-	return nil, false
-}
-
-// FieldNames lists the fields of a model.
-func (m *NonlinearModel) FieldNames() []string {
-	return []string{"states", "inputs", "outputs", "parameters", "every"}
+		return r
+	}),
+	FieldOf("every", "the sample time in seconds, 0 when continuous", func(m *NonlinearModel) any { return m.bs.ts }),
 }
 
 // FirstNonlinearTerm is the first term, in source order, that makes the

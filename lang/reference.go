@@ -7,7 +7,7 @@ import (
 
 // Reference returns the language reference in Markdown, generated from the
 // registry: one section per group, one entry per built-in with its
-// signature, help, arguments, doc and examples. The README carries it
+// signature, help, arguments, doc, the fields of its result and examples. The README carries it
 // between the markers <!-- reference:start --> and <!-- reference:end -->.
 func (r *Registry) Reference() string {
 	var b strings.Builder
@@ -54,6 +54,12 @@ func (r *Registry) Reference() string {
 			}
 			if bi.Doc != "" {
 				fmt.Fprintf(&b, "\n%s\n", bi.Doc)
+			}
+			if fs := r.fieldsDoc(bi.Returns); len(fs) > 0 {
+				b.WriteString("\n| field of the result | meaning |\n|---|---|\n")
+				for _, f := range fs {
+					fmt.Fprintf(&b, "| `.%s` | %s |\n", f.Name, strings.ReplaceAll(f.Doc, "|", "\\|"))
+				}
 			}
 			for _, ex := range bi.Examples {
 				fmt.Fprintf(&b, "\n```\n%s\n```\n", strings.TrimRight(ex, "\n"))

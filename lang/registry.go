@@ -59,6 +59,9 @@ type Builtin struct {
 	// AnyNamed lets the call take named arguments that are not parameters
 	// (e.g. locus(f, k: values)); they are in c.Extra.
 	AnyNamed bool
+	// Returns is a value of the result's type (a typed nil pointer is
+	// fine), so that help() and the reference list the fields of results.
+	Returns any
 	// Fn computes the result. For a constant leave Fn nil and set Value.
 	Fn    func(c *Call) (any, error)
 	Value any
@@ -206,18 +209,6 @@ func (r *Registry) ByGroup() (groups []string, members map[string][]*Builtin) {
 		}
 	}
 	return groups, members
-}
-
-// TypeInfo describes a Go type that built-ins hand out, so the language can
-// name it in messages and read its fields with r.name.
-type TypeInfo struct {
-	Name   string   // for messages: "a step response"
-	Fields []string // field names, for completion after '.'
-	// FieldNames, when set, lists the fields of one value (names that
-	// depend on it, such as an equilibrium's states); else Fields.
-	FieldNames func(v any) []string
-	// Field returns the named field; ok false when there is none.
-	Field func(v any, name string) (value any, ok bool)
 }
 
 // AddType describes the type of sample (a typed nil pointer is fine).

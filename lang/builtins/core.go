@@ -502,8 +502,9 @@ func systemBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "modes", Group: lang.GroupAnalysis,
-			Params: []lang.Param{{Name: "system", Doc: "a system, transfer function or linear equation block"}, stTolParam},
-			Help:   "The mode table: eigenvalue, natural frequency, damping ratio and time constant of each mode.",
+			Returns: (*lsys.ModeTable)(nil),
+			Params:  []lang.Param{{Name: "system", Doc: "a system, transfer function or linear equation block"}, stTolParam},
+			Help:    "The mode table: eigenvalue, natural frequency, damping ratio and time constant of each mode.",
 			Doc: "Conjugate pairs are one oscillatory mode. See the mode table's display for the columns. " +
 				"tol is the relative tolerance of the reached/seen (PBH) verdicts, decided on the system balanced for units.",
 			Examples: []string{"G = system([[0, 1], [-4, -0.4]], [0, 1], [1, 0])\nmodes(G)", "G = system([[0, 1], [-4, -0.4]], [0, 1], [1, 0])\nmodes(G, tol: 1e-6)"},

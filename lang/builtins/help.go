@@ -20,7 +20,7 @@ func init() {
 			case nil:
 				text = helpIndex(c.Registry())
 			case *lang.Builtin:
-				text = v.HelpText()
+				text = c.Registry().HelpText(v)
 			default:
 				text = c.TypeName(v) + "\n\n" + c.Format(v)
 			}

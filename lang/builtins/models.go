@@ -20,54 +20,44 @@ func init() {
 	for _, b := range modelBuiltins() {
 		register(b)
 	}
-	registerType((*lsys.Sensitivity)(nil), lang.TypeInfo{Name: "an eigenvalue sensitivity table",
-		Fields: []string{"eigenvalues", "parameters", "values", "derivatives", "relative", "condition"},
-		Field: func(v any, name string) (any, bool) {
-			s := v.(*lsys.Sensitivity)
-			switch name {
-			case "eigenvalues":
-				return complexList(s.Eigenvalues), true
-			case "parameters":
-				return lang.NameList(s.Parameters), true
-			case "values":
-				return lang.RealVector(s.Values), true
-			case "derivatives", "relative":
-				if len(s.Eigenvalues) == 0 || len(s.Parameters) == 0 {
-					return nil, false
-				}
-				m := mat.NewCDense(len(s.Eigenvalues), len(s.Parameters), nil)
-				for k := range s.Eigenvalues {
-					for j := range s.Parameters {
-						if name == "relative" {
-							m.Set(k, j, s.Relative(k, j))
-						} else {
-							m.Set(k, j, s.D[k][j])
-						}
-					}
-				}
-				return m, true
-			case "condition":
-				return lang.RealVector(s.Cond), true
+	registerType((*lsys.Sensitivity)(nil), lang.TypeInfo{Name: "an eigenvalue sensitivity table", Fields: []lang.Field{
+		lang.FieldOf("eigenvalues", "the eigenvalues, a complex vector", func(s *lsys.Sensitivity) any { return complexList(s.Eigenvalues) }),
+		lang.FieldOf("parameters", "the parameter names", func(s *lsys.Sensitivity) any { return lang.NameList(s.Parameters) }),
+		lang.FieldOf("values", "the parameter values", func(s *lsys.Sensitivity) any { return lang.RealVector(s.Values) }),
+		lang.FieldOf("derivatives", "d eigenvalue / d parameter, one row per eigenvalue, one column per parameter", func(s *lsys.Sensitivity) any {
+			return sensitivityMatrix(s, func(k, j int) complex128 { return s.D[k][j] })
+		}),
+		lang.FieldOf("relative", "(p / eigenvalue) d eigenvalue / dp: the relative change per relative change of the parameter", func(s *lsys.Sensitivity) any {
+			return sensitivityMatrix(s, s.Relative)
+		}),
+		lang.FieldOf("condition", "the condition number of each eigenvalue", func(s *lsys.Sensitivity) any { return lang.RealVector(s.Cond) }),
+	}})
+	registerType((*lsys.Locus)(nil), lang.TypeInfo{Name: "a locus", Fields: []lang.Field{
+		lang.FieldOf("parameter", "the parameter's name", func(l *lsys.Locus) any { return l.Parameter }),
+		lang.FieldOf("values", "the parameter values", func(l *lsys.Locus) any { return lang.RealVector(l.Values) }),
+		lang.FieldOf("branches", "one complex vector of eigenvalues per parameter value", func(l *lsys.Locus) any {
+			out := &lang.List{}
+			for _, b := range l.Branches {
+				out.Items = append(out.Items, complexList(b))
 			}
-			return nil, false
-		}})
-	registerType((*lsys.Locus)(nil), lang.TypeInfo{Name: "a locus", Fields: []string{"parameter", "values", "branches"},
-		Field: func(v any, name string) (any, bool) {
-			l := v.(*lsys.Locus)
-			switch name {
-			case "parameter":
-				return l.Parameter, true
-			case "values":
-				return lang.RealVector(l.Values), true
-			case "branches":
-				out := &lang.List{}
-				for _, b := range l.Branches {
-					out.Items = append(out.Items, complexList(b))
-				}
-				return out, true
-			}
-			return nil, false
-		}})
+			return out
+		}),
+	}})
+}
+
+// sensitivityMatrix is a complex eigenvalue-by-parameter matrix; nil when
+// there are no eigenvalues or no parameters.
+func sensitivityMatrix(s *lsys.Sensitivity, at func(k, j int) complex128) any {
+	if len(s.Eigenvalues) == 0 || len(s.Parameters) == 0 {
+		return nil
+	}
+	m := mat.NewCDense(len(s.Eigenvalues), len(s.Parameters), nil)
+	for k := range s.Eigenvalues {
+		for j := range s.Parameters {
+			m.Set(k, j, at(k, j))
+		}
+	}
+	return m
 }
 
 func complexList(v []complex128) any {
@@ -106,6 +96,7 @@ func modelBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "equilibrium", Group: lang.GroupModels,
+			Returns: (*lsys.Equilibrium)(nil),
 			Params: []lang.Param{
 				{Name: "model", Doc: "an equation block (nonlinear model or linear system), or a system in matrix form"},
 				{Name: "inputs", Optional: true, Doc: "a record with the constant input values; inputs left out are 0"},
@@ -125,6 +116,7 @@ func modelBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "sensitivity", Group: lang.GroupModels,
+			Returns: (*lsys.Sensitivity)(nil),
 			Params: []lang.Param{
 				{Name: "model", Doc: "an equation block: a system built from one, or a nonlinear model"},
 				{Name: "parameters", Optional: true, Doc: `names of parameters used in the block, as strings: ["k", "b"]; left out: every parameter of the block`},
@@ -144,6 +136,7 @@ func modelBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "locus", Group: lang.GroupModels,
+			Returns: (*lsys.Locus)(nil),
 			Params: []lang.Param{
 				{Name: "family", Doc: "a function of one parameter that gives a system, e.g. f(k) = closeloop(G, k)"},
 			},
@@ -242,43 +235,26 @@ func linearizeFn(c *lang.Call) (any, error) {
 // The equilibrium built-in hands out lsys's own *lsys.Equilibrium; its
 // fields are the states and inputs as records, the verdict, and each state
 // and input by name.
-var equilibriumFields = []string{"states", "inputs", "residual", "iterations", "unique", "free", "rank"}
-
 func init() {
 	registerType((*lsys.Equilibrium)(nil), lang.TypeInfo{Name: "a steady state (equilibrium)",
-		Fields: equilibriumFields,
-		FieldNames: func(v any) []string {
-			e := v.(*lsys.Equilibrium)
-			out := append([]string(nil), equilibriumFields...)
-			out = append(out, e.StateNames...)
-			return append(out, e.InputNames...)
-		},
-		Field: func(v any, name string) (any, bool) {
-			e := v.(*lsys.Equilibrium)
-			switch name {
-			case "states":
-				return numberRecord(e.StateNames, e.X), true
-			case "inputs":
-				return numberRecord(e.InputNames, e.U), true
-			case "residual":
-				return e.Residual, true
-			case "iterations":
-				return float64(e.Iterations), true
-			case "unique":
-				return e.Free == nil, true
-			case "free":
-				// The free directions as columns, one row per state; [] when unique.
+		Fields: []lang.Field{
+			lang.FieldOf("states", "the steady state, a record by state name", func(e *lsys.Equilibrium) any { return numberRecord(e.StateNames, e.X) }),
+			lang.FieldOf("inputs", "the constant inputs, a record by input name", func(e *lsys.Equilibrium) any { return numberRecord(e.InputNames, e.U) }),
+			lang.FieldOf("residual", "the largest |F| left at the result (F = f(x, u); f(x, u) - x when sampled)", func(e *lsys.Equilibrium) any { return e.Residual }),
+			lang.FieldOf("iterations", "the Newton steps taken", func(e *lsys.Equilibrium) any { return float64(e.Iterations) }),
+			lang.FieldOf("unique", "true when the steady state is isolated (the Jacobian has full rank)", func(e *lsys.Equilibrium) any { return e.Free == nil }),
+			lang.FieldOf("free", "the directions along which the steady state is not unique, as columns; [] when unique", func(e *lsys.Equilibrium) any {
 				if e.Free == nil {
-					return &lang.List{}, true
+					return &lang.List{}
 				}
-				return mat.DenseCopyOf(e.Free), true
-			case "rank":
-				return float64(e.Rank), true
-			}
-			if x, ok := e.State(name); ok {
-				return x, true
-			}
-			return nil, false
+				return mat.DenseCopyOf(e.Free)
+			}),
+			lang.FieldOf("rank", "the numerical rank of the Jacobian", func(e *lsys.Equilibrium) any { return float64(e.Rank) }),
+		},
+		ByName: func(v any) ([]string, func(string) (any, bool)) {
+			e := v.(*lsys.Equilibrium)
+			names := append(append([]string(nil), e.StateNames...), e.InputNames...)
+			return names, func(name string) (any, bool) { return e.State(name) }
 		}})
 }
 

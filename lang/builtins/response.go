@@ -34,181 +34,115 @@ func init() {
 		register(b)
 	}
 	registerType((*lsys.Signal)(nil), lang.TypeInfo{Name: "an input signal"})
-	registerType((*lsys.Response)(nil), lang.TypeInfo{
-		Name:   "a time response",
-		Fields: []string{"t", "y", "u", "kind"},
-		Field: func(v any, name string) (any, bool) {
-			r := v.(*lsys.Response)
-			switch name {
-			case "t":
-				return lang.RealVector(r.T), true
-			case "y":
-				return responseMatrix(r.Y, len(r.T)), true
-			case "u":
-				if r.U == nil {
-					return nil, false
+	registerType((*lsys.Response)(nil), lang.TypeInfo{Name: "a time response", Fields: []lang.Field{
+		lang.FieldOf("t", "the sample times in s", func(r *lsys.Response) any { return lang.RealVector(r.T) }),
+		lang.FieldOf("y", "the outputs, one column per output and channel (output 1 for each channel, then output 2, ...)", func(r *lsys.Response) any {
+			return responseMatrix(r.Y, len(r.T))
+		}),
+		lang.FieldOf("u", "the input applied, one column per input (responses to an input signal only)", func(r *lsys.Response) any {
+			if r.U == nil {
+				return nil
+			}
+			return responseMatrix([][][]float64{r.U}, len(r.T))
+		}),
+		lang.FieldOf("kind", `"step", "impulse", "initial" or "input"`, func(r *lsys.Response) any { return r.Kind }),
+	}})
+	registerType((*lsys.ModalResponse)(nil), lang.TypeInfo{Name: "a response split by mode", Fields: []lang.Field{
+		lang.FieldOf("response", "the whole response", func(m *lsys.ModalResponse) any { return m.Response }),
+		lang.FieldOf("modes", "the eigenvalue of each part as text (\"-1 ± 2j\"), or \"direct\"", func(m *lsys.ModalResponse) any { return lang.NameList(m.Labels) }),
+	}})
+	metric := func(name, doc string, f func(r lsys.Metric) float64) lang.Field {
+		return lang.FieldOf(name, doc, func(m *lsys.Metrics) any {
+			if len(m.Rows) == 1 {
+				return f(m.Rows[0])
+			}
+			out := make([]float64, len(m.Rows))
+			for i, r := range m.Rows {
+				out[i] = f(r)
+			}
+			return lang.RealVector(out)
+		})
+	}
+	registerType((*lsys.Metrics)(nil), lang.TypeInfo{Name: "response metrics", Fields: []lang.Field{
+		metric("rise_time", "s from 10 % to 90 % of the change (a vector when there are several outputs or channels)", func(r lsys.Metric) float64 { return r.RiseTime }),
+		metric("settling_time", "s until the last entry into the band of 2 % of the change", func(r lsys.Metric) float64 { return r.SettlingTime }),
+		metric("overshoot", "% of the change beyond the steady value (0 if none)", func(r lsys.Metric) float64 { return r.Overshoot }),
+		metric("peak", "the extreme value beyond the steady value; nan without overshoot", func(r lsys.Metric) float64 { return r.Peak }),
+		metric("peak_time", "s at the peak", func(r lsys.Metric) float64 { return r.PeakTime }),
+		metric("steady", "the final value: the steady-state gain of a stable step response, else the last sample", func(r lsys.Metric) float64 { return r.Steady }),
+	}})
+	registerType((*lsys.Margins)(nil), lang.TypeInfo{Name: "loop margins", Fields: []lang.Field{
+		lang.FieldOf("gain_margin", "1/|L| at the phase crossover that sets it; inf if there is none", func(m *lsys.Margins) any { return m.GainMargin }),
+		lang.FieldOf("gain_margin_db", "the gain margin in dB", func(m *lsys.Margins) any { return m.GainMarginDB }),
+		lang.FieldOf("phase_crossover", "rad/s where the phase of L crosses -180 degrees; nan if none", func(m *lsys.Margins) any { return m.PhaseCrossover }),
+		lang.FieldOf("phase_margin", "degrees, 180 + the phase of L at the gain crossover that sets it; inf if none", func(m *lsys.Margins) any { return m.PhaseMargin }),
+		lang.FieldOf("gain_crossover", "rad/s where |L| = 1; nan if none", func(m *lsys.Margins) any { return m.GainCrossover }),
+		lang.FieldOf("delay_margin", "s of added delay the loop stands: the smallest phase margin / frequency over the gain crossovers", func(m *lsys.Margins) any { return m.DelayMargin }),
+		lang.FieldOf("bandwidth", "rad/s where the closed loop falls 3 dB below its value at 0", func(m *lsys.Margins) any { return m.Bandwidth }),
+		lang.FieldOf("resonant_peak", "dB, the largest gain of the closed loop", func(m *lsys.Margins) any { return m.ResonantPeak }),
+		lang.FieldOf("resonant_frequency", "rad/s of the resonant peak", func(m *lsys.Margins) any { return m.ResonantFreq }),
+		lang.FieldOf("stable", "whether the closed loop is stable (from its poles)", func(m *lsys.Margins) any { return m.ClosedStable }),
+	}})
+	registerType((*lsys.FrequencyResponse)(nil), lang.TypeInfo{Name: "a frequency response", Fields: []lang.Field{
+		// .w is always in rad/s and .f in Hz, whatever hz: the chart shows.
+		lang.FieldOf("w", "the frequencies in rad/s", func(f *lsys.FrequencyResponse) any { return lang.RealVector(f.W) }),
+		lang.FieldOf("f", "the same frequencies in Hz", func(f *lsys.FrequencyResponse) any { return lang.RealVector(inHz(f.W)) }),
+		lang.FieldOf("magnitude", "dB, one column per output and input pair (output 1 for each input, then output 2, ...)", func(f *lsys.FrequencyResponse) any {
+			return frequencyColumns(f, func(i, j int) []float64 {
+				mg := f.Magnitude(i, j)
+				for k := range mg {
+					mg[k] = 20 * math.Log10(mg[k])
 				}
-				return responseMatrix([][][]float64{r.U}, len(r.T)), true
-			case "kind":
-				return r.Kind, true
-			}
-			return nil, false
-		},
-	})
-	registerType((*lsys.ModalResponse)(nil), lang.TypeInfo{Name: "a response split by mode", Fields: []string{"response", "modes"},
-		Field: func(v any, name string) (any, bool) {
-			m := v.(*lsys.ModalResponse)
-			switch name {
-			case "response":
-				return m.Response, true
-			case "modes":
-				items := make([]any, len(m.Labels))
-				for i, l := range m.Labels {
-					items[i] = l
-				}
-				return &lang.List{Items: items}, true
-			}
-			return nil, false
-		}})
-	registerType((*lsys.Metrics)(nil), lang.TypeInfo{
-		Name:   "response metrics",
-		Fields: []string{"rise_time", "settling_time", "overshoot", "peak", "peak_time", "steady"},
-		Field: func(v any, name string) (any, bool) {
-			m := v.(*lsys.Metrics)
-			get := func(f func(r lsys.Metric) float64) any {
-				if len(m.Rows) == 1 {
-					return f(m.Rows[0])
-				}
-				out := make([]float64, len(m.Rows))
-				for i, r := range m.Rows {
-					out[i] = f(r)
-				}
-				return lang.RealVector(out)
-			}
-			switch name {
-			case "rise_time":
-				return get(func(r lsys.Metric) float64 { return r.RiseTime }), true
-			case "settling_time":
-				return get(func(r lsys.Metric) float64 { return r.SettlingTime }), true
-			case "overshoot":
-				return get(func(r lsys.Metric) float64 { return r.Overshoot }), true
-			case "peak":
-				return get(func(r lsys.Metric) float64 { return r.Peak }), true
-			case "peak_time":
-				return get(func(r lsys.Metric) float64 { return r.PeakTime }), true
-			case "steady":
-				return get(func(r lsys.Metric) float64 { return r.Steady }), true
-			}
-			return nil, false
-		},
-	})
-	registerType((*lsys.Margins)(nil), lang.TypeInfo{
-		Name: "loop margins",
-		Fields: []string{"gain_margin", "gain_margin_db", "phase_crossover", "phase_margin", "gain_crossover",
-			"delay_margin", "bandwidth", "resonant_peak", "resonant_frequency", "stable"},
-		Field: func(v any, name string) (any, bool) {
-			m := v.(*lsys.Margins)
-			switch name {
-			case "gain_margin":
-				return m.GainMargin, true
-			case "gain_margin_db":
-				return m.GainMarginDB, true
-			case "phase_crossover":
-				return m.PhaseCrossover, true
-			case "phase_margin":
-				return m.PhaseMargin, true
-			case "gain_crossover":
-				return m.GainCrossover, true
-			case "delay_margin":
-				return m.DelayMargin, true
-			case "bandwidth":
-				return m.Bandwidth, true
-			case "resonant_peak":
-				return m.ResonantPeak, true
-			case "resonant_frequency":
-				return m.ResonantFreq, true
-			case "stable":
-				return m.ClosedStable, true
-			}
-			return nil, false
-		},
-	})
-	registerType((*lsys.FrequencyResponse)(nil), lang.TypeInfo{
-		Name: "a frequency response",
-		// .w is always in rad/s and .f in Hz, whatever hz: the chart shows
-		Fields: []string{"w", "f", "magnitude", "phase"},
-		Field: func(v any, name string) (any, bool) {
-			f := v.(*lsys.FrequencyResponse)
-			p, m := len(f.Outputs), len(f.Inputs)
-			cols := func(get func(i, j int) []float64) any {
-				M := mat.NewDense(len(f.W), p*m, nil)
-				for i := 0; i < p; i++ {
-					for j := 0; j < m; j++ {
-						M.SetCol(i*m+j, get(i, j))
-					}
-				}
-				return M
-			}
-			switch name {
-			case "w":
-				return lang.RealVector(f.W), true
-			case "f":
-				return lang.RealVector(inHz(f.W)), true
-			case "magnitude":
-				return cols(func(i, j int) []float64 {
-					mg := f.Magnitude(i, j)
-					for k := range mg {
-						mg[k] = 20 * math.Log10(mg[k])
-					}
-					return mg
-				}), true
-			case "phase":
-				return cols(f.Phase), true
-			}
-			return nil, false
-		},
-	})
+				return mg
+			})
+		}),
+		lang.FieldOf("phase", "degrees, in the same columns", func(f *lsys.FrequencyResponse) any { return frequencyColumns(f, f.Phase) }),
+	}})
 	registerType((*lsys.PolarChart)(nil), lang.TypeInfo{Name: "a polar chart"})
-	registerType((*lsys.SingularValues)(nil), lang.TypeInfo{Name: "singular values against frequency", Fields: []string{"w", "f", "values"},
-		Field: func(v any, name string) (any, bool) {
-			sv := v.(*lsys.SingularValues)
-			switch name {
-			case "w":
-				return lang.RealVector(sv.Frequency.W), true
-			case "f":
-				return lang.RealVector(inHz(sv.Frequency.W)), true
-			case "values":
-				if len(sv.S) == 0 || len(sv.S[0]) == 0 {
-					return nil, false
-				}
-				M := mat.NewDense(len(sv.S), len(sv.S[0]), nil)
-				for k, row := range sv.S {
-					M.SetRow(k, row)
-				}
-				return M, true
+	registerType((*lsys.SingularValues)(nil), lang.TypeInfo{Name: "singular values against frequency", Fields: []lang.Field{
+		lang.FieldOf("w", "the frequencies in rad/s", func(sv *lsys.SingularValues) any { return lang.RealVector(sv.Frequency.W) }),
+		lang.FieldOf("f", "the same frequencies in Hz", func(sv *lsys.SingularValues) any { return lang.RealVector(inHz(sv.Frequency.W)) }),
+		lang.FieldOf("values", "the singular values, one row per frequency, largest first", func(sv *lsys.SingularValues) any {
+			if len(sv.S) == 0 || len(sv.S[0]) == 0 {
+				return nil
 			}
-			return nil, false
-		}})
-	registerType((*lsys.PoleZeroMap)(nil), lang.TypeInfo{Name: "a pole-zero map", Fields: []string{"poles", "zeros"},
-		Field: func(v any, name string) (any, bool) {
-			pz := v.(*lsys.PoleZeroMap)
-			var vals []complex128
-			switch name {
-			case "poles":
-				vals = pz.Poles
-			case "zeros":
-				if !pz.ZerosKnown {
-					return nil, false
-				}
-				vals = pz.Zeros
-			default:
-				return nil, false
+			M := mat.NewDense(len(sv.S), len(sv.S[0]), nil)
+			for k, row := range sv.S {
+				M.SetRow(k, row)
 			}
-			if len(vals) == 0 {
-				return &lang.List{}, true
+			return M
+		}),
+	}})
+	registerType((*lsys.PoleZeroMap)(nil), lang.TypeInfo{Name: "a pole-zero map", Fields: []lang.Field{
+		lang.FieldOf("poles", "the poles, a complex vector", func(pz *lsys.PoleZeroMap) any { return complexColumn(pz.Poles) }),
+		lang.FieldOf("zeros", "the zeros, a complex vector; absent when they were not computed (the map says why)", func(pz *lsys.PoleZeroMap) any {
+			if !pz.ZerosKnown {
+				return nil
 			}
-			return mat.NewCDense(len(vals), 1, append([]complex128(nil), vals...)), true
-		}})
+			return complexColumn(pz.Zeros)
+		}),
+	}})
+}
+
+// frequencyColumns puts a figure of every (output, input) pair in columns:
+// column i*inputs + j.
+func frequencyColumns(f *lsys.FrequencyResponse, get func(i, j int) []float64) *mat.Dense {
+	p, m := len(f.Outputs), len(f.Inputs)
+	M := mat.NewDense(len(f.W), p*m, nil)
+	for i := 0; i < p; i++ {
+		for j := 0; j < m; j++ {
+			M.SetCol(i*m+j, get(i, j))
+		}
+	}
+	return M
+}
+
+// complexColumn is a complex column vector, [] when empty.
+func complexColumn(vals []complex128) any {
+	if len(vals) == 0 {
+		return &lang.List{}
+	}
+	return mat.NewCDense(len(vals), 1, append([]complex128(nil), vals...))
 }
 
 // responseMatrix puts the samples of every (output, channel) pair in
@@ -429,6 +363,7 @@ func responseBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "response", Group: lang.GroupResponse,
+			Returns: (*lsys.Response)(nil),
 			Params: []lang.Param{
 				{Name: "system", Doc: "a system or transfer function"},
 				{Name: "input", Optional: true, Doc: "step, impulse, ramp, sine(w), a table, or a function f(t); leave out with initial:"},
@@ -525,6 +460,7 @@ func responseBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "metrics", Group: lang.GroupResponse,
+			Returns:  (*lsys.Metrics)(nil),
 			Params:   []lang.Param{{Name: "r", Doc: "a time response (usually a step response)"}},
 			Help:     "Rise time (10-90 %), settling time (2 % band), overshoot, peak and peak time, steady value of a response.",
 			Doc:      "Measured on the computed response, crossing times interpolated between samples. The steady value of a stable step response is the exact steady-state gain; otherwise the last sample (and the table says so). Definitions as in Ogata, Modern Control Engineering, Section 5-3.",
@@ -542,12 +478,13 @@ func responseBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "frequency", Group: lang.GroupResponse,
-			Params: append([]lang.Param{{Name: "system", Doc: "a system or transfer function"}}, freqParams...),
-			Help:   "Frequency response: magnitude (dB) and unwrapped phase (degrees) against frequency.",
+			Returns: (*lsys.FrequencyResponse)(nil),
+			Params:  append([]lang.Param{{Name: "system", Doc: "a system or transfer function"}}, freqParams...),
+			Help:    "Frequency response: magnitude (dB) and unwrapped phase (degrees) against frequency.",
 			Doc: "One Hessenberg reduction, then an O(n^2) complex Hessenberg solve per frequency (Laub 1981). " +
 				"The range runs a decade beyond the slowest and fastest modes (sampled: up to the Nyquist frequency); " +
 				"20 points per decade, refined where the magnitude moves more than 1 dB or the phase more than 5 degrees between points. " +
-				"Fields: .w the frequencies in rad/s and .f the same in Hz (whatever hz: the display uses), .magnitude in dB, .phase in degrees.",
+				"The fields .w and .f hold the frequencies in rad/s and in Hz whatever hz: the display uses.",
 			Examples: []string{respExample + "frequency(G)", respExample + "frequency(G, from: 0.01, to: 10, hz: true)", respExample + "frequency(G, hz: true).f[1]"},
 			Fn: func(c *lang.Call) (any, error) {
 				f, err := respFrequency(c)
@@ -573,6 +510,7 @@ func responseBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "singular", Group: lang.GroupResponse,
+			Returns:  (*lsys.SingularValues)(nil),
 			Params:   append([]lang.Param{{Name: "system", Doc: "a system (MIMO)"}}, freqParams...),
 			Help:     "Singular values of the frequency response against frequency (the MIMO gain).",
 			Doc:      "At every frequency, the singular values of G(jw) from the real SVD of [[Re G, -Im G], [Im G, Re G]].",
@@ -629,8 +567,9 @@ func responseBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "margins", Group: lang.GroupResponse,
-			Params: append([]lang.Param{{Name: "loop", Doc: "the loop transfer function L (SISO), negative feedback assumed"}}, freqParams...),
-			Help:   "Gain, phase and delay margins with all crossovers; closed-loop bandwidth and resonant peak; an annotated chart.",
+			Returns: (*lsys.Margins)(nil),
+			Params:  append([]lang.Param{{Name: "loop", Doc: "the loop transfer function L (SISO), negative feedback assumed"}}, freqParams...),
+			Help:    "Gain, phase and delay margins with all crossovers; closed-loop bandwidth and resonant peak; an annotated chart.",
 			Doc: "Crossovers are bracketed on the adaptive frequency grid and refined by bisection. The gain margin is the one of smallest |dB| " +
 				"over the phase crossovers, the phase margin the smallest over the gain crossovers, the delay margin PM/w minimised over gain crossovers. " +
 				"Bandwidth and resonant peak are those of T = L/(1 + L). The margins mean something only if the closed loop is stable; the display says whether it is.",
@@ -649,6 +588,7 @@ func responseBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "polezero", Group: lang.GroupResponse,
+			Returns: (*lsys.PoleZeroMap)(nil),
 			Params: []lang.Param{{Name: "system", Doc: "a system or transfer function"},
 				{Name: "within", Optional: true, Doc: "radius of the region shown (1/s; sampled: in the z-plane); points beyond it are marked at the edge with their value"}},
 			Help: "The pole-zero map: poles as crosses, zeros as circles, with damping and natural-frequency grid (sampled: the unit circle).",

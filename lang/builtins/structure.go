@@ -128,22 +128,23 @@ func structureBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "zeros", Group: lang.GroupAnalysis,
-			Params: []lang.Param{stSystemParam, stTolParam},
-			Help:   "Invariant zeros of a system (MIMO too), with transmission and input-/output-decoupling zeros listed separately.",
+			Returns: (*lsys.ZeroSet)(nil),
+			Params:  []lang.Param{stSystemParam, stTolParam},
+			Help:    "Invariant zeros of a system (MIMO too), with transmission and input-/output-decoupling zeros listed separately.",
 			Doc: "The system pencil [[A - sI, B], [C, D]] is reduced by orthogonal row and column compressions " +
 				"(Emami-Naeini & Van Dooren 1982) to a regular pencil whose generalized eigenvalues, found by a QZ " +
 				"iteration (Moler & Stewart 1973), are the zeros. Transmission zeros are those of a minimal realization; " +
-				"input-decoupling zeros are modes no input reaches, output-decoupling zeros modes no output sees. " +
-				"Fields: invariant, transmission, input_decoupling, output_decoupling.",
+				"input-decoupling zeros are modes no input reaches, output-decoupling zeros modes no output sees.",
 			Examples: []string{msd + "zeros(G)", gimbal + "zeros(G).transmission"},
 			Fn:       stSystemTol(lsys.Zeros),
 		},
 		{
 			Name: "eigen", Group: lang.GroupMatrices,
-			Params: []lang.Param{{Name: "M", Doc: "a square matrix, or a system (its A)"}},
-			Help:   "Eigenvalues with right and left eigenvectors and the condition number of each eigenvalue.",
+			Returns: (*lsys.EigenStructure)(nil),
+			Params:  []lang.Param{{Name: "M", Doc: "a square matrix, or a system (its A)"}},
+			Help:    "Eigenvalues with right and left eigenvectors and the condition number of each eigenvalue.",
 			Doc: "Balancing, Hessenberg QR and back substitution. Eigenvectors have unit 2-norm; the condition number " +
-				"1/|w^H v| says how far the eigenvalue moves under a small change of the matrix. Fields: values, right, left, cond.",
+				"1/|w^H v| says how far the eigenvalue moves under a small change of the matrix.",
 			Examples: []string{"eigen([[2, 1], [0, 3]])"},
 			Fn: func(c *lang.Call) (any, error) {
 				A, err := stMatrixOrSystem(c, "M")
@@ -188,6 +189,7 @@ func structureBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "jordan", Group: lang.GroupAnalysis,
+			Returns: (*lsys.JordanStructure)(nil),
 			Params: []lang.Param{
 				{Name: "M", Doc: "a square matrix, or a system (its A)"},
 				{Name: "cluster", Optional: true, Doc: "also treat eigenvalues closer than this (absolute) as one"},
@@ -196,7 +198,7 @@ func structureBuiltins() []*lang.Builtin {
 			Help: "Jordan structure: distinct eigenvalues, algebraic and geometric multiplicity, Jordan block sizes, with the tolerances used.",
 			Doc: "Eigenvalues are clustered by their perturbation bounds (condition numbers), then block sizes follow from " +
 				"the ranks of powers of (A - lambda I) (Golub & Wilkinson 1976). Whether an eigenvalue is defective is a " +
-				"numerical judgement: every cluster shows its tolerance. Fields: values, algebraic, geometric, defective.",
+				"numerical judgement: every cluster shows its tolerance.",
 			Examples: []string{"jordan([[-1, 1], [0, -1]])", "jordan([[-2, 0], [2, -2]])"},
 			Fn: func(c *lang.Call) (any, error) {
 				A, err := stMatrixOrSystem(c, "M")
@@ -221,20 +223,21 @@ func structureBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "structure", Group: lang.GroupAnalysis,
-			Params: []lang.Param{stSystemParam, stTolParam},
-			Help:   "Controllable, observable, stabilizable, detectable, and the four Kalman parts with their modes.",
+			Returns: (*lsys.Structure)(nil),
+			Params:  []lang.Param{stSystemParam, stTolParam},
+			Help:    "Controllable, observable, stabilizable, detectable, and the four Kalman parts with their modes.",
 			Doc: "Decided from orthogonal staircase forms (Van Dooren 1981; Paige 1981) with every rank tolerance shown, " +
-				"never from the rank of the Krylov matrix. Fields: controllable, observable, stabilizable, detectable, " +
-				"uncontrollable, unobservable (the modes), parts.",
+				"never from the rank of the Krylov matrix.",
 			Examples: []string{msd + "structure(G)", "structure(system([[-1, 0], [0, -2]], [1, 0], [1, 1]))"},
 			Fn:       stSystemTol(lsys.StructureOf),
 		},
 		{
 			Name: "decompose", Group: lang.GroupAnalysis,
-			Params: []lang.Param{stSystemParam, stTolParam},
-			Help:   "The Kalman decomposition: the system in coordinates ordered reachable-and-observable, reachable only, observable only, neither; with T.",
+			Returns: (*lsys.Decomposition)(nil),
+			Params:  []lang.Param{stSystemParam, stTolParam},
+			Help:    "The Kalman decomposition: the system in coordinates ordered reachable-and-observable, reachable only, observable only, neither; with T.",
 			Doc: "Built from orthonormal bases of the reachable and unobservable subspaces (staircase forms) and their " +
-				"intersection; the condition number of T is shown. Fields: system, T, sizes, cond.",
+				"intersection; the condition number of T is shown.",
 			Examples: []string{"decompose(system([[-1, 0], [0, -2]], [1, 0], [1, 1]))"},
 			Fn:       stSystemTol(lsys.Decompose),
 		},
@@ -248,26 +251,29 @@ func structureBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "reachable", Group: lang.GroupAnalysis,
+			Returns:  (*lsys.Subspace)(nil),
 			Params:   []lang.Param{stSystemParam, stTolParam},
 			Help:     "The reachable (controllable) subspace, as an orthonormal basis.",
-			Doc:      "Leading columns of the controllability staircase form. Fields: basis, dim, residual, invariant, values.",
+			Doc:      "Leading columns of the controllability staircase form.",
 			Examples: []string{"reachable(system([[-1, 0], [0, -2]], [1, 0], [1, 1]))"},
 			Fn:       stSystemTol(lsys.Reachable),
 		},
 		{
 			Name: "unobservable", Group: lang.GroupAnalysis,
+			Returns:  (*lsys.Subspace)(nil),
 			Params:   []lang.Param{stSystemParam, stTolParam},
 			Help:     "The unobservable subspace, as an orthonormal basis.",
-			Doc:      "Trailing columns of the observability staircase form. Fields: basis, dim, residual, invariant, values.",
+			Doc:      "Trailing columns of the observability staircase form.",
 			Examples: []string{gimbal + "unobservable(G)"},
 			Fn:       stSystemTol(lsys.Unobservable),
 		},
 		{
 			Name: "spectral", Group: lang.GroupAnalysis,
-			Params: []lang.Param{stSystemParam, {Name: "which", Default: "stable", Doc: "\"stable\", \"unstable\", or a list of eigenvalues"}},
-			Help:   "The invariant subspace of the stable or unstable modes, or of listed eigenvalues, as an orthonormal basis.",
+			Returns: (*lsys.Subspace)(nil),
+			Params:  []lang.Param{stSystemParam, {Name: "which", Default: "stable", Doc: "\"stable\", \"unstable\", or a list of eigenvalues"}},
+			Help:    "The invariant subspace of the stable or unstable modes, or of listed eigenvalues, as an orthonormal basis.",
 			Doc: "Leading Schur vectors of the real Schur form reordered so the chosen eigenvalues come first (Bai & Demmel " +
-				"1993 swaps). Listing one member of a conjugate pair selects the pair. Fields: basis, dim, residual, invariant, values.",
+				"1993 swaps). Listing one member of a conjugate pair selects the pair.",
 			Examples: []string{"spectral(system([[1, 2], [0, -3]], [0, 1], [1, 0]), \"unstable\")", "spectral(system([[1, 2], [0, -3]], [0, 1], [1, 0]), [-3])"},
 			Fn: func(c *lang.Call) (any, error) {
 				g, err := c.System("system")
@@ -309,6 +315,7 @@ func structureBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "invariant", Group: lang.GroupAnalysis,
+			Returns: (*lsys.InvariantCheck)(nil),
 			Params: []lang.Param{
 				{Name: "A", Doc: "a square matrix, or a system (its A)"},
 				{Name: "V", Doc: "a matrix whose columns span the subspace (one row per state)"},
@@ -316,7 +323,7 @@ func structureBuiltins() []*lang.Builtin {
 			},
 			Help: "Whether span(V) is A-invariant (A V = V H for some H), with the relative residual.",
 			Doc: "V is orthonormalised (its rank decided by singular values), then ||A Q - Q (Q' A Q)|| / ||A|| is compared " +
-				"with a tolerance near the rounding level. Fields: invariant, residual, basis, rank.",
+				"with a tolerance near the rounding level.",
 			Examples: []string{"invariant([[1, 2], [0, 3]], [1, 0])", "invariant([[1, 2], [0, 3]], [0, 1])"},
 			Fn: func(c *lang.Call) (any, error) {
 				A, err := stMatrixOrSystem(c, "A")
@@ -356,12 +363,13 @@ func stModalBuiltin() *lang.Builtin {
 	const msd = "G = system([[0, 1], [-4, -0.8]], [0, 0.5], [1, 0], states: [\"position\", \"velocity\"], inputs: [\"force\"], outputs: [\"position\"])\n"
 	return &lang.Builtin{
 		Name: "modal", Group: lang.GroupAnalysis,
-		Params: []lang.Param{stSystemParam},
-		Help:   "The system in real modal coordinates (1x1 and 2x2 [[sigma, omega], [-omega, sigma]] blocks), with the transformation.",
+		Returns: (*lsys.ModalForm)(nil),
+		Params:  []lang.Param{stSystemParam},
+		Help:    "The system in real modal coordinates (1x1 and 2x2 [[sigma, omega], [-omega, sigma]] blocks), with the transformation.",
 		Doc: "The modal coordinates q = T x come from the right eigenvectors (unit mode shapes). When an eigenvalue is " +
 			"defective or the eigenvector basis is ill-conditioned (condition above 1e4), a block-diagonal form from the " +
 			"ordered real Schur form with Sylvester decoupling (Bavely & Stewart 1979) is returned instead, and the " +
-			"display says so. Fields: system, T, shapes (the columns of T^-1), block_diagonal, cond.",
+			"display says so.",
 		Examples: []string{msd + "modal(G)", "modal(system([[-1, 1], [0, -1]], [0, 1], [1, 0]))"},
 		Fn: func(c *lang.Call) (any, error) {
 			g, err := c.System("system")
@@ -373,211 +381,146 @@ func stModalBuiltin() *lang.Builtin {
 	}
 }
 
-// stFields builds a TypeInfo from an ordered list of field names and a
-// getter.
-func stFields(name string, fields []string, get func(v any, f string) (any, bool)) lang.TypeInfo {
-	return lang.TypeInfo{Name: name, Fields: fields, Field: get}
-}
-
 func registerStructureTypes() {
-	registerType((*lsys.ZeroSet)(nil), stFields("a set of zeros",
-		[]string{"invariant", "transmission", "input_decoupling", "output_decoupling", "tol"},
-		func(v any, f string) (any, bool) {
-			z := v.(*lsys.ZeroSet)
-			switch f {
-			case "invariant":
-				return lang.ComplexVector(z.Invariant), true
-			case "transmission":
-				return lang.ComplexVector(z.Transmission), true
-			case "input_decoupling":
-				return lang.ComplexVector(z.InputDecoupling), true
-			case "output_decoupling":
-				return lang.ComplexVector(z.OutputDecoupling), true
-			case "tol":
-				return z.Tol, true
+	registerType((*lsys.ZeroSet)(nil), lang.TypeInfo{Name: "a set of zeros", Fields: []lang.Field{
+		lang.FieldOf("invariant", "the invariant zeros (of the system pencil)", func(z *lsys.ZeroSet) any { return lang.ComplexVector(z.Invariant) }),
+		lang.FieldOf("transmission", "the transmission zeros (of the minimal part)", func(z *lsys.ZeroSet) any { return lang.ComplexVector(z.Transmission) }),
+		lang.FieldOf("input_decoupling", "the input-decoupling zeros (modes the inputs do not reach)", func(z *lsys.ZeroSet) any { return lang.ComplexVector(z.InputDecoupling) }),
+		lang.FieldOf("output_decoupling", "the output-decoupling zeros (modes the outputs do not see)", func(z *lsys.ZeroSet) any { return lang.ComplexVector(z.OutputDecoupling) }),
+		lang.FieldOf("tol", "the rank tolerance used", func(z *lsys.ZeroSet) any { return z.Tol }),
+	}})
+	vecs := func(cols [][]complex128) any {
+		n := len(cols)
+		if n == 0 {
+			return &lang.List{}
+		}
+		m := mat.NewCDense(n, n, nil)
+		for j, col := range cols {
+			for i, x := range col {
+				m.Set(i, j, x)
 			}
-			return nil, false
-		}))
-	registerType((*lsys.EigenStructure)(nil), stFields("an eigen-structure",
-		[]string{"values", "right", "left", "cond"},
-		func(v any, f string) (any, bool) {
-			e := v.(*lsys.EigenStructure)
-			vecs := func(cols [][]complex128) any {
-				n := len(cols)
-				if n == 0 {
-					return &lang.List{}
-				}
-				m := mat.NewCDense(n, n, nil)
-				for j, col := range cols {
-					for i, x := range col {
-						m.Set(i, j, x)
-					}
-				}
-				return m
-			}
-			switch f {
-			case "values":
-				return lang.ComplexVector(e.Values), true
-			case "right":
-				return vecs(e.Right), true
-			case "left":
-				return vecs(e.Left), true
-			case "cond":
-				return lang.RealVector(e.Cond), true
-			}
-			return nil, false
-		}))
-	registerType((*lsys.ModalForm)(nil), stFields("a modal form",
-		[]string{"system", "T", "shapes", "block_diagonal", "cond"},
-		func(v any, f string) (any, bool) {
-			m := v.(*lsys.ModalForm)
-			switch f {
-			case "system":
-				return m.System, true
-			case "T":
-				return m.T, true
-			case "shapes":
-				return m.Tinv, true
-			case "block_diagonal":
-				return m.BlockDiagonal, true
-			case "cond":
-				return m.Cond, true
-			}
-			return nil, false
-		}))
-	registerType((*lsys.JordanStructure)(nil), stFields("a Jordan structure",
-		[]string{"values", "algebraic", "geometric", "defective"},
-		func(v any, f string) (any, bool) {
-			js := v.(*lsys.JordanStructure)
+		}
+		return m
+	}
+	registerType((*lsys.EigenStructure)(nil), lang.TypeInfo{Name: "an eigen-structure", Fields: []lang.Field{
+		lang.FieldOf("values", "the eigenvalues", func(e *lsys.EigenStructure) any { return lang.ComplexVector(e.Values) }),
+		lang.FieldOf("right", "the right eigenvectors, as columns", func(e *lsys.EigenStructure) any { return vecs(e.Right) }),
+		lang.FieldOf("left", "the left eigenvectors, as columns", func(e *lsys.EigenStructure) any { return vecs(e.Left) }),
+		lang.FieldOf("cond", "the condition number of each eigenvalue, 1/|w^H v|", func(e *lsys.EigenStructure) any { return lang.RealVector(e.Cond) }),
+	}})
+	registerType((*lsys.ModalForm)(nil), lang.TypeInfo{Name: "a modal form", Fields: []lang.Field{
+		lang.FieldOf("system", "the system in modal coordinates q = T x", func(m *lsys.ModalForm) any { return m.System }),
+		lang.FieldOf("T", "the transformation", func(m *lsys.ModalForm) any { return m.T }),
+		lang.FieldOf("shapes", "the mode shapes: the columns of T^-1", func(m *lsys.ModalForm) any { return m.Tinv }),
+		lang.FieldOf("block_diagonal", "true when the block-diagonal form replaced the eigenvector basis", func(m *lsys.ModalForm) any { return m.BlockDiagonal }),
+		lang.FieldOf("cond", "the condition number of T", func(m *lsys.ModalForm) any { return m.Cond }),
+	}})
+	registerType((*lsys.JordanStructure)(nil), lang.TypeInfo{Name: "a Jordan structure", Fields: []lang.Field{
+		lang.FieldOf("values", "the distinct eigenvalues (one per cluster)", func(js *lsys.JordanStructure) any {
 			var vals []complex128
-			var alg, geo []int
-			def := false
 			for _, c := range js.Clusters {
 				vals = append(vals, c.Value)
-				alg = append(alg, c.Algebraic)
-				geo = append(geo, c.Geometric)
+			}
+			return lang.ComplexVector(vals)
+		}),
+		lang.FieldOf("algebraic", "the algebraic multiplicity of each", func(js *lsys.JordanStructure) any {
+			var n []int
+			for _, c := range js.Clusters {
+				n = append(n, c.Algebraic)
+			}
+			return lang.IntVector(n)
+		}),
+		lang.FieldOf("geometric", "the geometric multiplicity of each (the number of Jordan blocks)", func(js *lsys.JordanStructure) any {
+			var n []int
+			for _, c := range js.Clusters {
+				n = append(n, c.Geometric)
+			}
+			return lang.IntVector(n)
+		}),
+		lang.FieldOf("defective", "true when some eigenvalue has fewer eigenvectors than its multiplicity", func(js *lsys.JordanStructure) any {
+			for _, c := range js.Clusters {
 				if c.Defective() {
-					def = true
+					return true
 				}
 			}
-			switch f {
-			case "values":
-				return lang.ComplexVector(vals), true
-			case "algebraic":
-				return lang.IntVector(alg), true
-			case "geometric":
-				return lang.IntVector(geo), true
-			case "defective":
-				return def, true
+			return false
+		}),
+	}})
+	registerType((*lsys.Structure)(nil), lang.TypeInfo{Name: "a structure report", Fields: []lang.Field{
+		lang.FieldOf("controllable", "every mode reached by the inputs", func(st *lsys.Structure) any { return st.Controllable }),
+		lang.FieldOf("observable", "every mode seen by the outputs", func(st *lsys.Structure) any { return st.Observable }),
+		lang.FieldOf("stabilizable", "every mode the inputs do not reach is stable", func(st *lsys.Structure) any { return st.Stabilizable }),
+		lang.FieldOf("detectable", "every mode the outputs do not see is stable", func(st *lsys.Structure) any { return st.Detectable }),
+		lang.FieldOf("uncontrollable", "the eigenvalues of the modes the inputs do not reach", func(st *lsys.Structure) any { return lang.ComplexVector(st.UncontrollableModes) }),
+		lang.FieldOf("unobservable", "the eigenvalues of the modes the outputs do not see", func(st *lsys.Structure) any { return lang.ComplexVector(st.UnobservableModes) }),
+		lang.FieldOf("parts", "the four parts of the Kalman decomposition: records of name, states and modes", func(st *lsys.Structure) any {
+			l := &lang.List{}
+			for _, p := range st.Parts {
+				l.Items = append(l.Items, &lang.Record{Names: []string{"name", "states", "modes"}, Values: []any{p.Name, float64(p.Dim), lang.ComplexVector(p.Modes)}})
 			}
-			return nil, false
-		}))
-	registerType((*lsys.Structure)(nil), stFields("a structure report",
-		[]string{"controllable", "observable", "stabilizable", "detectable", "uncontrollable", "unobservable", "parts"},
-		func(v any, f string) (any, bool) {
-			st := v.(*lsys.Structure)
-			switch f {
-			case "controllable":
-				return st.Controllable, true
-			case "observable":
-				return st.Observable, true
-			case "stabilizable":
-				return st.Stabilizable, true
-			case "detectable":
-				return st.Detectable, true
-			case "uncontrollable":
-				return lang.ComplexVector(st.UncontrollableModes), true
-			case "unobservable":
-				return lang.ComplexVector(st.UnobservableModes), true
-			case "parts":
-				l := &lang.List{}
-				for _, p := range st.Parts {
-					l.Items = append(l.Items, &lang.Record{Names: []string{"name", "states", "modes"}, Values: []any{p.Name, float64(p.Dim), lang.ComplexVector(p.Modes)}})
-				}
-				return l, true
-			}
-			return nil, false
-		}))
-	registerType((*lsys.Decomposition)(nil), stFields("a Kalman decomposition",
-		[]string{"system", "T", "sizes", "cond"},
-		func(v any, f string) (any, bool) {
-			d := v.(*lsys.Decomposition)
-			switch f {
-			case "system":
-				return d.System, true
-			case "T":
-				return d.T, true
-			case "sizes":
-				return lang.IntVector(d.Sizes[:]), true
-			case "cond":
-				return d.Cond, true
-			}
-			return nil, false
-		}))
-	subspaceField := func(s *lsys.Subspace, f string) (any, bool) {
-		switch f {
-		case "basis":
-			return stMatrixOrEmpty(s.Basis), true
-		case "dim":
-			return float64(s.Dim), true
-		case "residual":
-			return s.Residual, true
-		case "invariant":
-			return s.Invariant, true
-		case "values":
-			return lang.ComplexVector(s.Values), true
-		}
-		return nil, false
+			return l
+		}),
+	}})
+	registerType((*lsys.Decomposition)(nil), lang.TypeInfo{Name: "a Kalman decomposition", Fields: []lang.Field{
+		lang.FieldOf("system", "the system in the decomposed coordinates", func(d *lsys.Decomposition) any { return d.System }),
+		lang.FieldOf("T", "the transformation", func(d *lsys.Decomposition) any { return d.T }),
+		lang.FieldOf("sizes", "the number of states of each of the four parts", func(d *lsys.Decomposition) any { return lang.IntVector(d.Sizes[:]) }),
+		lang.FieldOf("cond", "the condition number of T", func(d *lsys.Decomposition) any { return d.Cond }),
+	}})
+	subspace := []lang.Field{
+		lang.FieldOf("basis", "an orthonormal basis, as columns", func(s *lsys.Subspace) any { return stMatrixOrEmpty(s.Basis) }),
+		lang.FieldOf("dim", "the dimension", func(s *lsys.Subspace) any { return float64(s.Dim) }),
+		lang.FieldOf("residual", "how far A maps the subspace out of itself, relative to |A|", func(s *lsys.Subspace) any { return s.Residual }),
+		lang.FieldOf("invariant", "true when A maps the subspace into itself", func(s *lsys.Subspace) any { return s.Invariant }),
+		lang.FieldOf("values", "the eigenvalues of A restricted to the subspace (when it is invariant)", func(s *lsys.Subspace) any { return lang.ComplexVector(s.Values) }),
 	}
-	registerType((*lsys.Subspace)(nil), stFields("a subspace",
-		[]string{"basis", "dim", "residual", "invariant", "values"},
-		func(v any, f string) (any, bool) { return subspaceField(v.(*lsys.Subspace), f) }))
-	registerType((*lsys.InvariantCheck)(nil), stFields("an invariance check",
-		[]string{"invariant", "residual", "basis", "rank"},
-		func(v any, f string) (any, bool) {
-			ic := v.(*lsys.InvariantCheck)
-			if f == "rank" {
-				return float64(ic.Rank), true
+	registerType((*lsys.Subspace)(nil), lang.TypeInfo{Name: "a subspace", Fields: subspace})
+	// An invariance check reads three fields of its subspace.
+	var check []lang.Field
+	for _, name := range []string{"invariant", "residual", "basis"} {
+		for _, f := range subspace {
+			if f.Name == name {
+				get := f.Get
+				check = append(check, lang.Field{Name: f.Name, Doc: f.Doc, Get: func(v any) any { return get(v.(*lsys.InvariantCheck).Subspace) }})
 			}
-			return subspaceField(ic.Subspace, f)
-		}))
-	registerType((*lsys.ModeTable)(nil), stFields("a mode table",
-		[]string{"eigenvalues", "frequencies", "hz", "damping", "time_constants", "multiplicity", "reachable", "observable"},
-		func(v any, f string) (any, bool) {
-			mt := v.(*lsys.ModeTable)
-			var ev []complex128
-			var wn, hz, z, tau, mult []float64
-			var reach, obs []any
-			for _, m := range mt.Modes {
-				ev = append(ev, m.Eigenvalue)
-				wn = append(wn, m.NaturalFreq)
-				hz = append(hz, m.FreqHz)
-				z = append(z, m.Damping)
-				tau = append(tau, m.TimeConstant)
-				mult = append(mult, float64(m.Multiplicity))
-				reach = append(reach, m.Reachable)
-				obs = append(obs, m.Observable)
+		}
+	}
+	check = append(check, lang.FieldOf("rank", "the numerical rank of the given columns", func(ic *lsys.InvariantCheck) any { return float64(ic.Rank) }))
+	registerType((*lsys.InvariantCheck)(nil), lang.TypeInfo{Name: "an invariance check", Fields: check})
+	mode := func(name, doc string, get func(m lsys.Mode) float64) lang.Field {
+		return lang.FieldOf(name, doc, func(mt *lsys.ModeTable) any {
+			out := make([]float64, len(mt.Modes))
+			for i, m := range mt.Modes {
+				out[i] = get(m)
 			}
-			switch f {
-			case "eigenvalues":
-				return lang.ComplexVector(ev), true
-			case "frequencies":
-				return lang.RealVector(wn), true
-			case "hz":
-				return lang.RealVector(hz), true
-			case "damping":
-				return lang.RealVector(z), true
-			case "time_constants":
-				return lang.RealVector(tau), true
-			case "multiplicity":
-				return lang.RealVector(mult), true
-			case "reachable":
-				return &lang.List{Items: reach}, true
-			case "observable":
-				return &lang.List{Items: obs}, true
+			return lang.RealVector(out)
+		})
+	}
+	verdicts := func(name, doc string, get func(m lsys.Mode) any) lang.Field {
+		return lang.FieldOf(name, doc, func(mt *lsys.ModeTable) any {
+			out := make([]any, len(mt.Modes))
+			for i, m := range mt.Modes {
+				out[i] = get(m)
 			}
-			return nil, false
-		}))
+			return &lang.List{Items: out}
+		})
+	}
+	registerType((*lsys.ModeTable)(nil), lang.TypeInfo{Name: "a mode table", Fields: []lang.Field{
+		lang.FieldOf("eigenvalues", "the eigenvalue of each mode (the upper of a pair)", func(mt *lsys.ModeTable) any {
+			ev := make([]complex128, len(mt.Modes))
+			for i, m := range mt.Modes {
+				ev[i] = m.Eigenvalue
+			}
+			return lang.ComplexVector(ev)
+		}),
+		mode("frequencies", "natural frequencies in rad/s", func(m lsys.Mode) float64 { return m.NaturalFreq }),
+		mode("hz", "the same in Hz", func(m lsys.Mode) float64 { return m.FreqHz }),
+		mode("damping", "damping ratios", func(m lsys.Mode) float64 { return m.Damping }),
+		mode("time_constants", "time constants in s", func(m lsys.Mode) float64 { return m.TimeConstant }),
+		mode("multiplicity", "how many times each eigenvalue occurs", func(m lsys.Mode) float64 { return float64(m.Multiplicity) }),
+		verdicts("reachable", "whether the inputs reach each mode (PBH test)", func(m lsys.Mode) any { return m.Reachable }),
+		verdicts("observable", "whether the outputs see each mode (PBH test)", func(m lsys.Mode) any { return m.Observable }),
+	}})
 }
 
 // stSystemTol adapts an analysis of a system at a tolerance to a built-in's
