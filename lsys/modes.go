@@ -62,7 +62,7 @@ type Mode struct {
 	// tolerance: a genuinely close call, which another realization of the
 	// same model (other units or coordinates) may decide the other way.
 	ReachClose, ObserveClose bool
-	ReachTol, ObserveTol       float64
+	ReachTol, ObserveTol     float64
 	// Tol is the larger of ReachTol and ObserveTol, a single figure for
 	// logs; the verdicts use the two tolerances separately.
 	Tol float64
