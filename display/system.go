@@ -5,9 +5,9 @@ import (
 	"html"
 	"strings"
 
-	"lsys/lsys"
-
 	"gonum.org/v1/gonum/mat"
+
+	"lsys/lsys"
 )
 
 func init() {

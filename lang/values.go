@@ -167,28 +167,13 @@ func formatValue(v any, text func(any) (string, bool)) string {
 func formatMatrix(dims func() (int, int), at func(i, j int) string) string {
 	r, c := dims()
 	cells := make([][]string, r)
-	width := make([]int, c)
-	for i := 0; i < r; i++ {
+	for i := range cells {
 		cells[i] = make([]string, c)
-		for j := 0; j < c; j++ {
+		for j := range cells[i] {
 			cells[i][j] = at(i, j)
-			width[j] = max(width[j], len(cells[i][j]))
 		}
 	}
-	var b strings.Builder
-	for i := 0; i < r; i++ {
-		if i > 0 {
-			b.WriteByte('\n')
-		}
-		for j := 0; j < c; j++ {
-			if j > 0 {
-				b.WriteString("  ")
-			}
-			b.WriteString(strings.Repeat(" ", width[j]-len(cells[i][j])))
-			b.WriteString(cells[i][j])
-		}
-	}
-	return b.String()
+	return strings.TrimSuffix(numfmt.Columns(cells, "", 0), "\n")
 }
 
 // Plural is "1 state", "2 states".
