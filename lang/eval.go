@@ -783,10 +783,10 @@ func (ev *evaluator) field(v any, name *syntax.Ident) (any, error) {
 	if len(fields) > 0 {
 		hint = "Its fields are: " + strings.Join(fields, ", ") + "."
 	}
-	if m, ok := v.(*NonlinearModel); ok {
+	if m, ok := v.(*lsys.Model); ok {
 		// A model's signals are not fields (a system's are): point the
 		// way when the name is, or is close to, one of them.
-		signals := append(append(append([]string(nil), m.bs.states...), m.bs.inputs...), m.bs.outputs...)
+		signals := append(append(append([]string(nil), m.StateNames...), m.InputNames...), m.OutputNames...)
 		sig := ""
 		for _, s := range signals {
 			if s == name.Name {
@@ -963,8 +963,8 @@ func (ev *evaluator) toSystem(v any, pos syntax.Pos) (*lsys.System, error) {
 	switch t := v.(type) {
 	case *lsys.System:
 		return t, nil
-	case *NonlinearModel:
-		return nil, t.needLinearize(ev, pos)
+	case *lsys.Model:
+		return nil, needLinearize(t, ev, pos)
 	case *lsys.Rational:
 		return ev.realize([][]*lsys.Rational{{t}}, pos)
 	case float64:

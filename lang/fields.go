@@ -3,6 +3,8 @@ package lang
 import (
 	"fmt"
 	"strings"
+
+	"lsys/lsys"
 )
 
 // Field is one field of a result type (r.name): its name, one line for the
@@ -35,7 +37,7 @@ type TypeInfo struct {
 
 // fieldTable is the language's own table for v's type: nonlinear models.
 func fieldTable(v any) ([]Field, bool) {
-	if _, ok := v.(*NonlinearModel); ok {
+	if _, ok := v.(*lsys.Model); ok {
 		return modelFields, true
 	}
 	return nil, false

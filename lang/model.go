@@ -9,7 +9,7 @@ package lang
 // are evaluated over hyper-dual numbers (lsys.HyperDual). Seeding the e1
 // part of one state or input gives one column of the Jacobian exactly, with
 // no step size. A block whose right-hand sides are linear in the states and
-// inputs gives an *lsys.System directly; otherwise a *NonlinearModel that
+// inputs gives an *lsys.System directly; otherwise an *lsys.Model that
 // must be linearized at an operating point before linear analysis.
 
 import (
@@ -39,73 +39,56 @@ type blockSource struct {
 	firstNL                 syntax.Expr // first nonlinear term, nil when linear
 }
 
-// NonlinearModel is the value of an equation block whose right-hand sides
-// are not all linear in the states and inputs. It must be linearized
+// describe is the value of a block whose right-hand sides are not all
+// linear in the states and inputs: lsys's Model, which must be linearized
 // (linearize) before linear analysis.
-type NonlinearModel struct {
-	bs *blockSource
-}
-
-func (m *NonlinearModel) String() string {
-	bs := m.bs
-	var b strings.Builder
-	kind := "continuous"
-	if bs.ts > 0 {
-		kind = "sampled every " + FormatNumber(bs.ts) + " s"
+func (bs *blockSource) describe() *lsys.Model {
+	m := &lsys.Model{
+		StateNames: bs.states, InputNames: bs.inputs, OutputNames: bs.outputs, Ts: bs.ts,
+		FirstNonlinear: syntax.ExprString(bs.firstNL), Line: bs.firstNL.Pos().Line, Column: bs.firstNL.Pos().Column,
 	}
-	fmt.Fprintf(&b, "nonlinear model: %s, %s, %s, %s", Plural(len(bs.states), "state"), Plural(len(bs.inputs), "input"), Plural(len(bs.outputs), "output"), kind)
-	fmt.Fprintf(&b, "\nstates:  %s", strings.Join(bs.states, ", "))
-	if len(bs.inputs) > 0 {
-		fmt.Fprintf(&b, "\ninputs:  %s", strings.Join(bs.inputs, ", "))
-	}
-	fmt.Fprintf(&b, "\noutputs: %s", strings.Join(bs.outputs, ", "))
-	if len(bs.paramOrder) > 0 {
-		var ps []string
-		for _, p := range bs.paramOrder {
-			ps = append(ps, p+" = "+FormatNumber(bs.params[p]))
-		}
-		fmt.Fprintf(&b, "\nparameters: %s", strings.Join(ps, ", "))
+	for _, p := range bs.paramOrder {
+		m.ParameterNames = append(m.ParameterNames, p)
+		m.ParameterValues = append(m.ParameterValues, bs.params[p])
 	}
 	for i, s := range bs.states {
-		e := bs.stateEq[i]
-		if e.Kind == syntax.EqNext {
-			fmt.Fprintf(&b, "\n  next %s = %s", s, syntax.ExprString(e.Rhs))
-		} else {
-			fmt.Fprintf(&b, "\n  %s' = %s", s, syntax.ExprString(e.Rhs))
+		kind := "derivative"
+		if bs.stateEq[i].Kind == syntax.EqNext {
+			kind = "next"
 		}
+		m.Equations = append(m.Equations, lsys.ModelEquation{Kind: kind, Name: s, Rhs: syntax.ExprString(bs.stateEq[i].Rhs)})
 	}
 	for _, e := range bs.plain {
-		fmt.Fprintf(&b, "\n  %s = %s", e.Name.Name, syntax.ExprString(e.Rhs))
+		m.Equations = append(m.Equations, lsys.ModelEquation{Kind: "plain", Name: e.Name.Name, Rhs: syntax.ExprString(e.Rhs)})
 	}
-	fmt.Fprintf(&b, "\nfirst nonlinear term: %s (line %d, column %d); linearize it for linear analysis",
-		syntax.ExprString(bs.firstNL), bs.firstNL.Pos().Line, bs.firstNL.Pos().Column)
-	return b.String()
+	return m
 }
 
 // modelFields are the fields of a nonlinear model.
 var modelFields = []Field{
-	FieldOf("states", "the state names", func(m *NonlinearModel) any { return NameList(m.bs.states) }),
-	FieldOf("inputs", "the input names", func(m *NonlinearModel) any { return NameList(m.bs.inputs) }),
-	FieldOf("outputs", "the output names", func(m *NonlinearModel) any { return NameList(m.bs.outputs) }),
-	FieldOf("parameters", "the parameters the block copied from the session, as a record", func(m *NonlinearModel) any {
-		r := &Record{}
-		for _, p := range m.bs.paramOrder {
-			r.Names = append(r.Names, p)
-			r.Values = append(r.Values, m.bs.params[p])
-		}
-		return r
+	FieldOf("states", "the state names", func(m *lsys.Model) any { return NameList(m.StateNames) }),
+	FieldOf("inputs", "the input names", func(m *lsys.Model) any { return NameList(m.InputNames) }),
+	FieldOf("outputs", "the output names", func(m *lsys.Model) any { return NameList(m.OutputNames) }),
+	FieldOf("parameters", "the parameters the block copied from the session, as a record", func(m *lsys.Model) any {
+		return &Record{Names: append([]string(nil), m.ParameterNames...), Values: numbers(m.ParameterValues)}
 	}),
-	FieldOf("every", "the sample time in seconds, 0 when continuous", func(m *NonlinearModel) any { return m.bs.ts }),
+	FieldOf("every", "the sample time in seconds, 0 when continuous", func(m *lsys.Model) any { return m.Ts }),
 }
 
-// FirstNonlinearTerm is the first term, in source order, that makes the
-// model nonlinear, as written.
-func (m *NonlinearModel) FirstNonlinearTerm() string { return syntax.ExprString(m.bs.firstNL) }
+// numbers are the values of a record of numbers.
+func numbers(v []float64) []any {
+	out := make([]any, len(v))
+	for i, x := range v {
+		out[i] = x
+	}
+	return out
+}
 
-func (m *NonlinearModel) needLinearize(ev *evaluator, pos syntax.Pos) error {
-	t := m.bs.firstNL
+// needLinearize says that m must be linearized where a linear system is
+// needed.
+func needLinearize(m *lsys.Model, ev *evaluator, pos syntax.Pos) error {
 	return ev.errorAt(pos, fmt.Sprintf("this is a nonlinear model, not a linear system: its first nonlinear term is %s (line %d, column %d of the cell that defines it)",
-		syntax.ExprString(t), t.Pos().Line, t.Pos().Column),
+		m.FirstNonlinear, m.Line, m.Column),
 		"Linearize it first: linearize(model, at: {state: value, ..., input: value}); equilibrium(model, inputs: {...}) finds an operating point.")
 }
 
@@ -520,7 +503,9 @@ func (ev *evaluator) evalSystemBlock(b *syntax.SystemBlock) (any, error) {
 		return nil, err
 	}
 	if bs.firstNL != nil {
-		return &NonlinearModel{bs: bs}, nil
+		m := bs.describe()
+		remember(ev.s, ev.s.models, m, bs)
+		return m, nil
 	}
 	n, m := len(bs.states), len(bs.inputs)
 	x := make([]float64, n)
@@ -557,7 +542,7 @@ func (ev *evaluator) evalSystemBlock(b *syntax.SystemBlock) (any, error) {
 	if err != nil {
 		return nil, ev.errorAt(b.SystemPos, err.Error(), "Check the parameters: a coefficient is not a finite number.")
 	}
-	ev.s.remember(g, bs)
+	remember(ev.s, ev.s.sources, g, bs)
 	return g, nil
 }
 
@@ -907,8 +892,11 @@ func (ev *evaluator) isLocal(name string) bool {
 // system built from an equation block in this session.
 func (s *Session) sourceOf(v any) (*blockSource, bool) {
 	switch t := v.(type) {
-	case *NonlinearModel:
-		return t.bs, true
+	case *lsys.Model:
+		s.mu.RLock()
+		defer s.mu.RUnlock()
+		bs, ok := s.models[weak.Make(t)]
+		return bs, ok
 	case *lsys.System:
 		s.mu.RLock()
 		defer s.mu.RUnlock()

@@ -108,11 +108,11 @@ func (ev *evaluator) binary(op syntax.Token, a, b any, pos syntax.Pos, node *syn
 	if _, ok := b.(*lsys.System); ok {
 		return ev.systemOp(op, a, b, pos)
 	}
-	if _, ok := a.(*NonlinearModel); ok {
-		return nil, a.(*NonlinearModel).needLinearize(ev, pos)
+	if m, ok := a.(*lsys.Model); ok {
+		return nil, needLinearize(m, ev, pos)
 	}
-	if _, ok := b.(*NonlinearModel); ok {
-		return nil, b.(*NonlinearModel).needLinearize(ev, pos)
+	if m, ok := b.(*lsys.Model); ok {
+		return nil, needLinearize(m, ev, pos)
 	}
 	// Transfer functions.
 	_, ra := a.(*lsys.Rational)

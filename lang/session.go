@@ -99,6 +99,9 @@ type Session struct {
 	// keys are weak: a system nobody holds any more (the thousands a
 	// locus builds) takes its entry with it (see remember).
 	sources map[weak.Pointer[lsys.System]]*blockSource
+	// models does the same for nonlinear models, whose equations only the
+	// block can evaluate.
+	models map[weak.Pointer[lsys.Model]]*blockSource
 }
 
 // NewSession starts an empty session with the given options.
@@ -110,7 +113,7 @@ func NewSession(opt Options) *Session {
 	if lim.Depth <= 0 {
 		lim.Depth = MaxDepth
 	}
-	return &Session{reg: opt.Builtins, dir: opt.Dir, text: opt.Text, limits: lim, globals: map[string]any{}, sources: map[weak.Pointer[lsys.System]]*blockSource{}}
+	return &Session{reg: opt.Builtins, dir: opt.Dir, text: opt.Text, limits: lim, globals: map[string]any{}, sources: map[weak.Pointer[lsys.System]]*blockSource{}, models: map[weak.Pointer[lsys.Model]]*blockSource{}}
 }
 
 // Format is the text form of v as print shows it in this session: the
@@ -132,16 +135,16 @@ func (s *Session) textOrName(v any) (string, bool) {
 // words to highlight as built-ins).
 func (s *Session) Builtins() *Registry { return s.reg }
 
-// remember records the block behind a system built from it; the entry
-// goes when the system is garbage collected.
-func (s *Session) remember(g *lsys.System, bs *blockSource) {
-	wp := weak.Make(g)
+// remember records in m the block behind a system or model built from it;
+// the entry goes when the value is garbage collected.
+func remember[T any](s *Session, m map[weak.Pointer[T]]*blockSource, v *T, bs *blockSource) {
+	wp := weak.Make(v)
 	s.mu.Lock()
-	s.sources[wp] = bs
+	m[wp] = bs
 	s.mu.Unlock()
-	runtime.AddCleanup(g, func(wp weak.Pointer[lsys.System]) {
+	runtime.AddCleanup(v, func(wp weak.Pointer[T]) {
 		s.mu.Lock()
-		delete(s.sources, wp)
+		delete(m, wp)
 		s.mu.Unlock()
 	}, wp)
 }

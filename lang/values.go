@@ -269,7 +269,7 @@ func builtinTypeName(v any) (string, bool) {
 		return "a transfer function", true
 	case *lsys.ModeTable:
 		return "a mode table", true
-	case *NonlinearModel:
+	case *lsys.Model:
 		return "a nonlinear model", true
 	}
 	return "", false

@@ -542,7 +542,7 @@ func systemFn(c *lang.Call) (any, error) {
 	switch first.(type) {
 	case nil:
 		// the static gain above
-	case *lsys.Rational, *lang.List, *lsys.System, *lang.NonlinearModel:
+	case *lsys.Rational, *lang.List, *lsys.System, *lsys.Model:
 		if c.Given("B") || c.Given("C") || c.Given("D") {
 			return nil, c.Errorf("B", "Give either matrices or a transfer function.", "system(H) from a transfer function takes no B, C or D")
 		}

@@ -357,14 +357,14 @@ func TestNonlinearDetection(t *testing.T) {
 			t.Errorf("%s: %v", c.rhs, err)
 			continue
 		}
-		m, nl := v.(*lang.NonlinearModel)
+		m, nl := v.(*lsys.Model)
 		switch {
 		case c.term == "" && nl:
-			t.Errorf("%s: linear, but a nonlinear model (%s)", c.rhs, m.FirstNonlinearTerm())
+			t.Errorf("%s: linear, but a nonlinear model (%s)", c.rhs, m.FirstNonlinear)
 		case c.term != "" && !nl:
 			t.Errorf("%s: nonlinear, but %s", c.rhs, builtins.Registry().TypeName(v))
-		case nl && m.FirstNonlinearTerm() != c.term:
-			t.Errorf("%s: first nonlinear term %s, want %s", c.rhs, m.FirstNonlinearTerm(), c.term)
+		case nl && m.FirstNonlinear != c.term:
+			t.Errorf("%s: first nonlinear term %s, want %s", c.rhs, m.FirstNonlinear, c.term)
 		}
 	}
 }
@@ -411,9 +411,9 @@ growth = system every 1 {
 	if lin.Ts != 1 || math.Abs(lin.A.At(0, 0)-0.7) > 1e-14 || lin.B.At(0, 0) != 1 {
 		t.Errorf("linearized: Ts %v A %v B %v", lin.Ts, lin.A.At(0, 0), lin.B.At(0, 0))
 	}
-	m := langtest.Run(t, s, "growth").(*lang.NonlinearModel)
-	if !strings.Contains(m.String(), "sampled every 1 s") || !strings.Contains(m.String(), "next x = x + r*x*(1 - x/K) + u") {
-		t.Errorf("model text:\n%s", m)
+	m := langtest.Run(t, s, "growth").(*lsys.Model)
+	if want := (lsys.ModelEquation{Kind: "next", Name: "x", Rhs: "x + r*x*(1 - x/K) + u"}); m.Ts != 1 || len(m.Equations) != 1 || m.Equations[0] != want {
+		t.Errorf("model: every %v, equations %+v", m.Ts, m.Equations)
 	}
 	if p := langtest.Run(t, s, "growth.parameters").(*lang.Record); lang.FormatValue(p) != "{r: 0.3, K: 50}" {
 		t.Errorf("parameters %s", lang.FormatValue(p))
