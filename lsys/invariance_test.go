@@ -498,3 +498,101 @@ func TestUnitFreeRegressions(t *testing.T) {
 		}
 	}
 }
+
+// TestVerdictsSameWhateverTheEntry: the same model entered as matrices and
+// as a transfer function (its coefficients, realized again) gets the same
+// verdicts on the part the transfer function carries, the minimal
+// realization: stability, clusters with their Jordan blocks, and poles.
+// Generated single-input single-output systems as in
+// TestVerdictsInvariant (continuous and sampled). Polynomial coefficients
+// hold a k-fold pole only to about u^(1/k), so poles are compared to 1e-4
+// of the largest. An equation block yields the same matrices exactly (the
+// language builds A, B, C, D by dual numbers), so its verdicts are those of
+// the matrices. Not yet part of the quick run: about 1 system in 30 still
+// differs, a rigid-body mode or Jordan chain reached weakly (through 1e-6),
+// where the minimal realization's rounding splits the multiple pole beyond
+// the clustering threshold; run it with -invariance N.
+func TestVerdictsSameWhateverTheEntry(t *testing.T) {
+	count := *invarianceCount
+	if count == 0 {
+		t.Skip("opt-in: -invariance N (see the doc comment)")
+	}
+	rng := rand.New(rand.NewPCG(2026, 13))
+	tried, failed, closeCalls := 0, 0, 0
+	for k := 0; k < count; k++ {
+		g := genModal(rng, k%4 == 3)
+		if g.s.M() != 1 || g.s.P() != 1 {
+			continue
+		}
+		min, err := Minimal(g.s, 0)
+		if err != nil || min.N() == 0 {
+			continue
+		}
+		tf, err := TransferFunctions(g.s, 0)
+		if err != nil {
+			t.Errorf("system %d (%s): %v", k, g.what, err)
+			continue
+		}
+		re, err := Realize(tf, g.s.Ts)
+		if err != nil {
+			t.Errorf("system %d (%s): realizing its transfer function: %v", k, g.what, err)
+			continue
+		}
+		tried++
+		a, err1 := entryVerdicts(min)
+		b, err2 := entryVerdicts(re)
+		if err1 != nil || err2 != nil {
+			t.Errorf("system %d (%s): %v %v", k, g.what, err1, err2)
+			continue
+		}
+		if a.decisions != b.decisions {
+			if a.close || b.close {
+				closeCalls++
+				continue
+			}
+			failed++
+			if failed <= 10 {
+				t.Errorf("system %d (%s): as matrices (minimal part)\n%s---- as a transfer function\n%s", k, g.what, a.decisions, b.decisions)
+			}
+			continue
+		}
+		pa, pb := sortedComplex(a.poles), sortedComplex(b.poles)
+		scale := 1.0
+		for _, p := range pa {
+			scale = math.Max(scale, cmplx.Abs(p))
+		}
+		for i := range pa {
+			if i < len(pb) && cmplx.Abs(pa[i]-pb[i]) > 1e-4*scale {
+				failed++
+				t.Errorf("system %d (%s): pole %v as matrices, %v as a transfer function", k, g.what, pa[i], pb[i])
+				break
+			}
+		}
+	}
+	t.Logf("%d single-input single-output systems entered both ways: %d differ, %d close calls", tried, failed, closeCalls)
+}
+
+// entryVerdicts is verdictsOf without what depends on the coordinates
+// (the Kalman parts of a minimal system are trivially all one part).
+func entryVerdicts(s *System) (v verdicts, err error) {
+	var b strings.Builder
+	st, err := StabilityOf(s)
+	if err != nil {
+		return v, err
+	}
+	fmt.Fprintf(&b, "stable %v marginal %v unstable %d boundary %d\n", st.Stable, st.Marginal, st.Unstable, st.Boundary)
+	js, err := Jordan(s.A, 0, 0)
+	if err != nil {
+		return v, err
+	}
+	var lines []string
+	for _, c := range js.Clusters {
+		lines = append(lines, fmt.Sprintf("cluster alg %d blocks %v", c.Algebraic, c.Blocks))
+		v.close = v.close || c.Close > 0
+	}
+	sort.Strings(lines)
+	b.WriteString(strings.Join(lines, "\n") + "\n")
+	v.poles, err = Poles(s)
+	v.decisions = b.String()
+	return v, err
+}

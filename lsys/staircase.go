@@ -101,11 +101,27 @@ func (st *Staircase) basis(c0, c1, n int) *mat.Dense {
 // LeadingBasis and TrailingBasis to read them in the original coordinates.
 func StaircasesOf(s *System, relTol float64) (reach, observe *Staircase, err error) {
 	ur, uo := balanceReach(s.A, s.B), balanceSeen(s.A, s.C)
+	unreached, unseen, err := pbhRefused(s, relTol)
+	if err != nil {
+		return nil, nil, err
+	}
+	if reach, err = agreeingStaircase(ur.A, ur.B, relTol, unreached, false); err != nil {
+		return nil, nil, err
+	}
+	if observe, err = agreeingStaircase(uo.A, uo.C, relTol, unseen, true); err != nil {
+		return nil, nil, err
+	}
+	reach.Scale, observe.Scale = ur.S, uo.S
+	return reach, observe, nil
+}
+
+// pbhRefused lists the modes of s (both members of a pair) that the PBH
+// test of the mode table finds unreached and unseen.
+func pbhRefused(s *System, relTol float64) (unreached, unseen []complex128, err error) {
 	mt, err := ModesTol(s, relTol)
 	if err != nil {
 		return nil, nil, err
 	}
-	var unreached, unseen []complex128
 	for _, m := range mt.Modes {
 		vals := []complex128{m.Eigenvalue}
 		if m.Pair {
@@ -118,14 +134,7 @@ func StaircasesOf(s *System, relTol float64) (reach, observe *Staircase, err err
 			unseen = append(unseen, vals...)
 		}
 	}
-	if reach, err = agreeingStaircase(ur.A, ur.B, relTol, unreached, false); err != nil {
-		return nil, nil, err
-	}
-	if observe, err = agreeingStaircase(uo.A, uo.C, relTol, unseen, true); err != nil {
-		return nil, nil, err
-	}
-	reach.Scale, observe.Scale = ur.S, uo.S
-	return reach, observe, nil
+	return unreached, unseen, nil
 }
 
 // agreeingStaircase is the controllability (dual: observability) staircase

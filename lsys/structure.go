@@ -336,7 +336,11 @@ func Minimal(s *System, relTol float64) (*System, error) {
 		return s.Copy(), nil
 	}
 	ur := balanceReach(s.A, s.B)
-	rs, err := ControllabilityStaircase(ur.A, ur.B, relTol)
+	unreached, _, err := pbhRefused(s, relTol)
+	if err != nil {
+		return nil, err
+	}
+	rs, err := agreeingStaircase(ur.A, ur.B, relTol, unreached, false)
 	if err != nil {
 		return nil, err
 	}
@@ -370,7 +374,17 @@ func Minimal(s *System, relTol float64) (*System, error) {
 		Cr = &t
 	}
 	uo := balanceSeen(Ar, Cr)
-	os, err := ObservabilityStaircase(uo.A, uo.C, relTol)
+	var unseen []complex128
+	if Cr != nil {
+		part, err := NewSystem(k, s.M(), s.P(), Ar, Br, Cr, s.D, s.Ts)
+		if err != nil {
+			return nil, err
+		}
+		if _, unseen, err = pbhRefused(part, relTol); err != nil {
+			return nil, err
+		}
+	}
+	os, err := agreeingStaircase(uo.A, uo.C, relTol, unseen, true)
 	if err != nil {
 		return nil, err
 	}
