@@ -609,51 +609,14 @@ func (bs *blockSource) evalAt(ev *evaluator, x, u []float64, seed int, pseed str
 	return f, y, nil
 }
 
-// jacobians returns A = df/dx, B = df/du, C = dg/dx, D = dg/du at (x, u),
-// one forward pass per state and input. With pseed set it returns the
-// derivatives of those matrices with respect to that parameter instead
-// (mixed second derivatives from the e1e2 part).
+// jacobians returns A = df/dx, B = df/du, C = dg/dx, D = dg/du at (x, u)
+// (lsys.Jacobians: one forward pass of the block per state and input).
+// With pseed set it returns the derivatives of those matrices with respect
+// to that parameter instead.
 func (bs *blockSource) jacobians(ev *evaluator, x, u []float64, pseed string, params map[string]float64) (A, B, C, D *mat.Dense, err error) {
-	n, m, p := len(bs.states), len(bs.inputs), len(bs.outputs)
-	if n > 0 {
-		A = mat.NewDense(n, n, nil)
-	}
-	if n > 0 && m > 0 {
-		B = mat.NewDense(n, m, nil)
-	}
-	if p > 0 && n > 0 {
-		C = mat.NewDense(p, n, nil)
-	}
-	if p > 0 && m > 0 {
-		D = mat.NewDense(p, m, nil)
-	}
-	part := func(h lsys.HyperDual) float64 {
-		if pseed != "" {
-			return h.E12
-		}
-		return h.E1
-	}
-	for j := 0; j < n+m; j++ {
-		f, y, err := bs.evalAt(ev, x, u, j, pseed, params)
-		if err != nil {
-			return nil, nil, nil, nil, err
-		}
-		for i := 0; i < n; i++ {
-			if j < n {
-				A.Set(i, j, part(f[i]))
-			} else {
-				B.Set(i, j-n, part(f[i]))
-			}
-		}
-		for i := 0; i < p; i++ {
-			if j < n {
-				C.Set(i, j, part(y[i]))
-			} else {
-				D.Set(i, j-n, part(y[i]))
-			}
-		}
-	}
-	return A, B, C, D, nil
+	return lsys.Jacobians(len(bs.states), len(bs.inputs), len(bs.outputs), pseed != "", func(seed int) (f, y []lsys.HyperDual, err error) {
+		return bs.evalAt(ev, x, u, seed, pseed, params)
+	})
 }
 
 // compileBlock checks a block's declarations and equations and finds its
