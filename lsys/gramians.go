@@ -424,4 +424,3 @@ func emptyLike(g *System) *System {
 	s.OutputNames = append([]string(nil), g.OutputNames...)
 	return s
 }
-

@@ -31,8 +31,8 @@ type Norm struct {
 	// the imaginary axis that no longer raised the gain (rounding level):
 	// Upper is then not proven.
 	Certified bool
-	Reason       string // why the norm is infinite; "" otherwise
-	Method       string
+	Reason    string // why the norm is infinite; "" otherwise
+	Method    string
 }
 
 // H2Norm returns the H2 norm sqrt(trace(C P C^T)) with P the reachability
