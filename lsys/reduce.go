@@ -99,7 +99,7 @@ func Reduce(ctx context.Context, g *System, opt ReduceOptions) (*Reduction, erro
 		if r > ns {
 			r = ns
 		}
-		out.Why = fmt.Sprintf("order %d asked for", opt.Order)
+		out.Why = fmt.Sprintf("%d, as asked", opt.Order)
 	} else {
 		r = ns
 		for k := 0; k <= ns; k++ {
@@ -108,10 +108,10 @@ func Reduce(ctx context.Context, g *System, opt ReduceOptions) (*Reduction, erro
 				break
 			}
 		}
-		out.Why = fmt.Sprintf("the smallest order whose bound 2 * (sum of discarded Hankel singular values) is <= %.4g", opt.Tol)
+		out.Why = fmt.Sprintf("%d, the smallest whose bound 2 * (sum of discarded Hankel singular values) is <= %.4g", r+out.Unstable, opt.Tol)
 	}
 	if r > minimal {
-		out.Why += fmt.Sprintf("; only %d Hankel singular values are above %.3g (n u times the largest), so the order is %d: the other states are not reachable or not observable", minimal, tol, minimal)
+		out.Why += fmt.Sprintf("; only %d Hankel singular values are above %.3g (n u times the largest), so the order is %d: the other states are not reachable or not observable", minimal, tol, minimal+out.Unstable)
 		r = minimal
 	}
 	out.Order = r

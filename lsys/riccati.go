@@ -387,7 +387,8 @@ type Estimator struct {
 	L       *mat.Dense // n x p
 	P       *mat.Dense // steady-state error covariance (sampled: of the prediction)
 	Riccati *RiccatiSolution
-	// Modes are those of the estimation error, eig(A - L C).
+	// Modes are those of the estimation error, eig(A - L C) (of the
+	// system e' = (A - L C) e + L y, seen through C).
 	Modes *ModeTable
 }
 
@@ -419,11 +420,14 @@ func Kalman(g *System, W, V *mat.Dense) (*Estimator, error) {
 	est := &Estimator{System: g, W: W, V: V, L: L, P: sol.X, Riccati: sol}
 	Ae := mat.DenseCopyOf(g.A)
 	Ae.Sub(Ae, mul(L, g.C))
-	es, err := NewSystem(g.N(), 0, 0, Ae, nil, nil, nil, g.Ts)
+	// The error system, driven by the measurements through L and seen at
+	// the outputs, so that the mode table's reach and visibility columns
+	// say how the measurements move each error mode.
+	es, err := NewSystem(g.N(), g.P(), g.P(), Ae, L, g.C, nil, g.Ts)
 	if err != nil {
 		return nil, err
 	}
-	es.StateNames = g.StateNames
+	es.StateNames, es.InputNames, es.OutputNames = g.StateNames, g.OutputNames, g.OutputNames
 	if est.Modes, err = Modes(es); err != nil {
 		return nil, err
 	}
