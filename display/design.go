@@ -28,6 +28,7 @@ func init() {
 	Register((*lsys.Estimator)(nil), renderEstimator)
 	Register((*lsys.Assignment)(nil), renderAssignment)
 	Register((*lsys.Covariance)(nil), renderCovariance)
+	Register((*lsys.Simulation)(nil), renderSimulation)
 }
 
 // dgMatrix writes a labelled matrix to both halves of a card.
@@ -495,4 +496,69 @@ func dgNamed(names []string, v []float64) []string {
 		out[i] = names[i] + " " + fmtNum(v[i])
 	}
 	return out
+}
+
+func renderSimulation(v any, opt Options) Bundle {
+	s := v.(*lsys.Simulation)
+	var t strings.Builder
+	what := "nonlinear simulation"
+	if s.Controller != "" {
+		what += ", loop closed by " + s.Controller
+	}
+	fmt.Fprintf(&t, "%s: %s from 0 to %s s, %s\n", what, count(len(s.T), "output time", "output times"), fmtNum(s.T[len(s.T)-1]), s.Method)
+	if !s.Sampled {
+		fmt.Fprintf(&t, "  tolerances per step: relative %s, absolute %s; %d steps (%d rejected), %d evaluations of the equations\n",
+			fmtNum(s.RelTol), fmtNum(s.AbsTol), s.Stats.Steps, s.Stats.Rejected, s.Stats.Evaluations)
+	}
+	last := len(s.T) - 1
+	var rows [][]string
+	for i, name := range s.Outputs {
+		row := []string{name, fmtNum(s.Y[last][i])}
+		if s.Linear != nil {
+			worst := 0.0
+			for k := range s.T {
+				worst = math.Max(worst, math.Abs(s.Y[k][i]-s.Linear[k][i]))
+			}
+			row = append(row, fmtNum(s.Linear[last][i]), fmtNum(worst))
+		}
+		rows = append(rows, row)
+	}
+	head := []string{"output", "final"}
+	if s.Linear != nil {
+		head = append(head, "linear final", "largest difference")
+	}
+	writeColumns(&t, append([][]string{head}, rows...), "  ", 1)
+	text := strings.TrimRight(t.String(), "\n")
+	np, cut := rpClip(len(s.Outputs), 4)
+	if cut {
+		text += fmt.Sprintf("\n(chart shows the first %d outputs)", np)
+	}
+	fig := &rpFigure{Rows: np, Cols: 1}
+	for i := 0; i < np; i++ {
+		pn := newPanel(s.Outputs[i], "time (s)", s.Outputs[i])
+		y := make([]float64, len(s.T))
+		for k := range s.T {
+			y[k] = s.Y[k][i]
+		}
+		pn.Series = append(pn.Series, rpSeries{Name: "model", X: s.T, Y: y, Style: 0, Stairs: s.Sampled})
+		if s.Linear != nil {
+			yl := make([]float64, len(s.T))
+			for k := range s.T {
+				yl[k] = s.Linear[k][i]
+			}
+			pn.Series = append(pn.Series, rpSeries{Name: s.LinearName, X: s.T, Y: yl, Style: 1, Stairs: s.Sampled})
+			pn.Legend = true
+		}
+		fig.Panels = append(fig.Panels, pn)
+	}
+	if np == 1 {
+		fig.W, fig.H = 16*cmLen, 9*cmLen
+	}
+	b := rpBundle(text, fig, opt)
+	final := map[string]any{}
+	for i, name := range s.Outputs {
+		final[name] = jsonNum(s.Y[last][i])
+	}
+	b.Data[JSON] = map[string]any{"points": len(s.T), "final": final, "steps": s.Stats.Steps, "rtol": s.RelTol, "atol": s.AbsTol}
+	return b
 }

@@ -10,6 +10,7 @@ package lang
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -23,6 +24,7 @@ func init() {
 	for _, b := range designBuiltins() {
 		Register(b)
 	}
+	Register(simulateBuiltin())
 	registerDesignTypes()
 }
 
@@ -680,6 +682,34 @@ func registerDesignTypes() {
 			}
 			return nil, false
 		}})
+	RegisterType((*lsys.Simulation)(nil), TypeInfo{Name: "a simulation", Fields: []string{"t", "x", "y", "linear"},
+		Field: func(v any, name string) (any, bool) {
+			s := v.(*lsys.Simulation)
+			rows := func(v [][]float64) *mat.Dense {
+				if len(v) == 0 || len(v[0]) == 0 {
+					return nil
+				}
+				m := mat.NewDense(len(v), len(v[0]), nil)
+				for k, r := range v {
+					m.SetRow(k, r)
+				}
+				return m
+			}
+			switch name {
+			case "t":
+				return dsVector(s.T), true
+			case "x":
+				return rows(s.X), true
+			case "y":
+				return rows(s.Y), true
+			case "linear":
+				if s.Linear == nil {
+					return nil, false
+				}
+				return rows(s.Linear), true
+			}
+			return nil, false
+		}})
 	RegisterType((*lsys.Covariance)(nil), TypeInfo{Name: "a noise response", Fields: []string{"rms", "outputs", "states"},
 		Field: func(v any, name string) (any, bool) {
 			cv := v.(*lsys.Covariance)
@@ -696,4 +726,362 @@ func registerDesignTypes() {
 			}
 			return nil, false
 		}})
+}
+
+func simulateBuiltin() *Builtin {
+	const pend = "pendulum = system {\n  states angle, rate\n  inputs torque\n  outputs tip\n  g = 9.81\n  angle' = rate\n  rate' = -g * sin(angle) - 0.2 * rate + torque\n  tip = 0.5 * sin(angle)\n}\n"
+	return &Builtin{
+		Name: "simulate", Group: GroupDesign,
+		Params: []Param{
+			{Name: "model", Doc: "a nonlinear model (an equation block), or a system built from one"},
+			{Name: "until", Default: 10.0, Doc: "the end time in seconds"},
+			{Name: "initial", Optional: true, Doc: "a record with the initial states, e.g. {angle: 2.5}; states left out start at 0"},
+			{Name: "inputs", Optional: true, Doc: "a record with each input: a number (constant) or a function of time, e.g. {torque: f} with f(t) = ...; inputs left out are 0"},
+			{Name: "controller", Optional: true, Doc: "a linear controller closing the loop: a continuous system (or a gain matrix) from the model's outputs to its inputs, added to the inputs given"},
+			{Name: "linear", Optional: true, Doc: "a linear model with the same states, inputs and outputs (a linearization about 0), simulated alongside and drawn on the same chart"},
+			{Name: "dt", Optional: true, Doc: "the spacing of the output times (default: until / 500)"},
+			{Name: "rtol", Default: 1e-6, Doc: "relative error tolerance per step"},
+			{Name: "atol", Default: 1e-9, Doc: "absolute error tolerance per step"},
+		},
+		Help: "The time response of a nonlinear model (open loop, or closed by a linear controller) by an adaptive integrator, optionally with a linear model on the same chart.",
+		Doc: "Continuous models are integrated by the Dormand & Prince (1980) 5(4) pair with step-size control: each " +
+			"step keeps the estimated local error within atol + rtol |x| per state (root mean square), and the states at " +
+			"the output times come from the method's continuous extension, so the output grid does not limit accuracy. " +
+			"The global error is typically a small multiple of the tolerances; tighten them to check a result. A sampled " +
+			"model (next x = ...) is iterated sample by sample. With controller: K (a continuous linear system or a " +
+			"gain matrix from the model's outputs to its inputs) the loop u = inputs(t) + K y is integrated as one system; " +
+			"a model whose outputs depend directly on its inputs with a controller that has feedthrough would form an " +
+			"algebraic loop and is refused. With linear: G the linear model (same states, inputs and outputs, taken about " +
+			"zero: a linearization at the origin) runs from the same initial state with the same inputs and controller, " +
+			"so the chart shows where the linear design stops describing the model. Long runs show their progress; an " +
+			"interrupt stops the run. s.t, s.x, s.y hold the results.",
+		Examples: []string{pend + "simulate(pendulum, until: 8, initial: {angle: 2.5})",
+			pend + "G = linearize(pendulum, at: {angle: 0, rate: 0, torque: 0})\nsimulate(pendulum, until: 8, initial: {angle: 1.2}, linear: G)"},
+		Fn: simulateFn,
+	}
+}
+
+// dsRecordValues reads a record of numbers (or functions, when funcs) by
+// name; names not in known are an error.
+func dsRecordValues(c *Call, name string, known []string, funcs bool) (map[string]any, error) {
+	rec, ok := c.Value(name).(*Record)
+	if !ok {
+		return nil, c.Errorf(name, "Write a record: {"+strings.Join(known, ": 0, ")+": 0}.", "simulate: %s must be a record of values by name", name)
+	}
+	out := map[string]any{}
+	for i, n := range rec.Names {
+		found := false
+		for _, k := range known {
+			found = found || k == n
+		}
+		if !found {
+			return nil, c.Errorf(name, "The names are: "+strings.Join(known, ", ")+".", "simulate: '%s' in %s is not one of the model's names", n, name)
+		}
+		switch v := rec.Values[i].(type) {
+		case float64:
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return nil, c.Errorf(name, "", "simulate: the value of '%s' must be finite", n)
+			}
+			out[n] = v
+		default:
+			if !funcs {
+				return nil, c.Errorf(name, "", "simulate: the value of '%s' must be a number", n)
+			}
+			out[n] = v
+		}
+	}
+	return out, nil
+}
+
+func simulateFn(c *Call) (any, error) {
+	me, ok := c.Model("model")
+	if !ok {
+		return nil, c.Errorf("model", "Define the model with an equation block: name = system { states: ... }. For a system in matrix form use response().", "simulate: the model must be an equation block (a nonlinear model or a system built from one)")
+	}
+	until, dt, rtol, atol := 10.0, 0.0, 1e-6, 1e-9
+	if err := c.Bind("until", &until, "dt", &dt, "rtol", &rtol, "atol", &atol); err != nil {
+		return nil, err
+	}
+	if !(until > 0) || math.IsInf(until, 0) {
+		return nil, c.Errorf("until", "", "simulate: until must be a time > 0 in seconds")
+	}
+	if !(rtol > 0 && rtol < 1) || !(atol > 0) {
+		return nil, c.Errorf("rtol", "Typical values: rtol 1e-6, atol 1e-9.", "simulate: rtol must be between 0 and 1 and atol > 0")
+	}
+	n, m, p := len(me.States), len(me.Inputs), len(me.Outputs)
+	x0 := make([]float64, n)
+	if c.Has("initial") {
+		vals, err := dsRecordValues(c, "initial", me.States, false)
+		if err != nil {
+			return nil, err
+		}
+		for i, s := range me.States {
+			if v, ok := vals[s]; ok {
+				x0[i] = v.(float64)
+			}
+		}
+	}
+	inputs := make([]any, m)
+	if c.Has("inputs") {
+		vals, err := dsRecordValues(c, "inputs", me.Inputs, true)
+		if err != nil {
+			return nil, err
+		}
+		for j, s := range me.Inputs {
+			inputs[j] = vals[s]
+		}
+	}
+	uAt := func(t float64, u []float64) error {
+		for j, v := range inputs {
+			switch f := v.(type) {
+			case nil:
+				u[j] = 0
+			case float64:
+				u[j] = f
+			default:
+				r, err := c.Apply(f, t)
+				if err != nil {
+					return err
+				}
+				x, ok := r.(float64)
+				if !ok {
+					return c.Errorf("inputs", "", "simulate: the input '%s' must give a real number at t = %s", me.Inputs[j], FormatNumber(t))
+				}
+				u[j] = x
+			}
+		}
+		return nil
+	}
+	sampled := me.Ts > 0
+	// The controller: a system from outputs to inputs.
+	var K *lsys.System
+	ctrlName := ""
+	if c.Has("controller") {
+		if M, ok := c.Value("controller").(*mat.Dense); ok {
+			r, cc := M.Dims()
+			if r != m || cc != p {
+				return nil, c.Errorf("controller", "", "simulate: a gain controller must be %dx%d (inputs x outputs of the model), not %dx%d", m, p, r, cc)
+			}
+			g, err := lsys.NewSystem(0, p, m, nil, nil, nil, M, me.Ts)
+			if err != nil {
+				return nil, err
+			}
+			K, ctrlName = g, "a static gain"
+		} else {
+			g, err := c.System("controller")
+			if err != nil {
+				return nil, err
+			}
+			if g.M() != p || g.P() != m {
+				return nil, c.Errorf("controller", "", "simulate: the controller must take the model's %d outputs and give its %d inputs; it has %d inputs and %d outputs", p, m, g.M(), g.P())
+			}
+			if g.N() > 0 && g.Ts != me.Ts {
+				return nil, c.Errorf("controller", "", "simulate: the controller and the model must both be continuous, or both sampled at the same rate")
+			}
+			K, ctrlName = g, fmt.Sprintf("a linear controller with %d states", g.N())
+			if g.N() == 0 {
+				ctrlName = "a static gain"
+			}
+		}
+		if K.D != nil && maxAbsDense(K.D) != 0 {
+			ft, err := me.Feedthrough(x0, make([]float64, m))
+			if err != nil {
+				return nil, err
+			}
+			if ft {
+				return nil, c.Errorf("controller", "Give the model's outputs no direct dependence on its inputs, or the controller no feedthrough (a little filtering).", "simulate: the model's outputs depend directly on its inputs and the controller has feedthrough: the loop is algebraic")
+			}
+		}
+	}
+	var L *lsys.System
+	if c.Has("linear") {
+		g, err := c.System("linear")
+		if err != nil {
+			return nil, err
+		}
+		if g.N() != n || g.M() != m || g.P() != p || g.Ts != me.Ts {
+			return nil, c.Errorf("linear", "Linearize the model: linearize(model, at: {...}).", "simulate: the linear model must have the model's %d states, %d inputs, %d outputs and sample time", n, m, p)
+		}
+		L = g
+	}
+	nk := 0
+	if K != nil {
+		nk = K.N()
+	}
+	// The augmented state: model, controller, linear model, its controller.
+	nl := 0
+	if L != nil {
+		nl = n + nk
+	}
+	N := n + nk + nl
+	// Outputs of a linear system with state x and input u.
+	linOut := func(g *lsys.System, x, u []float64) []float64 {
+		y := make([]float64, g.P())
+		for i := range y {
+			v := 0.0
+			for j := 0; j < g.N(); j++ {
+				v += g.C.At(i, j) * x[j]
+			}
+			for j := 0; j < g.M(); j++ {
+				v += g.D.At(i, j) * u[j]
+			}
+			y[i] = v
+		}
+		return y
+	}
+	linDeriv := func(g *lsys.System, x, u, dx []float64) {
+		for i := 0; i < g.N(); i++ {
+			v := 0.0
+			for j := 0; j < g.N(); j++ {
+				v += g.A.At(i, j) * x[j]
+			}
+			for j := 0; j < g.M(); j++ {
+				v += g.B.At(i, j) * u[j]
+			}
+			dx[i] = v
+		}
+	}
+	// loop evaluates the model (or the linear model) with its controller.
+	type parts struct{ dx, y []float64 }
+	evalLoop := func(t float64, x, xk []float64, model func(x, u []float64) ([]float64, []float64, error)) (parts, []float64, error) {
+		u := make([]float64, m)
+		if err := uAt(t, u); err != nil {
+			return parts{}, nil, err
+		}
+		var dxk []float64
+		if K != nil {
+			// y does not depend on u when the controller has feedthrough
+			// (checked above), so evaluate y first with the given inputs.
+			_, y, err := model(x, u)
+			if err != nil {
+				return parts{}, nil, err
+			}
+			uc := linOut(K, xk, y)
+			for j := range u {
+				u[j] += uc[j]
+			}
+			if nk > 0 {
+				dxk = make([]float64, nk)
+				linDeriv(K, xk, y, dxk)
+			}
+		}
+		dx, y, err := model(x, u)
+		if err != nil {
+			return parts{}, nil, err
+		}
+		return parts{dx, y}, dxk, nil
+	}
+	linModel := func(x, u []float64) ([]float64, []float64, error) {
+		dx := make([]float64, n)
+		linDeriv(L, x, u, dx)
+		return dx, linOut(L, x, u), nil
+	}
+	full := func(t float64, x, dx []float64) error {
+		if err := c.Check(); err != nil {
+			return err
+		}
+		pt, dxk, err := evalLoop(t, x[:n], x[n:n+nk], me.Eval)
+		if err != nil {
+			return err
+		}
+		copy(dx[:n], pt.dx)
+		copy(dx[n:n+nk], dxk)
+		if L != nil {
+			pl, dlk, err := evalLoop(t, x[n+nk:2*n+nk], x[2*n+nk:], linModel)
+			if err != nil {
+				return err
+			}
+			copy(dx[n+nk:2*n+nk], pl.dx)
+			copy(dx[2*n+nk:], dlk)
+		}
+		return nil
+	}
+	X0 := make([]float64, N)
+	copy(X0, x0)
+	if L != nil {
+		copy(X0[n+nk:], x0)
+	}
+	var T []float64
+	if sampled {
+		for k := 0; float64(k)*me.Ts <= until*(1+1e-12); k++ {
+			T = append(T, float64(k)*me.Ts)
+		}
+	} else {
+		if dt <= 0 {
+			dt = until / 500
+		}
+		if until/dt > 1e6 {
+			return nil, c.Errorf("dt", "", "simulate: more than a million output times; choose a larger dt")
+		}
+		for k := 0; ; k++ {
+			t := float64(k) * dt
+			if t > until*(1+1e-12) {
+				break
+			}
+			T = append(T, math.Min(t, until))
+		}
+	}
+	sim := &lsys.Simulation{T: T, States: me.States, Outputs: me.Outputs, Sampled: sampled, RelTol: rtol, AbsTol: atol, Controller: ctrlName}
+	var Xs [][]float64
+	if sampled {
+		sim.Method = "iterated sample by sample"
+		x := X0
+		Xs = append(Xs, append([]float64(nil), x...))
+		for k := 1; k < len(T); k++ {
+			next := make([]float64, N)
+			if err := full(T[k-1], x, next); err != nil {
+				return nil, err
+			}
+			x = next
+			Xs = append(Xs, append([]float64(nil), x...))
+		}
+	} else {
+		sim.Method = "Dormand & Prince 5(4), adaptive steps, dense output"
+		step, done := progress(c, "simulate")
+		opt := lsys.ODEOptions{RelTol: rtol, AbsTol: atol, Progress: func(f float64) {
+			// Only long runs show progress (decided by the work done,
+			// so the same cell gives the same output).
+			step(f)
+		}}
+		var st lsys.ODEStats
+		var err error
+		Xs, st, err = lsys.Integrate(c.Context(), full, X0, 0, T, opt)
+		done()
+		if err != nil {
+			return nil, err
+		}
+		sim.Stats = st
+	}
+	// Outputs at the output times.
+	for k, t := range T {
+		x := Xs[k]
+		pt, _, err := evalLoop(t, x[:n], x[n:n+nk], me.Eval)
+		if err != nil {
+			return nil, err
+		}
+		sim.X = append(sim.X, append([]float64(nil), x[:n]...))
+		sim.Y = append(sim.Y, pt.y)
+		if L != nil {
+			pl, _, err := evalLoop(t, x[n+nk:2*n+nk], x[2*n+nk:], linModel)
+			if err != nil {
+				return nil, err
+			}
+			sim.Linear = append(sim.Linear, pl.y)
+		}
+	}
+	if L != nil {
+		sim.LinearName = "linear model"
+	}
+	return sim, nil
+}
+
+func maxAbsDense(a *mat.Dense) float64 {
+	r, c := a.Dims()
+	v := 0.0
+	for i := 0; i < r; i++ {
+		for j := 0; j < c; j++ {
+			v = math.Max(v, math.Abs(a.At(i, j)))
+		}
+	}
+	return v
 }

@@ -111,3 +111,31 @@ func TestBuiltinCovariance(t *testing.T) {
 		t.Fatalf("feedthrough: %v %q", cv.RMS, cv.Infinite)
 	}
 }
+
+func TestBuiltinSimulate(t *testing.T) {
+	// Logistic growth x' = r x (1 - x/K): x(t) = K / (1 + (K/x0 - 1) e^(-r t))
+	// (closed form).
+	src := "m = system {\n  states x\n  outputs y\n  x' = 1.3 * x * (1 - x / 10)\n  y = x\n}\n" +
+		"s = simulate(m, until: 6, initial: {x: 0.2}, rtol: 1e-10, atol: 1e-12)\n"
+	y := stRun(t, src+"s.y").(*mat.Dense)
+	ts := stRun(t, src+"s.t").(*mat.Dense)
+	for k := 0; k < len(ts.RawMatrix().Data); k += 50 {
+		tk := ts.At(k, 0)
+		want := 10 / (1 + (10/0.2-1)*math.Exp(-1.3*tk))
+		if math.Abs(y.At(k, 0)-want) > 1e-8*want {
+			t.Fatalf("t=%g: %v want %v", tk, y.At(k, 0), want)
+		}
+	}
+	// A pendulum closed by a gain keeps its linear model's answer for
+	// small angles: the two curves agree to second order.
+	pend := "p = system {\n  states angle, rate\n  inputs torque\n  outputs a\n  angle' = rate\n  rate' = -9.81 * sin(angle) - 0.2 * rate + torque\n  a = angle\n}\n" +
+		"G = linearize(p, at: {angle: 0, rate: 0, torque: 0})\n"
+	s := stRun(t, pend+"simulate(p, until: 3, initial: {angle: 0.01}, controller: -2, linear: G)").(*lsys.Simulation)
+	for k := range s.T {
+		if math.Abs(s.Y[k][0]-s.Linear[k][0]) > 1e-6 {
+			t.Fatalf("t=%g: model %v linear %v", s.T[k], s.Y[k][0], s.Linear[k][0])
+		}
+	}
+	stRunErr(t, pend+"simulate(G)", "equation block")
+	stRunErr(t, pend+"simulate(p, initial: {speed: 1})", "not one of the model's names")
+}
