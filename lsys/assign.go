@@ -226,6 +226,19 @@ func knv(A, B *mat.Dense, poles []complex128) (K *mat.Dense, achieved []complex1
 		k := seen[rep[i]]
 		seen[rep[i]]++
 		X[i] = colOf(S[i], k) // poles below the axis: replaced by their partner's conjugate below
+		if imag(poles[i]) > 0 && len(S[i]) > 1 {
+			// A complex pole's vector must not be real (up to a phase),
+			// or it and its conjugate coincide: mix in the next basis
+			// vector with a complex weight.
+			nx := colOf(S[i], k+1)
+			for r := range X[i] {
+				X[i][r] += complex(0.5, 0.5) * nx[r]
+			}
+			nrm := math.Sqrt(real(cdot(X[i], X[i])))
+			for r := range X[i] {
+				X[i][r] /= complex(nrm, 0)
+			}
+		}
 	}
 	partner := make([]int, n)
 	for i := range partner {
