@@ -272,7 +272,8 @@ func designBuiltins() []*Builtin {
 				"A'Q A - Q + C'C = 0), by Bartels & Stewart. P says how much input energy each direction of the state " +
 				"needs (a small eigenvalue: hard to reach), Q how much output energy a state gives (small: hard to see). " +
 				"The Hankel singular values are the square roots of the eigenvalues of P Q, computed as the singular " +
-				"values of Lo'Lc with P = Lc Lc', Q = Lo Lo'. An unstable system has no finite gramians: the error " +
+				"values of Lo'Lc with P = Lc Lc', Q = Lo Lo', the factors computed directly by Hammarling's (1982) method " +
+				"so that small values keep their accuracy. An unstable system has no finite gramians: the error " +
 				"names the modes.",
 			Examples: []string{msd + "gramians(G)"},
 			Fn: func(c *Call) (any, error) {

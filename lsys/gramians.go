@@ -15,10 +15,11 @@ import (
 //	A P + P A^T + B B^T = 0,   A^T Q + Q A + C^T C = 0      (continuous)
 //	A P A^T - P + B B^T = 0,   A^T Q A - Q + C^T C = 0      (sampled)
 //
-// solved by Bartels & Stewart (LyapunovEq), with factors P = Lc Lc^T and
-// Q = Lo Lo^T and the Hankel singular values sqrt(eig(P Q)), computed as
-// the singular values of Lo^T Lc (never from the product P Q, which
-// squares their spread).
+// solved by Bartels & Stewart (LyapunovEq), with Cholesky factors
+// P = Lc Lc^T and Q = Lo Lo^T computed directly by Hammarling's method
+// (LyapunovFactor) and the Hankel singular values sqrt(eig(P Q)) as the
+// singular values of Lo^T Lc (never from the product P Q, which squares
+// their spread).
 type Gramians struct {
 	System *System
 	P, Q   *mat.Dense
@@ -67,11 +68,20 @@ func GramiansOf(g *System) (*Gramians, error) {
 		return nil, err
 	}
 	out := &Gramians{System: g, P: sp.X, Q: sq.X, ResidualP: sp.Residual, ResidualQ: sq.Residual}
-	var negP, negQ float64
-	if out.Lc, negP, err = psdFactor(sp.X); err != nil {
+	// The factors by Hammarling's method, straight from A, B and C, so
+	// that small Hankel singular values keep their accuracy.
+	if out.Lc, err = LyapunovFactor(g.A, B, g.Sampled()); err != nil {
 		return nil, err
 	}
-	if out.Lo, negQ, err = psdFactor(sq.X); err != nil {
+	if out.Lo, err = LyapunovFactor(mat.DenseCopyOf(g.A.T()), mat.DenseCopyOf(C.T()), g.Sampled()); err != nil {
+		return nil, err
+	}
+	_, negP, err := psdFactor(sp.X)
+	if err != nil {
+		return nil, err
+	}
+	_, negQ, err := psdFactor(sq.X)
+	if err != nil {
 		return nil, err
 	}
 	out.Indefinite = math.Max(negP, negQ)
