@@ -138,10 +138,9 @@ func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) 
 		npts = opt.Points
 	}
 	var W []float64
-	// In logarithms: hi/lo overflows for ranges of more than 308 decades.
-	llo, lhi := math.Log(lo), math.Log(hi)
+	// hi/lo is finite: ranges are at most MaxDecades wide.
 	for i := 0; i < npts; i++ {
-		W = append(W, math.Exp(llo+(lhi-llo)*float64(i)/float64(npts-1)))
+		W = append(W, lo*math.Pow(hi/lo, float64(i)/float64(npts-1)))
 	}
 	for _, w := range extra {
 		if w > lo && w < hi {
