@@ -227,7 +227,9 @@ func designBuiltins() []*Builtin {
 				"real Schur form with its stable eigenvalues first, and X = U2 U1^-1 from their invariant subspace; " +
 				"the condition number of U1 is shown (large: X is sensitive). When A is nearly singular in the " +
 				"sampled case (a delay), the structure-preserving doubling algorithm is used instead (Chu, Fan, Lin " +
-				"& Wang 2004). The residual is the backward error of X; the closed-loop eigenvalues are those of A - B K. " +
+				"& Wang 2004). When the residual is above 1e-14, Newton steps (Kleinman 1968; sampled: Hewer 1971), each a " +
+				"Lyapunov equation, refine X while they halve it (at most 6; the method line says how many were kept). " +
+				"The residual is the backward error of X; the closed-loop eigenvalues are those of A - B K. " +
 				"There is no stabilizing solution when a mode on or beyond the stability boundary is not reachable, or " +
 				"an axis mode is not weighted by Q; the error says so.",
 			Examples: []string{"riccati([[0, 1], [0, 0]], [[0], [1]], identity(2), 1)"},
