@@ -911,18 +911,40 @@ func (b *Block) Parameter(name string) (float64, bool) {
 // inputs.
 func (b *Block) Linear() bool { return b.bs.firstNL == nil }
 
-// Derivatives evaluates the state equations' right-hand sides at states x
-// and inputs u: x' (or next x in a sampled block).
-func (b *Block) Derivatives(x, u []float64) ([]float64, error) {
-	f, _, err := b.bs.evalAt(b.ev, x, u, -1, "", nil)
+// Eval evaluates the block at states x and inputs u: the state equations'
+// right-hand sides dx (x', or next x when sampled) and the outputs y.
+func (b *Block) Eval(x, u []float64) (dx, y []float64, err error) {
+	f, g, err := b.bs.evalAt(b.ev, x, u, -1, "", nil)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
-	out := make([]float64, len(f))
+	dx = make([]float64, len(f))
 	for i := range f {
-		out[i] = f[i].V
+		dx[i] = f[i].V
 	}
-	return out, nil
+	y = make([]float64, len(g))
+	for i := range g {
+		y[i] = g[i].V
+	}
+	return dx, y, nil
+}
+
+// Feedthrough reports whether some output depends on some input at (x, u)
+// (a nonzero derivative), which would make a loop closed around the model
+// algebraic.
+func (b *Block) Feedthrough(x, u []float64) (bool, error) {
+	for j := range u {
+		_, y, err := b.bs.evalAt(b.ev, x, u, len(x)+j, "", nil)
+		if err != nil {
+			return false, err
+		}
+		for _, v := range y {
+			if v.E1 != 0 {
+				return true, nil
+			}
+		}
+	}
+	return false, nil
 }
 
 // Jacobians returns A = df/dx, B = df/du, C = dg/dx, D = dg/du at (x, u),

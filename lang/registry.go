@@ -34,9 +34,10 @@ const (
 	GroupMatrices = "Matrices"
 	GroupMath     = "Numbers and functions"
 	GroupOutput   = "Output and data"
+	GroupDesign   = "Design and reduction"
 )
 
-var groupOrder = []string{GroupSystems, GroupAnalysis, GroupResponse, GroupModels, GroupMatrices, GroupMath, GroupOutput}
+var groupOrder = []string{GroupSystems, GroupAnalysis, GroupResponse, GroupModels, GroupMatrices, GroupMath, GroupOutput, GroupDesign}
 
 // Param is a parameter of a built-in. A parameter is required unless it has
 // a Default or is Optional (absent: c.Has reports false).

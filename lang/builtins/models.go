@@ -299,7 +299,7 @@ func equilibriumFn(c *lang.Call) (any, error) {
 	sampled := bs.Every() > 0
 	// residual and Jacobian of F(x) = f(x, u) (- x when sampled).
 	eval := func(x []float64, jac bool) ([]float64, *mat.Dense, error) {
-		F, err := bs.Derivatives(x, u)
+		F, _, err := bs.Eval(x, u)
 		if err != nil {
 			return nil, nil, err
 		}
