@@ -777,7 +777,7 @@ func responseBuiltins() []*lang.Builtin {
 				{Name: "T", Doc: "dead time in s"},
 				{Name: "order", Default: 3.0, Doc: "order of the Pade approximant, 1 to 10"},
 			},
-			Help:     "A rational (Pade) approximant of the dead time e^(-sT), as a transfer function.",
+			Help: "A rational (Pade) approximant of the dead time e^(-sT), as a transfer function.",
 			Doc: "The diagonal [n/n] Pade approximant (Golub & Van Loan, Matrix Computations, Section 9.3.1): all-pass, phase exact to order (wT)^(2n+1). " +
 				"Use it where a finite state model is needed (time responses, closed-loop poles). For frequency analysis give the dead time itself instead: " +
 				"frequency(G, delay: T), polar(L, delay: T) and margins(L, delay: T) use e^(-jwT) exactly.",
