@@ -12,7 +12,44 @@ import (
 // realizes it, and the tests hold the two to each other.
 
 func init() {
+	registerType((*lsys.LoopShape)(nil), lang.TypeInfo{Name: "loop shapes", Fields: []lang.Field{
+		lang.FieldOf("peak_s", "the largest |S| = |1/(1 + L)|, a ratio", func(l *lsys.LoopShape) any { return l.Peak[0] }),
+		lang.FieldOf("peak_t", "the largest |T| = |L/(1 + L)|", func(l *lsys.LoopShape) any { return l.Peak[1] }),
+		lang.FieldOf("peak_ps", "the largest |P/(1 + L)|: input disturbance to output", func(l *lsys.LoopShape) any { return l.Peak[2] }),
+		lang.FieldOf("peak_cs", "the largest |C/(1 + L)|: reference to control effort", func(l *lsys.LoopShape) any { return l.Peak[3] }),
+		lang.FieldOf("modulus_margin", "1/peak_s: the smallest distance from L(jw) to -1", func(l *lsys.LoopShape) any { return l.ModulusMargin }),
+		lang.FieldOf("w", "the frequencies in rad/s", func(l *lsys.LoopShape) any { return lang.RealVector(l.Frequency.W) }),
+		lang.FieldOf("stable", "whether the closed loop is stable (from its poles)", func(l *lsys.LoopShape) any { return l.ClosedStable }),
+	}})
 	register(
+		&lang.Builtin{
+			Name: "loopshapes", Group: lang.GroupResponse,
+			Returns: (*lsys.LoopShape)(nil),
+			Params: append([]lang.Param{
+				{Name: "plant", Doc: "the plant P (SISO)"},
+				{Name: "controller", Doc: "the controller C (SISO) in the forward path; negative unity feedback"},
+			}, freqParams...),
+			Help: "The four closed-loop transfer functions of the loop P C on one chart, with their peaks: S, T, P S and C S; the modulus margin 1/max|S|.",
+			Doc: "S = 1/(1 + L) (output disturbance to output), T = L/(1 + L) (reference to output), PS = P/(1 + L) (input disturbance to output), " +
+				"CS = C/(1 + L) (reference to control effort), L = P C. Peaks are refined between grid points by golden-section search. " +
+				"A dead time (delay: T) belongs to the plant and is applied exactly; closed-loop stability is then judged on a Padé model, and the note says which. " +
+				"Common practice asks max|S| below 2 (6 dB; a modulus margin above 0.5) and max|T| below 1.5 (3.5 dB).",
+			Examples: []string{
+				"P = 1/(s*(s + 1))\nloopshapes(P, leadlag(3, 50, gain: 9))",
+				"P = 4/(s + 1)\nloopshapes(P, threeterm(1, integral: 0.8), delay: 0.1).modulus_margin",
+			},
+			Fn: func(c *lang.Call) (any, error) {
+				var p, k *lsys.System
+				if err := c.Bind("plant", &p, "controller", &k); err != nil {
+					return nil, err
+				}
+				o, err := freqOptions(c)
+				if err != nil {
+					return nil, err
+				}
+				return lsys.LoopShapes(c.Context(), p, k, o)
+			},
+		},
 		&lang.Builtin{
 			Name: "threeterm", Group: lang.GroupDesign,
 			Returns: (*lsys.Rational)(nil),

@@ -24,3 +24,18 @@ func TestDelayOption(t *testing.T) {
 	}
 	stRunErr(t, "frequency(1/(s + 1), delay: -1)", "'delay' must be >= 0")
 }
+
+// loopshapes of L = wn^2/(s (s + 2 z wn)): the T peak 1/(2 z sqrt(1 - z^2))
+// (Ogata, Modern Control Engineering, 5th ed., Section 7-2); the modulus
+// margin is 1/peak_s (definition).
+func TestLoopShapesBuiltin(t *testing.T) {
+	ls := stRun(t, "loopshapes(4/(s*(s + 1.2)), 1)").(*lsys.LoopShape)
+	z := 0.3
+	if want := 1 / (2 * z * math.Sqrt(1-z*z)); math.Abs(ls.Peak[1]-want) > 1e-12*want {
+		t.Errorf("peak T %g want %g", ls.Peak[1], want)
+	}
+	if mm := stRun(t, "loopshapes(4/(s*(s + 1.2)), 1).modulus_margin").(float64); math.Abs(mm*ls.Peak[0]-1) > 1e-15 {
+		t.Errorf("modulus margin %g, peak S %g", mm, ls.Peak[0])
+	}
+	stRunErr(t, "loopshapes(system([[-1, 0], [0, -2]], [[1, 0], [0, 1]], [[1, 0], [0, 1]]), 1)", "one input and one output")
+}
