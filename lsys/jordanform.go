@@ -339,7 +339,6 @@ func jordanNull(M []complex128, n, r int, isReal bool) [][]complex128 {
 	return jordanPick(cand, nil, r)
 }
 
-
 // jordanOrth returns an orthonormal basis of the span of W (modified
 // Gram-Schmidt, twice; vectors that add less than 1e-10 of their norm are
 // dropped as dependent).
