@@ -20,3 +20,14 @@ func TestSystemDividedByTransferFunction(t *testing.T) {
 		{Src: "G = system([[-1, 0], [0, -2]], identity(2), identity(2))\ngain(G/(s + 1))", Want: "1    0\n0  0.5"},
 	})
 }
+
+// Issue 15, friction 2: an output named like a state is that state.
+func TestOutputNamedLikeState(t *testing.T) {
+	const blk = "G = system {\n  states x, v\n  inputs u\n  outputs x, speed\n  x' = v\n  v' = u - 2*x\n  speed = 3*v\n}\n"
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: blk + "G.C", Want: "1  0\n0  3"},
+		{Src: "H = system {\n  outputs x\n  states x\n  inputs u\n  x' = -x + u\n}\ntransfer(H)", Want: "1 / (s + 1)"},
+		{Src: "system {\n  states x\n  outputs x\n  x' = -x\n  x = 2*x\n}", Err: "'x' is a state; its equation is written x' = ...", Line: 5, Col: 3},
+		{Src: "system {\n  states x\n  outputs x, x\n  x' = -x\n}", Err: "'x' is declared twice", Line: 3, Col: 14},
+	})
+}
