@@ -1,8 +1,11 @@
 package lang_test
 
 import (
+	"context"
 	"testing"
 
+	"lsys/lang"
+	"lsys/lang/builtins"
 	"lsys/lang/langtest"
 )
 
@@ -30,4 +33,41 @@ func TestOutputNamedLikeState(t *testing.T) {
 		{Src: "system {\n  states x\n  outputs x\n  x' = -x\n  x = 2*x\n}", Err: "'x' is a state; its equation is written x' = ...", Line: 5, Col: 3},
 		{Src: "system {\n  states x\n  outputs x, x\n  x' = -x\n}", Err: "'x' is declared twice", Line: 3, Col: 14},
 	})
+}
+
+// Issue 15, friction 3: completion inside a call leaves out the
+// parameters already given by position (and by name).
+func TestCompleteSkipsPositionalArguments(t *testing.T) {
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	if _, err := s.Run(context.Background(), "G = 1/(s + 1)\nf(a, b, c) = a + b + c", nil); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		src     string
+		want    []string
+		notWant []string
+	}{
+		{"response(G, step, ", []string{"initial: ", "until: "}, []string{"system: ", "input: "}},
+		{"response(G, ", []string{"input: ", "until: "}, []string{"system: "}},
+		{"response(G, sine(2, amplitude: 3), ", []string{"until: "}, []string{"system: ", "input: ", "amplitude: "}},
+		{"response(G, until: 3, ", []string{"input: ", "dt: "}, []string{"system: ", "until: "}},
+		{"response([[1, 2], [3, 4]], ", []string{"input: "}, []string{"system: "}},
+		{"f(1, ", []string{"b: ", "c: "}, []string{"a: "}},
+	} {
+		m, _, _ := s.Complete(c.src, len([]rune(c.src)))
+		got := map[string]bool{}
+		for _, x := range m {
+			got[x] = true
+		}
+		for _, w := range c.want {
+			if !got[w] {
+				t.Errorf("Complete(%q) lacks %q: %v", c.src, w, m)
+			}
+		}
+		for _, w := range c.notWant {
+			if got[w] {
+				t.Errorf("Complete(%q) offers %q, given already", c.src, w)
+			}
+		}
+	}
 }
