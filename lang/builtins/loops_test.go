@@ -1,10 +1,14 @@
 package builtins_test
 
 import (
+	"context"
 	"math"
 	"strings"
 	"testing"
 
+	"lsys/lang"
+	"lsys/lang/builtins"
+	"lsys/lang/langtest"
 	"lsys/lsys"
 )
 
@@ -38,4 +42,27 @@ func TestLoopShapesBuiltin(t *testing.T) {
 		t.Errorf("modulus margin %g, peak S %g", mm, ls.Peak[0])
 	}
 	stRunErr(t, "loopshapes(system([[-1, 0], [0, -2]], [[1, 0], [0, 1]], [[1, 0], [0, 1]]), 1)", "one input and one output")
+}
+
+// Issue 15, friction 4: a locus that fails (or is interrupted) part way
+// says where it stopped; it does not leave "0 of N" standing.
+func TestLocusProgressStopped(t *testing.T) {
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	r := &langtest.Recorder{}
+	_, err := s.Run(context.Background(), "f(k) = if k < 30 then system([[-k]]) else 1\nlocus(f, k: linear(1, 60, n: 60))", r)
+	if err == nil {
+		t.Fatal("no error")
+	}
+	if len(r.Updates) == 0 || r.Updates[len(r.Updates)-1] != "locus: stopped after 29 of 60 values" {
+		t.Errorf("updates %v", r.Updates)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	r = &langtest.Recorder{}
+	if _, err := s.Run(ctx, "g(k) = system([[-k]])\nlocus(g, k: linear(1, 60, n: 60))", r); err == nil {
+		t.Fatal("not interrupted")
+	}
+	if len(r.Displays) > 0 && (len(r.Updates) == 0 || !strings.HasPrefix(r.Updates[len(r.Updates)-1].(string), "locus: stopped after")) {
+		t.Errorf("stale progress left: displays %v, updates %v", r.Displays, r.Updates)
+	}
 }
