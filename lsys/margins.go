@@ -292,7 +292,7 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 	one, err := NewSystem(0, 1, 1, nil, nil, nil, nil, L.Ts)
 	if err == nil {
 		one.D.Set(0, 0, 1)
-		if cl, err := Feedback(L, one, -1); err == nil {
+		if cl, err := CloseLoop(L, one, -1); err == nil {
 			mg.ClosedChecked = true
 			mg.ClosedStable = Stable(cl)
 			if st, err := StabilityOf(cl); err == nil && !mg.ClosedStable && st.Marginal {
