@@ -54,7 +54,7 @@ func rpSamples(t testing.TB) map[string]any {
 	two, _ := lsys.Stack(g, rpSecondOrder(t, 0.7, 1))
 	mimo, _ := lsys.Step(ctx, two, lsys.ResponseOptions{})
 	out["step_mimo"] = mimo
-	d, _ := lsys.Sample(g, 0.2, "zoh", 0)
+	d, _ := lsys.Sample(g, 0.2, lsys.ZeroOrderHold, 0)
 	sd, _ := lsys.Step(ctx, d, lsys.ResponseOptions{})
 	out["step_sampled"] = sd
 	sig := lsys.Sine(2, 1)

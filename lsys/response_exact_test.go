@@ -110,7 +110,7 @@ func TestSimulateTableExactBetweenSamples(t *testing.T) {
 // at 1.23 s at 1.3 s (0.07 s late, the largest; arithmetic).
 func TestSimulateSampledTableWarnsTiming(t *testing.T) {
 	g := siso(t, []float64{1}, []float64{1, 1})
-	gz, err := Sample(g, 0.1, "zoh", 0)
+	gz, err := Sample(g, 0.1, ZeroOrderHold, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
