@@ -108,6 +108,7 @@ type rpPanel struct {
 	// LinTicks labels both axes with rpLinTicks (one format per axis, 0
 	// always labelled); charts in the complex plane set it.
 	LinTicks   bool
+	LinYTicks  bool // the y axis alone labelled with rpLinTicks (a linear y beside a log x)
 	PhaseTicks bool // y ticks at multiples of 45, 90 or 180 degrees
 	DBTicks    bool // y ticks at multiples of 10, 20, 40 ... dB
 	// LegendBelow puts this panel's legend in a strip below the figure
@@ -381,6 +382,9 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 	}
 	if pn.LinTicks {
 		p.X.Tick.Marker, p.Y.Tick.Marker = rpLinTicks{}, rpLinTicks{}
+	}
+	if pn.LinYTicks {
+		p.Y.Tick.Marker = rpLinTicks{}
 	}
 	if pn.PhaseTicks {
 		p.Y.Tick.Marker = rpPhaseTicker
