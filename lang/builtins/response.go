@@ -629,7 +629,7 @@ func responseBuiltins() []*lang.Builtin {
 			Params: []lang.Param{
 				{Name: "G", Doc: "the forward path, from the loop's input (after the summing point) to its output"},
 				{Name: "through", Default: 1.0, NamedOnly: true, Formerly: "K", Doc: "the return path from the output back to the summing point; 1 (the default) returns the output itself"},
-				{Name: "sense", Default: "negative", Formerly: "sign", Doc: `"negative": the returned signal is subtracted from the reference; "positive": added to it`},
+				{Name: "sense", Default: "negative", NamedOnly: true, Formerly: "sign", Doc: `"negative": the returned signal is subtracted from the reference; "positive": added to it`},
 			},
 			Help: "Close a feedback loop around G, returning its output through a block to a summing point at its input.",
 			Doc: "The loop's input is the reference r; the summing point gives G the reference minus the returned signal (sense \"negative\") or plus it (\"positive\"). " +
