@@ -522,7 +522,7 @@ func (ev *evaluator) callBuiltin(b *Builtin, vals []any, poss []syntax.Pos, name
 
 // shareSampleTime gives arguments in z whose sample time is still open
 // (1/z) the sample time of the call's sampled arguments, when they all
-// have one and the same: closeloop(Gz, 1/z), wire(Gz, 1/z, ...) (SPEC
+// have one and the same: closeloop(Gz, through: 1/z), wire(Gz, 1/z, ...) (SPEC
 // section 8, "taken from what it is combined with").
 func (c *Call) shareSampleTime() {
 	ts := 0.0
