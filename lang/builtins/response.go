@@ -569,9 +569,11 @@ func responseBuiltins() []*lang.Builtin {
 			Name: "margins", Group: lang.GroupResponse,
 			Returns: (*lsys.Margins)(nil),
 			Params:  append([]lang.Param{{Name: "loop", Doc: "the loop transfer function L (SISO), negative feedback assumed"}}, freqParams...),
-			Help:    "Gain, phase and delay margins with all crossovers; closed-loop bandwidth and resonant peak; an annotated chart.",
+			Help:    "Gain, phase, delay and modulus margins with all crossovers; closed-loop bandwidth and resonant peak; a chart of the loop's distance from -1.",
 			Doc: "Crossovers are bracketed on the adaptive frequency grid and refined by bisection. The gain margin is the one of smallest |dB| " +
 				"over the phase crossovers, the phase margin the smallest over the gain crossovers, the delay margin PM/w minimised over gain crossovers. " +
+				"The modulus margin is the smallest distance of L(jw) from the critical point -1, min |1 + L| (the inverse of the peak sensitivity), refined between grid points by golden-section search. " +
+				"The chart draws that distance |1 + L| over frequency, with the modulus margin and the gain and phase crossovers marked on it (at a gain crossover the distance is 2 sin(PM/2), at a phase crossover |1 - |L||). " +
 				"Bandwidth and resonant peak are those of T = L/(1 + L). The margins mean something only if the closed loop is stable; the display says whether it is.",
 			Examples: []string{"L = 2 / (s*(s + 1)*(s + 2))\nmargins(L)"},
 			Fn: func(c *lang.Call) (any, error) {
