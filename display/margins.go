@@ -150,6 +150,7 @@ func mgFigure(mg *lsys.Margins) *rpFigure {
 	// least 1.2 so the line at 1 shows; the curve's far reaches (near an
 	// integrator |1 + L| grows without bound) are cut at 2.5.
 	top := 1.2
+	var label rpText
 	marks := func(name string, ws, ds []float64, style int, shape draw.GlyphDrawer, radius float64) {
 		var px, py []float64
 		for i, w := range ws {
@@ -166,7 +167,7 @@ func mgFigure(mg *lsys.Margins) *rpFigure {
 	marks("phase crossovers (L negative real)", mg.PhaseCrossovers, mg.PhaseDistances, 2, draw.BoxGlyph{}, 3.5)
 	if w := mg.ModulusFreq; ok(w) && w > 0 && ok(mg.ModulusMargin) {
 		marks("modulus margin (smallest distance)", []float64{w}, []float64{mg.ModulusMargin}, 3, draw.TriangleGlyph{}, 4.5)
-		pn.Texts = append(pn.Texts, rpText{X: w * sc, Y: mg.ModulusMargin, Text: "modulus margin " + fmtNum(mg.ModulusMargin)})
+		label = rpText{X: w * sc, Y: mg.ModulusMargin, Text: "modulus margin " + fmtNum(mg.ModulusMargin)}
 	}
 	hi := 0.0
 	for _, d := range mg.Distance {
@@ -176,5 +177,11 @@ func mgFigure(mg *lsys.Margins) *rpFigure {
 	}
 	top = math.Max(top, math.Min(2.5, 1.05*hi))
 	pn.YMin, pn.YMax = 0, top
+	if label.Text != "" {
+		// below the lowest point, where the curve is not: it rises on
+		// both sides of its minimum
+		label.Y -= 0.08 * top
+		pn.Texts = append(pn.Texts, label)
+	}
 	return &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}, W: 16 * cmLen, H: 11 * cmLen}
 }
