@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
 	"lsys/lsys"
@@ -85,8 +86,8 @@ func renderFrequency(v any, opt Options) Bundle {
 			ph.PhaseTicks = true
 			ph.Series = []rpSeries{{X: x, Y: f.Phase(i, j), Style: 0}}
 			if f.Nyquist > 0 {
-				mg.Lines = append(mg.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true})
-				ph.Lines = append(ph.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true})
+				mg.Lines = append(mg.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true, Label: "Nyquist"})
+				ph.Lines = append(ph.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true, Label: "Nyquist"})
 			}
 			mags, phs = append(mags, mg), append(phs, ph)
 		}
@@ -160,6 +161,14 @@ func renderPolar(v any, opt Options) Bundle {
 			}
 			pn.XMin, pn.XMax, pn.YMin, pn.YMax = xmin, xmax, ymin, ymax
 			fig.Panels = append(fig.Panels, pn)
+		}
+	}
+	// equal scales for the data area's real shape, measured once (the
+	// panels are alike)
+	if len(fig.Panels) > 0 {
+		ratio := fig.dataRatio(0)
+		for _, pn := range fig.Panels {
+			pn.Ratio = ratio
 		}
 	}
 	b := rpBundle(text, fig, opt)
@@ -334,6 +343,10 @@ func renderMargins(v any, opt Options) Bundle {
 		ph.Texts = append(ph.Texts, rpText{X: w * sc, Y: ref + p, Text: "PM " + fmtNum(p) + "°"})
 		ph.Series = append(ph.Series, rpSeries{X: []float64{w * sc, w * sc}, Y: []float64{ref, ref + p}, Style: 2, Width: 2.5, Color: rpPalette[2]})
 	}
+	if f.Nyquist > 0 {
+		mag.Lines = append(mag.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true, Label: "Nyquist"})
+		ph.Lines = append(ph.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true, Label: "Nyquist"})
+	}
 	fig := &rpFigure{Rows: 2, Cols: 1, Panels: []*rpPanel{mag, ph}, W: 16 * cmLen, H: 14 * cmLen}
 	b := rpBundle(text, fig, opt)
 	b.Data[HTML] = htmlTableCard("lsys-response", "Loop margins", head, rows, 2, append([]string{verdict}, mg.Notes...)...)
@@ -498,7 +511,29 @@ func renderPoleZero(v any, opt Options) Bundle {
 	} else {
 		fr = pzFrame(append(append([]complex128(nil), nearPoles...), nearZeros...), g.Sampled())
 	}
-	fr, equal := fr.aspect(1.6)
+	// the frame's shape for equal scales: that of the chart's data area,
+	// measured on a probe of this chart (tick labels and the legend take
+	// their room first)
+	probe := newPanel(pn.Title, pn.XLabel, pn.YLabel)
+	probe.Series = []rpSeries{rpMark("poles", pz.Poles[:min(1, len(pz.Poles))], 0, draw.CrossGlyph{}, 4.5), rpMark("zeros", pz.Poles[:min(1, len(pz.Poles))], 1, draw.RingGlyph{}, 4.5)}
+	probe.Legend, probe.LegendBelow, probe.LinTicks, probe.Exact = true, true, true, true
+	probe.XMin, probe.XMax, probe.YMin, probe.YMax = fr.x0, fr.x1, fr.y0, fr.y1
+	// The figure is 16 cm wide; its height follows the points' shape
+	// (between a square and a wide data area) so that equal scales
+	// leave little of the frame empty.
+	fig := &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{probe}, W: 16 * cmLen, H: 10 * cmLen}
+	want := math.Min(math.Max((fr.x1-fr.x0)/(fr.y1-fr.y0), 0.75), 2.2)
+	if dw, dh := fig.dataSize(0); dw > 0 && dh > 0 {
+		fig.H = min(max(fig.H-dh+dw/vg.Length(want), 8*cmLen), 17*cmLen)
+	}
+	ratio := fig.dataRatio(0)
+	x1 := fr.x1
+	fr, equal := fr.aspect(ratio)
+	if equal && !g.Sampled() && fr.x1 > x1 {
+		// widen to the left, where the stable points are, not into the
+		// empty right half plane
+		fr.x0, fr.x1 = fr.x0-(fr.x1-x1), x1
+	}
 	if !equal {
 		text += "\nthe chart's axes have different scales (to fit the points); the damping-ratio lines are drawn to those scales"
 	}
@@ -515,7 +550,14 @@ func renderPoleZero(v any, opt Options) Bundle {
 	// far points on the frame's edge, in their direction from the origin,
 	// labelled with their value; a label that would overlap one already
 	// placed moves a line further from the point (see farLabel)
+	// the markers drawn inside count as placed, so no label covers one
 	var placed []rpText
+	cw := (fr.x1 - fr.x0) / 100
+	for _, p := range append(append([]complex128(nil), nearPoles...), nearZeros...) {
+		if !cmplx.IsNaN(p) && !cmplx.IsInf(p) {
+			placed = append(placed, rpText{X: real(p) - 1.5*cw, Y: imag(p)})
+		}
+	}
 	edge := func(v []complex128) []complex128 {
 		out := make([]complex128, len(v))
 		for i, p := range v {
@@ -536,7 +578,7 @@ func renderPoleZero(v any, opt Options) Bundle {
 	pn.LegendBelow = true
 	pn.XMin, pn.XMax, pn.YMin, pn.YMax = fr.x0, fr.x1, fr.y0, fr.y1
 	pn.Texts = texts
-	fig := &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}}
+	fig.Panels = []*rpPanel{pn}
 	out := rpBundle(text, fig, opt)
 	js := map[string]any{"sampled": g.Sampled(), "poles": rpComplexJSON(pz.Poles), "zeros_known": pz.ZerosKnown}
 	if pz.ZerosKnown {
@@ -583,18 +625,18 @@ func pzFrame(pts []complex128, sampled bool) pzBox {
 
 // aspect widens the shorter side of the frame about its centre so both
 // axes have the same scale on a chart r times wider than high, unless
-// that would leave more than half of the width (or height) empty; then
+// that would leave more than 70 % of the width (or height) empty; then
 // the frame stays as it is and equal is false.
 func (b pzBox) aspect(r float64) (pzBox, bool) {
 	sx, sy := b.x1-b.x0, b.y1-b.y0
 	cx, cy := (b.x0+b.x1)/2, (b.y0+b.y1)/2
 	if sx < r*sy {
-		if sx < 0.5*r*sy {
+		if sx < 0.3*r*sy {
 			return b, false
 		}
 		sx = r * sy
 	} else {
-		if sy < 0.5*sx/r {
+		if sy < 0.3*sx/r {
 			return b, false
 		}
 		sy = sx / r
