@@ -177,7 +177,7 @@ pre.out.error { color: #b00020; border-left: 3px solid #b00020; padding-left: .5
 .notrun { color: var(--muted); font-style: italic; }
 code { font-family: "DejaVu Sans Mono", Menlo, Consolas, monospace; font-size: 92%; background: var(--code-bg); padding: 0 2px; }
 code.tex { display: block; white-space: pre-wrap; font-size: 11px; color: var(--muted); padding: .3rem; }
-.k { color: #7a1f6b; font-weight: bold; } .b { color: #0b4f8a; } .s { color: #2d6a12; } .m { color: #8a4b00; } .c { color: #6b6b6b; font-style: italic; }
+.cm-keyword { color: #7a1f6b; font-weight: bold; } .cm-builtin { color: #0b4f8a; } .cm-string { color: #2d6a12; } .cm-number { color: #8a4b00; } .cm-comment { color: #6b6b6b; font-style: italic; }
 footer { margin-top: 2rem; border-top: 1px solid var(--rule); padding-top: .5rem; font-size: 11px; color: var(--muted); }
 @page { margin: 16mm 14mm; }
 @media print {
