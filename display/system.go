@@ -230,11 +230,14 @@ func renderSystem(v any, _ Options) Bundle {
 		h.WriteString("</table>")
 	}
 	eq := sxStateEquations(s)
-	if eq != "" {
-		fmt.Fprintf(&h, "<div style=\"margin:4px 0\">$$%s$$</div>", html.EscapeString(eq))
-	}
+	// the equations carry the matrices: shown, they replace the tables
+	eqHTML := sxEquationHTML(s)
+	h.WriteString(eqHTML)
 	if !showMatrices {
 		fmt.Fprintf(&h, "<div style=\"color:#555\">Matrices not shown above %d states, inputs or outputs; read them as G.A, G.B, G.C, G.D.</div>", sxMaxShown)
+	}
+	if eqHTML != "" {
+		blocks = nil
 	}
 	h.WriteString("<div>")
 	for _, bl := range blocks {
