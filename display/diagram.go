@@ -77,7 +77,7 @@ func dgBoxLines(d *lsys.ModalDiagram, k int, bx lsys.DiagramBox) (title, status 
 		}
 		lines = []string{
 			sym + " = " + fmtComplex(m.Eigenvalue, m.Pair),
-			"ωn " + fmtNum(m.NaturalFreq) + " rad/s · ζ " + fmtNum(m.Damping),
+			"wn " + fmtNum(m.NaturalFreq) + " rad/s · ζ " + fmtNum(m.Damping),
 		}
 		return title, dgStability(m, 0), lines
 	}
@@ -101,7 +101,7 @@ func dgBoxLines(d *lsys.ModalDiagram, k int, bx lsys.DiagramBox) (title, status 
 		title = fmt.Sprintf("block %d · %d modes kept together", bx.First+1, len(bx.Modes))
 	}
 	lines = []string{
-		"ωn " + dgRange(lo, hi) + " rad/s",
+		"wn " + dgRange(lo, hi) + " rad/s",
 		"ζ " + dgRange(zlo, zhi),
 	}
 	return title, worst, lines
@@ -208,10 +208,10 @@ func renderDiagram(v any, _ Options) Bundle {
 	return bd
 }
 
-// dgSub writes "ωn" with a subscript n.
-func dgSub(l string) string {
-	return strings.ReplaceAll(dgEsc(l), "ωn", `ω<tspan dy="3" font-size="11">n</tspan><tspan dy="-3"> </tspan>`)
-}
+// dgSub escapes a card line. The natural frequency is "wn" as in the mode
+// table's heading: a Greek omega is drawn turned on its side by some
+// browsers' font fallback.
+func dgSub(l string) string { return dgEsc(l) }
 
 // dgLink draws one link: a slanted run from the signal's pill to a stub
 // level with the card's port, the stub carrying the gain (or the reason it
@@ -267,7 +267,7 @@ func dgText(d *lsys.ModalDiagram) string {
 	fmt.Fprintf(&t, "  gains in modal coordinates (unit mode shapes); links below %s (relative) are not reached / not seen\n", fmtNum(d.RelTol))
 	for k, bx := range d.Boxes {
 		title, status, lines := dgBoxLines(d, k, bx)
-		fmt.Fprintf(&t, "  %s (%s): %s\n", title, status, strings.ReplaceAll(strings.Join(lines, "; "), "ωn", "wn"))
+		fmt.Fprintf(&t, "  %s (%s): %s\n", title, status, strings.Join(lines, "; "))
 		var ins, outs []string
 		for j := range bx.InGain {
 			ins = append(ins, s.InputNames[j]+" "+choose(bx.Reached[j], fmtNum(bx.InGain[j]), "not reached"))

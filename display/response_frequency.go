@@ -518,22 +518,8 @@ func renderPoleZero(v any, opt Options) Bundle {
 	probe.Series = []rpSeries{rpMark("poles", pz.Poles[:min(1, len(pz.Poles))], 0, draw.CrossGlyph{}, 4.5), rpMark("zeros", pz.Poles[:min(1, len(pz.Poles))], 1, draw.RingGlyph{}, 4.5)}
 	probe.Legend, probe.LegendBelow, probe.LinTicks, probe.Exact = true, true, true, true
 	probe.XMin, probe.XMax, probe.YMin, probe.YMax = fr.x0, fr.x1, fr.y0, fr.y1
-	// The figure is 16 cm wide; its height follows the points' shape
-	// (between a square and a wide data area) so that equal scales
-	// leave little of the frame empty.
 	fig := &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{probe}, W: 16 * cmLen, H: 10 * cmLen}
-	want := math.Min(math.Max((fr.x1-fr.x0)/(fr.y1-fr.y0), 0.75), 2.2)
-	if dw, dh := fig.dataSize(0); dw > 0 && dh > 0 {
-		fig.H = min(max(fig.H-dh+dw/vg.Length(want), 8*cmLen), 17*cmLen)
-	}
-	ratio := fig.dataRatio(0)
-	x1 := fr.x1
-	fr, equal := fr.aspect(ratio)
-	if equal && !g.Sampled() && fr.x1 > x1 {
-		// widen to the left, where the stable points are, not into the
-		// empty right half plane
-		fr.x0, fr.x1 = fr.x0-(fr.x1-x1), x1
-	}
+	fr, equal := pzEqualFrame(fig, fr, g.Sampled())
 	if !equal {
 		text += "\nthe chart's axes have different scales (to fit the points); the damping-ratio lines are drawn to those scales"
 	}
@@ -586,6 +572,26 @@ func renderPoleZero(v any, opt Options) Bundle {
 	}
 	out.Data[JSON] = js
 	return out
+}
+
+// pzEqualFrame gives a pole-zero chart equal scales: the figure (16 cm
+// wide, its one panel a probe with the chart's labels and legend) gets a
+// height that follows the points' shape, between a square and a wide data
+// area, and the frame is widened to the data area's measured shape (to
+// the left in continuous time, where the stable points are, not into the
+// empty right half plane). equal is false when that would leave more than
+// 70 % of the frame empty; the frame is then left as it is.
+func pzEqualFrame(fig *rpFigure, fr pzBox, sampled bool) (pzBox, bool) {
+	want := math.Min(math.Max((fr.x1-fr.x0)/(fr.y1-fr.y0), 0.75), 2.2)
+	if dw, dh := fig.dataSize(0); dw > 0 && dh > 0 {
+		fig.H = min(max(fig.H-dh+dw/vg.Length(want), 8*cmLen), 17*cmLen)
+	}
+	x1 := fr.x1
+	fr, equal := fr.aspect(fig.dataRatio(0))
+	if equal && !sampled && fr.x1 > x1 {
+		fr.x0, fr.x1 = fr.x0-(fr.x1-x1), x1
+	}
+	return fr, equal
 }
 
 // pzBox is a chart frame in data coordinates.
