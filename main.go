@@ -15,7 +15,9 @@ import (
 	"os"
 	"os/signal"
 	"path/filepath"
+	"strconv"
 	"syscall"
+	"time"
 
 	"lsys/kernel"
 )
@@ -82,7 +84,8 @@ func runKernel(args []string) error {
 		return err
 	}
 	// SIGINT interrupts the running cell (Jupyter's signal interrupt mode);
-	// SIGTERM shuts down cleanly.
+	// SIGTERM, and the end of the process Jupyter names in JPY_PARENT_PID,
+	// interrupt it and shut down (see terminate).
 	sigs := make(chan os.Signal, 4)
 	signal.Notify(sigs, os.Interrupt, syscall.SIGTERM)
 	go func() {
@@ -90,10 +93,13 @@ func runKernel(args []string) error {
 			if s == os.Interrupt {
 				k.Interrupt()
 			} else {
-				k.Shutdown(false)
+				terminate(k, "terminated")
 			}
 		}
 	}()
+	if pid, err := strconv.Atoi(os.Getenv("JPY_PARENT_PID")); err == nil && pid > 1 {
+		go watchParent(pid, func() { terminate(k, fmt.Sprintf("the Jupyter process %d that started this kernel is gone", pid)) })
+	}
 	_, err = k.Serve(context.Background())
 	return err
 }
@@ -131,4 +137,30 @@ func runKernelspec(args []string) error {
 	}
 	fmt.Println("lsys kernelspec written to", dir)
 	return nil
+}
+
+// terminate interrupts the running cell and shuts the kernel down. Service
+// managers allow a few seconds: a computation that does not notice the
+// interrupt in time (a library routine between its checks) does not hold
+// the exit up for more than 2 s.
+func terminate(k *kernel.Kernel, why string) {
+	k.Interrupt()
+	k.Shutdown(false)
+	time.AfterFunc(2*time.Second, func() {
+		fmt.Fprintf(os.Stderr, "lsys: %s; the running cell did not stop within 2 s, exiting\n", why)
+		os.Exit(0)
+	})
+}
+
+// watchParent calls gone once the process pid has ended, polling twice a
+// second, so a kernel whose notebook server died does not run on as an
+// orphan.
+func watchParent(pid int, gone func()) {
+	for {
+		time.Sleep(500 * time.Millisecond)
+		if err := syscall.Kill(pid, 0); errors.Is(err, syscall.ESRCH) {
+			gone()
+			return
+		}
+	}
 }

@@ -43,8 +43,8 @@ func sxModeRow(i int, m lsys.Mode) []string {
 		period,
 		mult,
 		fmtNum(m.Cond),
-		choose(m.Reachable, "yes", "NO"),
-		choose(m.Observable, "yes", "NO"),
+		choose(m.Reachable, "yes", "NO") + choose(m.ReachClose, " (close)", ""),
+		choose(m.Observable, "yes", "NO") + choose(m.ObserveClose, " (close)", ""),
 	}
 }
 
@@ -67,7 +67,7 @@ func sxModesTitle(t *lsys.ModeTable) string {
 // sxVerdictNote states how the reached and seen verdicts were decided and
 // their two tolerances.
 func sxVerdictNote(t *lsys.ModeTable) string {
-	return fmt.Sprintf("verdicts: PBH test per mode, reach on (A, B) and visibility on (A, C), each pair balanced on its own (states, inputs and outputs scaled by powers of two, so units do not matter); reached if the margin exceeds %s x ||B~|| = %s, seen if it exceeds %s x ||C~|| = %s",
+	return fmt.Sprintf("verdicts: PBH test per mode, reach on (A, B) and visibility on (A, C), each pair balanced on its own (states, inputs and outputs scaled by powers of two, so units do not matter); reached if the margin exceeds %s x ||B~|| = %s, seen if it exceeds %s x ||C~|| = %s; for a defective eigenvalue the margin is the least over the disk it moves in under a perturbation of that size; (close) marks a margin within a factor 10 of its tolerance, a call that other units or coordinates may turn",
 		fmtNum(t.RelTol), fmtNum(t.ReachTol), fmtNum(t.RelTol), fmtNum(t.ObserveTol))
 }
 
@@ -204,7 +204,7 @@ func sxModesHTML(t *lsys.ModeTable) string {
 			style := tdNumStyle
 			title := ""
 			if k == 9 || k == 10 {
-				if c == "NO" {
+				if strings.HasPrefix(c, "NO") {
 					style += ";font-weight:bold"
 				}
 				mg, tol := m.ReachMargin, m.ReachTol

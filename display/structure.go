@@ -191,6 +191,7 @@ func renderJordan(v any, _ Options) Bundle {
 	t, h := &c.t, &c.h
 	rows := [][]string{}
 	defective := 0
+	var close []string
 	for _, c := range js.Clusters {
 		pair := imag(c.Value) > 0
 		verdict := "simple"
@@ -201,6 +202,10 @@ func renderJordan(v any, _ Options) Bundle {
 				defective++
 			}
 		}
+		if c.Close > 0 {
+			verdict += " (close)"
+			close = append(close, fmt.Sprintf("%s (distance %s x the tolerance)", fmtComplex(c.Value, pair), fmtNum(c.Close)))
+		}
 		ranks := "-"
 		if len(c.Ranks) > 0 {
 			ranks = sxInts(c.Ranks)
@@ -208,8 +213,8 @@ func renderJordan(v any, _ Options) Bundle {
 		rows = append(rows, []string{fmtComplex(c.Value, pair), strconv.Itoa(c.Algebraic), strconv.Itoa(c.Geometric), sxInts(c.Blocks), verdict, ranks, fmtNum(c.Spread), fmtNum(c.Tol), fmtNum(c.Cond)})
 	}
 	gridTable(t, h, []string{"eigenvalue", "alg.", "geom.", "blocks", "verdict", "ranks of powers", "spread", "cluster tol", "cond"}, rows, 0)
-	note(t, h, fmt.Sprintf("Decided on A balanced by powers of two (the same in any units). Eigenvalues i, j are one cluster when |l_i - l_j| <= %s u ||A|| max(cond_i, cond_j), cond_i taken in the eigenvalue's own irreducible block of A (at most %s%s); block sizes from the ranks of (A - l I)^k, singular values below %s ||A - l I||^k, or below (2 x spread)^k, counted as zero; real parts within %s of zero shown as 0. %d defective.",
-		fmtNum(js.ClusterFactor), fmtNum(js.CapTol), map[bool]string{true: ", or closer than " + fmtNum(js.AbsTol), false: ""}[js.AbsTol > 0], fmtNum(js.RankTol), fmtNum(js.ZeroTol), defective))
+	note(t, h, fmt.Sprintf("Decided on A balanced by powers of two (the same in any units). Eigenvalues i, j are one cluster when |l_i - l_j| <= %s u ||A|| max(cond_i, cond_j), cond_i taken in the eigenvalue's own irreducible block of A (at most %s%s); block sizes from the ranks of (A - l I)^k, singular values below %s max(||A - l I||, ||A|| + |l|)^k, or below (2 x spread)^k, counted as zero; real parts within %s of zero shown as 0. %d defective.%s",
+		fmtNum(js.ClusterFactor), fmtNum(js.CapTol), map[bool]string{true: ", or closer than " + fmtNum(js.AbsTol), false: ""}[js.AbsTol > 0], fmtNum(js.RankTol), fmtNum(js.ZeroTol), defective, closeNote(close)))
 	return c.bundle()
 }
 
@@ -369,4 +374,13 @@ func sxMultipleJSON(m []lsys.MultipleValue) []any {
 		out[i] = map[string]any{"value": jsonComplex(v.Value), "count": v.Count, "spread": v.Spread}
 	}
 	return out
+}
+
+// closeNote names the clusters whose call was within a factor 10 of the
+// clustering threshold.
+func closeNote(close []string) string {
+	if len(close) == 0 {
+		return ""
+	}
+	return " Close calls, which another realization of the same model (other units or coordinates) may decide the other way: " + strings.Join(close, ", ") + "."
 }

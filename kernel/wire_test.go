@@ -11,6 +11,7 @@ import (
 	"path/filepath"
 	"strings"
 	"sync"
+	"syscall"
 	"testing"
 	"time"
 
@@ -73,6 +74,12 @@ func freePorts(t *testing.T, n int) []int {
 
 func startWire(t *testing.T) *wireClient {
 	t.Helper()
+	return startWireEnv(t, nil)
+}
+
+// startWireEnv is startWire with extra environment variables for the kernel.
+func startWireEnv(t *testing.T, env []string) *wireClient {
+	t.Helper()
 	bin, _ := buildKernel(t)
 	p := freePorts(t, 5)
 	key := "a-test-key-that-is-not-secret"
@@ -86,6 +93,7 @@ func startWire(t *testing.T) *wireClient {
 	c := &wireClient{t: t, session: "wire-test", stderr: &syncBuffer{}, exited: make(chan error, 1)}
 	c.signer, _ = kernel.NewSigner("hmac-sha256", key)
 	c.cmd = exec.Command(bin, "kernel", cf)
+	c.cmd.Env = append(os.Environ(), env...)
 	c.cmd.Stderr = c.stderr
 	if err := c.cmd.Start(); err != nil {
 		t.Fatal(err)
@@ -421,5 +429,48 @@ func TestShutdownOnShell(t *testing.T) {
 		}
 	case <-time.After(5 * time.Second):
 		t.Fatal("kernel did not exit within 5 s of shutdown_request on shell")
+	}
+}
+
+// TestOrphanExits: a kernel whose Jupyter parent (JPY_PARENT_PID) is gone
+// exits within 2 s, even with a cell running, instead of running on.
+func TestOrphanExits(t *testing.T) {
+	parent := exec.Command("sleep", "60")
+	if err := parent.Start(); err != nil {
+		t.Fatal(err)
+	}
+	c := startWireEnv(t, []string{fmt.Sprintf("JPY_PARENT_PID=%d", parent.Process.Pid)})
+	c.request(c.shell, "execute_request", map[string]any{"code": "pause(60)", "silent": false}, "")
+	time.Sleep(300 * time.Millisecond)
+	parent.Process.Kill()
+	parent.Wait()
+	gone := time.Now()
+	select {
+	case <-c.exited:
+		if d := time.Since(gone); d > 2*time.Second {
+			t.Fatalf("kernel exited %v after its parent; want within 2 s", d)
+		}
+	case <-time.After(5 * time.Second):
+		t.Fatalf("kernel still running 5 s after its parent ended\n%s", c.stderr)
+	}
+}
+
+// TestSIGTERMDuringCell: SIGTERM interrupts the running cell and the
+// kernel exits within 2 s (service managers give a few seconds).
+func TestSIGTERMDuringCell(t *testing.T) {
+	c := startWire(t)
+	c.request(c.shell, "execute_request", map[string]any{"code": "pause(60)", "silent": false}, "")
+	time.Sleep(300 * time.Millisecond)
+	sent := time.Now()
+	if err := c.cmd.Process.Signal(syscall.SIGTERM); err != nil {
+		t.Fatal(err)
+	}
+	select {
+	case <-c.exited:
+		if d := time.Since(sent); d > 2*time.Second {
+			t.Fatalf("kernel exited %v after SIGTERM; want within 2 s", d)
+		}
+	case <-time.After(5 * time.Second):
+		t.Fatalf("kernel still running 5 s after SIGTERM\n%s", c.stderr)
 	}
 }

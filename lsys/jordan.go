@@ -32,6 +32,12 @@ type JordanCluster struct {
 	// Cond is the largest eigenvalue condition number in the cluster; +Inf
 	// when the cluster is defective.
 	Cond float64
+	// Close is the ratio distance/tolerance, between 0.1 and 10, of the
+	// pair of computed eigenvalues nearest the clustering threshold that
+	// involves a member, 0 when none is that near: such a call (merged or
+	// kept apart) is genuinely close, and another realization of the same
+	// model may decide it the other way; the display says so.
+	Close float64
 	// BoundaryTol = ZeroTol x max(1, condition) for a simple eigenvalue,
 	// ZeroTol for a cluster: a value closer than this to the stability
 	// boundary is on it.
@@ -151,7 +157,7 @@ func jordanFrom(A *mat.Dense, es *EigenStructure, absTol, relTol, ts float64) (*
 			}
 			return imag(members[a]) > imag(members[b])
 		})
-		jc := JordanCluster{Value: mean, Members: members, Algebraic: len(members), Spread: spread, Tol: g.tol, RankTol: relTol, Cond: maxCond, BoundaryTol: bt, idx: g.idx}
+		jc := JordanCluster{Value: mean, Members: members, Algebraic: len(members), Spread: spread, Tol: g.tol, RankTol: relTol, Cond: maxCond, BoundaryTol: bt, Close: g.near, idx: g.idx}
 		if jc.Algebraic == 1 {
 			jc.Geometric, jc.Blocks = 1, []int{1}
 		} else {
@@ -187,6 +193,11 @@ type eigGroup struct {
 	idx  []int
 	tol  float64
 	real bool // the cluster contains real eigenvalues or both members of pairs
+	// near is the ratio distance/tolerance, between 0.1 and 10, of the
+	// pair of eigenvalues nearest the clustering threshold that involves
+	// a member (0: none so near): a call that a change of coordinates
+	// could turn.
+	near float64
 }
 
 // clusterEigenvalues groups eigenvalues by single linkage: i and j join when
@@ -203,13 +214,25 @@ func clusterEigenvalues(vals []complex128, cond []float64, normA, capTol, absTol
 		return math.Max(t, absTol)
 	}
 	tols := make([]float64, n)
+	near := make([]float64, n)
+	setNear := func(i int, r float64) {
+		if near[i] == 0 || math.Abs(math.Log(r)) < math.Abs(math.Log(near[i])) {
+			near[i] = r
+		}
+	}
 	for i := 0; i < n; i++ {
 		for j := i + 1; j < n; j++ {
 			t := pairTol(i, j)
-			if cmplx.Abs(vals[i]-vals[j]) <= t {
+			d := cmplx.Abs(vals[i] - vals[j])
+			if d <= t {
 				sets.join(i, j)
 				tols[i] = math.Max(tols[i], t)
 				tols[j] = math.Max(tols[j], t)
+			}
+			// The two members of a conjugate pair are one mode.
+			if t > 0 && d >= 0.1*t && d <= 10*t && vals[i] != cmplx.Conj(vals[j]) {
+				setNear(i, d/t)
+				setNear(j, d/t)
 			}
 		}
 	}
@@ -225,6 +248,9 @@ func clusterEigenvalues(vals []complex128, cond []float64, normA, capTol, absTol
 		}
 		g.idx = append(g.idx, i)
 		g.tol = math.Max(g.tol, tols[i])
+		if near[i] != 0 && (g.near == 0 || math.Abs(math.Log(near[i])) < math.Abs(math.Log(g.near))) {
+			g.near = near[i]
+		}
 		if imag(vals[i]) == 0 {
 			g.real = true
 		}

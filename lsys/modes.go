@@ -58,7 +58,11 @@ type Mode struct {
 	// is relative to what it decides and neither depends on units.
 	Reachable, Observable      bool
 	ReachMargin, ObserveMargin float64
-	ReachTol, ObserveTol       float64
+	// ReachClose and ObserveClose mark a margin within a factor 10 of its
+	// tolerance: a genuinely close call, which another realization of the
+	// same model (other units or coordinates) may decide the other way.
+	ReachClose, ObserveClose bool
+	ReachTol, ObserveTol     float64
 	// Tol is the larger of ReachTol and ObserveTol, a single figure for
 	// logs; the verdicts use the two tolerances separately.
 	Tol float64
@@ -271,11 +275,23 @@ func ModesTol(s *System, relTol float64) (*ModeTable, error) {
 		} else {
 			// A cluster: the PBH ranks of [A~ - lambda I, B~] and
 			// [A~ - lambda I; C~] by singular values.
-			m.ReachMargin = pbhMargin(ur.A, bB, lam, false)
-			m.ObserveMargin = pbhMargin(uo.A, bC, lam, true)
+			// A defective eigenvalue (largest Jordan block b > 1) moves
+			// by about (tol ||A||^(b-1))^(1/b) under a perturbation of
+			// the size of the tolerance, and the distance to losing rank
+			// is smallest near it, not at it: the margin is the least
+			// over that disk (Eising 1984, Between controllable and
+			// uncontrollable, Systems & Control Letters 4).
+			b := 1
+			if len(cl.Blocks) > 0 {
+				b = cl.Blocks[0]
+			}
+			m.ReachMargin = pbhMarginNear(ur.A, bB, lam, pbhRadius(ur.A, mt.ReachTol, b), false)
+			m.ObserveMargin = pbhMarginNear(uo.A, bC, lam, pbhRadius(uo.A, mt.ObserveTol, b), true)
 		}
 		m.Reachable = m.ReachMargin > m.ReachTol
 		m.Observable = m.ObserveMargin > m.ObserveTol
+		m.ReachClose = closeCall(m.ReachMargin, m.ReachTol)
+		m.ObserveClose = closeCall(m.ObserveMargin, m.ObserveTol)
 		if cl.Algebraic > 1 {
 			// The members' eigenvectors of a cluster are only accurate to
 			// about the cluster's spread; the null vector of A - lambda I
@@ -449,4 +465,57 @@ func nullVectorAt(A *mat.Dense, lam complex128) []complex128 {
 		}
 	}
 	return v
+}
+
+// pbhRadius is the distance an eigenvalue in a Jordan block of size b
+// moves under a perturbation of size tol: (tol ||A||^(b-1))^(1/b) (Lidskii
+// 1966; Moro, Burke & Overton 1997, On the Lidskii-Vishik-Lyusternik
+// perturbation theory for eigenvalues of matrices with arbitrary Jordan
+// structure, SIAM J. Matrix Anal. Appl. 18). 0 for b = 1.
+func pbhRadius(A *mat.Dense, tol float64, b int) float64 {
+	if b <= 1 || tol <= 0 {
+		return 0
+	}
+	normA := mat.Norm(A, 2)
+	return math.Pow(tol*math.Pow(normA, float64(b-1)), 1/float64(b))
+}
+
+// pbhMarginNear is the least of pbhMargin over the disk of radius rho
+// around lam: rings at rho/4, rho/2 and rho in 16 directions, then a
+// pattern search from the best point with steps halving down to rho/64.
+func pbhMarginNear(A, B *mat.Dense, lam complex128, rho float64, dual bool) float64 {
+	best := pbhMargin(A, B, lam, dual)
+	if rho <= 0 || B == nil {
+		return best
+	}
+	at := lam
+	for _, r := range []float64{rho / 4, rho / 2, rho} {
+		for k := 0; k < 16; k++ {
+			s := lam + cmplx.Rect(r, 2*math.Pi*float64(k)/16)
+			if v := pbhMargin(A, B, s, dual); v < best {
+				best, at = v, s
+			}
+		}
+	}
+	for step := rho / 8; step >= rho/64; step /= 2 {
+		for moved := true; moved; {
+			moved = false
+			for _, d := range []complex128{complex(step, 0), complex(-step, 0), complex(0, step), complex(0, -step)} {
+				s := at + d
+				if cmplx.Abs(s-lam) > rho {
+					continue
+				}
+				if v := pbhMargin(A, B, s, dual); v < best {
+					best, at, moved = v, s, true
+				}
+			}
+		}
+	}
+	return best
+}
+
+// closeCall reports whether margin is within a factor 10 of tol either
+// way.
+func closeCall(margin, tol float64) bool {
+	return tol > 0 && margin >= 0.1*tol && margin <= 10*tol
 }

@@ -3,6 +3,7 @@ package lsys
 import (
 	"errors"
 	"math"
+	"math/cmplx"
 
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/lapack/gonum"
@@ -27,6 +28,10 @@ type Staircase struct {
 	// kept as nonzero over all steps and Dropped the largest discarded
 	// (0 if none): the gap between them is the margin of the verdict.
 	Tol, Kept, Dropped float64
+	// RaisedFrom, when not 0, is the tolerance the staircase started from
+	// before it was changed to agree with the PBH test of each mode (see
+	// agreeingStaircase).
+	RaisedFrom float64
 	// StepKept[i] is the smallest singular value kept at step i: the size
 	// of the perturbation that would end the staircase there (Paige 1981),
 	// so a small value marks a weakly reached (or seen) direction. It is an
@@ -96,14 +101,141 @@ func (st *Staircase) basis(c0, c1, n int) *mat.Dense {
 // LeadingBasis and TrailingBasis to read them in the original coordinates.
 func StaircasesOf(s *System, relTol float64) (reach, observe *Staircase, err error) {
 	ur, uo := balanceReach(s.A, s.B), balanceSeen(s.A, s.C)
-	if reach, err = ControllabilityStaircase(ur.A, ur.B, relTol); err != nil {
+	unreached, unseen, err := pbhRefused(s, relTol)
+	if err != nil {
 		return nil, nil, err
 	}
-	if observe, err = ObservabilityStaircase(uo.A, uo.C, relTol); err != nil {
+	if reach, err = agreeingStaircase(ur.A, ur.B, relTol, unreached, false); err != nil {
+		return nil, nil, err
+	}
+	if observe, err = agreeingStaircase(uo.A, uo.C, relTol, unseen, true); err != nil {
 		return nil, nil, err
 	}
 	reach.Scale, observe.Scale = ur.S, uo.S
 	return reach, observe, nil
+}
+
+// pbhRefused lists the modes of s (both members of a pair) that the PBH
+// test of the mode table finds unreached and unseen.
+func pbhRefused(s *System, relTol float64) (unreached, unseen []complex128, err error) {
+	mt, err := ModesTol(s, relTol)
+	if err != nil {
+		return nil, nil, err
+	}
+	for _, m := range mt.Modes {
+		vals := []complex128{m.Eigenvalue}
+		if m.Pair {
+			vals = append(vals, cmplx.Conj(m.Eigenvalue))
+		}
+		if !m.Reachable {
+			unreached = append(unreached, vals...)
+		}
+		if !m.Observable {
+			unseen = append(unseen, vals...)
+		}
+	}
+	return unreached, unseen, nil
+}
+
+// agreeingStaircase is the controllability (dual: observability) staircase
+// of (A, B), made to agree with the PBH test of each mode. The staircase is
+// backward stable, but the singular value kept at a step is only an upper
+// bound on the distance to an uncontrollable system (Paige 1981), and a
+// dropped one measures a distance minimised over all s, not at the
+// eigenvalues: near a defective or ill-conditioned eigenvalue, rounding of
+// size u ||A|| can leave a step of 1e-9 where the PBH margin of the mode
+// (the distance that decides, Hautus 1969) is 1e-16, and a weakly reached
+// Jordan chain can drop a step of 1e-12 while its PBH margin is 1e-6.
+// The eigenvalues left in the staircase's uncontrollable block must be
+// exactly the modes the PBH test finds unreached (unseen): when one is
+// missing the rank tolerance is raised to the smallest singular value kept
+// above it; when the block holds a mode the PBH test finds reached, it is
+// lowered below the largest singular value dropped; then the staircase runs
+// again (raised at most until a lowering is needed, so it ends). The PBH
+// verdicts decide; the staircase supplies the subspaces. RaisedFrom records
+// the tolerance it started from.
+func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual bool) (*Staircase, error) {
+	if relTol <= 0 || math.IsNaN(relTol) {
+		relTol = DefaultRelTol
+	}
+	run := func(rt float64) (*Staircase, error) {
+		if dual {
+			return ObservabilityStaircase(A, B, rt)
+		}
+		return ControllabilityStaircase(A, B, rt)
+	}
+	st, err := run(relTol)
+	if err != nil {
+		return st, err
+	}
+	n, _ := A.Dims()
+	norm := st.Tol / relTol
+	if norm == 0 {
+		return st, nil
+	}
+	scale := mat.Norm(A, 2) / math.Sqrt(float64(max(n, 1)))
+	// The block's eigenvalues are those of a system within the rank
+	// tolerance: they match a mode to 1e-4 of the size of A, or to ten
+	// times the tolerance when it is coarser (a deliberately coarse
+	// tolerance moves them by about that much).
+	near := func(a, b complex128) bool {
+		return cmplx.Abs(a-b) <= math.Max(1e-4*math.Max(scale, cmplx.Abs(a)), 10*st.Tol)
+	}
+	start := st.Tol
+	lowered := false
+	for iter := 0; iter < n; iter++ {
+		k := st.Dim
+		var rest []complex128
+		if k < n {
+			if rest, err = eigOrdered(mat.DenseCopyOf(st.A.Slice(k, n, k, n)), 0); err != nil {
+				return nil, err
+			}
+		}
+		missing, extra := false, false
+		for _, lam := range must {
+			found := false
+			for _, r := range rest {
+				found = found || near(r, lam)
+			}
+			missing = missing || !found
+		}
+		for _, r := range rest {
+			found := false
+			for _, lam := range must {
+				found = found || near(r, lam)
+			}
+			extra = extra || !found
+		}
+		var next float64
+		switch {
+		case missing && !lowered:
+			next = math.Inf(1)
+			for _, v := range st.StepKept {
+				if v > st.Tol && v < next {
+					next = v
+				}
+			}
+			if math.IsInf(next, 1) {
+				return st, nil
+			}
+			next *= 1 + 1e-9
+		case extra && !missing:
+			if st.Dropped == 0 {
+				return st, nil
+			}
+			next = st.Dropped * (1 - 1e-9)
+			lowered = true
+		default:
+			return st, nil
+		}
+		again, err := run(next / norm)
+		if err != nil {
+			return nil, err
+		}
+		st = again
+		st.RaisedFrom = start
+	}
+	return st, nil
 }
 
 // ControllabilityStaircase reduces (A, B) to the staircase form by

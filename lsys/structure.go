@@ -174,8 +174,7 @@ func kalman(s *System, rs, os *Staircase, relTol float64) (*Decomposition, float
 		return stOrth(J, angTol)
 	}()
 	V3 = stComplement(RN, n)
-	V1, V2, V3, V4 = rescaleBasis(V1, us.S, false), rescaleBasis(V2, us.S, false), rescaleBasis(V3, us.S, false), rescaleBasis(V4, us.S, false)
-	Tinv := stHcat(n, V1, V2, V3, V4) // x = Tinv z
+	Tinv := stHcat(n, V1, V2, V3, V4) // x~ = Tinv z, in the balanced coordinates
 	cols := 0
 	if Tinv != nil {
 		_, cols = Tinv.Dims()
@@ -190,9 +189,17 @@ func kalman(s *System, rs, os *Staircase, relTol float64) (*Decomposition, float
 		_, c := V.Dims()
 		return c
 	}
+	// The condition number is that of the unit-free transformation; the
+	// units (x = diag(S) x~, powers of two) are applied exactly around it.
 	T, cond, err := stInverse(Tinv)
 	if err != nil {
 		return nil, angTol, err
+	}
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			Tinv.Set(i, j, Tinv.At(i, j)*us.S[i])
+			T.Set(j, i, T.At(j, i)/us.S[i])
+		}
 	}
 	sys, err := transformWith(s, T, Tinv)
 	if err != nil {
@@ -329,7 +336,11 @@ func Minimal(s *System, relTol float64) (*System, error) {
 		return s.Copy(), nil
 	}
 	ur := balanceReach(s.A, s.B)
-	rs, err := ControllabilityStaircase(ur.A, ur.B, relTol)
+	unreached, _, err := pbhRefused(s, relTol)
+	if err != nil {
+		return nil, err
+	}
+	rs, err := agreeingStaircase(ur.A, ur.B, relTol, unreached, false)
 	if err != nil {
 		return nil, err
 	}
@@ -363,7 +374,17 @@ func Minimal(s *System, relTol float64) (*System, error) {
 		Cr = &t
 	}
 	uo := balanceSeen(Ar, Cr)
-	os, err := ObservabilityStaircase(uo.A, uo.C, relTol)
+	var unseen []complex128
+	if Cr != nil {
+		part, err := NewSystem(k, s.M(), s.P(), Ar, Br, Cr, s.D, s.Ts)
+		if err != nil {
+			return nil, err
+		}
+		if _, unseen, err = pbhRefused(part, relTol); err != nil {
+			return nil, err
+		}
+	}
+	os, err := agreeingStaircase(uo.A, uo.C, relTol, unseen, true)
 	if err != nil {
 		return nil, err
 	}

@@ -62,7 +62,10 @@ func tfChannel(s *System, i, j int, relTol float64) (*Rational, error) {
 	if mr.N() == 0 {
 		return &Rational{Num: Poly{d}, Den: Poly{1}, Ts: s.Ts}, nil
 	}
-	poles, err := eigOrdered(mr.A, 0)
+	// Poles as the mode table clusters them: a multiple pole by its
+	// cluster's mean, accurate to about u where the split members are only
+	// accurate to u^(1/k), so the polynomial gets the multiple factor.
+	poles, err := Poles(mr)
 	if err != nil {
 		return nil, err
 	}
