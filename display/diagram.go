@@ -35,7 +35,6 @@ const (
 	dgLine     = 16.0 // text line height inside a card
 	dgPort     = 17.0 // spacing of link ports along a card's edge
 	dgGap      = 16.0 // between cards
-	dgHeadH    = 58.0 // the explanation above the cards
 	dgMinCardH = 3*dgLine + 14
 )
 
@@ -130,36 +129,41 @@ func renderDiagram(v any, _ Options) Bundle {
 	m, p := s.M(), s.P()
 	text := dgText(d)
 
+	// the explanation, wrapped to the width (6.8 px a character)
+	var head []string
+	for _, l := range []string{
+		fmt.Sprintf("%s in parallel, by natural frequency (%s).", dgCount(d), strings.TrimSuffix(sxHeadline(s), ".")),
+		"Numbers on links: gains in modal coordinates (unit mode shapes); line weight: the unit-free reach or visibility.",
+		fmt.Sprintf("Dotted grey: below the tolerance (%s relative): the mode cannot be reached from that input, or seen at that output.", fmtNum(d.RelTol)),
+	} {
+		head = append(head, dgWrap(l, 138)...) // (960 - 16) px / 6.8
+	}
+	headH := float64(len(head))*17 + 7
 	// card positions
 	cardH := dgCardH(m, p)
-	y := dgHeadH + 8
+	y := headH + 8
 	tops := make([]float64, len(d.Boxes))
 	for k := range d.Boxes {
 		tops[k] = y
 		y += cardH + dgGap
 	}
-	stackH := y - dgGap - (dgHeadH + 8)
+	stackH := y - dgGap - (headH + 8)
 	H := y + 8
 	// pills centred on the card stack, at least one card apart
 	pillY := func(n, i int) float64 {
 		step := math.Min(math.Max(dgPillH+14, stackH/float64(max(n, 1))), 90)
 		span := step * float64(n-1)
-		return dgHeadH + 8 + stackH/2 - span/2 + float64(i)*step - dgPillH/2
+		return headH + 8 + stackH/2 - span/2 + float64(i)*step - dgPillH/2
 	}
 
 	var b strings.Builder
 	fmt.Fprintf(&b, `<svg xmlns="http://www.w3.org/2000/svg" width="%g" height="%g" viewBox="0 0 %g %g" font-family="DejaVu Sans, Verdana, sans-serif" font-size="12">`, dgW, H, dgW, H)
 	fmt.Fprintf(&b, `<title>%s</title>`, dgEsc(strings.SplitN(text, "\n", 2)[0]))
 	b.WriteString(`<rect width="100%" height="100%" fill="#ffffff"/>`)
-	// the explanation
-	head := []string{
-		fmt.Sprintf("%s in parallel, by natural frequency (%s).", dgCount(d), strings.TrimSuffix(sxHeadline(s), ".")),
-		"Numbers on links: gains in modal coordinates (unit mode shapes); line weight: the unit-free reach or visibility.",
-		fmt.Sprintf("Dotted grey: below the tolerance (%s relative): the mode cannot be reached from that input, or seen at that output.", fmtNum(d.RelTol)),
-	}
 	for i, l := range head {
 		fmt.Fprintf(&b, `<text x="8" y="%g" fill="#333">%s</text>`, 16+float64(i)*17, dgEsc(l))
 	}
+
 	// links under the cards and pills
 	for k, bx := range d.Boxes {
 		top := tops[k]
@@ -187,7 +191,17 @@ func renderDiagram(v any, _ Options) Bundle {
 		ty := top + (cardH-float64(1+len(lines))*dgLine)/2 + 12
 		fmt.Fprintf(&b, `<text x="%g" y="%g" font-weight="bold" fill="#1d232b">%s</text>`, dgCardX+14, ty, dgEsc(title))
 		if status != "" {
-			fmt.Fprintf(&b, `<text x="%g" y="%g" text-anchor="end" font-size="11" fill="#333">%s</text>`, dgCardX+dgCardW-8, ty, dgEsc(status))
+			// on the first line that leaves room for it (estimated widths:
+			// 7.4 px a character of bold 12 px text, 6.8 of plain, 6.3 of
+			// 11 px), else on a line of its own below the figures
+			sy := ty + float64(len(lines)+1)*dgLine
+			room := dgCardW - 22 - float64(len([]rune(status)))*6.3
+			if float64(len([]rune(title)))*7.4 < room {
+				sy = ty
+			} else if len(lines) > 0 && float64(len([]rune(lines[0])))*6.8 < room {
+				sy = ty + dgLine
+			}
+			fmt.Fprintf(&b, `<text x="%g" y="%g" text-anchor="end" font-size="11" fill="#333">%s</text>`, dgCardX+dgCardW-8, sy, dgEsc(status))
 		}
 		for i, l := range lines {
 			fmt.Fprintf(&b, `<text x="%g" y="%g" fill="#1d232b">%s</text>`, dgCardX+14, ty+float64(i+1)*dgLine, dgSub(l))
@@ -291,4 +305,20 @@ func dgCount(d *lsys.ModalDiagram) string {
 		c += fmt.Sprintf(" (%d blocks grouped)", len(d.Form.Blocks))
 	}
 	return c
+}
+
+// dgWrap breaks a line of text at spaces into lines of at most n
+// characters.
+func dgWrap(l string, n int) []string {
+	var out []string
+	for len([]rune(l)) > n {
+		r := []rune(l)
+		cut := strings.LastIndex(string(r[:n]), " ")
+		if cut <= 0 {
+			break
+		}
+		out = append(out, l[:cut])
+		l = l[cut+1:]
+	}
+	return append(out, l)
 }
