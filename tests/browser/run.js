@@ -31,7 +31,15 @@ function opt(name, def) {
 const lsysBin = path.resolve(opt("--lsys", path.join(top, "build", "lsys")));
 const outDir = path.resolve(opt("--out", path.join(top, "build", "screenshots")));
 const chromiumPath = "/usr/bin/chromium";
-const demos = ["crane-sway.ipynb", "converter-loop.ipynb"];
+const demos = ["frame-structure.ipynb", "converter-loop.ipynb", "crane-sway.ipynb", "gimbal-modes.ipynb"];
+// Cells saved on their own (input and output) for the README's tour:
+// notebook, the start of the cell's source, file name.
+const tour = [
+  ["thirty-cells.ipynb", "G1 = system(", "tour-system.png"],
+  ["frame-structure.ipynb", "diagram(frame)", "tour-diagram.png"],
+  ["frame-structure.ipynb", "polezero(frame.roof.shaker)", "tour-polezero.png"],
+  ["converter-loop.ipynb", "plant_zoh = sample(", "tour-margins.png"],
+];
 
 const failures = [];
 function fail(msg) {
@@ -232,6 +240,13 @@ async function runNotebook(ctx, url, name, probe) {
   // screenshot holds every cell
   await page.addStyleTag({ content: "#site { height: auto !important; overflow: visible !important; } html, body { height: auto !important; overflow: visible !important; }" });
   await page.screenshot({ path: path.join(outDir, name.replace(/\.ipynb$/, ".png")), fullPage: true });
+  for (const [nb, start, file] of tour) {
+    if (nb !== name) continue;
+    const idx = await page.evaluate((start) => Jupyter.notebook.get_cells().findIndex((c) => c.get_text().startsWith(start)), start);
+    if (!need(idx >= 0, `${name}: no cell starting ${JSON.stringify(start)} for the tour`)) continue;
+    await page.evaluate(() => Jupyter.notebook.select(0)); // no selection frame on the shot
+    await page.locator("#notebook-container .cell").nth(idx).screenshot({ path: path.join(outDir, file) });
+  }
   await page.close();
 }
 
