@@ -225,7 +225,12 @@ async function runNotebook(ctx, url, name, probe) {
     builtins: document.querySelectorAll(".CodeMirror .cm-builtin").length,
     numbers: document.querySelectorAll(".CodeMirror .cm-number").length,
     mode: Jupyter.notebook.get_cell(1).code_mirror.getOption("mode"),
+    // outputs wider than a 980 px notebook column (tables must wrap or
+    // transpose, charts be sized to fit)
+    wide: Array.from(document.querySelectorAll(".output_subarea > *")).filter((e) => e.scrollWidth > 980)
+      .map((e) => `${e.scrollWidth} px: ${(e.innerText || e.getAttribute("alt") || "").slice(0, 60).replace(/\s+/g, " ")}`),
   }));
+  need(counts.wide.length === 0, `${name}: outputs wider than 980 px: ${counts.wide.join("; ")}`);
   const expectedErrors = await page.evaluate(() => Jupyter.notebook.get_cells().filter((c) => (c.metadata.tags || []).includes("raises-exception")).length);
   need(counts.errors <= expectedErrors, `${name}: ${counts.errors} cells failed (${expectedErrors} are meant to)`);
   need(counts.tables > 0, `${name}: no tables`);
