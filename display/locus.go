@@ -14,6 +14,7 @@ import (
 	"math/cmplx"
 	"strings"
 
+	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
 	"lsys/lsys"
@@ -242,8 +243,8 @@ func lcFigure(l *lsys.Locus) *rpFigure {
 	// parameter values at a few points between the ends (the legend
 	// gives the ends), in the upper half-plane only (the lower half
 	// mirrors it), and never two labels on top of each other: a label
-	// takes about 1/100 of the chart's width per character and 1/25 of
-	// its height (8 pt text on a 16 x 10 cm chart)
+	// takes about 1/90 of the chart's width per character and 1/20 of
+	// its height (9 pt text on a 16 x 10 cm chart)
 	type box struct{ x, y, w float64 }
 	var boxes []box
 	var lx, ly []float64
@@ -254,14 +255,14 @@ func lcFigure(l *lsys.Locus) *rpFigure {
 				continue
 			}
 			txt := p + " = " + fmtNum(l.Values[k])
-			nb := box{real(z), imag(z), view / 100 * float64(len([]rune(txt))+1)}
+			nb := box{real(z), imag(z), view / 90 * float64(len([]rune(txt))+1)}
 			free := cmplx.Abs(z-br[0]) > view/50 && cmplx.Abs(z-br[last]) > view/50
 			for _, o := range boxes {
 				left, right := o, nb
 				if nb.x < o.x {
 					left, right = nb, o
 				}
-				if right.x-left.x < left.w && math.Abs(nb.y-o.y) < view/1.6/25 {
+				if right.x-left.x < left.w && math.Abs(nb.y-o.y) < view/1.6/20 {
 					free = false
 				}
 			}
@@ -285,7 +286,18 @@ func lcFigure(l *lsys.Locus) *rpFigure {
 	en := rpMark("end, "+p+" = "+fmtNum(l.Values[last]), ends, -1, draw.BoxGlyph{}, 3)
 	pn.Series = append(pn.Series, st, en)
 	pn.Texts = texts
-	return &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}}
+	// equal scales for the data area's real shape, the figure's height
+	// following the branches' shape (between a square and a wide data
+	// area) so little of the frame is empty
+	fig := &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}, W: 16 * cmLen, H: 10 * cmLen}
+	if w, h := xmax-xmin, ymax-ymin; w > 0 && h > 0 {
+		want := math.Min(math.Max(w/h, 0.75), 2.2)
+		if dw, dh := fig.dataSize(0); dw > 0 && dh > 0 {
+			fig.H = min(max(fig.H-dh+dw/vg.Length(want), 8*cmLen), 17*cmLen)
+		}
+	}
+	pn.Ratio = fig.dataRatio(0)
+	return fig
 }
 
 // lcViewWidth estimates the width of the chart in data units, as the

@@ -372,7 +372,7 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 		ax.Tick.Label.Font.Size = rpSmallText
 	}
 	p.Legend.TextStyle.Font.Size = rpSmallText
-	p.Legend.Padding = vg.Points(1.5) // keeps entries apart when a viewer substitutes a taller font
+	p.Legend.Padding = vg.Points(3) // keeps entries apart, also when a viewer substitutes a taller font
 	p.Legend.Top = true
 	p.Legend.ThumbnailWidth = vg.Points(26)
 	grid := plotter.NewGrid()
@@ -711,7 +711,7 @@ func (f *rpFigure) drawLegendBelow(dc draw.Canvas, entries []rpLegendEntry) draw
 		l := plot.NewLegend()
 		l.TextStyle.Font.Size = rpSmallText
 		l.ThumbnailWidth = vg.Points(26)
-		l.Padding = vg.Points(1.5)
+		l.Padding = vg.Points(3)
 		l.Top, l.Left = true, true
 		return l
 	}
