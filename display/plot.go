@@ -746,7 +746,7 @@ func (f *rpFigure) drawLegendBelow(dc draw.Canvas, entries []rpLegendEntry) draw
 }
 
 // rpDBFloor is the bottom of a magnitude axis in dB: the lowest value
-// drawn, but no more than 40 dB below the level that 97 % of the points
+// drawn, but no more than 60 dB below the level that 97 % of the points
 // stay above, so that a few points plunging towards a zero on the axis
 // (-240 dB at the Nyquist frequency of a sampled system with a zero at
 // z = -1) or one rounding spike do not decide the range; such points run
@@ -764,7 +764,7 @@ func rpDBFloor(pn *rpPanel, ymin, ymax float64) float64 {
 		return ymin
 	}
 	sort.Float64s(all)
-	floor := math.Min(all[len(all)*3/100]-40, ymax-20)
+	floor := math.Min(all[len(all)*3/100]-60, ymax-20)
 	for _, t := range pn.Texts {
 		if ok(t.Y) {
 			floor = math.Min(floor, t.Y-10)
