@@ -9,6 +9,7 @@ package display
 
 import (
 	"encoding/base64"
+	"encoding/json"
 	"fmt"
 	"html"
 	"reflect"
@@ -94,6 +95,7 @@ func Render(v any, opt Options) Bundle {
 			b.Metadata = map[string]any{}
 		}
 		embedChart(&b)
+		capBundle(&b)
 		return b
 	}
 	if m, ok := v.(members); ok {
@@ -157,4 +159,58 @@ func embedChart(b *Bundle) {
 	} else {
 		b.Data[HTML] = img
 	}
+}
+
+// MaxBundle is the most bytes one value's display may send: a notebook
+// front end holds every output in the page and the notebook file, and past a
+// few megabytes both become slow to open (common practice; no source).
+const MaxBundle = 2 << 20
+
+// capBundle keeps a bundle under MaxBundle: the richest forms go first
+// (PNG, SVG, HTML, LaTeX, JSON), then the text is cut, and the text says
+// what was held back.
+func capBundle(b *Bundle) {
+	size := func(v any) int {
+		switch x := v.(type) {
+		case string:
+			return len(x)
+		default:
+			j, err := json.Marshal(x)
+			if err != nil {
+				return 0
+			}
+			return len(j)
+		}
+	}
+	total := 0
+	sizes := map[string]int{}
+	for k, v := range b.Data {
+		sizes[k] = size(v)
+		total += sizes[k]
+	}
+	if total <= MaxBundle {
+		return
+	}
+	var dropped []string
+	for _, k := range []string{PNG, SVG, HTML, LaTeX, JSON} {
+		if total <= MaxBundle {
+			break
+		}
+		if _, ok := b.Data[k]; ok {
+			total -= sizes[k]
+			delete(b.Data, k)
+			delete(b.Metadata, k)
+			dropped = append(dropped, k)
+		}
+	}
+	text, _ := b.Data[Text].(string)
+	if len(text) > MaxBundle/2 {
+		cut := strings.LastIndex(text[:MaxBundle/2], "\n")
+		if cut < 0 {
+			cut = MaxBundle / 2
+		}
+		text = text[:cut] + "\n..."
+		dropped = append(dropped, "the rest of the text")
+	}
+	b.Data[Text] = text + fmt.Sprintf("\n(output held back: %s, to keep the display under %d MB; show a part of the value instead)", strings.Join(dropped, ", "), MaxBundle>>20)
 }

@@ -117,7 +117,7 @@ func (k *Kernel) execute(r *Request) {
 	if value != nil && !req.Silent {
 		b := k.render(value)
 		r.Publish("execute_result", map[string]any{"execution_count": count, "data": b.Data, "metadata": b.Metadata})
-		histOut = b.Data[display.Text]
+		histOut = historySummary(b.Data[display.Text])
 	}
 	if store {
 		k.history = append(k.history, historyEntry{line: count, input: req.Code, output: histOut})
@@ -417,4 +417,21 @@ func (k *Kernel) render(v any) display.Bundle {
 		k.log.Print(err)
 	}
 	return b
+}
+
+// historySummary is what history keeps of a result: its first line, at most
+// 200 bytes. Keeping every result's full text would hold megabytes per
+// cell for the life of the kernel; the notebook itself has the outputs.
+func historySummary(v any) any {
+	s, ok := v.(string)
+	if !ok {
+		return nil
+	}
+	if i := strings.IndexByte(s, '\n'); i >= 0 {
+		s = s[:i] + " ..."
+	}
+	if len(s) > 200 {
+		s = strings.ToValidUTF8(s[:200], "") + " ..."
+	}
+	return s
 }
