@@ -528,6 +528,7 @@ func renderPoleZero(v any, opt Options) Bundle {
 	grid, texts := splaneGrid(g.Ts, gR, gridLabelOnAxis)
 	if !g.Sampled() {
 		texts = gridRayLabelsIn(texts, fr.x0, fr.x1, fr.y0, fr.y1)
+		texts = pzLabelsOffMarkers(texts, append(append([]complex128(nil), nearPoles...), nearZeros...), fr)
 	}
 	pn.Series = append(pn.Series, grid...)
 	if !g.Sampled() {
@@ -592,6 +593,39 @@ func pzEqualFrame(fig *rpFigure, fr pzBox, sampled bool) (pzBox, bool) {
 		fr.x0, fr.x1 = fr.x0-(fr.x1-x1), x1
 	}
 	return fr, equal
+}
+
+// pzLabelsOffMarkers moves a damping-ratio label that would cover a pole
+// or zero along its ray (to 0.65, 0.5 or 0.95 of the way to the frame
+// instead of 0.8), or leaves it out when every place is covered (the ray
+// itself stays). Boxes are estimated for 9 pt text on a 16 cm chart: 1/90
+// of the frame's width per character, 1/20 of its height per line.
+func pzLabelsOffMarkers(texts []rpText, pts []complex128, fr pzBox) []rpText {
+	cw, lh := (fr.x1-fr.x0)/90, (fr.y1-fr.y0)/20
+	covers := func(t rpText) bool {
+		w := float64(len([]rune(t.Text))+1) * cw
+		for _, p := range pts {
+			if real(p) > t.X-cw && real(p) < t.X+w && imag(p) > t.Y-0.5*lh && imag(p) < t.Y+1.5*lh {
+				return true
+			}
+		}
+		return false
+	}
+	var out []rpText
+	for _, t := range texts {
+		var zeta float64
+		if _, err := fmt.Sscanf(t.Text, "ζ %g", &zeta); err != nil || !covers(t) {
+			out = append(out, t)
+			continue
+		}
+		for _, f := range []float64{0.65 / 0.8, 0.5 / 0.8, 0.95 / 0.8} {
+			if n := (rpText{X: t.X * f, Y: t.Y * f, Text: t.Text}); !covers(n) && n.X >= fr.x0 && n.Y <= fr.y1 {
+				out = append(out, n)
+				break
+			}
+		}
+	}
+	return out
 }
 
 // pzBox is a chart frame in data coordinates.
