@@ -239,7 +239,7 @@ func sxModesHTML(t *lsys.ModeTable) string {
 	if split {
 		sxLinksHTML(&h, t, inputs, outputs, maxReach, maxVis, showShape)
 	}
-	fmt.Fprintf(&h, "<div style=\"color:#555;margin-top:4px\">%s. Shaded rows do not decay. Bars: reach |w<sup>H</sup> b<sub>j</sub>|/||b<sub>j</sub>|| and visibility |c<sub>i</sub> v|/||c<sub>i</sub>|| in the balanced system (unit left and right eigenvectors w, v; 0 = none, 1 = along the mode) relative to the largest in the column; hover a verdict for its margin. Shape: one bar per state, magnitude relative to the largest; bars below the line are in antiphase (phase beyond &plusmn;90&deg;).</div>", html.EscapeString(sxVerdictNote(t)))
+	fmt.Fprintf(&h, "<div style=\"color:#555;margin-top:4px\">%s. Shaded rows do not decay. Bars: reach |w<sup>H</sup> b<sub>j</sub>|/||b<sub>j</sub>|| and visibility |c<sub>i</sub> v|/||c<sub>i</sub>|| in the balanced system (unit left and right eigenvectors w, v; 0 = none, 1 = along the mode) relative to the largest for the same signal; hover a verdict for its margin. Shape: one bar per state, magnitude relative to the largest; bars below the line are in antiphase (phase beyond &plusmn;90&deg;).</div>", html.EscapeString(sxVerdictNote(t)))
 	h.WriteString("</div>")
 	return h.String()
 }
