@@ -194,7 +194,20 @@ async function runNotebook(ctx, url, name, probe) {
     return cells.every((c) => typeof c.input_prompt_number === "number") && !Jupyter.notebook.kernel_busy &&
       document.querySelector("#kernel_indicator_icon.kernel_idle_icon") !== null;
   }, null, { timeout: 120000, polling: 100 });
-  const ran = Date.now() - t0;
+  // iopub (outputs) and shell (the reply that numbers the prompt) are
+  // separate channels: the last outputs may land just after the last
+  // prompt is numbered, so wait until the outputs stop changing for 1 s
+  let last = -1;
+  let since = Date.now();
+  while (Date.now() - since < 1000 && Date.now() - t0 < 120000) {
+    const n = await page.evaluate(() => document.querySelectorAll(".output_area").length);
+    if (n !== last) {
+      last = n;
+      since = Date.now();
+    }
+    await page.waitForTimeout(100);
+  }
+  const ran = Date.now() - t0 - 1000;
   // raw LaTeX: display math delimiters or environments left as text in outputs
   const rawLatex = () => page.evaluate(() => {
     const found = [];
