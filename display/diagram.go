@@ -23,7 +23,7 @@ func init() {
 
 // Layout of the diagram in CSS pixels.
 const (
-	dgW        = 960.0
+	dgW        = 940.0 // fits a 980 px notebook column and the reports of lsys run
 	dgPillW    = 130.0 // input and output name pills
 	dgPillH    = 26.0
 	dgInX      = 8.0   // left edge of the input pills
@@ -136,7 +136,7 @@ func renderDiagram(v any, _ Options) Bundle {
 		"Numbers on links: gains in modal coordinates (unit mode shapes); line weight: the unit-free reach or visibility.",
 		fmt.Sprintf("Dotted grey: below the tolerance (%s relative): the mode cannot be reached from that input, or seen at that output.", fmtNum(d.RelTol)),
 	} {
-		head = append(head, dgWrap(l, 138)...) // (960 - 16) px / 6.8
+		head = append(head, dgWrap(l, 135)...) // (940 - 16) px / 6.8
 	}
 	headH := float64(len(head))*17 + 7
 	// card positions

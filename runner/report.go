@@ -156,7 +156,8 @@ func plainMath(s string) string {
 const reportCSS = `
 :root { --ink: #1a1a1a; --muted: #5a5a5a; --rule: #d0d0d0; --code-bg: #f6f6f4; }
 html { font-family: "DejaVu Sans", "Helvetica Neue", Arial, sans-serif; font-size: 14px; color: var(--ink); }
-body { max-width: 60rem; margin: 0 auto; padding: 1rem 1.5rem 3rem; line-height: 1.45; }
+body { max-width: 1040px; margin: 0 auto; padding: 1rem 1.5rem 3rem; line-height: 1.45; }
+section.md { max-width: 60rem; } /* prose at a reading width; outputs get the 960 px charts and diagrams are drawn for */
 header.run { border-bottom: 2px solid var(--ink); padding-bottom: .5rem; margin-bottom: 1rem; font-size: 12px; color: var(--muted); }
 header.run b { color: var(--ink); }
 table.params { border-collapse: collapse; margin: .5rem 0; font-size: 13px; color: var(--ink); }
