@@ -247,6 +247,37 @@ func lcFigure(l *lsys.Locus) *rpFigure {
 	// its height (9 pt text on a 16 x 10 cm chart)
 	type box struct{ x, y, w float64 }
 	var boxes []box
+	overlaps := func(nb box) bool {
+		for _, o := range boxes {
+			left, right := o, nb
+			if nb.x < o.x {
+				left, right = nb, o
+			}
+			if right.x-left.x < left.w && math.Abs(nb.y-o.y) < view/1.6/20 {
+				return true
+			}
+		}
+		return false
+	}
+	// damping-ratio labels that would cover one another move inward
+	// along their ray, or are left out (the ray stays)
+	var grid []rpText
+	for _, t := range texts {
+		var zeta float64
+		if _, err := fmt.Sscanf(t.Text, "ζ %g", &zeta); err != nil {
+			grid = append(grid, t)
+			continue
+		}
+		for _, f := range []float64{1, 0.8, 0.62} {
+			nb := box{t.X * f, t.Y * f, view / 90 * float64(len([]rune(t.Text))+1)}
+			if !overlaps(nb) {
+				boxes = append(boxes, nb)
+				grid = append(grid, rpText{X: nb.x, Y: nb.y, Text: t.Text})
+				break
+			}
+		}
+	}
+	texts = grid
 	var lx, ly []float64
 	for _, k := range lcLabelIndices(len(l.Values)) {
 		for _, br := range l.Branches {
@@ -257,16 +288,7 @@ func lcFigure(l *lsys.Locus) *rpFigure {
 			txt := p + " = " + fmtNum(l.Values[k])
 			nb := box{real(z), imag(z), view / 90 * float64(len([]rune(txt))+1)}
 			free := cmplx.Abs(z-br[0]) > view/50 && cmplx.Abs(z-br[last]) > view/50
-			for _, o := range boxes {
-				left, right := o, nb
-				if nb.x < o.x {
-					left, right = nb, o
-				}
-				if right.x-left.x < left.w && math.Abs(nb.y-o.y) < view/1.6/20 {
-					free = false
-				}
-			}
-			if !free {
+			if !free || overlaps(nb) {
 				continue
 			}
 			boxes = append(boxes, nb)
