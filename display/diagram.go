@@ -132,7 +132,7 @@ func renderDiagram(v any, _ Options) Bundle {
 	// the explanation, wrapped to the width (6.8 px a character)
 	var head []string
 	for _, l := range []string{
-		fmt.Sprintf("%s in parallel, by natural frequency (%s).", dgCount(d), strings.TrimSuffix(sxHeadline(s), ".")),
+		fmt.Sprintf("%s in parallel, by natural frequency (%s).", dgCount(d), strings.TrimSuffix(sxHeadline(s), ".")) + dgSampledNote(s),
 		"Numbers on links: gains in modal coordinates (unit mode shapes); line weight: the unit-free reach or visibility.",
 		fmt.Sprintf("Dotted grey: below the tolerance (%s relative): the mode cannot be reached from that input, or seen at that output.", fmtNum(d.RelTol)),
 	} {
@@ -300,11 +300,10 @@ func dgText(d *lsys.ModalDiagram) string {
 }
 
 func dgCount(d *lsys.ModalDiagram) string {
-	c := count(len(d.Boxes), "modal subsystem", "modal subsystems")
 	if d.Grouped {
-		c += fmt.Sprintf(" (%d blocks grouped)", len(d.Form.Blocks))
+		return fmt.Sprintf("%d modal subsystems, drawn as %d groups of neighbours,", len(d.Form.Blocks), len(d.Boxes))
 	}
-	return c
+	return count(len(d.Boxes), "modal subsystem", "modal subsystems")
 }
 
 // dgWrap breaks a line of text at spaces into lines of at most n
@@ -321,4 +320,12 @@ func dgWrap(l string, n int) []string {
 		l = l[cut+1:]
 	}
 	return append(out, l)
+}
+
+// dgSampledNote says where a sampled system's wn and damping come from.
+func dgSampledNote(s *lsys.System) string {
+	if !s.Sampled() {
+		return ""
+	}
+	return " Eigenvalues z; wn and ζ through s = log(z)/Ts."
 }
