@@ -31,7 +31,7 @@ function opt(name, def) {
 const lsysBin = path.resolve(opt("--lsys", path.join(top, "build", "lsys")));
 const outDir = path.resolve(opt("--out", path.join(top, "build", "screenshots")));
 const chromiumPath = "/usr/bin/chromium";
-const demos = ["frame-structure.ipynb", "converter-loop.ipynb", "crane-sway.ipynb", "gimbal-modes.ipynb"];
+const demos = fs.readdirSync(path.join(top, "notebooks")).filter((f) => f.endsWith(".ipynb")).sort(); // every demo notebook
 // Cells saved on their own (input and output) for the README's tour:
 // notebook, the start of the cell's source, file name.
 const tour = [
