@@ -114,15 +114,17 @@ type rpPanel struct {
 	LinTicks   bool
 	PhaseTicks bool // y ticks at multiples of 45, 90 or 180 degrees
 	DBTicks    bool // y ticks at multiples of 10, 20, 40 ... dB
-	// LegendBelow puts this panel's legend in a strip below the figure
-	// (for many or long labels) instead of inside the frame.
+	// Legends are drawn in a strip below the figure, never over the data:
+	// with LegendBelow this panel's entries alone (set it on the one panel
+	// whose legend stands for all), otherwise the entries of all panels
+	// with Legend, each name once.
 	LegendBelow bool
 	// Simplify drops points that lie within a quarter pixel of the line
 	// through their neighbours after decimation (smooth curves then need
 	// a few hundred points, not thousands); newPanel sets it.
 	Simplify bool
 
-	below []rpLegendEntry // filled by build when LegendBelow
+	below []rpLegendEntry // filled by build when Legend
 }
 
 // rpLegendEntry is a legend line drawn outside a panel.
@@ -513,12 +515,10 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 				thumbs = append(thumbs, sc)
 			}
 		}
+		// every legend goes below the panels: inside the frame, at 9 pt,
+		// it covered the curves
 		if pn.Legend && s.Name != "" && len(thumbs) > 0 {
-			if pn.LegendBelow {
-				pn.below = append(pn.below, rpLegendEntry{s.Name, thumbs})
-			} else {
-				p.Legend.Add(s.Name, thumbs...)
-			}
+			pn.below = append(pn.below, rpLegendEntry{s.Name, thumbs})
 		}
 	}
 	if !ok(xmin) {
@@ -688,12 +688,28 @@ func (f *rpFigure) layout(c vg.CanvasSizer) ([][]*plot.Plot, [][]draw.Canvas) {
 			}
 		}
 	}
-	// a legend strip below the panels, from the first panel that asks
+	// a legend strip below the panels: from the first panel that asks
+	// for one, else the entries of every panel with a legend, each name
+	// once (panels that share curves share entries)
 	var below []rpLegendEntry
 	for _, pn := range f.Panels {
 		if pn != nil && pn.LegendBelow && len(pn.below) > 0 {
 			below = pn.below
 			break
+		}
+	}
+	if below == nil {
+		seen := map[string]bool{}
+		for _, pn := range f.Panels {
+			if pn == nil {
+				continue
+			}
+			for _, e := range pn.below {
+				if !seen[e.name] {
+					seen[e.name] = true
+					below = append(below, e)
+				}
+			}
 		}
 	}
 	if len(below) > 0 {
