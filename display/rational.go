@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"lsys/lsys"
+	"lsys/lsys/numfmt"
 )
 
 // Transfer functions: the text form is the language's own syntax (so it can
@@ -21,7 +22,7 @@ func init() {
 			tex = `$$\frac{` + latexPoly(r.Num, r.VarName()) + `}{` + latexPoly(r.Den, r.VarName()) + `}`
 		}
 		if r.Ts > 0 {
-			tex += `\qquad T = ` + latexNum(fmtDigits(r.Ts, 6)) + `\,\mathrm{s}`
+			tex += `\qquad T = ` + latexNum(numfmt.Digits(r.Ts, 6)) + `\,\mathrm{s}`
 		}
 		b.Data[LaTeX] = tex + `$$`
 		b.Data[HTML] = rationalHTML(r)
@@ -61,7 +62,7 @@ func latexPoly(p lsys.Poly, v string) string {
 		}
 		a := math.Abs(c)
 		if a != 1 || i == 0 {
-			b.WriteString(latexNum(fmtDigits(a, 6)))
+			b.WriteString(latexNum(numfmt.Digits(a, 6)))
 			if i > 0 {
 				b.WriteString(`\,`)
 			}

@@ -21,6 +21,7 @@ import (
 
 	"lsys/display"
 	"lsys/lang"
+	"lsys/lang/builtins"
 )
 
 // Config configures a kernel.
@@ -100,7 +101,7 @@ func New(cfg Config) (*Kernel, error) {
 		cfg.MaxMessageSize = DefaultMaxMessageSize
 	}
 	k := &Kernel{cfg: cfg, signer: s, session: newID(), log: cfg.Log,
-		lang: lang.NewSession(lang.Options{Dir: cfg.Dir, Text: display.TextOf}),
+		lang: lang.NewSession(lang.Options{Dir: cfg.Dir, Text: display.TextOf, Builtins: builtins.Registry()}),
 		seen: newReplayGuard(replayMemory)}
 	k.shellMux = NewMux()
 	k.controlMux = NewMux()

@@ -1,16 +1,20 @@
-package lang
+package lang_test
 
 import (
 	"context"
 	"testing"
+
+	"lsys/lang"
+	"lsys/lang/builtins"
+	"lsys/lang/langtest"
 )
 
 // BenchmarkEquationBlock: parse and compile the four-state gimbal block
 // into A, B, C, D.
 func BenchmarkEquationBlock(b *testing.B) {
-	s := NewSession(Options{})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry()})
 	for i := 0; i < b.N; i++ {
-		if _, err := s.Run(context.Background(), gimbalCell, nil); err != nil {
+		if _, err := s.Run(context.Background(), langtest.Gimbal, nil); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -19,8 +23,8 @@ func BenchmarkEquationBlock(b *testing.B) {
 // BenchmarkLinearizeEquilibrium: Newton's equilibrium and the linearization
 // of the pendulum.
 func BenchmarkLinearizeEquilibrium(b *testing.B) {
-	s := NewSession(Options{})
-	if _, err := s.Run(context.Background(), pendulumCell, nil); err != nil {
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry()})
+	if _, err := s.Run(context.Background(), langtest.Pendulum, nil); err != nil {
 		b.Fatal(err)
 	}
 	for i := 0; i < b.N; i++ {
@@ -32,7 +36,7 @@ func BenchmarkLinearizeEquilibrium(b *testing.B) {
 
 // BenchmarkRecursion: evaluation speed of user functions (fact(20) 1000 times).
 func BenchmarkRecursion(b *testing.B) {
-	s := NewSession(Options{})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry()})
 	if _, err := s.Run(context.Background(), "fact(n) = if n <= 1 then 1 else n*fact(n - 1)", nil); err != nil {
 		b.Fatal(err)
 	}
@@ -48,7 +52,7 @@ func BenchmarkRecursion(b *testing.B) {
 // the block, extracts A by automatic differentiation and takes its
 // eigenvalues).
 func BenchmarkLocusBlockFamily(b *testing.B) {
-	s := NewSession(Options{})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry()})
 	if _, err := s.Run(context.Background(), mountFamily, nil); err != nil {
 		b.Fatal(err)
 	}

@@ -1,7 +1,8 @@
-// Package lang is the lsys system-description language: the evaluator and
-// the one registry of built-in functions that drives evaluation,
-// completion, inspection and the language reference. The scanner, syntax
-// tree and parser are in lang/syntax.
+// Package lang is the lsys system-description language: the evaluator, its
+// values, and the public API built-ins are written against (Registry,
+// Builtin, Call, Block). The scanner, syntax tree and parser are in
+// lang/syntax; the built-ins themselves in lang/builtins, whose registry
+// the front ends pass to NewSession.
 //
 // The kernel and the headless runner use it only through Session.
 package lang
@@ -35,6 +36,12 @@ type Output interface {
 	ClearOutput(wait bool)
 }
 
+// Pager is an optional interface of Output: a front end with a pager (the
+// Jupyter page payload) shows long help there instead of in the cell's output.
+type Pager interface {
+	Page(text string)
+}
+
 // Options are what a front end passes to a new session. The language sets
 // no package globals from outside: two sessions with different options can
 // run side by side in one process.
@@ -50,6 +57,10 @@ type Options struct {
 	Text func(v any) (string, bool)
 	// Limits bound one cell's work; zero fields take the defaults.
 	Limits Limits
+	// Builtins is the registry of built-ins the session evaluates with
+	// (front ends pass builtins.Registry() of package lang/builtins); nil
+	// is a language without built-ins.
+	Builtins *Registry
 }
 
 // Limits bound the work of one cell so that a runaway loop or recursion
@@ -77,6 +88,7 @@ func LanguageInfo() map[string]any {
 // called from several goroutines (the kernel answers completion requests
 // while a cell runs); Run calls are serialised.
 type Session struct {
+	reg    *Registry
 	dir    string
 	text   func(v any) (string, bool)
 	limits Limits
@@ -89,6 +101,9 @@ type Session struct {
 	// keys are weak: a system nobody holds any more (the thousands a
 	// locus builds) takes its entry with it (see remember).
 	sources map[weak.Pointer[lsys.System]]*blockSource
+	// models does the same for nonlinear models, whose equations only the
+	// block can evaluate.
+	models map[weak.Pointer[lsys.Model]]*blockSource
 }
 
 // NewSession starts an empty session with the given options.
@@ -100,23 +115,38 @@ func NewSession(opt Options) *Session {
 	if lim.Depth <= 0 {
 		lim.Depth = MaxDepth
 	}
-	return &Session{dir: opt.Dir, text: opt.Text, limits: lim, globals: map[string]any{}, sources: map[weak.Pointer[lsys.System]]*blockSource{}}
+	return &Session{reg: opt.Builtins, dir: opt.Dir, text: opt.Text, limits: lim, globals: map[string]any{}, sources: map[weak.Pointer[lsys.System]]*blockSource{}, models: map[weak.Pointer[lsys.Model]]*blockSource{}}
 }
 
 // Format is the text form of v as print shows it in this session: the
 // language's own form, or the session's Text option for analysis results.
-func (s *Session) Format(v any) string { return formatValue(v, s.text) }
+func (s *Session) Format(v any) string { return formatValue(v, s.textOrName) }
 
-// remember records the block behind a system built from it; the entry
-// goes when the system is garbage collected.
-func (s *Session) remember(g *lsys.System, bs *blockSource) {
-	wp := weak.Make(g)
+// textOrName is the session's Text option, and for what it does not
+// format the result's kind as the registry names it.
+func (s *Session) textOrName(v any) (string, bool) {
+	if s.text != nil {
+		if t, ok := s.text(v); ok {
+			return t, true
+		}
+	}
+	return "(" + s.reg.TypeName(v) + "; show(x) displays it)", true
+}
+
+// Builtins is the session's registry of built-ins (front ends ask it which
+// words to highlight as built-ins).
+func (s *Session) Builtins() *Registry { return s.reg }
+
+// remember records in m the block behind a system or model built from it;
+// the entry goes when the value is garbage collected.
+func remember[T any](s *Session, m map[weak.Pointer[T]]*blockSource, v *T, bs *blockSource) {
+	wp := weak.Make(v)
 	s.mu.Lock()
-	s.sources[wp] = bs
+	m[wp] = bs
 	s.mu.Unlock()
-	runtime.AddCleanup(g, func(wp weak.Pointer[lsys.System]) {
+	runtime.AddCleanup(v, func(wp weak.Pointer[T]) {
 		s.mu.Lock()
-		delete(s.sources, wp)
+		delete(m, wp)
 		s.mu.Unlock()
 	}, wp)
 }
@@ -129,6 +159,10 @@ func (s *Session) bind(name string, v any) {
 	defer s.mu.Unlock()
 	s.globals[name] = v
 }
+
+// Set binds name to v, as a cell's name = ... does; v should be a value
+// the language hands out (a number, a matrix, an lsys result).
+func (s *Session) Set(name string, v any) { s.bind(name, v) }
 
 // Get returns the value bound to name.
 func (s *Session) Get(name string) (any, bool) {

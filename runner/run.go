@@ -16,6 +16,7 @@ import (
 
 	"lsys/display"
 	"lsys/lang"
+	"lsys/lang/builtins"
 	"lsys/lang/syntax"
 )
 
@@ -81,7 +82,7 @@ const (
 // lose their stale outputs. err is for problems with the options (an
 // unknown parameter); failing cells are in the Result.
 func Run(ctx context.Context, nb *Notebook, opt Options) (*Result, error) {
-	s := lang.NewSession(lang.Options{Dir: opt.Dir, Text: display.TextOf})
+	s := lang.NewSession(lang.Options{Dir: opt.Dir, Text: display.TextOf, Builtins: builtins.Registry()})
 	res := &Result{NotRun: map[int]bool{}}
 	sets, err := parseSets(opt.Set)
 	if err != nil {
