@@ -19,6 +19,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"lsys/lsys"
+	"lsys/lsys/numfmt"
 )
 
 const (
@@ -145,7 +146,7 @@ func htmlPoly(p lsys.Poly, v string) string {
 		}
 		a := math.Abs(c)
 		if a != 1 || i == 0 {
-			b.WriteString(htmlNum(fmtDigits(a, 6)))
+			b.WriteString(htmlNum(numfmt.Digits(a, 6)))
 			if i > 0 {
 				b.WriteString(" ")
 			}
@@ -173,7 +174,7 @@ func rationalHTML(r *lsys.Rational) string {
 		fmt.Fprintf(&b, `<tr><td style="text-align:center;padding:1px 6px;border-top:1.5px solid #333">%s</td></tr></table>`, htmlPoly(r.Den, r.VarName()))
 	}
 	if r.Ts > 0 {
-		b.WriteString(`<span style="margin-left:2em;vertical-align:middle">T = ` + htmlNum(fmtDigits(r.Ts, 6)) + ` s</span>`)
+		b.WriteString(`<span style="margin-left:2em;vertical-align:middle">T = ` + htmlNum(numfmt.Digits(r.Ts, 6)) + ` s</span>`)
 	}
 	b.WriteString(`</div>`)
 	return b.String()

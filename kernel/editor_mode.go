@@ -5,6 +5,7 @@ import (
 	"strings"
 
 	"lsys/lang"
+	"lsys/lang/builtins"
 )
 
 // EditorModeJS is kernel.js, which the classic notebook loads from the
@@ -17,7 +18,7 @@ import (
 // "("), as in the reports: a binding may reuse the name.
 func EditorModeJS() string {
 	kw, _ := json.Marshal(lang.KeywordNames())
-	bi, _ := json.Marshal(lang.BuiltinNames())
+	bi, _ := json.Marshal(builtins.Registry().Names())
 	r := strings.NewReplacer(
 		"@KEYWORDS@", string(kw), "@BUILTINS@", string(bi),
 		"@KW@", lang.TokKeyword, "@BI@", lang.TokBuiltin, "@STR@", lang.TokString,

@@ -19,21 +19,12 @@ const (
 	TokComment = "comment"
 )
 
-// KeywordNames lists the reserved words, sorted.
+// KeywordNames lists the reserved words, sorted. (The built-ins' names
+// come from the registry a front end uses: Registry.Names.)
 func KeywordNames() []string {
 	var out []string
 	for k := range syntax.Keywords {
 		out = append(out, k)
-	}
-	sort.Strings(out)
-	return out
-}
-
-// BuiltinNames lists the built-ins' names, sorted.
-func BuiltinNames() []string {
-	var out []string
-	for _, b := range Builtins() {
-		out = append(out, b.Name)
 	}
 	sort.Strings(out)
 	return out

@@ -6,6 +6,7 @@ import (
 	"strings"
 	"unicode"
 
+	"lsys/lang"
 	"lsys/lang/builtins"
 	"lsys/lang/syntax"
 )

@@ -1,8 +1,9 @@
-package lang
+package builtins
 
 import (
 	"fmt"
 
+	"lsys/lang"
 	"lsys/lsys"
 )
 
@@ -10,9 +11,10 @@ import (
 // against the public Call API only.
 
 func init() {
-	Register(&Builtin{
-		Name: "overlay", Group: GroupResponse,
-		Params: []Param{{Name: "results", Variadic: true,
+	register(&lang.Builtin{
+		Name: "overlay", Group: lang.GroupResponse,
+		Returns: (*lsys.Overlay)(nil),
+		Params: []lang.Param{{Name: "results", Variadic: true,
 			Doc: "responses, frequency responses, polar charts or pole-zero maps (one kind), or a record of them"}},
 		AnyNamed: true,
 		Help:     "Several results of one kind on one chart, each in its own colour and line style, named in the legend.",
@@ -26,14 +28,14 @@ func init() {
 			"G = system([[0, 1], [-4, -0.8]], [0, 4], [1, 0])\nfaster = system([[0, 1], [-9, -3]], [0, 9], [1, 0])\noverlay(before: response(G, step, until: 10), after: response(faster, step, until: 10))",
 			"G = 4/(s^2 + 0.8*s + 4)\noverlay(open: polezero(G), closed: polezero(closeloop(G)))",
 		},
-		Fn: func(c *Call) (any, error) {
+		Fn: func(c *lang.Call) (any, error) {
 			var names []string
 			var items []any
 			add := func(name string, v any) {
 				names, items = append(names, name), append(items, v)
 			}
 			for i, v := range c.Rest {
-				if r, ok := v.(*Record); ok {
+				if r, ok := v.(*lang.Record); ok {
 					for k, n := range r.Names {
 						add(n, r.Values[k])
 					}
@@ -51,4 +53,7 @@ func init() {
 			return lsys.NewOverlay(names, items)
 		},
 	})
+	registerType((*lsys.Overlay)(nil), lang.TypeInfo{Name: "an overlay", Fields: []lang.Field{
+		lang.FieldOf("names", "the results' names, as in the legend", func(o *lsys.Overlay) any { return o.Names }),
+	}})
 }

@@ -1,4 +1,4 @@
-package lang
+package builtins_test
 
 import (
 	"testing"
