@@ -214,6 +214,10 @@ func renderSingular(v any, opt Options) Bundle {
 		}
 		pn.Series = append(pn.Series, rpSeries{Name: fmt.Sprintf("σ%d", i+1), X: x, Y: y, Style: i, Glyph: k > 1})
 	}
+	if f.Nyquist > 0 {
+		_, _, sc := rpFreqAxis(f)
+		pn.Lines = append(pn.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true, Label: "Nyquist"})
+	}
 	b := rpBundle(text, &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}}, opt)
 	b.Data[JSON] = map[string]any{"count": k, "points": len(f.W), "peak_db": jsonNum(20 * math.Log10(peak)), "peak_at": at, "unit": unit}
 	return b

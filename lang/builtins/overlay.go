@@ -15,12 +15,12 @@ func init() {
 		Name: "overlay", Group: lang.GroupResponse,
 		Returns: (*lsys.Overlay)(nil),
 		Params: []lang.Param{{Name: "results", Variadic: true,
-			Doc: "responses, frequency responses, polar charts or pole-zero maps (one kind), or a record of them"}},
+			Doc: "responses, frequency responses, polar charts or pole-zero maps (one kind), or a list or record of them"}},
 		AnyNamed: true,
 		Help:     "Several results of one kind on one chart, each in its own colour and line style, named in the legend.",
 		Doc: "Compare a full model with its reduction, or a loop before and after a design: " +
 			"overlay(full: response(G, step), reduced: response(Gr, step)). Named arguments (or the fields of a record) " +
-			"name the curves in the legend; unnamed ones are numbered. Responses must be of one kind with the same " +
+			"name the curves in the legend; unnamed ones (and the items of a list) are numbered in order. Responses must be of one kind with the same " +
 			"outputs and channels, frequency responses and polar charts of systems with the same outputs and inputs " +
 			"(pick a channel with G.out.in), pole-zero maps all continuous or all sampled. Each result keeps its own " +
 			"colour (Okabe & Ito) and line style (or marker shape on pole-zero maps), so the chart reads in grey print too.",
@@ -34,14 +34,20 @@ func init() {
 			add := func(name string, v any) {
 				names, items = append(names, name), append(items, v)
 			}
-			for i, v := range c.Rest {
+			for _, v := range c.Rest {
 				if r, ok := v.(*lang.Record); ok {
 					for k, n := range r.Names {
 						add(n, r.Values[k])
 					}
 					continue
 				}
-				add(fmt.Sprintf("%d", i+1), v)
+				if l, ok := v.(*lang.List); ok {
+					for _, it := range l.Items {
+						add(fmt.Sprintf("%d", len(items)+1), it)
+					}
+					continue
+				}
+				add(fmt.Sprintf("%d", len(items)+1), v)
 			}
 			for _, nv := range c.Extra {
 				add(nv.Name, nv.Value)

@@ -20,3 +20,10 @@ func TestBuiltinOverlay(t *testing.T) {
 	stRunErr(t, stMSD+"overlay(one: response(G, step))", "two or more")
 	stRunErr(t, stMSD+"overlay(r: response(G, step), f: frequency(G))", "one kind")
 }
+
+func TestBuiltinOverlayList(t *testing.T) {
+	o := stRun(t, stMSD+"overlay([frequency(G), frequency(G * (1/(s + 1)))])").(*lsys.Overlay)
+	if len(o.Frequencies) != 2 || o.Names[0] != "1" || o.Names[1] != "2" {
+		t.Errorf("a list: %v", o.Names)
+	}
+}
