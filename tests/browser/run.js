@@ -87,6 +87,8 @@ function thirtyCells() {
     cells.push(code(`G${k} = system([[0, 1], [-${w}*${w}, -0.${k % 9 + 1}]], [0, 1], [1, 0], inputs: ["force"], outputs: ["position"])\nG${k}`));
   }
   cells.push(code("diagram(G3)"));
+  // every token class of the editor mode once
+  cells.push(code('# a comment, a string, a keyword and a number\nlabel = if true then "stiff" else "soft"\nlabel'));
   return { cells, metadata: { kernelspec: { name: "lsys", display_name: "lsys (linear systems)", language: "lsys" } }, nbformat: 4, nbformat_minor: 5 };
 }
 
@@ -251,7 +253,12 @@ async function runNotebook(ctx, url, name, probe) {
   need(counts.builtins > 0 && counts.numbers > 0, `${name}: code not highlighted (mode ${JSON.stringify(counts.mode)}, ${counts.builtins} built-ins, ${counts.numbers} numbers)`);
   console.log(`${name}: ${counts.tables} tables, ${counts.charts} charts, ${counts.builtins} highlighted built-in calls`);
 
-  if (probe) await completeAndInspect(page, name);
+  if (probe) {
+    const kinds = await page.evaluate(() => ["keyword", "builtin", "string", "number", "comment"]
+      .filter((k) => document.querySelectorAll(".CodeMirror .cm-" + k).length === 0));
+    need(kinds.length === 0, `${name}: no ${kinds.join(", ")} highlighted`);
+    await completeAndInspect(page, name);
+  }
   need(errors.length === 0, `${name}: page errors: ${errors.join("; ")}`);
 
   // the notebook scrolls inside #site; let the page grow so the full-page
