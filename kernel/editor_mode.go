@@ -26,6 +26,13 @@ func EditorModeJS() string {
 	return r.Replace(editorModeTemplate)
 }
 
+// EditorCSS is kernel.css, which the classic notebook loads with a
+// kernel's page: the token classes in the colours of lsys run's reports
+// (the notebook's own theme gives built-ins and numbers the same green).
+func EditorCSS() string {
+	return "/* lsys token colours (written by lsys kernelspec) */\n" + lang.TokenCSS(".CodeMirror.cm-s-ipython span")
+}
+
 const editorModeTemplate = `// lsys editor mode for the classic notebook (written by lsys kernelspec).
 define(["codemirror/lib/codemirror", "base/js/namespace"], function (CodeMirror, Jupyter) {
   "use strict";

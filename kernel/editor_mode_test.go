@@ -30,6 +30,10 @@ func TestKernelspecShipsEditorMode(t *testing.T) {
 			t.Errorf("kernel.js lacks %s", want)
 		}
 	}
+	css, err := os.ReadFile(filepath.Join(dir, "kernel.css"))
+	if err != nil || !strings.Contains(string(css), ".CodeMirror.cm-s-ipython span.cm-"+lang.TokBuiltin+" {") {
+		t.Errorf("kernel.css: %v\n%s", err, css)
+	}
 	if again := EditorModeJS(); again != string(js) {
 		t.Error("kernel.js differs between two writes")
 	}

@@ -2,6 +2,7 @@ package lang
 
 import (
 	"sort"
+	"strings"
 
 	"lsys/lang/syntax"
 )
@@ -18,6 +19,27 @@ const (
 	TokNumber  = "number"
 	TokComment = "comment"
 )
+
+// TokenStyles are the colours of the token classes, the same in the
+// notebook (kernel.css in the kernelspec folder) and in lsys run's
+// reports, so a cell reads alike in both.
+var TokenStyles = [][2]string{
+	{TokKeyword, "color: #7a1f6b; font-weight: bold"},
+	{TokBuiltin, "color: #0b4f8a"},
+	{TokString, "color: #2d6a12"},
+	{TokNumber, "color: #8a4b00"},
+	{TokComment, "color: #6b6b6b; font-style: italic"},
+}
+
+// TokenCSS is a style sheet for the token classes: one rule per class,
+// each selector prefix + ".cm-" + class.
+func TokenCSS(prefix string) string {
+	var b strings.Builder
+	for _, t := range TokenStyles {
+		b.WriteString(prefix + ".cm-" + t[0] + " { " + t[1] + "; }\n")
+	}
+	return b.String()
+}
 
 // KeywordNames lists the reserved words, sorted. (The built-ins' names
 // come from the registry a front end uses: Registry.Names.)

@@ -257,6 +257,9 @@ async function runNotebook(ctx, url, name, probe) {
     const kinds = await page.evaluate(() => ["keyword", "builtin", "string", "number", "comment"]
       .filter((k) => document.querySelectorAll(".CodeMirror .cm-" + k).length === 0));
     need(kinds.length === 0, `${name}: no ${kinds.join(", ")} highlighted`);
+    // kernel.css gives built-ins the reports' blue (the theme's is green)
+    const colour = await page.evaluate(() => getComputedStyle(document.querySelector(".CodeMirror .cm-builtin")).color);
+    need(colour === "rgb(11, 79, 138)", `${name}: built-ins drawn in ${colour}, not kernel.css's colour`);
     await completeAndInspect(page, name);
   }
   need(errors.length === 0, `${name}: page errors: ${errors.join("; ")}`);
