@@ -144,7 +144,7 @@ func mgFigure(mg *lsys.Margins) *rpFigure {
 	pn.Series = []rpSeries{{Name: "|1 + L|, distance from -1", X: x, Y: mg.Distance, Style: 0}}
 	pn.Lines = []rpLine{{At: 1, Dashed: true}}
 	if f.Nyquist > 0 {
-		pn.Lines = append(pn.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true})
+		pn.Lines = append(pn.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true, Label: "Nyquist"})
 	}
 	// The frame: from 0 up to a little above the highest mark, and to at
 	// least 1.2 so the line at 1 shows; the curve's far reaches (near an

@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
 	"lsys/lsys"
@@ -84,8 +85,8 @@ func renderFrequency(v any, opt Options) Bundle {
 			ph.PhaseTicks = true
 			ph.Series = []rpSeries{{X: x, Y: f.Phase(i, j), Style: 0}}
 			if f.Nyquist > 0 {
-				mg.Lines = append(mg.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true})
-				ph.Lines = append(ph.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true})
+				mg.Lines = append(mg.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true, Label: "Nyquist"})
+				ph.Lines = append(ph.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true, Label: "Nyquist"})
 			}
 			mags, phs = append(mags, mg), append(phs, ph)
 		}
@@ -161,6 +162,14 @@ func renderPolar(v any, opt Options) Bundle {
 			fig.Panels = append(fig.Panels, pn)
 		}
 	}
+	// equal scales for the data area's real shape, measured once (the
+	// panels are alike)
+	if len(fig.Panels) > 0 {
+		ratio := fig.dataRatio(0)
+		for _, pn := range fig.Panels {
+			pn.Ratio = ratio
+		}
+	}
 	b := rpBundle(text, fig, opt)
 	b.Data[JSON] = map[string]any{"outputs": f.Outputs, "inputs": f.Inputs, "points": len(f.W)}
 	return b
@@ -203,6 +212,10 @@ func renderSingular(v any, opt Options) Bundle {
 			y[n] = 20 * math.Log10(sv.S[n][i])
 		}
 		pn.Series = append(pn.Series, rpSeries{Name: fmt.Sprintf("σ%d", i+1), X: x, Y: y, Style: i, Glyph: k > 1})
+	}
+	if f.Nyquist > 0 {
+		_, _, sc := rpFreqAxis(f)
+		pn.Lines = append(pn.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true, Label: "Nyquist"})
 	}
 	b := rpBundle(text, &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}}, opt)
 	b.Data[JSON] = map[string]any{"count": k, "points": len(f.W), "peak_db": jsonNum(20 * math.Log10(peak)), "peak_at": at, "unit": unit}
@@ -359,7 +372,15 @@ func renderPoleZero(v any, opt Options) Bundle {
 	} else {
 		fr = pzFrame(append(append([]complex128(nil), nearPoles...), nearZeros...), g.Sampled())
 	}
-	fr, equal := fr.aspect(1.6)
+	// the frame's shape for equal scales: that of the chart's data area,
+	// measured on a probe of this chart (tick labels and the legend take
+	// their room first)
+	probe := newPanel(pn.Title, pn.XLabel, pn.YLabel)
+	probe.Series = []rpSeries{rpMark("poles", pz.Poles[:min(1, len(pz.Poles))], 0, draw.CrossGlyph{}, 4.5), rpMark("zeros", pz.Poles[:min(1, len(pz.Poles))], 1, draw.RingGlyph{}, 4.5)}
+	probe.Legend, probe.LegendBelow, probe.LinTicks, probe.Exact = true, true, true, true
+	probe.XMin, probe.XMax, probe.YMin, probe.YMax = fr.x0, fr.x1, fr.y0, fr.y1
+	fig := &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{probe}, W: 16 * cmLen, H: 10 * cmLen}
+	fr, equal := pzEqualFrame(fig, fr, g.Sampled())
 	if !equal {
 		text += "\nthe chart's axes have different scales (to fit the points); the damping-ratio lines are drawn to those scales"
 	}
@@ -368,6 +389,7 @@ func renderPoleZero(v any, opt Options) Bundle {
 	grid, texts := splaneGrid(g.Ts, gR, gridLabelOnAxis)
 	if !g.Sampled() {
 		texts = gridRayLabelsIn(texts, fr.x0, fr.x1, fr.y0, fr.y1)
+		texts = pzLabelsOffMarkers(texts, append(append([]complex128(nil), nearPoles...), nearZeros...), fr)
 	}
 	pn.Series = append(pn.Series, grid...)
 	if !g.Sampled() {
@@ -376,7 +398,14 @@ func renderPoleZero(v any, opt Options) Bundle {
 	// far points on the frame's edge, in their direction from the origin,
 	// labelled with their value; a label that would overlap one already
 	// placed moves a line further from the point (see farLabel)
+	// the markers drawn inside count as placed, so no label covers one
 	var placed []rpText
+	cw := (fr.x1 - fr.x0) / 100
+	for _, p := range append(append([]complex128(nil), nearPoles...), nearZeros...) {
+		if !cmplx.IsNaN(p) && !cmplx.IsInf(p) {
+			placed = append(placed, rpText{X: real(p) - 1.5*cw, Y: imag(p)})
+		}
+	}
 	edge := func(v []complex128) []complex128 {
 		out := make([]complex128, len(v))
 		for i, p := range v {
@@ -397,13 +426,66 @@ func renderPoleZero(v any, opt Options) Bundle {
 	pn.LegendBelow = true
 	pn.XMin, pn.XMax, pn.YMin, pn.YMax = fr.x0, fr.x1, fr.y0, fr.y1
 	pn.Texts = texts
-	fig := &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}}
+	fig.Panels = []*rpPanel{pn}
 	out := rpBundle(text, fig, opt)
 	js := map[string]any{"sampled": g.Sampled(), "poles": rpComplexJSON(pz.Poles), "zeros_known": pz.ZerosKnown}
 	if pz.ZerosKnown {
 		js["zeros"] = rpComplexJSON(pz.Zeros)
 	}
 	out.Data[JSON] = js
+	return out
+}
+
+// pzEqualFrame gives a pole-zero chart equal scales: the figure (16 cm
+// wide, its one panel a probe with the chart's labels and legend) gets a
+// height that follows the points' shape, between a square and a wide data
+// area, and the frame is widened to the data area's measured shape (to
+// the left in continuous time, where the stable points are, not into the
+// empty right half plane). equal is false when that would leave more than
+// 70 % of the frame empty; the frame is then left as it is.
+func pzEqualFrame(fig *rpFigure, fr pzBox, sampled bool) (pzBox, bool) {
+	want := math.Min(math.Max((fr.x1-fr.x0)/(fr.y1-fr.y0), 0.75), 2.2)
+	if dw, dh := fig.dataSize(0); dw > 0 && dh > 0 {
+		fig.H = min(max(fig.H-dh+dw/vg.Length(want), 8*cmLen), 17*cmLen)
+	}
+	x1 := fr.x1
+	fr, equal := fr.aspect(fig.dataRatio(0))
+	if equal && !sampled && fr.x1 > x1 {
+		fr.x0, fr.x1 = fr.x0-(fr.x1-x1), x1
+	}
+	return fr, equal
+}
+
+// pzLabelsOffMarkers moves a damping-ratio label that would cover a pole
+// or zero along its ray (to 0.65, 0.5 or 0.95 of the way to the frame
+// instead of 0.8), or leaves it out when every place is covered (the ray
+// itself stays). Boxes are estimated for 9 pt text on a 16 cm chart: 1/90
+// of the frame's width per character, 1/20 of its height per line.
+func pzLabelsOffMarkers(texts []rpText, pts []complex128, fr pzBox) []rpText {
+	cw, lh := (fr.x1-fr.x0)/90, (fr.y1-fr.y0)/20
+	covers := func(t rpText) bool {
+		w := float64(len([]rune(t.Text))+1) * cw
+		for _, p := range pts {
+			if real(p) > t.X-cw && real(p) < t.X+w && imag(p) > t.Y-0.5*lh && imag(p) < t.Y+1.5*lh {
+				return true
+			}
+		}
+		return false
+	}
+	var out []rpText
+	for _, t := range texts {
+		var zeta float64
+		if _, err := fmt.Sscanf(t.Text, "ζ %g", &zeta); err != nil || !covers(t) {
+			out = append(out, t)
+			continue
+		}
+		for _, f := range []float64{0.65 / 0.8, 0.5 / 0.8, 0.95 / 0.8} {
+			if n := (rpText{X: t.X * f, Y: t.Y * f, Text: t.Text}); !covers(n) && n.X >= fr.x0 && n.Y <= fr.y1 {
+				out = append(out, n)
+				break
+			}
+		}
+	}
 	return out
 }
 
@@ -444,18 +526,18 @@ func pzFrame(pts []complex128, sampled bool) pzBox {
 
 // aspect widens the shorter side of the frame about its centre so both
 // axes have the same scale on a chart r times wider than high, unless
-// that would leave more than half of the width (or height) empty; then
+// that would leave more than 70 % of the width (or height) empty; then
 // the frame stays as it is and equal is false.
 func (b pzBox) aspect(r float64) (pzBox, bool) {
 	sx, sy := b.x1-b.x0, b.y1-b.y0
 	cx, cy := (b.x0+b.x1)/2, (b.y0+b.y1)/2
 	if sx < r*sy {
-		if sx < 0.5*r*sy {
+		if sx < 0.3*r*sy {
 			return b, false
 		}
 		sx = r * sy
 	} else {
-		if sy < 0.5*sx/r {
+		if sy < 0.3*sx/r {
 			return b, false
 		}
 		sy = sx / r

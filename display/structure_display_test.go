@@ -38,8 +38,16 @@ func TestSystemCard(t *testing.T) {
 		}
 	}
 	h := b.Data[HTML].(string)
-	if !strings.Contains(h, "lsys-system") || !strings.Contains(h, `\frac{d}{dt}`) {
+	if !strings.Contains(h, "lsys-system") || !strings.Contains(h, "lsys-equations") || !strings.Contains(h, "d/dt") {
 		t.Errorf("html card incomplete: %s", h)
+	}
+	// The equations are HTML, typeset without MathJax, and carry the
+	// matrices: no LaTeX and no second copy of A as a table in the card.
+	if strings.Contains(h, "$$") || strings.Contains(h, `\begin`) || strings.Contains(h, "<caption") {
+		t.Errorf("card has LaTeX or matrix tables beside its equations: %s", h)
+	}
+	if l, _ := b.Data[LaTeX].(string); !strings.Contains(l, `\frac{d}{dt}`) {
+		t.Errorf("text/latex part lacks the equations: %q", l)
 	}
 	if _, err := json.Marshal(b.Data); err != nil {
 		t.Fatal(err)

@@ -232,16 +232,16 @@ func renderSystem(v any, _ Options) Bundle {
 		h.WriteString("</table>")
 	}
 	eq := sxStateEquations(s)
-	if eq != "" {
-		fmt.Fprintf(&h, "<div style=\"margin:4px 0\">$$%s$$</div>", html.EscapeString(eq))
-	}
+	// the equations carry the matrices: shown, they replace the tables
+	eqHTML := sxEquationHTML(s)
+	h.WriteString(eqHTML)
 	if src != "" {
 		fmt.Fprintf(&h, "<details><summary style=\"color:#555\">lsys source that rebuilds it</summary><pre style=\"margin:4px 0\">%s</pre></details>", html.EscapeString(src))
 	}
 	if !showMatrices {
 		fmt.Fprintf(&h, "<div style=\"color:#555\">Matrices not shown above %d states, inputs or outputs; read them as G.A, G.B, G.C, G.D.</div>", sxMaxShown)
 	}
-	if eq == "" && showMatrices {
+	if eqHTML == "" && showMatrices {
 		// too large for equations: the matrices as tables, rows and
 		// columns labelled with the signals
 		h.WriteString("<div>")

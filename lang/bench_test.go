@@ -2,6 +2,7 @@ package lang_test
 
 import (
 	"context"
+	"strings"
 	"testing"
 
 	"lsys/lang"
@@ -58,6 +59,19 @@ func BenchmarkLocusBlockFamily(b *testing.B) {
 	}
 	for i := 0; i < b.N; i++ {
 		if _, err := s.Run(context.Background(), "locus(family, k: linear(1, 10, n: 1000))", nil); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkLongSum: a one-line sum of 10^5 terms (the reliability target is
+// under 0.5 s; positions are stored in the nodes and the left-leaning chain
+// is evaluated in a loop, so the work is linear in the terms).
+func BenchmarkLongSum(b *testing.B) {
+	src := "x = " + strings.Repeat("1 + ", 99999) + "1"
+	for i := 0; i < b.N; i++ {
+		s := lang.NewSession(lang.Options{})
+		if _, err := s.Run(context.Background(), src, nil); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -118,7 +118,12 @@ func (ev *evaluator) lookup(id *syntax.Ident) (any, error) {
 			return v, nil
 		}
 	}
-	if v, ok := ev.s.globals[id.Name]; ok {
+	// Under the read lock: a built-in abandoned at an interrupt may still
+	// evaluate a function argument while the next cell binds names.
+	ev.s.mu.RLock()
+	v, ok := ev.s.globals[id.Name]
+	ev.s.mu.RUnlock()
+	if ok {
 		return v, nil
 	}
 	if b, ok := ev.s.reg.Lookup(id.Name); ok {
@@ -191,15 +196,7 @@ func (ev *evaluator) eval(e syntax.Expr) (v any, err error) {
 		if x.Op == syntax.AND || x.Op == syntax.OR {
 			return ev.logic(x)
 		}
-		a, err := ev.eval(x.X)
-		if err != nil {
-			return nil, err
-		}
-		b, err := ev.eval(x.Y)
-		if err != nil {
-			return nil, err
-		}
-		return ev.binary(x.Op, a, b, x.OpPos, x)
+		return ev.evalChain(x)
 	case *syntax.CallExpr:
 		return ev.evalCall(x)
 	case *syntax.IndexExpr:
@@ -503,21 +500,60 @@ func (ev *evaluator) callBuiltin(b *Builtin, vals []any, poss []syntax.Pos, name
 		}
 	}
 	c.shareSampleTime()
-	defer func() {
-		if r := recover(); r != nil {
-			result = nil
-			err = ev.errorAt(pos, fmt.Sprintf("%s failed inside: %v", b.Name, r),
-				"This is a bug in lsys, not in your cell; please report it with this cell.")
-			if debugPanics {
-				err = fmt.Errorf("%w\n%s", err, debug.Stack())
-			}
-		}
-	}()
-	result, err = b.Fn(c)
+	result, err = ev.runBuiltin(b, c, pos)
 	if err != nil {
 		return nil, c.wrapErr(err)
 	}
+	if err := ev.checkBudget(result, pos, b.Name); err != nil {
+		return nil, err
+	}
 	return result, nil
+}
+
+// runBuiltin calls the built-in on a goroutine of its own and waits for it
+// or for the cell's interruption, whichever comes first, so an interrupt
+// ends the cell within moments even inside a library routine that cannot
+// be stopped (a dense eigen-solver on 1500 states runs for seconds between
+// any two points where it could look). The abandoned computation finishes
+// in the background and its result is dropped; what it would still print
+// goes nowhere (see guardedOutput), and it sees the interrupt at its next
+// check. A panic inside becomes the cell's error.
+func (ev *evaluator) runBuiltin(b *Builtin, c *Call, pos syntax.Pos) (any, error) {
+	type outcome struct {
+		v     any
+		err   error
+		pan   any
+		stack []byte
+	}
+	done := make(chan outcome, 1)
+	go func() {
+		defer func() {
+			if r := recover(); r != nil {
+				done <- outcome{pan: r, stack: debug.Stack()}
+			}
+		}()
+		v, err := b.Fn(c)
+		done <- outcome{v: v, err: err}
+	}()
+	var o outcome
+	select {
+	case o = <-done:
+	case <-ev.ctx.Done():
+		select {
+		case o = <-done: // finished at the same moment: keep it
+		default:
+			return nil, ev.interrupted(pos, ev.ctx.Err())
+		}
+	}
+	if o.pan != nil {
+		err := ev.errorAt(pos, fmt.Sprintf("%s failed inside: %v", b.Name, o.pan),
+			"This is a bug in lsys, not in your cell; please report it with this cell.")
+		if debugPanics {
+			err = fmt.Errorf("%w\n%s", err, o.stack)
+		}
+		return nil, err
+	}
+	return o.v, o.err
 }
 
 // shareSampleTime gives arguments in z whose sample time is still open
@@ -1109,4 +1145,44 @@ func guard(f func() error) (err error) {
 		}
 	}()
 	return f()
+}
+
+// evalChain evaluates a binary expression and the chain of binary
+// expressions down its left side (a + b + c + ... parses as a left-leaning
+// tree) in a loop, not by recursion: a one-line sum of millions of terms
+// would otherwise recurse millions deep and overflow the stack, which no
+// recover catches.
+func (ev *evaluator) evalChain(x *syntax.BinaryExpr) (any, error) {
+	var chain []*syntax.BinaryExpr
+	for e := x; ; {
+		chain = append(chain, e)
+		l, ok := e.X.(*syntax.BinaryExpr)
+		if !ok || l.Op == syntax.AND || l.Op == syntax.OR {
+			break
+		}
+		if err := ev.step(l.Pos()); err != nil {
+			return nil, err
+		}
+		e = l
+	}
+	acc, err := ev.eval(chain[len(chain)-1].X)
+	if err != nil {
+		return nil, err
+	}
+	for i := len(chain) - 1; i >= 0; i-- {
+		e := chain[i]
+		b, err := ev.eval(e.Y)
+		if err != nil {
+			return nil, err
+		}
+		v, err := ev.binary(e.Op, acc, b, e.OpPos, e)
+		if err != nil {
+			return nil, err
+		}
+		if err := ev.checkBudget(v, e.OpPos, "this operation"); err != nil {
+			return nil, err
+		}
+		acc = v
+	}
+	return acc, nil
 }

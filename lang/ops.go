@@ -98,6 +98,11 @@ func (ev *evaluator) binary(op syntax.Token, a, b any, pos syntax.Pos, node *syn
 	}
 	if sa, ok := a.(string); ok {
 		if sb, ok := b.(string); ok && op == syntax.ADD {
+			// Checked before the bytes are asked for: doubling a string
+			// forty times would ask for a terabyte.
+			if n := int64(len(sa)) + int64(len(sb)); n > ev.s.limits.Memory {
+				return nil, ev.overBudget(pos, "joining these strings", n)
+			}
 			return sa + sb, nil
 		}
 	}

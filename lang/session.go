@@ -68,6 +68,11 @@ type Options struct {
 type Limits struct {
 	Steps int64 // evaluation steps per cell (default MaxSteps)
 	Depth int   // nesting of user function calls (default MaxDepth)
+	// Memory is the budget in bytes for one value a cell makes (a matrix,
+	// a response, a string); default DefaultMemory(). A value over it is
+	// refused with its size and the budget, and the session keeps what it
+	// had.
+	Memory int64
 }
 
 // LanguageInfo describes the language as notebooks record it (the
@@ -79,6 +84,8 @@ func LanguageInfo() map[string]any {
 		"mimetype":       "text/x-lsys",
 		"file_extension": ".lsys",
 		"pygments_lexer": "text",
+		// our own editor mode, shipped in the kernelspec folder (kernel.js)
+		"codemirror_mode": "lsys",
 	}
 }
 
@@ -112,6 +119,9 @@ func NewSession(opt Options) *Session {
 	}
 	if lim.Depth <= 0 {
 		lim.Depth = MaxDepth
+	}
+	if lim.Memory <= 0 {
+		lim.Memory = DefaultMemory()
 	}
 	return &Session{reg: opt.Builtins, dir: opt.Dir, text: opt.Text, limits: lim, globals: map[string]any{}, sources: map[weak.Pointer[lsys.System]]*blockSource{}, models: map[weak.Pointer[lsys.Model]]*blockSource{}}
 }
@@ -209,7 +219,9 @@ func (s *Session) Run(ctx context.Context, src string, out Output) (value any, e
 		syntax.AttachSource(perr, src)
 		return nil, perr
 	}
-	ev := &evaluator{s: s, ctx: ctx, out: out, src: src}
+	g := &guardedOutput{out: out}
+	defer g.close()
+	ev := &evaluator{s: s, ctx: ctx, out: g, src: src}
 	value, err = ev.run(stmts)
 	if err != nil {
 		syntax.AttachSource(err, src)
@@ -245,4 +257,49 @@ func Describe(err error) (kind, headline string, lines []string) {
 		headline = msg[:i]
 	}
 	return "Error", headline, strings.Split(msg, "\n")
+}
+
+// guardedOutput passes a cell's output on until the cell ends; a built-in
+// abandoned at an interrupt (see runBuiltin) may still try to print or
+// show progress, and that must not land in a later cell's output.
+type guardedOutput struct {
+	mu     sync.Mutex
+	out    Output
+	closed bool
+}
+
+func (g *guardedOutput) close() {
+	g.mu.Lock()
+	g.closed = true
+	g.mu.Unlock()
+}
+
+func (g *guardedOutput) do(f func(o Output)) {
+	g.mu.Lock()
+	defer g.mu.Unlock()
+	if !g.closed {
+		f(g.out)
+	}
+}
+
+func (g *guardedOutput) Stdout(text string) { g.do(func(o Output) { o.Stdout(text) }) }
+func (g *guardedOutput) Stderr(text string) { g.do(func(o Output) { o.Stderr(text) }) }
+func (g *guardedOutput) Display(v any, id string) {
+	g.do(func(o Output) { o.Display(v, id) })
+}
+func (g *guardedOutput) UpdateDisplay(v any, id string) {
+	g.do(func(o Output) { o.UpdateDisplay(v, id) })
+}
+func (g *guardedOutput) ClearOutput(wait bool) { g.do(func(o Output) { o.ClearOutput(wait) }) }
+
+// Page forwards to the front end's pager when it has one; otherwise the
+// text goes to stdout, as help does without a pager.
+func (g *guardedOutput) Page(text string) {
+	g.do(func(o Output) {
+		if p, ok := o.(Pager); ok {
+			p.Page(text)
+		} else {
+			o.Stdout(text + "\n")
+		}
+	})
 }

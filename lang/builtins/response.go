@@ -883,11 +883,35 @@ func loadTable(c *lang.Call, name string) (any, error) {
 			"load: %q is outside the notebook's folder", name)
 	}
 	dir := c.Dir()
-	f, err := os.Open(filepath.Join(dir, filepath.Clean(name)))
+	if dir == "" {
+		dir = "."
+	}
+	// Links are followed, then the target must still lie in the folder and
+	// be a regular file: a link out of the folder (to /etc/passwd) or a
+	// named pipe (which would block the cell for ever) is refused before
+	// anything is read, and the error says nothing about the target.
+	outside := c.Errorf("file", "Copy the data into the notebook's folder and load the copy.", "load: %q leads outside the notebook's folder", name)
+	base, err := filepath.EvalSymlinks(dir)
+	if err != nil {
+		return nil, c.Errorf("file", "", "load: the notebook's folder cannot be read: %v", err)
+	}
+	base, _ = filepath.Abs(base)
+	target, err := filepath.EvalSymlinks(filepath.Join(dir, filepath.Clean(name)))
 	if err != nil {
 		if errors.Is(err, os.ErrNotExist) {
 			return nil, c.Errorf("file", "Check the name; the file must lie beside the notebook.", "load: there is no file %q beside the notebook", name)
 		}
+		return nil, outside
+	}
+	target, _ = filepath.Abs(target)
+	if rel, err := filepath.Rel(base, target); err != nil || rel == ".." || strings.HasPrefix(rel, ".."+string(filepath.Separator)) {
+		return nil, outside
+	}
+	if st, err := os.Stat(target); err != nil || !st.Mode().IsRegular() {
+		return nil, c.Errorf("file", "Save the data as an ordinary CSV file and load that.", "load: %q is not an ordinary file", name)
+	}
+	f, err := os.Open(target)
+	if err != nil {
 		return nil, c.Errorf("file", "", "load: cannot open %q: %v", name, err)
 	}
 	defer f.Close()
