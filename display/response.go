@@ -276,7 +276,7 @@ func renderSignal(v any, _ Options) Bundle {
 		d = fmt.Sprintf("ramp of slope %s per second", fmtNum(s.Amp))
 	case "table":
 		hold := "linear between rows"
-		if s.Hold == "zoh" {
+		if s.Hold == lsys.HoldZeroOrder {
 			hold = "held between rows"
 		}
 		d = fmt.Sprintf("table %s: %d rows x %d channel(s) from %s to %s s, %s", s.Name, len(s.T), s.Channels(), fmtNum(s.T[0]), fmtNum(s.T[len(s.T)-1]), hold)

@@ -208,7 +208,7 @@ func TestSimulateInputs(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	tab.Hold = "zoh"
+	tab.Hold = HoldZeroOrder
 	r, err = Simulate(ctx, first(1), tab, nil, ResponseOptions{Step: 0.1})
 	if err != nil {
 		t.Fatal(err)
@@ -370,7 +370,7 @@ func TestSimulateTablePerInput(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	tab.Hold = "zoh"
+	tab.Hold = HoldZeroOrder
 	r, err := Simulate(context.Background(), y, tab, nil, ResponseOptions{Until: 2, Step: 0.01})
 	if err != nil {
 		t.Fatal(err)

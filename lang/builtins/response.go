@@ -314,11 +314,11 @@ func responseBuiltins() []*lang.Builtin {
 			Params: []lang.Param{
 				{Name: "t", Doc: "times (s), increasing"},
 				{Name: "u", Doc: "values: a vector (one channel) or a matrix with one row per time and one column per input"},
-				{Name: "hold", Default: "linear", Doc: `"linear" between rows, or "zoh" to hold each row until the next`},
+				{Name: "hold", Default: lsys.HoldLinear, Doc: `"linear" between rows, or "zero-order" to hold each row until the next`},
 			},
 			Help:     "An input signal from a table of times and values, built in a cell.",
 			Doc:      "After the last time the last row is held. With one column the same values drive every input.",
-			Examples: []string{respExample + "u = table([0, 1, 2, 10], [0, 1, 1, 1], hold: \"zoh\")\nresponse(G, u)"},
+			Examples: []string{respExample + "u = table([0, 1, 2, 10], [0, 1, 1, 1], hold: \"zero-order\")\nresponse(G, u)"},
 			Fn: func(c *lang.Call) (any, error) {
 				t, err := vectorArg(c, "t")
 				if err != nil {
@@ -347,12 +347,12 @@ func responseBuiltins() []*lang.Builtin {
 			Name: "load", Group: lang.GroupOutput,
 			Params: []lang.Param{
 				{Name: "file", Doc: "a CSV file beside the notebook: time in the first column, one column per input"},
-				{Name: "hold", Default: "linear", Doc: `"linear" between rows, or "zoh" to hold each row until the next`},
+				{Name: "hold", Default: lsys.HoldLinear, Doc: `"linear" between rows, or "zero-order" to hold each row until the next`},
 			},
 			Help: "Read an input signal from a CSV table beside the notebook.",
 			Doc: "The first row may hold column names. Separators: comma (or semicolon). The file must lie in the notebook's folder " +
 				"or below it. Rows must have increasing times and finite numbers.",
-			Examples: []string{"# u = load(\"bench_test.csv\") reads time, then one column per input\nreadings(name) = load(name, hold: \"zoh\")"},
+			Examples: []string{"# u = load(\"bench_test.csv\") reads time, then one column per input\nreadings(name) = load(name, hold: \"zero-order\")"},
 			Fn: func(c *lang.Call) (any, error) {
 				name, err := c.String("file")
 				if err != nil {
@@ -374,7 +374,7 @@ func responseBuiltins() []*lang.Builtin {
 			},
 			Help: "Time response to a step, an impulse, an initial state or an input signal.",
 			Doc: "Exact at the samples: continuous systems are propagated through one block matrix exponential per step " +
-				"(Van Loan 1978) with the input held (step, zoh tables) or linear between samples (ramp, sine, tables, functions). " +
+				"(Van Loan 1978) with the input held (step, tables held at zero order) or linear between samples (ramp, sine, tables, functions). " +
 				"Without until/dt the horizon lets the slowest mode settle (6 time constants, 5 periods of an undamped mode, " +
 				"capped at 5 time constants of a growing mode, rounded up to 1, 2 or 5 times a power of ten) and the step resolves " +
 				"the fastest mode with 20 samples per period (200 to 10,000 steps). MIMO step and impulse responses have one panel " +
@@ -865,8 +865,11 @@ func makeTable(c *lang.Call, t []float64, rows [][]float64, name string) (any, e
 	if err != nil {
 		return nil, err
 	}
-	if hold != "linear" && hold != "zoh" {
-		return nil, c.Errorf("hold", `Write hold: "linear" or hold: "zoh".`, "%s: hold must be \"linear\" or \"zoh\", not %q", c.Builtin.Name, hold)
+	if hold == "zoh" {
+		return nil, c.Errorf("hold", `Write hold: "zero-order".`, "%s: the hold is written in words: did you mean \"zero-order\"?", c.Builtin.Name)
+	}
+	if hold != lsys.HoldLinear && hold != lsys.HoldZeroOrder {
+		return nil, c.Errorf("hold", `Write hold: "linear" or hold: "zero-order".`, "%s: hold must be \"linear\" or \"zero-order\", not %q", c.Builtin.Name, hold)
 	}
 	s, err := lsys.TableSignal(t, rows, name)
 	if err != nil {

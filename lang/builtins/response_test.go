@@ -98,7 +98,7 @@ func TestResponseBuiltinsValues(t *testing.T) {
 		}
 	}
 	// the loaded table drives the first-order lag: y(5) = 1 - ... > 0.9
-	v := runOne(t, dir, "r = response(1/(s + 1), load(\"run.csv\", hold: \"zoh\"), dt: 0.01)\nr.y")
+	v := runOne(t, dir, "r = response(1/(s + 1), load(\"run.csv\", hold: \"zero-order\"), dt: 0.01)\nr.y")
 	y := v.(interface{ At(int, int) float64 })
 	if got := y.At(500, 0); got < 0.9 || got > 1 {
 		t.Errorf("load-driven response at 5 s: %g", got)
@@ -155,6 +155,7 @@ func TestResponseBuiltinsErrors(t *testing.T) {
 		{Src: "continuous(sample(1/(s + 1), 0.1), by: \"tustin\")", Err: "did you mean \"bilinear\"?"},
 		{Src: "sample(1/(s + 1), 0.1, method: \"zoh\")", Err: "no argument named 'method' (it was renamed); did you mean 'by'?"},
 		{Src: "response(1/(s + 1), step, by: \"pole\")", Err: "by must be"},
+		{Src: "table([0, 1], [0, 1], hold: \"zoh\")", Err: "did you mean \"zero-order\"?"},
 		{Src: "wire(1/(s + 1), nope: 1)", Err: "no argument named 'nope'"},
 		{Src: "connect(1/(s + 1))", Err: "'connect' was renamed; did you mean 'wire'?"},
 		{Src: "G = system([[0, 1], [-2, -3]], [0, 1], [1, 0])\nresponse(G, initial: [1])", Err: "initial state has 1 entries"},
