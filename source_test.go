@@ -1,15 +1,35 @@
 package main
 
 import (
+	"context"
 	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
 
 	"lsys/display"
-	"lsys/lang/langtest"
+	"lsys/lang"
+	"lsys/lang/builtins"
 	"lsys/lsys"
 )
+
+// quiet is an Output that drops what a cell prints.
+type quiet struct{}
+
+func (quiet) Stdout(string)             {}
+func (quiet) Stderr(string)             {}
+func (quiet) Display(any, string)       {}
+func (quiet) UpdateDisplay(any, string) {}
+func (quiet) ClearOutput(bool)          {}
+
+func runCell(t *testing.T, s *lang.Session, src string) any {
+	t.Helper()
+	v, err := s.Run(context.Background(), src, quiet{})
+	if err != nil {
+		t.Fatalf("%s:\n%v", src, err)
+	}
+	return v
+}
 
 // TestSystemTextRebuildsTheSystem: the text form of a system is lsys
 // source; pasted into a cell it gives back the same system, matrices equal
@@ -30,8 +50,8 @@ func TestSystemTextRebuildsTheSystem(t *testing.T) {
 		"2/(s^2 + 0.3*s + 7) * system((s + 1)/(s + 4))",
 	}
 	for _, cell := range cells {
-		s := langtest.NewSession(t)
-		v := langtest.Run(t, s, "G = "+cell+"\nG")
+		s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+		v := runCell(t, s, "G = "+cell+"\nG")
 		g, ok := v.(*lsys.System)
 		if !ok {
 			t.Fatalf("%s: got %T", cell, v)
@@ -41,7 +61,7 @@ func TestSystemTextRebuildsTheSystem(t *testing.T) {
 			t.Errorf("%s: no source form:\n%s", cell, text)
 			continue
 		}
-		back, ok := langtest.Run(t, s, text).(*lsys.System)
+		back, ok := runCell(t, s, text).(*lsys.System)
 		if !ok {
 			t.Errorf("%s: the text does not give a system:\n%s", cell, text)
 			continue
