@@ -38,7 +38,7 @@ const tour = [
   ["thirty-cells.ipynb", "G1 = system(", "tour-system.png"],
   ["frame-structure.ipynb", "diagram(frame)", "tour-diagram.png"],
   ["frame-structure.ipynb", "polezero(frame.roof.shaker)", "tour-polezero.png"],
-  ["converter-loop.ipynb", "plant_zoh = sample(", "tour-margins.png"],
+  ["converter-loop.ipynb", "plant_held = sample(", "tour-margins.png"],
 ];
 
 const failures = [];
