@@ -557,7 +557,7 @@ func (ev *evaluator) systemOp(op syntax.Token, a, b any, pos syntax.Pos) (any, e
 // that says how * and / group.
 func (ev *evaluator) divisorAsFactor(a, b any, pos syntax.Pos) (any, error) {
 	g, ok := a.(*lsys.System)
-	const grouping = "* and / group left to right: P * a/b is (P*a)/b. Write P * (a/b) if that was meant; to close a loop use closeloop(G, K)."
+	const grouping = "* and / group left to right: P * a/b is (P*a)/b. Write P * (a/b) if that was meant; to close a loop use closeloop(G, through: K)."
 	switch d := b.(type) {
 	case float64:
 		if ok && d != 0 {

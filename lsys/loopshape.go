@@ -136,7 +136,7 @@ func LoopShapes(ctx context.Context, P, C *System, opt FrequencyOptions) (*LoopS
 			ls.Notes = append(ls.Notes, note)
 		}
 		if err == nil {
-			if cl, err := Feedback(Lc, one, -1); err == nil {
+			if cl, err := CloseLoop(Lc, one, -1); err == nil {
 				ls.ClosedChecked = true
 				ls.ClosedStable = Stable(cl)
 			}
