@@ -17,6 +17,8 @@ import (
 	"sort"
 	"strings"
 	"sync"
+
+	"lsys/lsys"
 )
 
 // Bundle is a MIME bundle: data keyed by MIME type, plus per-type metadata.
@@ -49,6 +51,8 @@ type Renderer func(v any, opt Options) Bundle
 // Options tune rendering; the zero value is the default.
 type Options struct {
 	PNG bool // add a PNG beside SVG plots
+
+	chart *lsys.Chart // chart options of a chart(...) value, applied by rpBundle
 }
 
 var (

@@ -939,6 +939,7 @@ func rpBundle(text string, f *rpFigure, opt Options) (b Bundle) {
 			b.Data[Text] = text + "\n(chart not drawn: the data could not be plotted)"
 		}
 	}()
+	applyChart(f, opt.chart)
 	b.Data[SVG] = string(f.SVG())
 	if opt.PNG {
 		b.Data[PNG] = base64.StdEncoding.EncodeToString(f.PNG())

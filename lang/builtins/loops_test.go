@@ -66,3 +66,25 @@ func TestLocusProgressStopped(t *testing.T) {
 		t.Errorf("stale progress left: displays %v, updates %v", r.Displays, r.Updates)
 	}
 }
+
+// chart(...) carries its options and picks outputs by name.
+func TestChartBuiltin(t *testing.T) {
+	const g = "G = system([[-1, 0], [0, -3]], [[1], [1]], [[1, 0], [0, 1]], outputs: [\"near\", \"far\"])\n"
+	c := stRun(t, g+`chart(response(G, step), title: "t", outputs: ["far"], xmin: 0.1, xscale: "log", width: 12, height: 6)`).(*lsys.Chart)
+	r := c.Value.(*lsys.Response)
+	if c.Title != "t" || c.XMin != 0.1 || !math.IsNaN(c.XMax) || c.XScale != "log" || len(r.Outputs) != 1 || r.Outputs[0] != "far" {
+		t.Errorf("chart %+v outputs %v", c, r.Outputs)
+	}
+	// the step response of 1/(s + 3) settles at 1/3 (closed form)
+	if v := r.Final.At(0, 0); math.Abs(v-1.0/3) > 1e-15 {
+		t.Errorf("final %v", v)
+	}
+	f := stRun(t, g+`chart(frequency(G), outputs: ["far", "near"])`).(*lsys.Chart).Value.(*lsys.FrequencyResponse)
+	if f.Outputs[0] != "far" || len(f.G[0]) != 2 {
+		t.Errorf("frequency outputs %v", f.Outputs)
+	}
+	stRunErr(t, g+`chart(response(G, step), outputs: ["mid"])`, `there is no output "mid"`)
+	stRunErr(t, "chart(3)", "has no chart")
+	stRunErr(t, g+`chart(response(G, step), xscale: "cubic")`, `"log" or "linear"`)
+	stRunErr(t, g+`chart(response(G, step), width: 10)`, "width and height go together")
+}
