@@ -127,7 +127,7 @@ func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) 
 			// 5 turns: the grid would need ever more points to follow
 			// it, and nothing of the loop is left to see
 			hi = math.Max(delayTop/opt.Delay, lo*10)
-			rule += fmt.Sprintf("; stopped at %g rad/s, where the dead time has turned the phase by %g rad", hi, hi*opt.Delay)
+			rule += fmt.Sprintf("; stopped at %.4g rad/s, where the dead time has turned the phase by %.3g rad", hi, hi*opt.Delay)
 		}
 	}
 	if opt.From != 0 || opt.To != 0 {
@@ -222,7 +222,7 @@ func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) 
 	}
 	f.Rule = rule + "; 20 points per decade, refined where the magnitude moves more than 1 dB or the phase more than 5 degrees between points"
 	if opt.Delay > 0 {
-		f.Rule += fmt.Sprintf("; dead time %g s included exactly as e^(-jwT)", opt.Delay)
+		f.Rule += fmt.Sprintf("; dead time %.6g s included exactly as e^(-jwT)", opt.Delay)
 	}
 	return f, nil
 }

@@ -88,3 +88,16 @@ func TestChartBuiltin(t *testing.T) {
 	stRunErr(t, g+`chart(response(G, step), xscale: "cubic")`, `"log" or "linear"`)
 	stRunErr(t, g+`chart(response(G, step), width: 10)`, "width and height go together")
 }
+
+// The modulus margin of loopshapes and of margins are the same figure,
+// computed apart (1/max|S| on the loop-shape grid; min |1 + L| in margins),
+// with and without a dead time.
+func TestModulusMarginAgrees(t *testing.T) {
+	for _, d := range []string{"", ", delay: 0.05"} {
+		ls := stRun(t, "P = 3/((s + 1)*(0.2*s + 1))\nloopshapes(P, threeterm(1.5, integral: 0.7)"+d+")").(*lsys.LoopShape)
+		mg := stRun(t, "P = 3/((s + 1)*(0.2*s + 1))\nmargins(P * threeterm(1.5, integral: 0.7)"+d+")").(*lsys.Margins)
+		if math.Abs(ls.ModulusMargin-mg.ModulusMargin) > 1e-9*mg.ModulusMargin {
+			t.Errorf("delay%q: loopshapes %.12g, margins %.12g", d, ls.ModulusMargin, mg.ModulusMargin)
+		}
+	}
+}
