@@ -7,10 +7,11 @@ import (
 )
 
 // unresolvedNote says which modes a continuous response with the given
-// step does not resolve (fewer than 20 samples per period 2 pi/|s|), for a
-// horizon or step given by the user: the automatic choice says it in its
-// rule, and an explicit until: of 1e6 s must not silently step over a
-// 2 rad/s resonance. Empty when every mode is resolved.
+// step does not resolve (fewer than 20 samples per period 2 pi/|s|), for
+// a horizon given without a step (the step is then ours): the automatic
+// choice says it in its rule, and an explicit until: of 1e6 s must not
+// silently step over a 2 rad/s resonance. Empty when every mode is
+// resolved.
 func unresolvedNote(g *System, step float64) string {
 	if g.Sampled() || !(step > 0) {
 		return ""
