@@ -31,6 +31,9 @@ func renderLoopShape(v any, opt Options) Bundle {
 	switch {
 	case !ls.ClosedChecked:
 		verdict = "closed-loop stability not judged"
+	case !ls.ClosedStable && ls.ClosedBoundary > 0:
+		verdict = fmt.Sprintf("closed loop (negative unity feedback) is marginally stable: %d %s on the stability boundary, none beyond it (often a state the loop does not see, such as a position under a speed loop)",
+			ls.ClosedBoundary, plural(ls.ClosedBoundary, "pole", "poles"))
 	case !ls.ClosedStable:
 		verdict = "closed loop (negative unity feedback) is UNSTABLE"
 	}
@@ -65,6 +68,6 @@ func renderLoopShape(v any, opt Options) Bundle {
 	if notes == nil {
 		notes = []string{}
 	}
-	b.Data[JSON] = map[string]any{"peaks": peaks, "modulus_margin": jsonNum(ls.ModulusMargin), "closed_loop_stable": ls.ClosedStable, "notes": notes, "delay": f.Delay}
+	b.Data[JSON] = map[string]any{"peaks": peaks, "modulus_margin": jsonNum(ls.ModulusMargin), "closed_loop_stable": ls.ClosedStable, "closed_loop_boundary_poles": ls.ClosedBoundary, "notes": notes, "delay": f.Delay}
 	return b
 }

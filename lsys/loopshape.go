@@ -31,7 +31,12 @@ type LoopShape struct {
 	ModulusMargin float64
 	ClosedStable  bool // whether the closed loop is stable (the peaks mean something only then)
 	ClosedChecked bool
-	Notes         []string
+	// ClosedBoundary counts closed-loop poles on the stability boundary
+	// when none lies beyond it and none on it is defective (marginally
+	// stable, as LoopMargins says: typically a state the loop does not
+	// see, such as a position under a speed loop).
+	ClosedBoundary int
+	Notes          []string
 }
 
 // LoopShapes evaluates S, T, PS and CS of the loop P C (both SISO). The
@@ -137,12 +142,17 @@ func LoopShapes(ctx context.Context, P, C *System, opt FrequencyOptions) (*LoopS
 		}
 		if err == nil {
 			if cl, err := CloseLoop(Lc, one, -1); err == nil {
-				ls.ClosedChecked = true
-				ls.ClosedStable = Stable(cl)
+				if st, err := StabilityOf(cl); err == nil {
+					ls.ClosedChecked = true
+					ls.ClosedStable = st.Stable
+					if st.Marginal {
+						ls.ClosedBoundary = st.Boundary
+					}
+				}
 			}
 		}
 	}
-	if ls.ClosedChecked && !ls.ClosedStable {
+	if ls.ClosedChecked && !ls.ClosedStable && ls.ClosedBoundary == 0 {
 		ls.Notes = append(ls.Notes, "the closed loop is unstable: the peaks and the modulus margin describe no working loop")
 	}
 	return ls, nil

@@ -4,7 +4,10 @@ import (
 	"context"
 	"math"
 	"math/cmplx"
+	"strings"
 	"testing"
+
+	"gonum.org/v1/gonum/mat"
 )
 
 // L = wn^2/(s (s + 2 z wn)): T is the standard second-order system, whose
@@ -68,5 +71,27 @@ func TestLoopShapesSecondOrder(t *testing.T) {
 	}
 	if !ls.ClosedChecked || ls.ClosedStable || len(ls.Notes) == 0 {
 		t.Errorf("unstable loop: checked %v stable %v notes %q", ls.ClosedChecked, ls.ClosedStable, ls.Notes)
+	}
+}
+
+// A speed loop around an axis whose angle the loop does not see: the
+// closed loop keeps the angle's pole at 0 (marginally stable, as margins
+// says), not "unstable".
+func TestLoopShapesMarginal(t *testing.T) {
+	P, err := FromMatrices(mat.NewDense(2, 2, []float64{0, 1, 0, -1}), mat.NewDense(2, 1, []float64{0, 1}), mat.NewDense(1, 2, []float64{0, 1}), nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	C := siso(t, []float64{2}, []float64{1})
+	ls, err := LoopShapes(context.Background(), P, C, FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	unstable := false
+	for _, n := range ls.Notes {
+		unstable = unstable || strings.Contains(n, "unstable")
+	}
+	if !ls.ClosedChecked || ls.ClosedStable || ls.ClosedBoundary != 1 || unstable {
+		t.Errorf("checked %v stable %v boundary %d notes %q", ls.ClosedChecked, ls.ClosedStable, ls.ClosedBoundary, ls.Notes)
 	}
 }
