@@ -1,0 +1,228 @@
+package lsys
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"math/cmplx"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// ModalModel is a second-order model truncated to its first r undamped
+// modes: states eta_j (modal displacements, shapes mass-normalized) and
+// their rates, each mode damped by its own ratio (the diagonal of
+// Phi^T D Phi; Modes.Coupling says what the diagonal leaves out).
+type ModalModel struct {
+	System *System
+	Modes  *StructuralModes // all modes of the full model
+	Kept   int
+	// Static: the residual flexibility of the truncated elastic modes,
+	// sum_{j>r} phi_j phi_j^T / w_j^2, is added to the displacement
+	// outputs as a feedthrough (the static correction; Craig & Kurdila,
+	// Fundamentals of Structural Dynamics, 2006, section 13.4). It is
+	// exact at zero frequency and leaves velocity and acceleration outputs
+	// unchanged.
+	Static bool
+	Check  *ModalCheck // nil when the full model is too large to compare
+}
+
+// ModalCheck compares the modal model with the full one over frequency on
+// the channel where they differ most.
+type ModalCheck struct {
+	W               []float64 // rad/s, log-spaced
+	Full, Reduced   []float64 // |G| of the channel
+	Error           []float64 // |G_full - G_reduced|
+	Output, Input   int       // the channel (0-based)
+	Band            float64   // rad/s: the highest kept mode; errors are judged below it
+	MaxRelErr       float64   // max over the band of |G_full - G_r| / max |G_full|, worst channel
+	OutName, InName string
+}
+
+// ModalCheckMaxDOF is the largest full model compared over frequency: the
+// full first-order model (2n states) is reduced to Hessenberg form once,
+// about (20/3) (2n)^3 flops, a few seconds at this size.
+const ModalCheckMaxDOF = 300
+
+// NewModalModel keeps the first r modes of s (rigid-body modes included:
+// none may be truncated) with the static correction when static is set.
+func NewModalModel(ctx context.Context, s *SecondOrder, r int, static bool) (*ModalModel, error) {
+	n := s.N()
+	if r < 1 || r > n {
+		return nil, fmt.Errorf("keep between 1 and %d modes, not %d", n, r)
+	}
+	sm, err := StructuralModesOf(s, nil, nil)
+	if err != nil {
+		return nil, err
+	}
+	for j := r; j < n; j++ {
+		if sm.Rigid[j] {
+			return nil, fmt.Errorf("mode %d is a rigid-body mode and would be truncated; keep at least %d modes", j+1, j+1)
+		}
+	}
+	m, p := s.Inputs(), s.Outputs()
+	phi := sm.Shapes.Slice(0, n, 0, r).(*mat.Dense)
+	var pf, op mat.Dense
+	pf.Mul(phi.T(), s.F) // r x m
+	op.Mul(s.Out, phi)   // p x r
+	var dp, g mat.Dense
+	dp.Mul(s.D, phi)
+	g.Mul(phi.T(), &dp) // modal damping
+	A := mat.NewDense(2*r, 2*r, nil)
+	B := mat.NewDense(2*r, m, nil)
+	C := mat.NewDense(p, 2*r, nil)
+	D := mat.NewDense(p, m, nil)
+	for j := 0; j < r; j++ {
+		A.Set(j, r+j, 1)
+		A.Set(r+j, j, -sm.Lambda[j]*boolf(!sm.Rigid[j]))
+		A.Set(r+j, r+j, -g.At(j, j))
+		for k := 0; k < m; k++ {
+			B.Set(r+j, k, pf.At(j, k))
+		}
+	}
+	for i := 0; i < p; i++ {
+		for j := 0; j < r; j++ {
+			c := op.At(i, j)
+			switch s.Measure[i] {
+			case MeasureDisplacement:
+				C.Set(i, j, c)
+			case MeasureVelocity:
+				C.Set(i, r+j, c)
+			case MeasureAcceleration:
+				C.Set(i, j, c*A.At(r+j, j))
+				C.Set(i, r+j, c*A.At(r+j, r+j))
+				for k := 0; k < m; k++ {
+					D.Set(i, k, D.At(i, k)+c*pf.At(j, k))
+				}
+			}
+		}
+	}
+	if static && r < n {
+		// R F with R = sum over truncated modes of phi phi^T / w^2.
+		rest := sm.Shapes.Slice(0, n, r, n).(*mat.Dense)
+		var rf mat.Dense
+		rf.Mul(rest.T(), s.F) // (n-r) x m
+		for j := 0; j < n-r; j++ {
+			inv := 1 / sm.Lambda[r+j]
+			for k := 0; k < m; k++ {
+				rf.Set(j, k, rf.At(j, k)*inv)
+			}
+		}
+		var corr, orr mat.Dense
+		orr.Mul(s.Out, rest)
+		corr.Mul(&orr, &rf)
+		for i := 0; i < p; i++ {
+			if s.Measure[i] != MeasureDisplacement {
+				continue
+			}
+			for k := 0; k < m; k++ {
+				D.Set(i, k, D.At(i, k)+corr.At(i, k))
+			}
+		}
+	}
+	sys, err := NewSystem(2*r, m, p, A, B, C, D, 0)
+	if err != nil {
+		return nil, err
+	}
+	states := make([]string, 2*r)
+	for j := 0; j < r; j++ {
+		states[j] = fmt.Sprintf("mode%d", j+1)
+		states[r+j] = fmt.Sprintf("mode%d'", j+1)
+	}
+	if sys, err = sys.WithNames(states, s.InputNames, s.OutputNames); err != nil {
+		return nil, err
+	}
+	mm := &ModalModel{System: sys, Modes: sm, Kept: r, Static: static}
+	if n <= ModalCheckMaxDOF && m > 0 && p > 0 {
+		full, err := s.System()
+		if err != nil {
+			return nil, err
+		}
+		if mm.Check, err = compareModal(ctx, full, sys, sm, r); err != nil {
+			return nil, err
+		}
+	}
+	return mm, nil
+}
+
+func boolf(b bool) float64 {
+	if b {
+		return 1
+	}
+	return 0
+}
+
+// compareModal evaluates both models on a log grid from a tenth of the
+// lowest elastic frequency to three times the highest kept one.
+func compareModal(ctx context.Context, full, red *System, sm *StructuralModes, r int) (*ModalCheck, error) {
+	lo, hi := 0.0, 0.0
+	for j, w := range sm.Omega {
+		if !sm.Rigid[j] && w > 0 {
+			if lo == 0 {
+				lo = w
+			}
+			if j < r {
+				hi = w
+			}
+		}
+	}
+	if lo == 0 {
+		return nil, nil
+	}
+	band := hi
+	if hi == 0 {
+		hi = lo
+		band = lo / 10
+	}
+	wlo, whi := lo/10, 3*hi
+	const npts = 400
+	ef, er := newFreqEval(full), newFreqEval(red)
+	p, m := full.P(), full.M()
+	gf := make([][]complex128, npts)
+	gr := make([][]complex128, npts)
+	w := make([]float64, npts)
+	for i := 0; i < npts; i++ {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		w[i] = wlo * math.Pow(whi/wlo, float64(i)/float64(npts-1))
+		var err error
+		if gf[i], err = ef.at(w[i]); err != nil {
+			return nil, fmt.Errorf("the full model at %g rad/s: %w", w[i], err)
+		}
+		if gr[i], err = er.at(w[i]); err != nil {
+			return nil, fmt.Errorf("the modal model at %g rad/s: %w", w[i], err)
+		}
+	}
+	ck := &ModalCheck{Band: band, MaxRelErr: -1}
+	for o := 0; o < p; o++ {
+		for in := 0; in < m; in++ {
+			k := o*m + in
+			peak, e := 0.0, 0.0
+			for i := range w {
+				if w[i] <= band*(1+1e-12) {
+					peak = math.Max(peak, cmplx.Abs(gf[i][k]))
+					e = math.Max(e, cmplx.Abs(gf[i][k]-gr[i][k]))
+				}
+			}
+			rel := 0.0
+			if peak > 0 {
+				rel = e / peak
+			} else if e > 0 {
+				rel = math.Inf(1)
+			}
+			if rel > ck.MaxRelErr {
+				ck.MaxRelErr, ck.Output, ck.Input = rel, o, in
+			}
+		}
+	}
+	k := ck.Output*m + ck.Input
+	for i := range w {
+		ck.W = append(ck.W, w[i])
+		ck.Full = append(ck.Full, cmplx.Abs(gf[i][k]))
+		ck.Reduced = append(ck.Reduced, cmplx.Abs(gr[i][k]))
+		ck.Error = append(ck.Error, cmplx.Abs(gf[i][k]-gr[i][k]))
+	}
+	ck.OutName, ck.InName = full.OutputNames[ck.Output], full.InputNames[ck.Input]
+	return ck, nil
+}
