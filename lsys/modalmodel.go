@@ -14,9 +14,9 @@ import (
 // their rates, each mode damped by its own ratio (the diagonal of
 // Phi^T D Phi; Modes.Coupling says what the diagonal leaves out).
 type ModalModel struct {
-	System *System
-	Modes  *StructuralModes // all modes of the full model
-	Kept   int
+	Sys   *System
+	Modes *StructuralModes // all modes of the full model
+	Kept  int
 	// Static: the residual flexibility of the truncated elastic modes,
 	// sum_{j>r} phi_j phi_j^T / w_j^2, is added to the displacement
 	// outputs as a feedthrough (the static correction; Craig & Kurdila,
@@ -132,7 +132,7 @@ func NewModalModel(ctx context.Context, s *SecondOrder, r int, static bool) (*Mo
 	if sys, err = sys.WithNames(states, s.InputNames, s.OutputNames); err != nil {
 		return nil, err
 	}
-	mm := &ModalModel{System: sys, Modes: sm, Kept: r, Static: static}
+	mm := &ModalModel{Sys: sys, Modes: sm, Kept: r, Static: static}
 	if n <= ModalCheckMaxDOF && m > 0 && p > 0 {
 		full, err := s.System()
 		if err != nil {

@@ -362,3 +362,12 @@ func (s *SecondOrder) WithRayleigh(w1, z1, w2, z2 float64) (*SecondOrder, error)
 	c.Damping = DampingSpec{Kind: DampingRayleigh, Alpha: alpha, Beta: beta, W1: w1, W2: w2, Z1: z1, Z2: z2}
 	return &c, nil
 }
+
+// FirstOrder is a model kept in another form that converts to a
+// first-order system where a first-order analysis needs one.
+type FirstOrder interface {
+	System() (*System, error)
+}
+
+// System is the modal model's first-order system.
+func (m *ModalModel) System() (*System, error) { return m.Sys, nil }

@@ -328,3 +328,52 @@ func MAC(A, B *mat.Dense) (*mat.Dense, error) {
 	}
 	return out, nil
 }
+
+// ShapePlot asks for charts of mode shapes: each chosen mode's deflection
+// over the undeformed structure, for a line-like structure (one
+// deflection per node along a line) or a grid-like one (Grid = nx, ny
+// nodes, node i + nx j, one out-of-plane deflection each).
+type ShapePlot struct {
+	Modes *StructuralModes
+	Which []int     // modes (0-based)
+	DOFs  []int     // the DOFs drawn, in node order (0-based); nil: all
+	X     []float64 // line-like: node positions (nil: 1, 2, ...)
+	Grid  [2]int    // grid-like: nodes along x and y; 0, 0 for line-like
+}
+
+// NewShapePlot checks the request against the modes.
+func NewShapePlot(sm *StructuralModes, which, dofs []int, x []float64, grid [2]int) (*ShapePlot, error) {
+	n, r := sm.Shapes.Dims()
+	if len(which) == 0 {
+		for j := 0; j < r && j < 4; j++ {
+			which = append(which, j)
+		}
+	}
+	for _, j := range which {
+		if j < 0 || j >= r {
+			return nil, fmt.Errorf("mode %d is not among the %d modes computed", j+1, r)
+		}
+	}
+	if dofs == nil {
+		dofs = make([]int, n)
+		for i := range dofs {
+			dofs[i] = i
+		}
+	}
+	for _, d := range dofs {
+		if d < 0 || d >= n {
+			return nil, fmt.Errorf("degree of freedom %d is outside 1..%d", d+1, n)
+		}
+	}
+	if grid != [2]int{} {
+		if grid[0] < 2 || grid[1] < 2 || grid[0]*grid[1] != len(dofs) {
+			return nil, fmt.Errorf("a grid of %d x %d nodes needs %d degrees of freedom drawn, not %d (give dofs: the one deflection of each node)", grid[0], grid[1], grid[0]*grid[1], len(dofs))
+		}
+		if x != nil {
+			return nil, errors.New("node positions are for line-like structures; a grid is drawn on its own spacing")
+		}
+	} else if x != nil && len(x) != len(dofs) {
+		return nil, fmt.Errorf("%d positions for %d nodes drawn", len(x), len(dofs))
+	}
+	return &ShapePlot{Modes: sm, Which: which, DOFs: dofs, X: x, Grid: grid}, nil
+}

@@ -189,7 +189,7 @@ func TestModalModel(t *testing.T) {
 	}
 	for _, w := range []float64{0.3, 7, 31, 120} {
 		a, _ := GainAt(full, w)
-		b, _ := GainAt(all.System, w)
+		b, _ := GainAt(all.Sys, w)
 		for i := range a {
 			if d := cmplxAbs(a[i] - b[i]); d > 1e-9*cmplxAbs(a[i]) {
 				t.Errorf("all modes, w=%g channel %d: %v vs %v", w, i, a[i], b[i])
@@ -201,7 +201,7 @@ func TestModalModel(t *testing.T) {
 		t.Fatal(err)
 	}
 	a, _ := GainAt(full, 0)
-	b, _ := GainAt(part.System, 0)
+	b, _ := GainAt(part.Sys, 0)
 	if d := cmplxAbs(a[0] - b[0]); d > 1e-12*cmplxAbs(a[0]) {
 		t.Errorf("static correction: DC gain %v vs full %v", b[0], a[0])
 	}
@@ -237,7 +237,6 @@ func TestModalModel(t *testing.T) {
 		t.Errorf("modal damping is classical, coupling %g", mm.Coupling)
 	}
 }
-
 
 // A simply supported Euler-Bernoulli beam in 40 cubic (Hermite) elements
 // with consistent mass: the lowest frequencies approach

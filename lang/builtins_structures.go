@@ -1,0 +1,655 @@
+package lang
+
+// Built-ins for structures as engineers get them: second-order models
+// M q'' + D q' + K q = F u, their undamped (normal) modes, modal models,
+// large sparse models from Matrix Market files and the modal assurance
+// criterion. Written against the public call API only.
+
+import (
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"gonum.org/v1/gonum/mat"
+
+	"lsys/lsys"
+)
+
+func init() {
+	for _, b := range structuresBuiltins() {
+		Register(b)
+	}
+	RegisterType((*lsys.SecondOrder)(nil), TypeInfo{Name: "a second-order model",
+		Fields: []string{"M", "D", "K", "F", "sensors", "measure", "dofs", "inputs", "outputs", "system"},
+		Field: func(v any, name string) (any, bool) {
+			s := v.(*lsys.SecondOrder)
+			switch name {
+			case "M":
+				return mat.DenseCopyOf(s.M), true
+			case "D":
+				return mat.DenseCopyOf(s.D), true
+			case "K":
+				return mat.DenseCopyOf(s.K), true
+			case "F":
+				return mat.DenseCopyOf(s.F), true
+			case "sensors":
+				return mat.DenseCopyOf(s.Out), true
+			case "measure":
+				return stringList(s.Measure), true
+			case "dofs":
+				return stringList(s.DOFNames), true
+			case "inputs":
+				return stringList(s.InputNames), true
+			case "outputs":
+				return stringList(s.OutputNames), true
+			case "system":
+				g, err := s.System()
+				if err != nil {
+					return nil, false
+				}
+				return g, true
+			}
+			return nil, false
+		}})
+	RegisterType((*lsys.StructuralModes)(nil), TypeInfo{Name: "a table of normal modes",
+		Fields: []string{"frequencies", "omega", "damping", "shapes", "rigid", "modalmass", "participation", "effective", "total", "cumulative", "directions"},
+		Field: func(v any, name string) (any, bool) {
+			m := v.(*lsys.StructuralModes)
+			switch name {
+			case "frequencies":
+				return realVector(m.Freq), true
+			case "omega":
+				return realVector(m.Omega), true
+			case "damping":
+				return realVector(m.Damping), true
+			case "shapes":
+				return mat.DenseCopyOf(m.Shapes), true
+			case "rigid":
+				l := &List{}
+				for _, r := range m.Rigid {
+					l.Items = append(l.Items, r)
+				}
+				return l, true
+			case "modalmass":
+				return realVector(m.ModalMass), true
+			case "participation", "effective", "cumulative":
+				src := map[string][][]float64{"participation": m.Participation, "effective": m.EffectiveMass, "cumulative": m.Cumulative}[name]
+				return columns(src), true
+			case "total":
+				return realVector(m.TotalMass), true
+			case "directions":
+				return stringList(m.Directions), true
+			}
+			return nil, false
+		}})
+	RegisterType((*lsys.ModalModel)(nil), TypeInfo{Name: "a modal model",
+		Fields: []string{"system", "kept", "error", "modes"},
+		Field: func(v any, name string) (any, bool) {
+			m := v.(*lsys.ModalModel)
+			switch name {
+			case "system":
+				return m.Sys, true
+			case "kept":
+				return float64(m.Kept), true
+			case "error":
+				if m.Check == nil {
+					return math.NaN(), true
+				}
+				return m.Check.MaxRelErr, true
+			case "modes":
+				return m.Modes, true
+			}
+			return nil, false
+		}})
+	RegisterType((*lsys.SparseSym)(nil), TypeInfo{Name: "a sparse symmetric matrix", Fields: []string{"size", "nonzeros"},
+		Field: func(v any, name string) (any, bool) {
+			a := v.(*lsys.SparseSym)
+			switch name {
+			case "size":
+				return float64(a.N), true
+			case "nonzeros":
+				return float64(a.NNZ()), true
+			}
+			return nil, false
+		}})
+	RegisterType((*lsys.MACMatrix)(nil), TypeInfo{Name: "a MAC matrix", Fields: []string{"values"},
+		Field: func(v any, name string) (any, bool) {
+			if name == "values" {
+				return mat.DenseCopyOf(v.(*lsys.MACMatrix).Values), true
+			}
+			return nil, false
+		}})
+	RegisterType((*lsys.ShapePlot)(nil), TypeInfo{Name: "a mode-shape chart"})
+}
+
+func stringList(s []string) *List {
+	l := &List{}
+	for _, v := range s {
+		l.Items = append(l.Items, v)
+	}
+	return l
+}
+
+// columns is a matrix with one column per direction, one row per mode.
+func columns(src [][]float64) any {
+	if len(src) == 0 {
+		return &List{}
+	}
+	m := mat.NewDense(len(src[0]), len(src), nil)
+	for k, col := range src {
+		m.SetCol(k, col)
+	}
+	return m
+}
+
+// A three-storey frame as masses and storey stiffnesses (invented).
+const soFrame = "M = [[2000, 0, 0], [0, 2000, 0], [0, 0, 1500]]\n" +
+	"K = [[6e6, -3e6, 0], [-3e6, 5e6, -2e6], [0, -2e6, 2e6]]\n" +
+	"frame = secondorder(M, K, [0, 0, 1], damping: 0.02, dofs: [\"floor1\", \"floor2\", \"roof\"], inputs: [\"wind\"], outputs: [\"roof\"], sensors: [[0, 0, 1]])\n"
+
+// A free-free chain (one rigid-body mode) as a sparse lattice.
+const soChain = "chain = springlattice([40], 1e4, 0.5, grounded: false)\n"
+
+func structuresBuiltins() []*Builtin {
+	return []*Builtin{
+		{
+			Name: "secondorder", Group: GroupSystems,
+			Params: []Param{
+				{Name: "M", Doc: "mass matrix, n x n, symmetric positive definite"},
+				{Name: "K", Doc: "stiffness matrix, n x n, symmetric"},
+				{Name: "F", Doc: "force map, n x m: column j is how input j loads the degrees of freedom"},
+				{Name: "sensors", Doc: "output map, p x n: row i is the combination of DOFs output i measures (default: every DOF)", Optional: true},
+				{Name: "measure", Doc: `"displacement", "velocity" or "acceleration", or a list with one per output`, Default: "displacement"},
+				{Name: "damping", Doc: "a damping matrix D (n x n), one damping ratio for every mode, or a vector of ratios, one per mode", Optional: true},
+				{Name: "dofs", Doc: "names of the degrees of freedom", Optional: true},
+				{Name: "inputs", Doc: "names of the inputs", Optional: true},
+				{Name: "outputs", Doc: "names of the outputs", Optional: true},
+			},
+			Help: "A structural model M q'' + D q' + K q = F u with outputs measuring displacements, velocities or accelerations; used as a system everywhere.",
+			Doc: "Keeps the second-order form: `normalmodes` and `modalmodel` work on M, D and K directly. Wherever a " +
+				"system is needed (`modes`, `step`, `frequency`, `series`, ...) it is converted to first order with states " +
+				"q and q' (named after the DOFs, rates with a prime): A = [0 I; -M^-1 K, -M^-1 D], M^-1 applied through its " +
+				"Cholesky factor. An acceleration output gets the feedthrough Ca M^-1 F.\n\n" +
+				"Damping: a matrix is used as it is; ratios give modal damping D = M Phi diag(2 zeta_j w_j) Phi^T M " +
+				"(classical, exactly those ratios; rigid-body modes undamped); `rayleigh(model, ...)` fits alpha M + beta K. " +
+				"M, K and D must be symmetric within 1e-10 of their largest entry, M positive definite (every DOF needs mass).",
+			Examples: []string{soFrame + "frame", soFrame + "modes(frame)"},
+			Fn:       fnSecondOrder,
+		},
+		{
+			Name: "rayleigh", Group: GroupSystems,
+			Params: []Param{
+				{Name: "model", Doc: "a second-order model"},
+				{Name: "f1", Doc: "first frequency, Hz"},
+				{Name: "zeta1", Doc: "damping ratio at f1"},
+				{Name: "f2", Doc: "second frequency, Hz"},
+				{Name: "zeta2", Doc: "damping ratio at f2"},
+			},
+			Help: "The model with Rayleigh damping D = alpha M + beta K fitted to two damping ratios at two frequencies.",
+			Doc: "A mode at w (rad/s) then has the ratio alpha/(2w) + beta w/2: exactly zeta1 at f1 and zeta2 at f2, more " +
+				"below f1 (the alpha M part) and above f2 (the beta K part). Negative coefficients are refused (they would " +
+				"damp some modes negatively). `normalmodes` shows alpha, beta and the two fitting points.",
+			Examples: []string{soFrame + "normalmodes(rayleigh(frame, 2, 0.02, 10, 0.03))"},
+			Fn: func(c *Call) (any, error) {
+				var s *lsys.SecondOrder
+				if err := secondOrderArg(c, "model", &s); err != nil {
+					return nil, err
+				}
+				var f1, z1, f2, z2 float64
+				if err := c.Bind("f1", &f1, "zeta1", &z1, "f2", &f2, "zeta2", &z2); err != nil {
+					return nil, err
+				}
+				return s.WithRayleigh(2*math.Pi*f1, z1, 2*math.Pi*f2, z2)
+			},
+		},
+		{
+			Name: "normalmodes", Group: GroupAnalysis,
+			Params: []Param{
+				{Name: "model", Doc: "a second-order model"},
+				{Name: "directions", Doc: "excitation directions, n x d: each column a rigid displacement pattern (e.g. all ones for a translation along a chain)", Optional: true},
+				{Name: "along", Doc: "names of the directions", Optional: true},
+			},
+			Help: "The undamped modes of a second-order model: frequencies, damping ratios, mass-normalized shapes, participation and effective mass per direction.",
+			Doc: "Solves K phi = w^2 M phi (Cholesky of M, symmetric QR; Golub & Van Loan 2013, 8.7.2). Shapes are " +
+				"mass-normalized (Phi^T M Phi = I; the display shows the largest deviation) and signed so their largest " +
+				"entry is positive. A mode is rigid-body when its w^2 is at most 1e-9 of the largest eigenvalue. Damping " +
+				"ratios are phi^T D phi / (2w); the coupling figure says how far D is from classical damping.\n\n" +
+				"With directions r: participation Gamma_j = phi_j^T M r, effective mass Gamma_j^2 (summing to r^T M r " +
+				"over all modes) and the cumulative fraction; a common acceptance figure is 90 % of the total mass in " +
+				"each direction (common practice). Modal mass is phi^T M phi with the shape scaled to a largest entry of 1. " +
+				"For large sparse models use `lowestmodes`.",
+			Examples: []string{soFrame + "normalmodes(frame, [1, 1, 1], along: [\"x\"])"},
+			Fn: func(c *Call) (any, error) {
+				var s *lsys.SecondOrder
+				if err := secondOrderArg(c, "model", &s); err != nil {
+					return nil, err
+				}
+				R, dirs, err := directionsArg(c)
+				if err != nil {
+					return nil, err
+				}
+				return lsys.StructuralModesOf(s, R, dirs)
+			},
+		},
+		{
+			Name: "lowestmodes", Group: GroupAnalysis,
+			Params: []Param{
+				{Name: "K", Doc: "stiffness: a sparse matrix (readmtx, springlattice) or a matrix"},
+				{Name: "M", Doc: "mass: a sparse matrix or a matrix, symmetric positive definite"},
+				{Name: "count", Doc: "how many modes", Default: 10.0},
+				{Name: "near", Doc: "a frequency in Hz: the modes nearest it instead of the lowest", Optional: true},
+				{Name: "directions", Doc: "excitation directions, n x d", Optional: true},
+				{Name: "along", Doc: "names of the directions", Optional: true},
+				{Name: "dofs", Doc: "names of the degrees of freedom", Optional: true},
+			},
+			Help: "The lowest modes (or those nearest a frequency) of a large sparse model, by shift-and-invert Lanczos on a sparse factorization.",
+			Doc: "Thick-restart Lanczos (Wu & Simon 2000) on (K - sigma M)^-1 M in the M-inner product with full " +
+				"reorthogonalization, as in Grimes, Lewis & Simon (1994); K - sigma M is factored as L D L^T (up-looking, " +
+				"Davis 2005) after a nested-dissection ordering on level structures (George 1973; George & Liu 1981). " +
+				"A Ritz pair is accepted when its residual is at most 1e-10 of its value. sigma is 0 for the lowest modes; " +
+				"when K is singular there (rigid-body modes) it moves to -1e-8 ||K||_1/||M||_1 and the display says so. " +
+				"The display also gives the count of eigenvalues below the shift (Sylvester's inertia of the factor), the " +
+				"largest residual ||K phi - w^2 M phi|| / (||K||_1 ||phi||), the fill of the factor and the memory held. " +
+				"Progress shows while it runs; an interrupt stops it. Rigid-body modes: w^2 at most 1e-9 ||K||_1/||M||_1.",
+			Examples: []string{soChain + "lowestmodes(chain.K, chain.M, count: 4)",
+				soChain + "lowestmodes(chain.K, chain.M, count: 3, near: 20)"},
+			Fn: fnLowestModes,
+		},
+		{
+			Name: "modalmodel", Group: GroupAnalysis,
+			Params: []Param{
+				{Name: "model", Doc: "a second-order model"},
+				{Name: "count", Doc: "how many modes to keep (the lowest; rigid-body modes must all be kept)"},
+				{Name: "static", Doc: "add the static correction of the truncated modes to displacement outputs", Default: true},
+			},
+			Help: "The first modes of a second-order model as a small state-space system, with the static correction for the rest; compared with the full model over frequency.",
+			Doc: "States are the modal displacements (mass-normalized shapes) and their rates, mode j damped by " +
+				"phi_j^T D phi_j (exact for classical damping). The static correction adds the residual flexibility " +
+				"sum over truncated modes of phi phi^T / w^2 as a feedthrough to displacement outputs, so the static gain " +
+				"is exact (Craig & Kurdila 2006, 13.4). For models up to 300 DOF the display compares the two over " +
+				"frequency on the channel where they differ most, with the largest error up to the highest kept mode " +
+				"relative to the channel's peak. Used as a system wherever one is needed.",
+			Examples: []string{soFrame + "modalmodel(frame, 2)"},
+			Fn: func(c *Call) (any, error) {
+				var s *lsys.SecondOrder
+				if err := secondOrderArg(c, "model", &s); err != nil {
+					return nil, err
+				}
+				var r int
+				static := true
+				if err := c.Bind("count", &r, "static", &static); err != nil {
+					return nil, err
+				}
+				return lsys.NewModalModel(c.Context(), s, r, static)
+			},
+		},
+		{
+			Name: "mac", Group: GroupAnalysis,
+			Params: []Param{
+				{Name: "a", Doc: "shapes: a table of normal modes or a matrix with one shape per column"},
+				{Name: "b", Doc: "shapes to compare with (same number of rows)"},
+			},
+			Help: "The modal assurance criterion between two sets of mode shapes, as a coloured grid with its values.",
+			Doc: "MAC_ij = (a_i^T b_j)^2 / ((a_i^T a_i)(b_j^T b_j)) (Allemang & Brown 1982): 1 for shapes that are " +
+				"parallel, 0 for orthogonal ones. Not mass-weighted, so measured shapes can be compared with a model's; " +
+				"compare a model with itself to see how distinct its shapes look at the measured points.",
+			Examples: []string{soFrame + "m = normalmodes(frame)\nmeasured = [[0.4, 1, 0.9], [0.8, 0.6, -1], [1, -0.9, 0.5]]\nmac(m, measured)"},
+			Fn: func(c *Call) (any, error) {
+				A, an, err := shapesArg(c, "a")
+				if err != nil {
+					return nil, err
+				}
+				B, bn, err := shapesArg(c, "b")
+				if err != nil {
+					return nil, err
+				}
+				v, err := lsys.MAC(A, B)
+				if err != nil {
+					return nil, err
+				}
+				return &lsys.MACMatrix{Values: v, Rows: an, Cols: bn}, nil
+			},
+		},
+		{
+			Name: "modeshapes", Group: GroupAnalysis,
+			Params: []Param{
+				{Name: "modes", Doc: "a table of normal modes"},
+				{Name: "which", Doc: "the modes to draw (numbers from 1; default the first four)", Optional: true},
+				{Name: "dofs", Doc: "the DOFs to draw, one per node in node order (numbers from 1; default all)", Optional: true},
+				{Name: "at", Doc: "positions of the nodes along a line-like structure", Optional: true},
+				{Name: "grid", Doc: "[nx, ny]: nodes of a grid-like structure, node i + nx (j - 1)", Optional: true},
+			},
+			Help: "Charts of mode shapes: each deflected shape over the undeformed structure, for line-like or grid-like structures.",
+			Doc: "Line-like: deflection against position, the undeformed line dashed. Grid-like: a wireframe in an " +
+				"oblique view, deflections drawn upwards, the undeformed grid in grey. Shapes are scaled to a largest " +
+				"drawn deflection of 1 (shape charts show form, not size).",
+			Examples: []string{soChain + "m = lowestmodes(chain.K, chain.M, count: 3)\nmodeshapes(m, which: [2, 3])",
+				"p = springlattice([8, 5], 1e4, 1)\nmodeshapes(lowestmodes(p.K, p.M, count: 2), grid: [8, 5])"},
+			Fn: fnModeShapes,
+		},
+		{
+			Name: "readmtx", Group: GroupOutput,
+			Params: []Param{
+				{Name: "file", Doc: "a .mtx file beside the notebook, or the text of one"},
+			},
+			Help: "A sparse symmetric matrix from a Matrix Market file (coordinate, real or integer, symmetric or general).",
+			Doc: "The NIST exchange format (Boisvert, Pozo & Remington 1996), as finite-element programs export stiffness " +
+				"and mass matrices. Duplicate entries are summed; a general matrix must be symmetric within 1e-10 of its " +
+				"largest entry. The argument may also be the file's text itself (starting with %%MatrixMarket).",
+			Examples: []string{"K = readmtx(\"%%MatrixMarket matrix coordinate real symmetric\\n2 2 3\\n1 1 2e4\\n2 1 -1e4\\n2 2 1e4\")\nK"},
+			Fn:       fnReadMtx,
+		},
+		{
+			Name: "springlattice", Group: GroupSystems,
+			Params: []Param{
+				{Name: "sizes", Doc: "nodes along each axis: [n], [nx, ny] or [nx, ny, nz]"},
+				{Name: "k", Doc: "stiffness of every spring, N/m"},
+				{Name: "m", Doc: "mass of every node, kg"},
+				{Name: "grounded", Doc: "tie the face x = first node to the ground with springs k", Default: true},
+			},
+			Help: "Sparse K and M of a lattice of equal masses and springs (one DOF per node): a test model with the sparsity of beams, plates and solids.",
+			Doc: "Returns a record {K, M} of sparse matrices. Node (i, j, l) is DOF i + nx (j - 1) + nx ny (l - 1). " +
+				"The benchmark of `lowestmodes` uses these lattices.",
+			Examples: []string{"p = springlattice([30, 20], 1e4, 0.2)\np.K"},
+			Fn: func(c *Call) (any, error) {
+				var sizes *mat.Dense
+				var k, m float64
+				grounded := true
+				if err := c.Bind("sizes", &sizes, "k", &k, "m", &m, "grounded", &grounded); err != nil {
+					return nil, err
+				}
+				var dims []int
+				r, cc := sizes.Dims()
+				for i := 0; i < r*cc; i++ {
+					v := sizes.At(i/cc, i%cc)
+					if v != math.Trunc(v) || v < 1 || v > 1<<24 {
+						return nil, c.Errorf("sizes", "Give whole numbers of nodes, e.g. [30, 20].", "springlattice: %s is not a number of nodes", FormatNumber(v))
+					}
+					dims = append(dims, int(v))
+				}
+				if !(k > 0) || !(m > 0) || math.IsInf(k, 0) || math.IsInf(m, 0) {
+					return nil, c.Errorf("", "", "springlattice: k and m must be finite and > 0")
+				}
+				K, M, err := lsys.SpringLattice(dims, k, m, grounded)
+				if err != nil {
+					return nil, err
+				}
+				return &Record{Names: []string{"K", "M"}, Values: []any{K, M}}, nil
+			},
+		},
+	}
+}
+
+func fnSecondOrder(c *Call) (any, error) {
+	var M, K, F, S *mat.Dense
+	if err := c.Bind("M", &M, "K", &K, "F", &F, "sensors", &S); err != nil {
+		return nil, err
+	}
+	var measure []string
+	if err := c.Bind("measure", &measure); err != nil {
+		return nil, err
+	}
+	n, _ := M.Dims()
+	var D *mat.Dense
+	var ratios []float64
+	if c.Has("damping") {
+		switch v := c.Value("damping").(type) {
+		case float64:
+			ratios = []float64{v}
+		case *mat.Dense:
+			r, cc := v.Dims()
+			switch {
+			case r == n && cc == n && n > 1 || r == 1 && cc == 1:
+				D = v
+			case cc == 1 && r == n || r == 1 && cc == n:
+				for i := 0; i < r; i++ {
+					for j := 0; j < cc; j++ {
+						ratios = append(ratios, v.At(i, j))
+					}
+				}
+			default:
+				return nil, c.Errorf("damping", "Give a damping matrix (n x n), one ratio, or one ratio per mode.", "secondorder: damping is %dx%d, but the model has %d degrees of freedom", r, cc, n)
+			}
+		default:
+			return nil, c.Errorf("damping", "Give a damping matrix (n x n), one ratio such as 0.02, or one ratio per mode.", "secondorder: damping must be a matrix or ratios, not %s", typeName(v))
+		}
+	}
+	s, err := lsys.NewSecondOrder(M, D, K, F, S, measure)
+	if err != nil {
+		return nil, err
+	}
+	if ratios != nil {
+		if s, err = s.WithModalDamping(ratios); err != nil {
+			return nil, err
+		}
+	}
+	var dofs, ins, outs []string
+	if err := c.Bind("dofs", &dofs, "inputs", &ins, "outputs", &outs); err != nil {
+		return nil, err
+	}
+	return s.WithNames(dofs, ins, outs)
+}
+
+func secondOrderArg(c *Call, name string, dst **lsys.SecondOrder) error {
+	v := c.Value(name)
+	s, ok := v.(*lsys.SecondOrder)
+	if !ok {
+		return c.Errorf(name, "Build one with secondorder(M, K, F, ...).", "%s: '%s' must be a second-order model, not %s", c.Builtin.Name, name, typeName(v))
+	}
+	*dst = s
+	return nil
+}
+
+func directionsArg(c *Call) (*mat.Dense, []string, error) {
+	var R *mat.Dense
+	var dirs []string
+	if err := c.Bind("directions", &R, "along", &dirs); err != nil {
+		return nil, nil, err
+	}
+	if R == nil && dirs != nil {
+		return nil, nil, c.Errorf("along", "Give the directions too: directions: [1, 1, 1].", "%s: names without directions", c.Builtin.Name)
+	}
+	return R, dirs, nil
+}
+
+// sparseArg reads a sparse matrix, converting a dense one.
+func sparseArg(c *Call, name string) (*lsys.SparseSym, error) {
+	switch v := c.Value(name).(type) {
+	case *lsys.SparseSym:
+		return v, nil
+	case *mat.Dense:
+		r, cc := v.Dims()
+		if r != cc {
+			return nil, c.Errorf(name, "", "%s: '%s' must be square, not %dx%d", c.Builtin.Name, name, r, cc)
+		}
+		var ts []lsys.Triplet
+		for i := 0; i < r; i++ {
+			for j := 0; j < r; j++ {
+				if x := v.At(i, j); x != 0 {
+					ts = append(ts, lsys.Triplet{I: i, J: j, V: x})
+				}
+			}
+		}
+		s, err := lsys.NewSparseSym(r, ts)
+		if err != nil {
+			return nil, c.Errorf(name, "", "%s: %v", c.Builtin.Name, err)
+		}
+		return s, nil
+	case float64:
+		return lsys.NewSparseSym(1, []lsys.Triplet{{I: 0, J: 0, V: v}})
+	default:
+		return nil, c.Errorf(name, "Read it with readmtx(\"file.mtx\") or give a matrix.", "%s: '%s' must be a sparse or dense matrix, not %s", c.Builtin.Name, name, typeName(v))
+	}
+}
+
+func fnLowestModes(c *Call) (any, error) {
+	K, err := sparseArg(c, "K")
+	if err != nil {
+		return nil, err
+	}
+	M, err := sparseArg(c, "M")
+	if err != nil {
+		return nil, err
+	}
+	count := 10
+	var dofs []string
+	if err := c.Bind("count", &count, "dofs", &dofs); err != nil {
+		return nil, err
+	}
+	if dofs != nil && len(dofs) != K.N {
+		return nil, c.Errorf("dofs", "", "lowestmodes: %d names for %d degrees of freedom", len(dofs), K.N)
+	}
+	opt := lsys.SparseModeOptions{Count: count, DOFNames: dofs}
+	if c.Has("near") {
+		var f float64
+		if err := c.Bind("near", &f); err != nil {
+			return nil, err
+		}
+		if f < 0 || math.IsInf(f, 0) {
+			return nil, c.Errorf("near", "", "lowestmodes: near must be a frequency >= 0 Hz")
+		}
+		w := 2 * math.Pi * f
+		opt.Shift, opt.Nearest = w*w, true
+	}
+	R, dirs, err := directionsArg(c)
+	if err != nil {
+		return nil, err
+	}
+	const id = "lsys-lowestmodes-progress"
+	shown, last := false, ""
+	opt.Progress = func(stage string, frac float64, conv int) {
+		var msg string
+		switch stage {
+		case "ordering":
+			msg = fmt.Sprintf("lowestmodes: ordering %d degrees of freedom", K.N)
+		case "factorizing":
+			msg = fmt.Sprintf("lowestmodes: factorizing, %d %%", int(frac*10)*10)
+		case "iterating":
+			msg = fmt.Sprintf("lowestmodes: %d of %d modes converged", conv, count)
+		default:
+			msg = ""
+		}
+		if msg == last {
+			return
+		}
+		last = msg
+		c.Progress(id, msg, !shown)
+		shown = true
+	}
+	return lsys.SparseStructuralModes(c.Context(), K, M, opt, R, dirs)
+}
+
+func shapesArg(c *Call, name string) (*mat.Dense, []string, error) {
+	switch v := c.Value(name).(type) {
+	case *lsys.StructuralModes:
+		_, r := v.Shapes.Dims()
+		labels := make([]string, r)
+		for j := range labels {
+			labels[j] = fmt.Sprintf("%d (%s Hz)", j+1, FormatNumber(roundSig(v.Freq[j], 4)))
+		}
+		return v.Shapes, labels, nil
+	case *mat.Dense:
+		_, r := v.Dims()
+		labels := make([]string, r)
+		for j := range labels {
+			labels[j] = fmt.Sprint(j + 1)
+		}
+		return v, labels, nil
+	default:
+		return nil, nil, c.Errorf(name, "Give normal modes or a matrix with one shape per column.", "mac: '%s' must be mode shapes, not %s", name, typeName(v))
+	}
+}
+
+func roundSig(v float64, d int) float64 {
+	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+		return v
+	}
+	p := math.Pow(10, float64(d-1)-math.Floor(math.Log10(math.Abs(v))))
+	return math.Round(v*p) / p
+}
+
+func indexList(c *Call, name string) ([]int, error) {
+	if !c.Has(name) {
+		return nil, nil
+	}
+	var m *mat.Dense
+	if err := c.Bind(name, &m); err != nil {
+		return nil, err
+	}
+	var out []int
+	r, cc := m.Dims()
+	for k := 0; k < r*cc; k++ {
+		v := m.At(k/cc, k%cc)
+		if v != math.Trunc(v) || v < 1 || v > 1<<30 {
+			return nil, c.Errorf(name, "Number them from 1.", "%s: %s is not a position", c.Builtin.Name, FormatNumber(v))
+		}
+		out = append(out, int(v)-1)
+	}
+	return out, nil
+}
+
+func fnModeShapes(c *Call) (any, error) {
+	sm, ok := c.Value("modes").(*lsys.StructuralModes)
+	if !ok {
+		return nil, c.Errorf("modes", "Compute them with normalmodes or lowestmodes.", "modeshapes: 'modes' must be normal modes, not %s", typeName(c.Value("modes")))
+	}
+	which, err := indexList(c, "which")
+	if err != nil {
+		return nil, err
+	}
+	dofs, err := indexList(c, "dofs")
+	if err != nil {
+		return nil, err
+	}
+	var x []float64
+	if c.Has("at") {
+		var at *mat.Dense
+		if err := c.Bind("at", &at); err != nil {
+			return nil, err
+		}
+		r, cc := at.Dims()
+		for k := 0; k < r*cc; k++ {
+			x = append(x, at.At(k/cc, k%cc))
+		}
+	}
+	var grid [2]int
+	if c.Has("grid") {
+		g, err := indexList(c, "grid")
+		if err != nil {
+			return nil, err
+		}
+		if len(g) != 2 {
+			return nil, c.Errorf("grid", "Write grid: [nx, ny].", "modeshapes: grid needs two numbers, not %d", len(g))
+		}
+		grid = [2]int{g[0] + 1, g[1] + 1}
+	}
+	return lsys.NewShapePlot(sm, which, dofs, x, grid)
+}
+
+func fnReadMtx(c *Call) (any, error) {
+	var name string
+	if err := c.Bind("file", &name); err != nil {
+		return nil, err
+	}
+	if strings.HasPrefix(strings.TrimSpace(name), "%%MatrixMarket") {
+		return lsys.ReadMatrixMarket(strings.NewReader(name))
+	}
+	if name == "" || filepath.IsAbs(name) || strings.Contains(filepath.ToSlash(filepath.Clean(name)), "../") || filepath.Clean(name) == ".." {
+		return nil, c.Errorf("file", "Put the file in the notebook's folder and give its name, e.g. readmtx(\"deck_K.mtx\").", "readmtx: %q is outside the notebook's folder", name)
+	}
+	f, err := os.Open(filepath.Join(c.Dir(), filepath.Clean(name)))
+	if err != nil {
+		if os.IsNotExist(err) {
+			return nil, c.Errorf("file", "Check the name; the file must lie beside the notebook.", "readmtx: there is no file %q beside the notebook", name)
+		}
+		return nil, c.Errorf("file", "", "readmtx: cannot open %q: %v", name, err)
+	}
+	defer f.Close()
+	a, err := lsys.ReadMatrixMarket(f)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	return a, nil
+}
