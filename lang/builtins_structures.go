@@ -208,7 +208,7 @@ func structuresBuiltins() []*Builtin {
 			Name: "normalmodes", Group: GroupAnalysis,
 			Params: []Param{
 				{Name: "model", Doc: "a second-order model"},
-				{Name: "directions", Doc: "excitation directions, n x d: each column a rigid displacement pattern (e.g. all ones for a translation along a chain)", Optional: true},
+				{Name: "directions", Doc: "excitation directions, n x d: each column a rigid displacement pattern (e.g. all ones for a translation along a chain), or a number: every DOF displaced by it", Optional: true},
 				{Name: "along", Doc: "names of the directions", Optional: true},
 			},
 			Help: "The undamped modes of a second-order model: frequencies, damping ratios, mass-normalized shapes, participation and effective mass per direction.",
@@ -226,7 +226,7 @@ func structuresBuiltins() []*Builtin {
 				if err := secondOrderArg(c, "model", &s); err != nil {
 					return nil, err
 				}
-				R, dirs, err := directionsArg(c)
+				R, dirs, err := directionsArg(c, s.N())
 				if err != nil {
 					return nil, err
 				}
@@ -240,7 +240,7 @@ func structuresBuiltins() []*Builtin {
 				{Name: "M", Doc: "mass: a sparse matrix or a matrix, symmetric positive definite"},
 				{Name: "count", Doc: "how many modes", Default: 10.0},
 				{Name: "near", Doc: "a frequency in Hz: the modes nearest it instead of the lowest", Optional: true},
-				{Name: "directions", Doc: "excitation directions, n x d", Optional: true},
+				{Name: "directions", Doc: "excitation directions, n x d, or a number: every DOF displaced by it (one uniform direction)", Optional: true},
 				{Name: "along", Doc: "names of the directions", Optional: true},
 				{Name: "dofs", Doc: "names of the degrees of freedom", Optional: true},
 			},
@@ -442,10 +442,22 @@ func secondOrderArg(c *Call, name string, dst **lsys.SecondOrder) error {
 	return nil
 }
 
-func directionsArg(c *Call) (*mat.Dense, []string, error) {
+// directionsArg reads the excitation directions: a matrix n x d, or a
+// number (every DOF displaced by it: one uniform direction).
+func directionsArg(c *Call, n int) (*mat.Dense, []string, error) {
 	var R *mat.Dense
 	var dirs []string
-	if err := c.Bind("directions", &R, "along", &dirs); err != nil {
+	if c.Has("directions") {
+		if x, ok := c.Value("directions").(float64); ok {
+			R = mat.NewDense(n, 1, nil)
+			for i := 0; i < n; i++ {
+				R.Set(i, 0, x)
+			}
+		} else if err := c.Bind("directions", &R); err != nil {
+			return nil, nil, err
+		}
+	}
+	if err := c.Bind("along", &dirs); err != nil {
 		return nil, nil, err
 	}
 	if R == nil && dirs != nil {
@@ -513,7 +525,7 @@ func fnLowestModes(c *Call) (any, error) {
 		w := 2 * math.Pi * f
 		opt.Shift, opt.Nearest = w*w, true
 	}
-	R, dirs, err := directionsArg(c)
+	R, dirs, err := directionsArg(c, K.N)
 	if err != nil {
 		return nil, err
 	}

@@ -51,10 +51,11 @@ type StructuralModes struct {
 	// Orthogonality is max |Phi^T M Phi - I| over the modes found.
 	Orthogonality float64
 	// MassCond is the 1-norm condition estimate of M (dense path).
-	MassCond float64
-	Complete bool   // all n modes were computed
-	Method   string // how they were computed, with its reference
-	Sparse   *SparseStats
+	MassCond    float64
+	DampingSpec DampingSpec // how the model's D was made (StructuralModesOf)
+	Complete    bool        // all n modes were computed
+	Method      string      // how they were computed, with its reference
+	Sparse      *SparseStats
 }
 
 // UndampedModes solves K phi = w^2 M phi for dense symmetric M (positive
@@ -181,6 +182,7 @@ func StructuralModesOf(s *SecondOrder, R *mat.Dense, dirs []string) (*Structural
 		return nil, err
 	}
 	sm.DOFNames = append([]string(nil), s.DOFNames...)
+	sm.DampingSpec = s.Damping
 	if s.Damping.Kind != DampingNone {
 		sm.modalDamping(s.D)
 	}
