@@ -155,8 +155,8 @@ func renderStructuralModes(v any, opt Options) Bundle {
 		if st.Nearest {
 			kind = "nearest " + fmtNum(math.Sqrt(math.Max(st.Shift, 0))/(2*math.Pi)) + " Hz"
 		}
-		note(&c.t, &c.h, fmt.Sprintf("Sparse path (%s): %d DOF, %d stored entries of K, factor L with %d entries (%s), %s; shift %s rad^2/s^2 with %s below it; basis %d, %s, %d solves; largest residual %s (tolerance %s).",
-			kind, st.N, st.NNZK, st.FactorNNZ, fmtBytes(st.FactorMem), st.Ordering, fmtNum(st.Shift), count(st.Below, "eigenvalue", "eigenvalues"), st.Basis, count(st.Restarts, "restart", "restarts"), st.Solves, fmtNum(st.Residual), fmtNum(st.Tol)))
+		note(&c.t, &c.h, fmt.Sprintf("Sparse path (%s): %d DOF, %d stored entries of K; %s, %s: L has %d entries (%s); shift %s rad^2/s^2 with %s below it; basis %d, %s, %d solves; largest residual %s (tolerance %s).",
+			kind, st.N, st.NNZK, st.Ordering, st.Factorization, st.FactorNNZ, fmtBytes(st.FactorMem), fmtNum(st.Shift), count(st.Below, "eigenvalue", "eigenvalues"), st.Basis, count(st.Restarts, "restart", "restarts"), st.Solves, fmtNum(st.Residual), fmtNum(st.Tol)))
 		note(&c.t, &c.h, "Memory held by the matrices, the factor and the Lanczos basis: "+fmtBytes(st.Memory)+".")
 		if st.ShiftNote != "" {
 			note(&c.t, &c.h, st.ShiftNote+".")

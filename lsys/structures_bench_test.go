@@ -2,7 +2,6 @@ package lsys
 
 import (
 	"context"
-	"fmt"
 	"testing"
 	"time"
 )
@@ -35,7 +34,6 @@ func BenchmarkLattice(b *testing.B) {
 				}
 			}
 			b.ReportMetric(float64(sm.Sparse.Memory)/1e6, "MB")
-			_ = fmt.Sprint()
 		})
 	}
 }
