@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"lsys/lsys"
+	"lsys/lsys/numfmt"
 )
 
 // Transfer functions: the text form is the language's own syntax (so it can
@@ -19,7 +20,7 @@ func init() {
 			tex = `$$\frac{` + latexPoly(r.Num, r.VarName()) + `}{` + latexPoly(r.Den, r.VarName()) + `}`
 		}
 		if r.Ts > 0 {
-			tex += `\qquad T = ` + latexNum(fmtDigits(r.Ts, 6)) + `\,\mathrm{s}`
+			tex += `\qquad T = ` + latexNum(numfmt.Digits(r.Ts, 6)) + `\,\mathrm{s}`
 		}
 		b.Data[LaTeX] = tex + `$$`
 		jsonPoly := func(p lsys.Poly) []any { // descending powers, as written
@@ -58,7 +59,7 @@ func latexPoly(p lsys.Poly, v string) string {
 		}
 		a := math.Abs(c)
 		if a != 1 || i == 0 {
-			b.WriteString(latexNum(fmtDigits(a, 6)))
+			b.WriteString(latexNum(numfmt.Digits(a, 6)))
 			if i > 0 {
 				b.WriteString(`\,`)
 			}

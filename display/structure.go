@@ -8,9 +8,9 @@ import (
 	"strconv"
 	"strings"
 
-	"lsys/lsys"
-
 	"gonum.org/v1/gonum/mat"
+
+	"lsys/lsys"
 )
 
 func init() {

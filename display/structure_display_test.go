@@ -5,9 +5,9 @@ import (
 	"strings"
 	"testing"
 
-	"lsys/lsys"
-
 	"gonum.org/v1/gonum/mat"
+
+	"lsys/lsys"
 )
 
 func sxTestSystem(t *testing.T) *lsys.System {

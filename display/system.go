@@ -5,9 +5,9 @@ import (
 	"html"
 	"strings"
 
-	"lsys/lsys"
-
 	"gonum.org/v1/gonum/mat"
+
+	"lsys/lsys"
 )
 
 func init() {
@@ -19,7 +19,7 @@ func sxStability(s *lsys.System) string {
 	if s.N() == 0 {
 		return "static gain"
 	}
-	st, err := lsys.StabilityOf(s)
+	st, err := s.Stability() // carried by the system, computed once in lsys
 	if err != nil {
 		return "stability unknown: " + err.Error()
 	}

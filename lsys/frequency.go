@@ -123,6 +123,9 @@ func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) 
 		if !(hi > lo) || math.IsInf(hi, 0) {
 			return nil, fmt.Errorf("the range must satisfy 0 < from < to, got from %g to %g rad/s", lo, hi)
 		}
+		if d := math.Log10(hi) - math.Log10(lo); d > MaxDecades {
+			return nil, fmt.Errorf("the range from %g to %g rad/s spans %.0f decades; at most %d can be charted (20 points a decade, 5,000 points in all): narrow it", lo, hi, d, MaxDecades)
+		}
 		rule = "range given"
 	}
 	if f.Nyquist > 0 && hi > f.Nyquist {
@@ -135,6 +138,7 @@ func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) 
 		npts = opt.Points
 	}
 	var W []float64
+	// hi/lo is finite: ranges are at most MaxDecades wide.
 	for i := 0; i < npts; i++ {
 		W = append(W, lo*math.Pow(hi/lo, float64(i)/float64(npts-1)))
 	}
@@ -505,3 +509,6 @@ func Singular(f *FrequencyResponse) (*SingularValues, error) {
 	}
 	return out, nil
 }
+
+// MaxDecades is the widest frequency range a response is computed over.
+const MaxDecades = 100

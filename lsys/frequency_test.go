@@ -4,6 +4,7 @@ import (
 	"context"
 	"math"
 	"math/cmplx"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
@@ -278,5 +279,22 @@ func TestPhaseStartsOnLowFrequencyAsymptote(t *testing.T) {
 		if got := f.Phase(0, 0)[0]; math.Abs(got-c.want) > 1e-6 {
 			t.Errorf("1/%v: phase starts at %.8g, want %.8g", c.den, got, c.want)
 		}
+	}
+}
+
+// TestFrequencyRangeTooWide: from 1e-200 to 1e200 rad/s silently gave no
+// frequencies (hi/lo overflows); it is an error naming the span.
+func TestFrequencyRangeTooWide(t *testing.T) {
+	g, err := FromMatrices(mat.NewDense(1, 1, []float64{-1}), mat.NewDense(1, 1, []float64{1}), mat.NewDense(1, 1, []float64{1}), nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := Frequency(context.Background(), g, FrequencyOptions{From: 1e-200, To: 1e200}); err == nil || !strings.Contains(err.Error(), "400 decades") {
+		t.Fatalf("err = %v, want the span refused", err)
+	}
+	// 60 decades still work, in logarithms.
+	f, err := Frequency(context.Background(), g, FrequencyOptions{From: 1e-30, To: 1e30})
+	if err != nil || len(f.W) < 1000 || math.IsNaN(f.W[len(f.W)/2]) {
+		t.Fatalf("60 decades: %v, %d points", err, len(f.W))
 	}
 }

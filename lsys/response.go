@@ -365,6 +365,13 @@ func (o ResponseOptions) grid(g *System) ([]float64, float64, string, error) {
 		step = o.Step
 		rule += "; step given"
 	}
+	if until/step > MaxResponseSamples {
+		hint := "a larger step"
+		if g.Sampled() {
+			hint = "a shorter horizon (a sampled system steps by its sample time)"
+		}
+		return nil, 0, "", fmt.Errorf("horizon %g s at %g s a sample gives %.3g samples, over the limit of %d; use %s", until, step, until/step, MaxResponseSamples, hint)
+	}
 	N := int(math.Round(until / step))
 	if N < 1 {
 		N = 1
@@ -721,3 +728,8 @@ func Stable(g *System) bool {
 	}
 	return true
 }
+
+// MaxResponseSamples bounds the samples of any time response, continuous or
+// sampled: 10^6 samples of 10 outputs and 100 states already take about
+// 1 GB with the states kept for exact values between samples.
+const MaxResponseSamples = 1000000

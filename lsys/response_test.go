@@ -446,3 +446,17 @@ func TestMetricsResponseThatReturns(t *testing.T) {
 		t.Errorf("note %q, undefined %v", row.Note, row.Undefined)
 	}
 }
+
+// TestResponseSampleLimit: a sampled response with a horizon of 1e12 s was
+// computed (or ran the kernel out of memory); every response is capped at
+// MaxResponseSamples with an error that names the limit.
+func TestResponseSampleLimit(t *testing.T) {
+	g, err := FromMatrices(mat.NewDense(1, 1, []float64{0.5}), mat.NewDense(1, 1, []float64{1}), mat.NewDense(1, 1, []float64{1}), nil, 0.1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, err = Step(context.Background(), g, ResponseOptions{Until: 1e12})
+	if err == nil || !strings.Contains(err.Error(), "1000000") {
+		t.Fatalf("err = %v, want the sample limit named", err)
+	}
+}

@@ -6,7 +6,7 @@ import (
 	"strings"
 	"unicode"
 
-	"lsys/lang"
+	"lsys/lang/builtins"
 	"lsys/lang/syntax"
 )
 
@@ -173,7 +173,7 @@ func highlight(src string) string {
 				j++
 			}
 			word := string(rs[i:j])
-			_, builtin := lang.Lookup(word)
+			_, builtin := builtins.Registry().Lookup(word)
 			switch {
 			case syntax.IsKeyword(word):
 				span(&b, "k", word)

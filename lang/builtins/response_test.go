@@ -1,4 +1,4 @@
-package lang
+package builtins_test
 
 import (
 	"context"
@@ -10,13 +10,16 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang"
+	"lsys/lang/builtins"
+	"lsys/lang/langtest"
 	"lsys/lsys"
 )
 
 func runOne(t *testing.T, dir, src string) any {
 	t.Helper()
-	s := NewSession(Options{Dir: dir})
-	v, err := s.Run(context.Background(), src, &recorder{})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: dir})
+	v, err := s.Run(context.Background(), src, &langtest.Recorder{})
 	if err != nil {
 		t.Fatalf("%s\n%v", src, err)
 	}
@@ -28,7 +31,7 @@ func wantNum(t *testing.T, src string, want, tol float64) {
 	v := runOne(t, t.TempDir(), src)
 	f, ok := v.(float64)
 	if !ok {
-		t.Fatalf("%s: got %s, want a number", src, typeName(v))
+		t.Fatalf("%s: got %s, want a number", src, builtins.Registry().TypeName(v))
 	}
 	if math.Abs(f-want) > tol {
 		t.Errorf("%s: got %.15g want %.15g", src, f, want)
@@ -130,41 +133,41 @@ func typeNameGo(v any) string {
 	case *lsys.Signal:
 		return "*lsys.Signal"
 	}
-	return typeName(v)
+	return builtins.Registry().TypeName(v)
 }
 
 func TestResponseBuiltinsErrors(t *testing.T) {
-	runCells(t, []cell{
-		{src: "response(1/(s + 1))", err: "nothing drives the system"},
-		{src: "response(1/(s + 1), 3)", err: "must be an input signal"},
-		{src: "gain(1/s)", err: "steady-state gain is infinite"},
-		{src: "load(\"../secret.csv\")", err: "outside the notebook's folder"},
-		{src: "load(\"missing.csv\")", err: "no file"},
-		{src: "closeloop(1/(s + 1), sign: 2)", err: "sign must be +1 or -1"},
-		{src: "polezero(1/(s + 1), within: -3)", err: "'within' must be a positive number"},
-		{src: "sample(1/(s + 1), 0.1, method: \"fast\")", err: "unknown method"},
-		{src: "response(1/(s + 1), step, by: \"pole\")", err: "by must be"},
-		{src: "connect(1/(s + 1), nope: 1)", err: "no argument named 'nope'"},
-		{src: "G = system([[0, 1], [-2, -3]], [0, 1], [1, 0])\nresponse(G, initial: [1])", err: "initial state has 1 entries"},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: "response(1/(s + 1))", Err: "nothing drives the system"},
+		{Src: "response(1/(s + 1), 3)", Err: "must be an input signal"},
+		{Src: "gain(1/s)", Err: "steady-state gain is infinite"},
+		{Src: "load(\"../secret.csv\")", Err: "outside the notebook's folder"},
+		{Src: "load(\"missing.csv\")", Err: "no file"},
+		{Src: "closeloop(1/(s + 1), sign: 2)", Err: "sign must be +1 or -1"},
+		{Src: "polezero(1/(s + 1), within: -3)", Err: "'within' must be a positive number"},
+		{Src: "sample(1/(s + 1), 0.1, method: \"fast\")", Err: "unknown method"},
+		{Src: "response(1/(s + 1), step, by: \"pole\")", Err: "by must be"},
+		{Src: "connect(1/(s + 1), nope: 1)", Err: "no argument named 'nope'"},
+		{Src: "G = system([[0, 1], [-2, -3]], [0, 1], [1, 0])\nresponse(G, initial: [1])", Err: "initial state has 1 entries"},
 	})
 }
 
 func TestResponseProgress(t *testing.T) {
 	// a 200-state chain of first-order lags shows progress and then empties it
-	s := NewSession(Options{Dir: t.TempDir()})
-	rec := &recorder{}
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	rec := &langtest.Recorder{}
 	g, err := lsys.FromMatrices(negIdentity(200), unitCol(200), unitRow(200), nil, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
-	s.globals["G"] = g
+	s.Set("G", g)
 	if _, err := s.Run(context.Background(), "response(G, step, until: 5, dt: 0.001)", rec); err != nil {
 		t.Fatal(err)
 	}
-	if len(rec.displays) != 1 || len(rec.updates) < 2 {
-		t.Fatalf("displays %d, updates %d", len(rec.displays), len(rec.updates))
+	if len(rec.Displays) != 1 || len(rec.Updates) < 2 {
+		t.Fatalf("displays %d, updates %d", len(rec.Displays), len(rec.Updates))
 	}
-	if last := rec.updates[len(rec.updates)-1]; last != "" {
+	if last := rec.Updates[len(rec.Updates)-1]; last != "" {
 		t.Errorf("progress not emptied: %v", last)
 	}
 }

@@ -1,4 +1,4 @@
-package lang
+package builtins
 
 // Built-ins for structures as engineers get them: second-order models
 // M q'' + D q' + K q = F u, their undamped (normal) modes, modal models,
@@ -14,128 +14,76 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang"
 	"lsys/lsys"
 )
 
 func init() {
 	for _, b := range structuresBuiltins() {
-		Register(b)
+		register(b)
 	}
-	RegisterType((*lsys.SecondOrder)(nil), TypeInfo{Name: "a second-order model",
-		Fields: []string{"M", "D", "K", "F", "sensors", "measure", "dofs", "inputs", "outputs", "system"},
-		Field: func(v any, name string) (any, bool) {
-			s := v.(*lsys.SecondOrder)
-			switch name {
-			case "M":
-				return mat.DenseCopyOf(s.M), true
-			case "D":
-				return mat.DenseCopyOf(s.D), true
-			case "K":
-				return mat.DenseCopyOf(s.K), true
-			case "F":
-				return mat.DenseCopyOf(s.F), true
-			case "sensors":
-				return mat.DenseCopyOf(s.Out), true
-			case "measure":
-				return stringList(s.Measure), true
-			case "dofs":
-				return stringList(s.DOFNames), true
-			case "inputs":
-				return stringList(s.InputNames), true
-			case "outputs":
-				return stringList(s.OutputNames), true
-			case "system":
-				g, err := s.System()
-				if err != nil {
-					return nil, false
-				}
-				return g, true
+	registerType((*lsys.SecondOrder)(nil), lang.TypeInfo{Name: "a second-order model", Fields: []lang.Field{
+		lang.FieldOf("M", "the mass matrix", func(s *lsys.SecondOrder) any { return mat.DenseCopyOf(s.M) }),
+		lang.FieldOf("D", "the damping matrix", func(s *lsys.SecondOrder) any { return mat.DenseCopyOf(s.D) }),
+		lang.FieldOf("K", "the stiffness matrix", func(s *lsys.SecondOrder) any { return mat.DenseCopyOf(s.K) }),
+		lang.FieldOf("F", "the force map, one column per input", func(s *lsys.SecondOrder) any { return mat.DenseCopyOf(s.F) }),
+		lang.FieldOf("sensors", "the output map, one row per output", func(s *lsys.SecondOrder) any { return mat.DenseCopyOf(s.Out) }),
+		lang.FieldOf("measure", "what each output measures", func(s *lsys.SecondOrder) any { return lang.NameList(s.Measure) }),
+		lang.FieldOf("dofs", "the names of the degrees of freedom", func(s *lsys.SecondOrder) any { return lang.NameList(s.DOFNames) }),
+		lang.FieldOf("inputs", "the input names", func(s *lsys.SecondOrder) any { return lang.NameList(s.InputNames) }),
+		lang.FieldOf("outputs", "the output names", func(s *lsys.SecondOrder) any { return lang.NameList(s.OutputNames) }),
+		lang.FieldOf("system", "the first-order system (states q and q')", func(s *lsys.SecondOrder) any {
+			g, err := s.System()
+			if err != nil {
+				return nil
 			}
-			return nil, false
-		}})
-	RegisterType((*lsys.StructuralModes)(nil), TypeInfo{Name: "a table of normal modes",
-		Fields: []string{"frequencies", "omega", "damping", "shapes", "rigid", "modalmass", "participation", "effective", "total", "cumulative", "directions"},
-		Field: func(v any, name string) (any, bool) {
-			m := v.(*lsys.StructuralModes)
-			switch name {
-			case "frequencies":
-				return realVector(m.Freq), true
-			case "omega":
-				return realVector(m.Omega), true
-			case "damping":
-				return realVector(m.Damping), true
-			case "shapes":
-				return mat.DenseCopyOf(m.Shapes), true
-			case "rigid":
-				l := &List{}
-				for _, r := range m.Rigid {
-					l.Items = append(l.Items, r)
-				}
-				return l, true
-			case "modalmass":
-				return realVector(m.ModalMass), true
-			case "participation", "effective", "cumulative":
-				src := map[string][][]float64{"participation": m.Participation, "effective": m.EffectiveMass, "cumulative": m.Cumulative}[name]
-				return columns(src), true
-			case "total":
-				return realVector(m.TotalMass), true
-			case "directions":
-				return stringList(m.Directions), true
+			return g
+		}),
+	}})
+	registerType((*lsys.StructuralModes)(nil), lang.TypeInfo{Name: "a table of normal modes", Fields: []lang.Field{
+		lang.FieldOf("frequencies", "natural frequencies, Hz (0 for rigid-body modes)", func(m *lsys.StructuralModes) any { return lang.RealVector(m.Freq) }),
+		lang.FieldOf("omega", "natural frequencies, rad/s", func(m *lsys.StructuralModes) any { return lang.RealVector(m.Omega) }),
+		lang.FieldOf("damping", "damping ratios (nan where none)", func(m *lsys.StructuralModes) any { return lang.RealVector(m.Damping) }),
+		lang.FieldOf("shapes", "mass-normalized shapes, one column per mode", func(m *lsys.StructuralModes) any { return mat.DenseCopyOf(m.Shapes) }),
+		lang.FieldOf("rigid", "whether each mode is a rigid-body mode", func(m *lsys.StructuralModes) any {
+			l := &lang.List{}
+			for _, r := range m.Rigid {
+				l.Items = append(l.Items, r)
 			}
-			return nil, false
-		}})
-	RegisterType((*lsys.ModalModel)(nil), TypeInfo{Name: "a modal model",
-		Fields: []string{"system", "kept", "error", "modes"},
-		Field: func(v any, name string) (any, bool) {
-			m := v.(*lsys.ModalModel)
-			switch name {
-			case "system":
-				return m.Sys, true
-			case "kept":
-				return float64(m.Kept), true
-			case "error":
-				if m.Check == nil {
-					return math.NaN(), true
-				}
-				return m.Check.MaxRelErr, true
-			case "modes":
-				return m.Modes, true
+			return l
+		}),
+		lang.FieldOf("modalmass", "phi' M phi with each shape scaled to a largest entry of 1", func(m *lsys.StructuralModes) any { return lang.RealVector(m.ModalMass) }),
+		lang.FieldOf("participation", "participation factors, one row per mode, one column per direction", func(m *lsys.StructuralModes) any { return columns(m.Participation) }),
+		lang.FieldOf("effective", "effective masses, one row per mode, one column per direction", func(m *lsys.StructuralModes) any { return columns(m.EffectiveMass) }),
+		lang.FieldOf("cumulative", "cumulative fraction of the total mass, one row per mode, one column per direction", func(m *lsys.StructuralModes) any { return columns(m.Cumulative) }),
+		lang.FieldOf("total", "total mass r' M r of each direction", func(m *lsys.StructuralModes) any { return lang.RealVector(m.TotalMass) }),
+		lang.FieldOf("directions", "the names of the directions", func(m *lsys.StructuralModes) any { return lang.NameList(m.Directions) }),
+	}})
+	registerType((*lsys.ModalModel)(nil), lang.TypeInfo{Name: "a modal model", Fields: []lang.Field{
+		lang.FieldOf("system", "the modal model as a first-order system", func(m *lsys.ModalModel) any { return m.Sys }),
+		lang.FieldOf("kept", "the number of modes kept", func(m *lsys.ModalModel) any { return float64(m.Kept) }),
+		lang.FieldOf("error", "largest error up to the highest kept mode, relative to the channel's peak (nan without the comparison)", func(m *lsys.ModalModel) any {
+			if m.Check == nil {
+				return math.NaN()
 			}
-			return nil, false
-		}})
-	RegisterType((*lsys.SparseSym)(nil), TypeInfo{Name: "a sparse symmetric matrix", Fields: []string{"size", "nonzeros"},
-		Field: func(v any, name string) (any, bool) {
-			a := v.(*lsys.SparseSym)
-			switch name {
-			case "size":
-				return float64(a.N), true
-			case "nonzeros":
-				return float64(a.NNZ()), true
-			}
-			return nil, false
-		}})
-	RegisterType((*lsys.MACMatrix)(nil), TypeInfo{Name: "a MAC matrix", Fields: []string{"values"},
-		Field: func(v any, name string) (any, bool) {
-			if name == "values" {
-				return mat.DenseCopyOf(v.(*lsys.MACMatrix).Values), true
-			}
-			return nil, false
-		}})
-	RegisterType((*lsys.ShapePlot)(nil), TypeInfo{Name: "a mode-shape chart"})
-}
-
-func stringList(s []string) *List {
-	l := &List{}
-	for _, v := range s {
-		l.Items = append(l.Items, v)
-	}
-	return l
+			return m.Check.MaxRelErr
+		}),
+		lang.FieldOf("modes", "all normal modes of the full model", func(m *lsys.ModalModel) any { return m.Modes }),
+	}})
+	registerType((*lsys.SparseSym)(nil), lang.TypeInfo{Name: "a sparse symmetric matrix", Fields: []lang.Field{
+		lang.FieldOf("size", "rows (= columns)", func(a *lsys.SparseSym) any { return float64(a.N) }),
+		lang.FieldOf("nonzeros", "stored entries (both triangles)", func(a *lsys.SparseSym) any { return float64(a.NNZ()) }),
+	}})
+	registerType((*lsys.MACMatrix)(nil), lang.TypeInfo{Name: "a MAC matrix", Fields: []lang.Field{
+		lang.FieldOf("values", "the MAC values, one row per shape of the first set", func(m *lsys.MACMatrix) any { return mat.DenseCopyOf(m.Values) }),
+	}})
+	registerType((*lsys.ShapePlot)(nil), lang.TypeInfo{Name: "a mode-shape chart"})
 }
 
 // columns is a matrix with one column per direction, one row per mode.
 func columns(src [][]float64) any {
 	if len(src) == 0 {
-		return &List{}
+		return &lang.List{}
 	}
 	m := mat.NewDense(len(src[0]), len(src), nil)
 	for k, col := range src {
@@ -152,11 +100,11 @@ const soFrame = "M = [[2000, 0, 0], [0, 2000, 0], [0, 0, 1500]]\n" +
 // A free-free chain (one rigid-body mode) as a sparse lattice.
 const soChain = "chain = springlattice([40], 1e4, 0.5, grounded: false)\n"
 
-func structuresBuiltins() []*Builtin {
-	return []*Builtin{
+func structuresBuiltins() []*lang.Builtin {
+	return []*lang.Builtin{
 		{
-			Name: "secondorder", Group: GroupSystems,
-			Params: []Param{
+			Name: "secondorder", Group: lang.GroupSystems,
+			Params: []lang.Param{
 				{Name: "M", Doc: "mass matrix, n x n, symmetric positive definite"},
 				{Name: "K", Doc: "stiffness matrix, n x n, symmetric"},
 				{Name: "F", Doc: "force map, n x m: column j is how input j loads the degrees of freedom"},
@@ -179,8 +127,8 @@ func structuresBuiltins() []*Builtin {
 			Fn:       fnSecondOrder,
 		},
 		{
-			Name: "rayleigh", Group: GroupSystems,
-			Params: []Param{
+			Name: "rayleigh", Group: lang.GroupSystems,
+			Params: []lang.Param{
 				{Name: "model", Doc: "a second-order model"},
 				{Name: "f1", Doc: "first frequency, Hz"},
 				{Name: "zeta1", Doc: "damping ratio at f1"},
@@ -192,7 +140,7 @@ func structuresBuiltins() []*Builtin {
 				"below f1 (the alpha M part) and above f2 (the beta K part). Negative coefficients are refused (they would " +
 				"damp some modes negatively). `normalmodes` shows alpha, beta and the two fitting points.",
 			Examples: []string{soFrame + "normalmodes(rayleigh(frame, 2, 0.02, 10, 0.03))"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				var s *lsys.SecondOrder
 				if err := secondOrderArg(c, "model", &s); err != nil {
 					return nil, err
@@ -205,8 +153,8 @@ func structuresBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "normalmodes", Group: GroupAnalysis,
-			Params: []Param{
+			Name: "normalmodes", Group: lang.GroupAnalysis,
+			Params: []lang.Param{
 				{Name: "model", Doc: "a second-order model"},
 				{Name: "directions", Doc: "excitation directions, n x d: each column a rigid displacement pattern (e.g. all ones for a translation along a chain), or a number: every DOF displaced by it", Optional: true},
 				{Name: "along", Doc: "names of the directions", Optional: true},
@@ -221,7 +169,7 @@ func structuresBuiltins() []*Builtin {
 				"each direction (common practice). Modal mass is phi^T M phi with the shape scaled to a largest entry of 1. " +
 				"For large sparse models use `lowestmodes`.",
 			Examples: []string{soFrame + "normalmodes(frame, [1, 1, 1], along: [\"x\"])"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				var s *lsys.SecondOrder
 				if err := secondOrderArg(c, "model", &s); err != nil {
 					return nil, err
@@ -234,8 +182,8 @@ func structuresBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "lowestmodes", Group: GroupAnalysis,
-			Params: []Param{
+			Name: "lowestmodes", Group: lang.GroupAnalysis,
+			Params: []lang.Param{
 				{Name: "K", Doc: "stiffness: a sparse matrix (readmtx, springlattice) or a matrix"},
 				{Name: "M", Doc: "mass: a sparse matrix or a matrix, symmetric positive definite"},
 				{Name: "count", Doc: "how many modes", Default: 10.0},
@@ -258,8 +206,8 @@ func structuresBuiltins() []*Builtin {
 			Fn: fnLowestModes,
 		},
 		{
-			Name: "modalmodel", Group: GroupAnalysis,
-			Params: []Param{
+			Name: "modalmodel", Group: lang.GroupAnalysis,
+			Params: []lang.Param{
 				{Name: "model", Doc: "a second-order model"},
 				{Name: "count", Doc: "how many modes to keep (the lowest; rigid-body modes must all be kept)"},
 				{Name: "static", Doc: "add the static correction of the truncated modes to displacement outputs", Default: true},
@@ -272,7 +220,7 @@ func structuresBuiltins() []*Builtin {
 				"frequency on the channel where they differ most, with the largest error up to the highest kept mode " +
 				"relative to the channel's peak. Used as a system wherever one is needed.",
 			Examples: []string{soFrame + "modalmodel(frame, 2)"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				var s *lsys.SecondOrder
 				if err := secondOrderArg(c, "model", &s); err != nil {
 					return nil, err
@@ -286,8 +234,8 @@ func structuresBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "mac", Group: GroupAnalysis,
-			Params: []Param{
+			Name: "mac", Group: lang.GroupAnalysis,
+			Params: []lang.Param{
 				{Name: "a", Doc: "shapes: a table of normal modes or a matrix with one shape per column"},
 				{Name: "b", Doc: "shapes to compare with (same number of rows)"},
 			},
@@ -296,7 +244,7 @@ func structuresBuiltins() []*Builtin {
 				"parallel, 0 for orthogonal ones. Not mass-weighted, so measured shapes can be compared with a model's; " +
 				"compare a model with itself to see how distinct its shapes look at the measured points.",
 			Examples: []string{soFrame + "m = normalmodes(frame)\nmeasured = [[0.4, 1, 0.9], [0.8, 0.6, -1], [1, -0.9, 0.5]]\nmac(m, measured)"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				A, an, err := shapesArg(c, "a")
 				if err != nil {
 					return nil, err
@@ -313,8 +261,8 @@ func structuresBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "modeshapes", Group: GroupAnalysis,
-			Params: []Param{
+			Name: "modeshapes", Group: lang.GroupAnalysis,
+			Params: []lang.Param{
 				{Name: "modes", Doc: "a table of normal modes"},
 				{Name: "which", Doc: "the modes to draw (numbers from 1; default the first four)", Optional: true},
 				{Name: "dofs", Doc: "the DOFs to draw, one per node in node order (numbers from 1; default all)", Optional: true},
@@ -330,8 +278,8 @@ func structuresBuiltins() []*Builtin {
 			Fn: fnModeShapes,
 		},
 		{
-			Name: "readmtx", Group: GroupOutput,
-			Params: []Param{
+			Name: "readmtx", Group: lang.GroupOutput,
+			Params: []lang.Param{
 				{Name: "file", Doc: "a .mtx file beside the notebook, or the text of one"},
 			},
 			Help: "A sparse symmetric matrix from a Matrix Market file (coordinate, real or integer, symmetric or general).",
@@ -342,8 +290,8 @@ func structuresBuiltins() []*Builtin {
 			Fn:       fnReadMtx,
 		},
 		{
-			Name: "springlattice", Group: GroupSystems,
-			Params: []Param{
+			Name: "springlattice", Group: lang.GroupSystems,
+			Params: []lang.Param{
 				{Name: "sizes", Doc: "nodes along each axis: [n], [nx, ny] or [nx, ny, nz]"},
 				{Name: "k", Doc: "stiffness of every spring, N/m"},
 				{Name: "m", Doc: "mass of every node, kg"},
@@ -353,7 +301,7 @@ func structuresBuiltins() []*Builtin {
 			Doc: "Returns a record {K, M} of sparse matrices. Node (i, j, l) is DOF i + nx (j - 1) + nx ny (l - 1). " +
 				"The benchmark of `lowestmodes` uses these lattices.",
 			Examples: []string{"p = springlattice([30, 20], 1e4, 0.2)\np.K"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				var sizes *mat.Dense
 				var k, m float64
 				grounded := true
@@ -365,7 +313,7 @@ func structuresBuiltins() []*Builtin {
 				for i := 0; i < r*cc; i++ {
 					v := sizes.At(i/cc, i%cc)
 					if v != math.Trunc(v) || v < 1 || v > 1<<24 {
-						return nil, c.Errorf("sizes", "Give whole numbers of nodes, e.g. [30, 20].", "springlattice: %s is not a number of nodes", FormatNumber(v))
+						return nil, c.Errorf("sizes", "Give whole numbers of nodes, e.g. [30, 20].", "springlattice: %s is not a number of nodes", lang.FormatNumber(v))
 					}
 					dims = append(dims, int(v))
 				}
@@ -376,13 +324,13 @@ func structuresBuiltins() []*Builtin {
 				if err != nil {
 					return nil, err
 				}
-				return &Record{Names: []string{"K", "M"}, Values: []any{K, M}}, nil
+				return &lang.Record{Names: []string{"K", "M"}, Values: []any{K, M}}, nil
 			},
 		},
 	}
 }
 
-func fnSecondOrder(c *Call) (any, error) {
+func fnSecondOrder(c *lang.Call) (any, error) {
 	var M, K, F, S *mat.Dense
 	if err := c.Bind("M", &M, "K", &K, "F", &F, "sensors", &S); err != nil {
 		return nil, err
@@ -413,7 +361,7 @@ func fnSecondOrder(c *Call) (any, error) {
 				return nil, c.Errorf("damping", "Give a damping matrix (n x n), one ratio, or one ratio per mode.", "secondorder: damping is %dx%d, but the model has %d degrees of freedom", r, cc, n)
 			}
 		default:
-			return nil, c.Errorf("damping", "Give a damping matrix (n x n), one ratio such as 0.02, or one ratio per mode.", "secondorder: damping must be a matrix or ratios, not %s", typeName(v))
+			return nil, c.Errorf("damping", "Give a damping matrix (n x n), one ratio such as 0.02, or one ratio per mode.", "secondorder: damping must be a matrix or ratios, not %s", c.TypeName(v))
 		}
 	}
 	s, err := lsys.NewSecondOrder(M, D, K, F, S, measure)
@@ -432,11 +380,11 @@ func fnSecondOrder(c *Call) (any, error) {
 	return s.WithNames(dofs, ins, outs)
 }
 
-func secondOrderArg(c *Call, name string, dst **lsys.SecondOrder) error {
+func secondOrderArg(c *lang.Call, name string, dst **lsys.SecondOrder) error {
 	v := c.Value(name)
 	s, ok := v.(*lsys.SecondOrder)
 	if !ok {
-		return c.Errorf(name, "Build one with secondorder(M, K, F, ...).", "%s: '%s' must be a second-order model, not %s", c.Builtin.Name, name, typeName(v))
+		return c.Errorf(name, "Build one with secondorder(M, K, F, ...).", "%s: '%s' must be a second-order model, not %s", c.Builtin.Name, name, c.TypeName(v))
 	}
 	*dst = s
 	return nil
@@ -444,7 +392,7 @@ func secondOrderArg(c *Call, name string, dst **lsys.SecondOrder) error {
 
 // directionsArg reads the excitation directions: a matrix n x d, or a
 // number (every DOF displaced by it: one uniform direction).
-func directionsArg(c *Call, n int) (*mat.Dense, []string, error) {
+func directionsArg(c *lang.Call, n int) (*mat.Dense, []string, error) {
 	var R *mat.Dense
 	var dirs []string
 	if c.Has("directions") {
@@ -467,7 +415,7 @@ func directionsArg(c *Call, n int) (*mat.Dense, []string, error) {
 }
 
 // sparseArg reads a sparse matrix, converting a dense one.
-func sparseArg(c *Call, name string) (*lsys.SparseSym, error) {
+func sparseArg(c *lang.Call, name string) (*lsys.SparseSym, error) {
 	switch v := c.Value(name).(type) {
 	case *lsys.SparseSym:
 		return v, nil
@@ -492,11 +440,11 @@ func sparseArg(c *Call, name string) (*lsys.SparseSym, error) {
 	case float64:
 		return lsys.NewSparseSym(1, []lsys.Triplet{{I: 0, J: 0, V: v}})
 	default:
-		return nil, c.Errorf(name, "Read it with readmtx(\"file.mtx\") or give a matrix.", "%s: '%s' must be a sparse or dense matrix, not %s", c.Builtin.Name, name, typeName(v))
+		return nil, c.Errorf(name, "Read it with readmtx(\"file.mtx\") or give a matrix.", "%s: '%s' must be a sparse or dense matrix, not %s", c.Builtin.Name, name, c.TypeName(v))
 	}
 }
 
-func fnLowestModes(c *Call) (any, error) {
+func fnLowestModes(c *lang.Call) (any, error) {
 	K, err := sparseArg(c, "K")
 	if err != nil {
 		return nil, err
@@ -553,13 +501,13 @@ func fnLowestModes(c *Call) (any, error) {
 	return lsys.SparseStructuralModes(c.Context(), K, M, opt, R, dirs)
 }
 
-func shapesArg(c *Call, name string) (*mat.Dense, []string, error) {
+func shapesArg(c *lang.Call, name string) (*mat.Dense, []string, error) {
 	switch v := c.Value(name).(type) {
 	case *lsys.StructuralModes:
 		_, r := v.Shapes.Dims()
 		labels := make([]string, r)
 		for j := range labels {
-			labels[j] = fmt.Sprintf("%d (%s Hz)", j+1, FormatNumber(roundSig(v.Freq[j], 4)))
+			labels[j] = fmt.Sprintf("%d (%s Hz)", j+1, lang.FormatNumber(roundSig(v.Freq[j], 4)))
 		}
 		return v.Shapes, labels, nil
 	case *mat.Dense:
@@ -570,7 +518,7 @@ func shapesArg(c *Call, name string) (*mat.Dense, []string, error) {
 		}
 		return v, labels, nil
 	default:
-		return nil, nil, c.Errorf(name, "Give normal modes or a matrix with one shape per column.", "mac: '%s' must be mode shapes, not %s", name, typeName(v))
+		return nil, nil, c.Errorf(name, "Give normal modes or a matrix with one shape per column.", "mac: '%s' must be mode shapes, not %s", name, c.TypeName(v))
 	}
 }
 
@@ -582,7 +530,7 @@ func roundSig(v float64, d int) float64 {
 	return math.Round(v*p) / p
 }
 
-func indexList(c *Call, name string) ([]int, error) {
+func indexList(c *lang.Call, name string) ([]int, error) {
 	if !c.Has(name) {
 		return nil, nil
 	}
@@ -595,17 +543,17 @@ func indexList(c *Call, name string) ([]int, error) {
 	for k := 0; k < r*cc; k++ {
 		v := m.At(k/cc, k%cc)
 		if v != math.Trunc(v) || v < 1 || v > 1<<30 {
-			return nil, c.Errorf(name, "Number them from 1.", "%s: %s is not a position", c.Builtin.Name, FormatNumber(v))
+			return nil, c.Errorf(name, "Number them from 1.", "%s: %s is not a position", c.Builtin.Name, lang.FormatNumber(v))
 		}
 		out = append(out, int(v)-1)
 	}
 	return out, nil
 }
 
-func fnModeShapes(c *Call) (any, error) {
+func fnModeShapes(c *lang.Call) (any, error) {
 	sm, ok := c.Value("modes").(*lsys.StructuralModes)
 	if !ok {
-		return nil, c.Errorf("modes", "Compute them with normalmodes or lowestmodes.", "modeshapes: 'modes' must be normal modes, not %s", typeName(c.Value("modes")))
+		return nil, c.Errorf("modes", "Compute them with normalmodes or lowestmodes.", "modeshapes: 'modes' must be normal modes, not %s", c.TypeName(c.Value("modes")))
 	}
 	which, err := indexList(c, "which")
 	if err != nil {
@@ -640,7 +588,7 @@ func fnModeShapes(c *Call) (any, error) {
 	return lsys.NewShapePlot(sm, which, dofs, x, grid)
 }
 
-func fnReadMtx(c *Call) (any, error) {
+func fnReadMtx(c *lang.Call) (any, error) {
 	var name string
 	if err := c.Bind("file", &name); err != nil {
 		return nil, err

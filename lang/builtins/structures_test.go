@@ -1,4 +1,4 @@
-package lang
+package builtins_test
 
 import (
 	"context"
@@ -10,10 +10,17 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang"
+	"lsys/lang/builtins"
+	"lsys/lang/langtest"
 	"lsys/lsys"
 )
 
-const soTestFrame = soFrame
+// A three-storey frame as masses and storey stiffnesses (invented), as in
+// the built-ins' examples.
+const soTestFrame = "M = [[2000, 0, 0], [0, 2000, 0], [0, 0, 1500]]\n" +
+	"K = [[6e6, -3e6, 0], [-3e6, 5e6, -2e6], [0, -2e6, 2e6]]\n" +
+	"frame = secondorder(M, K, [0, 0, 1], damping: 0.02, dofs: [\"floor1\", \"floor2\", \"roof\"], inputs: [\"wind\"], outputs: [\"roof\"], sensors: [[0, 0, 1]])\n"
 
 // The frame as a second-order model is a system everywhere: its poles are
 // those of the hand-written first-order model, and series connections and
@@ -80,7 +87,7 @@ func TestBuiltinReadMtxLowestModes(t *testing.T) {
 		t.Fatal(err)
 	}
 	f.Close()
-	s := NewSession(Options{Dir: dir})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: dir})
 	src := "K = readmtx(\"k.mtx\")\nM = 2*identity(30)\n" +
 		"a = lowestmodes(K, M, count: 5, directions: 1)\n" +
 		"b = normalmodes(secondorder(M, sparsedense, identity(30)[:, 1]), directions: 1)\n"
@@ -96,16 +103,16 @@ func TestBuiltinReadMtxLowestModes(t *testing.T) {
 			if j > 0 {
 				kd.WriteString(", ")
 			}
-			kd.WriteString(FormatNumber(denseAt(K, i, j)))
+			kd.WriteString(lang.FormatNumber(denseAt(K, i, j)))
 		}
 		kd.WriteString("]")
 	}
 	kd.WriteString("]\n")
-	if _, err := s.Run(context.Background(), kd.String()+src, &recorder{}); err != nil {
+	if _, err := s.Run(context.Background(), kd.String()+src, &langtest.Recorder{}); err != nil {
 		t.Fatal(err)
 	}
-	a, _ := s.Run(context.Background(), "a", &recorder{})
-	b, _ := s.Run(context.Background(), "b", &recorder{})
+	a, _ := s.Run(context.Background(), "a", &langtest.Recorder{})
+	b, _ := s.Run(context.Background(), "b", &langtest.Recorder{})
 	am, bm := a.(*lsys.StructuralModes), b.(*lsys.StructuralModes)
 	for j := 0; j < 5; j++ {
 		if d := math.Abs(am.Omega[j] - bm.Omega[j]); d > 1e-9*bm.Omega[j] {
@@ -128,12 +135,12 @@ func denseAt(a *lsys.SparseSym, i, j int) float64 {
 
 // Progress: lowestmodes shows and updates one display while it runs.
 func TestBuiltinLowestModesProgress(t *testing.T) {
-	rec := &recorder{}
-	s := NewSession(Options{Dir: t.TempDir()})
+	rec := &langtest.Recorder{}
+	s := langtest.NewSession(t)
 	if _, err := s.Run(context.Background(), "p = springlattice([20, 20], 1, 1)\nlowestmodes(p.K, p.M, count: 4)", rec); err != nil {
 		t.Fatal(err)
 	}
-	if len(rec.displays) == 0 {
+	if len(rec.Displays) == 0 {
 		t.Error("no progress display")
 	}
 }
