@@ -2,6 +2,7 @@ package lsys
 
 import (
 	"context"
+	"errors"
 	"math"
 	"reflect"
 	"strings"
@@ -373,5 +374,19 @@ func TestSparseFactorizations(t *testing.T) {
 				t.Errorf("%v %s: residual %g relative", dims, name, rel)
 			}
 		}
+	}
+}
+
+// An interrupt (a cancelled context) stops the sparse path with the
+// context's error.
+func TestSparseModesInterrupt(t *testing.T) {
+	K, M, err := SpringLattice([]int{40, 40}, 1, 1, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	if _, err := SparseModes(ctx, K, M, SparseModeOptions{Count: 5}); !errors.Is(err, context.Canceled) {
+		t.Errorf("got %v, want context.Canceled", err)
 	}
 }
