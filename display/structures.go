@@ -5,6 +5,7 @@ package display
 // with its frequency comparison, and sparse matrices.
 
 import (
+	"encoding/base64"
 	"fmt"
 	"html"
 	"image/color"
@@ -240,18 +241,19 @@ func renderSparse(v any, opt Options) Bundle {
 	return c.bundle()
 }
 
-// svgInline renders a figure for embedding in an HTML card.
+// svgInline renders a figure for embedding in an HTML card, as an image
+// with the SVG inside a data URL (a report then holds no references out).
 func svgInline(f *rpFigure) (s string) {
 	defer func() {
 		if recover() != nil {
 			s = ""
 		}
 	}()
-	s = string(f.SVG())
-	if i := strings.Index(s, "<svg"); i > 0 {
-		s = s[i:]
+	b := f.SVG()
+	if len(b) == 0 {
+		return ""
 	}
-	return s
+	return `<img alt="chart" src="data:image/svg+xml;base64,` + base64.StdEncoding.EncodeToString(b) + `">`
 }
 
 func renderModalModel(v any, opt Options) Bundle {

@@ -67,7 +67,7 @@ func TestStructuresDisplays(t *testing.T) {
 		{s, HTML, []string{"3 degrees of freedom", "Rayleigh", "alpha"}},
 		{sm, HTML, []string{"f Hz", "w rad/s", "eff. mass x", "cum. x", "90 %", "Rayleigh"}},
 		{&lsys.MACMatrix{Values: mac, Rows: []string{"1", "2", "3"}, Cols: []string{"a", "b", "c"}}, HTML, []string{"1.000", "background:#"}},
-		{mm, HTML, []string{"<svg", "static correction", "largest error"}},
+		{mm, HTML, []string{"data:image/svg+xml;base64,", "static correction", "largest error"}},
 		{line, SVG, []string{"<svg", "mode 1"}},
 		{grid, SVG, []string{"<svg"}},
 		{lm, Text, []string{"Sparse path", "Memory held"}},
