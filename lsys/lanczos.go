@@ -195,7 +195,38 @@ func SparseModes(ctx context.Context, K, M *SparseSym, opt SparseModeOptions) (*
 	var order []int
 	betaM := 0.0
 	maxRestarts := 1000
+	// ritz computes the Ritz pairs of the leading mm x mm projected matrix
+	// and counts the wanted ones that have converged.
+	ritz := func(mm int) (int, error) {
+		var es mat.EigenSym
+		if !es.Factorize(symOf(T.Slice(0, mm, 0, mm).(*mat.Dense)), true) {
+			return 0, errors.New("the eigenvalues of the Lanczos matrix did not converge")
+		}
+		theta = es.Values(nil)
+		Y.Reset()
+		es.VectorsTo(&Y)
+		order = make([]int, mm)
+		for i := range order {
+			order[i] = i
+		}
+		sort.SliceStable(order, func(a, b int) bool {
+			ta, tb := theta[order[a]], theta[order[b]]
+			if opt.Nearest {
+				return math.Abs(ta) > math.Abs(tb)
+			}
+			return ta > tb
+		})
+		conv := 0
+		for _, i := range order[:k] {
+			if math.Abs(betaM*Y.At(mm-1, i)) <= tol*math.Abs(theta[i]) {
+				conv++
+			}
+		}
+		return conv, nil
+	}
+	mm := m // the basis size of the last Ritz pairs
 	for {
+		done := false
 		for ; j < m; j++ {
 			if err := ctx.Err(); err != nil {
 				return nil, err
@@ -229,30 +260,28 @@ func SparseModes(ctx context.Context, K, M *SparseSym, opt SparseModeOptions) (*
 				}
 			}
 			betaM = b
-		}
-		var es mat.EigenSym
-		if !es.Factorize(symOf(T), true) {
-			return nil, errors.New("the eigenvalues of the Lanczos matrix did not converge")
-		}
-		theta = es.Values(nil)
-		es.VectorsTo(&Y)
-		order = make([]int, m)
-		for i := range order {
-			order[i] = i
-		}
-		want := func(a, b int) bool {
-			ta, tb := theta[order[a]], theta[order[b]]
-			if opt.Nearest {
-				return math.Abs(ta) > math.Abs(tb)
+			// Every fourth step once the basis can hold the wanted modes,
+			// see whether they have converged already (a small symmetric
+			// eigenproblem; it saves solves, which cost far more).
+			if j+1 >= k && j+1 < m && (j+1)%4 == 0 {
+				conv, err := ritz(j + 1)
+				if err != nil {
+					return nil, err
+				}
+				if conv == k {
+					mm, done = j+1, true
+					st.Converged = conv
+					break
+				}
 			}
-			return ta > tb
 		}
-		sort.SliceStable(order, want)
-		conv := 0
-		for _, i := range order[:k] {
-			if math.Abs(betaM*Y.At(m-1, i)) <= tol*math.Abs(theta[i]) {
-				conv++
-			}
+		if done {
+			break
+		}
+		mm = m
+		conv, err := ritz(m)
+		if err != nil {
+			return nil, err
 		}
 		st.Converged = conv
 		progress("iterating", float64(conv)/float64(k), conv)
@@ -310,7 +339,7 @@ func SparseModes(ctx context.Context, K, M *SparseSym, opt SparseModeOptions) (*
 		for i := range col {
 			col[i] = 0
 		}
-		for r := 0; r < m; r++ {
+		for r := 0; r < mm; r++ {
 			axpy(col, Y.At(r, c), V[r])
 		}
 		phi.SetCol(l, col)
