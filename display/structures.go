@@ -259,8 +259,12 @@ func svgInline(f *rpFigure) (s string) {
 func renderModalModel(v any, opt Options) Bundle {
 	mm := v.(*lsys.ModalModel)
 	g := mm.Sys
-	c := newCard("lsys-modalmodel", fmt.Sprintf("modal model: %d of %d modes kept (%s, %s, %s)", mm.Kept, len(mm.Modes.Freq),
-		count(g.N(), "state", "states"), count(g.M(), "input", "inputs"), count(g.P(), "output", "outputs")))
+	sizes := fmt.Sprintf("(%s, %s, %s)", count(g.N(), "state", "states"), count(g.M(), "input", "inputs"), count(g.P(), "output", "outputs"))
+	title := fmt.Sprintf("modal model: %d of %d modes kept %s", mm.Kept, len(mm.Modes.Freq), sizes)
+	if mm.Modes.Sparse != nil {
+		title = fmt.Sprintf("modal model: the %d lowest modes of %d degrees of freedom %s", mm.Kept, mm.Modes.Sparse.N, sizes)
+	}
+	c := newCard("lsys-modalmodel", title)
 	keep := make([]string, mm.Kept)
 	for j := range keep {
 		keep[j] = fmtNum(mm.Modes.Freq[j])
@@ -268,6 +272,13 @@ func renderModalModel(v any, opt Options) Bundle {
 	rows := [][2]string{
 		{"kept modes, Hz", strings.Join(abbrev(keep, 12), ", ")},
 		{"static correction", choose(mm.Static, "yes: residual flexibility of the truncated modes on displacement outputs", "no")},
+	}
+	if mm.Modes.Sparse != nil {
+		z := make([]string, mm.Kept)
+		for j := range z {
+			z[j] = fmtDamp(mm.Modes.Damping[j])
+		}
+		rows = append(rows, [2]string{"damping ratios", strings.Join(abbrev(z, 12), ", ")})
 	}
 	if mm.Kept < len(mm.Modes.Freq) {
 		rows = append(rows, [2]string{"first truncated mode", fmtNum(mm.Modes.Freq[mm.Kept]) + " Hz"})
@@ -282,6 +293,8 @@ func renderModalModel(v any, opt Options) Bundle {
 			c.h.WriteString("<div>" + s + "</div>")
 		}
 		note(&c.t, &c.h, "The chart compares the modal model with the full model on the channel where they differ most (solid: full, dashed: modal model, dotted: their difference).")
+	} else if st := mm.Modes.Sparse; st != nil {
+		note(&c.t, &c.h, fmt.Sprintf("Modes from the sparse path (%s; largest residual %s); the full model is not compared over frequency.", st.Factorization, fmtNum(st.Residual)))
 	} else {
 		note(&c.t, &c.h, fmt.Sprintf("The full model has more than %d degrees of freedom: no frequency comparison.", lsys.ModalCheckMaxDOF))
 	}

@@ -2,6 +2,7 @@ package lsys
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"math/cmplx"
@@ -62,41 +63,14 @@ func NewModalModel(ctx context.Context, s *SecondOrder, r int, static bool) (*Mo
 	}
 	m, p := s.Inputs(), s.Outputs()
 	phi := sm.Shapes.Slice(0, n, 0, r).(*mat.Dense)
-	var pf, op mat.Dense
-	pf.Mul(phi.T(), s.F) // r x m
-	op.Mul(s.Out, phi)   // p x r
 	var dp, g mat.Dense
 	dp.Mul(s.D, phi)
 	g.Mul(phi.T(), &dp) // modal damping
-	A := mat.NewDense(2*r, 2*r, nil)
-	B := mat.NewDense(2*r, m, nil)
-	C := mat.NewDense(p, 2*r, nil)
-	D := mat.NewDense(p, m, nil)
-	for j := 0; j < r; j++ {
-		A.Set(j, r+j, 1)
-		A.Set(r+j, j, -sm.Lambda[j]*boolf(!sm.Rigid[j]))
-		A.Set(r+j, r+j, -g.At(j, j))
-		for k := 0; k < m; k++ {
-			B.Set(r+j, k, pf.At(j, k))
-		}
+	dj := make([]float64, r)
+	for j := range dj {
+		dj[j] = g.At(j, j)
 	}
-	for i := 0; i < p; i++ {
-		for j := 0; j < r; j++ {
-			c := op.At(i, j)
-			switch s.Measure[i] {
-			case MeasureDisplacement:
-				C.Set(i, j, c)
-			case MeasureVelocity:
-				C.Set(i, r+j, c)
-			case MeasureAcceleration:
-				C.Set(i, j, c*A.At(r+j, j))
-				C.Set(i, r+j, c*A.At(r+j, r+j))
-				for k := 0; k < m; k++ {
-					D.Set(i, k, D.At(i, k)+c*pf.At(j, k))
-				}
-			}
-		}
-	}
+	var corr *mat.Dense
 	if static && r < n {
 		// R F with R = sum over truncated modes of phi phi^T / w^2.
 		rest := sm.Shapes.Slice(0, n, r, n).(*mat.Dense)
@@ -108,28 +82,13 @@ func NewModalModel(ctx context.Context, s *SecondOrder, r int, static bool) (*Mo
 				rf.Set(j, k, rf.At(j, k)*inv)
 			}
 		}
-		var corr, orr mat.Dense
+		var orr mat.Dense
 		orr.Mul(s.Out, rest)
+		corr = mat.NewDense(p, m, nil)
 		corr.Mul(&orr, &rf)
-		for i := 0; i < p; i++ {
-			if s.Measure[i] != MeasureDisplacement {
-				continue
-			}
-			for k := 0; k < m; k++ {
-				D.Set(i, k, D.At(i, k)+corr.At(i, k))
-			}
-		}
 	}
-	sys, err := NewSystem(2*r, m, p, A, B, C, D, 0)
+	sys, err := assembleModal(sm, r, dj, s.F, s.Out, s.Measure, corr, s.InputNames, s.OutputNames)
 	if err != nil {
-		return nil, err
-	}
-	states := make([]string, 2*r)
-	for j := 0; j < r; j++ {
-		states[j] = fmt.Sprintf("mode%d", j+1)
-		states[r+j] = fmt.Sprintf("mode%d'", j+1)
-	}
-	if sys, err = sys.WithNames(states, s.InputNames, s.OutputNames); err != nil {
 		return nil, err
 	}
 	mm := &ModalModel{Sys: sys, Modes: sm, Kept: r, Static: static}
@@ -225,4 +184,200 @@ func compareModal(ctx context.Context, full, red *System, sm *StructuralModes, r
 	}
 	ck.OutName, ck.InName = full.OutputNames[ck.Output], full.InputNames[ck.Input]
 	return ck, nil
+}
+
+// assembleModal builds the modal state-space model of the first r modes
+// of sm: states eta_j and eta_j', eta_j” = -w_j^2 eta_j - d_j eta_j' +
+// phi_j^T F u, outputs by kind (an acceleration output gets the modal
+// accelerations, with their feedthrough), and corr (p x m, nil for none)
+// added to the displacement outputs as the static correction.
+func assembleModal(sm *StructuralModes, r int, d []float64, F, out *mat.Dense, measure []string, corr *mat.Dense, inputs, outputs []string) (*System, error) {
+	n, _ := sm.Shapes.Dims()
+	_, m := F.Dims()
+	p, _ := out.Dims()
+	phi := sm.Shapes.Slice(0, n, 0, r).(*mat.Dense)
+	var pf, op mat.Dense
+	pf.Mul(phi.T(), F) // r x m
+	op.Mul(out, phi)   // p x r
+	A := mat.NewDense(2*r, 2*r, nil)
+	B := mat.NewDense(2*r, m, nil)
+	C := mat.NewDense(p, 2*r, nil)
+	D := mat.NewDense(p, m, nil)
+	for j := 0; j < r; j++ {
+		A.Set(j, r+j, 1)
+		A.Set(r+j, j, -sm.Lambda[j]*boolf(!sm.Rigid[j]))
+		A.Set(r+j, r+j, -d[j])
+		for k := 0; k < m; k++ {
+			B.Set(r+j, k, pf.At(j, k))
+		}
+	}
+	for i := 0; i < p; i++ {
+		for j := 0; j < r; j++ {
+			c := op.At(i, j)
+			switch measure[i] {
+			case MeasureDisplacement:
+				C.Set(i, j, c)
+			case MeasureVelocity:
+				C.Set(i, r+j, c)
+			case MeasureAcceleration:
+				C.Set(i, j, c*A.At(r+j, j))
+				C.Set(i, r+j, c*A.At(r+j, r+j))
+				for k := 0; k < m; k++ {
+					D.Set(i, k, D.At(i, k)+c*pf.At(j, k))
+				}
+			}
+		}
+		if corr != nil && measure[i] == MeasureDisplacement {
+			for k := 0; k < m; k++ {
+				D.Set(i, k, D.At(i, k)+corr.At(i, k))
+			}
+		}
+	}
+	sys, err := NewSystem(2*r, m, p, A, B, C, D, 0)
+	if err != nil {
+		return nil, err
+	}
+	states := make([]string, 2*r)
+	for j := 0; j < r; j++ {
+		states[j] = fmt.Sprintf("mode%d", j+1)
+		states[r+j] = fmt.Sprintf("mode%d'", j+1)
+	}
+	if inputs == nil {
+		inputs = defaultNames("u", m)
+	}
+	if outputs == nil {
+		outputs = defaultNames("y", p)
+	}
+	return sys.WithNames(states, inputs, outputs)
+}
+
+// SparseModalSpec is what a modal model of a large sparse model needs
+// besides K and M: the force map, the sensors and what they measure, the
+// modal damping ratios (one for all, or one per kept mode) and the names.
+type SparseModalSpec struct {
+	F, Out          *mat.Dense
+	Measure         []string
+	Ratios          []float64
+	Inputs, Outputs []string
+	DOFNames        []string
+}
+
+// NewSparseModalModel keeps the lowest r modes of a large sparse model
+// (SparseModes) with modal damping ratios. The static correction is
+// K^-1 F minus the kept modes' part Phi_r Omega_r^-2 Phi_r^T F (the same
+// residual flexibility as the dense form, without all modes), K^-1 F by the
+// sparse factorization of K; it needs K nonsingular, so a model with
+// rigid-body modes is refused with static set. No frequency comparison is
+// made (the full model is large).
+func NewSparseModalModel(ctx context.Context, K, M *SparseSym, r int, static bool, spec SparseModalSpec, progress func(string, float64, int)) (*ModalModel, error) {
+	n := K.N
+	if r < 1 || r > n {
+		return nil, fmt.Errorf("keep between 1 and %d modes, not %d", n, r)
+	}
+	if spec.F == nil {
+		return nil, errors.New("the force map F is required (one row per degree of freedom)")
+	}
+	if fr, _ := spec.F.Dims(); fr != n {
+		return nil, &ShapeError{What: "F must have one row per degree of freedom", Got: Shape(spec.F), Other: fmt.Sprintf("%d rows", n)}
+	}
+	out := spec.Out
+	if out == nil {
+		out = identity(n)
+	}
+	if _, c := out.Dims(); c != n {
+		return nil, &ShapeError{What: "the output map must have one column per degree of freedom", Got: Shape(out), Other: fmt.Sprintf("%d columns", n)}
+	}
+	p, _ := out.Dims()
+	measure := make([]string, p)
+	ms := spec.Measure
+	if len(ms) == 0 {
+		ms = []string{MeasureDisplacement}
+	}
+	if len(ms) != 1 && len(ms) != p {
+		return nil, fmt.Errorf("give one measured quantity for all outputs or one per output row (%d), not %d", p, len(ms))
+	}
+	for i := range measure {
+		measure[i] = ms[0]
+		if len(ms) == p {
+			measure[i] = ms[i]
+		}
+		switch measure[i] {
+		case MeasureDisplacement, MeasureVelocity, MeasureAcceleration:
+		default:
+			return nil, fmt.Errorf("an output measures %q, %q or %q, not %q", MeasureDisplacement, MeasureVelocity, MeasureAcceleration, measure[i])
+		}
+	}
+	ratios := spec.Ratios
+	if len(ratios) == 0 {
+		ratios = []float64{0}
+	}
+	if len(ratios) != 1 && len(ratios) != r {
+		return nil, fmt.Errorf("give one damping ratio for all kept modes or one per kept mode (%d), not %d", r, len(ratios))
+	}
+	for _, z := range ratios {
+		if math.IsNaN(z) || z < 0 || math.IsInf(z, 0) {
+			return nil, fmt.Errorf("damping ratios must be finite and >= 0, not %g", z)
+		}
+	}
+	sm, err := SparseModes(ctx, K, M, SparseModeOptions{Count: r, DOFNames: spec.DOFNames, Progress: progress})
+	if err != nil {
+		return nil, err
+	}
+	d := make([]float64, r)
+	for j := range d {
+		z := ratios[0]
+		if len(ratios) == r {
+			z = ratios[j]
+		}
+		d[j] = 2 * z * sm.Omega[j]
+		sm.Damping[j] = z
+		if sm.Rigid[j] {
+			sm.Damping[j] = math.NaN()
+		}
+	}
+	var corr *mat.Dense
+	if static {
+		for j, rg := range sm.Rigid {
+			if rg {
+				return nil, fmt.Errorf("mode %d is a rigid-body mode: K is singular and has no static flexibility to correct with; use static: false", j+1)
+			}
+		}
+		perm := NestedDissection(K)
+		var f ldlFactor
+		if denseFronts(K, perm) {
+			f, err = FactorSupernodal(ctx, K, perm, nil)
+		} else {
+			f, err = FactorLDL(ctx, K, perm, nil)
+		}
+		if err != nil {
+			return nil, fmt.Errorf("the static correction needs K^-1: %w", err)
+		}
+		_, m := spec.F.Dims()
+		X := mat.NewDense(n, m, nil)
+		col := make([]float64, n)
+		tmp := make([]float64, n)
+		for k := 0; k < m; k++ {
+			mat.Col(col, k, spec.F)
+			f.Solve(col, tmp)
+			X.SetCol(k, col)
+		}
+		// Subtract the kept modes' static part Phi_r Omega_r^-2 Phi_r^T F.
+		var pf mat.Dense
+		pf.Mul(sm.Shapes.T(), spec.F)
+		for j := 0; j < r; j++ {
+			for k := 0; k < m; k++ {
+				pf.Set(j, k, pf.At(j, k)/sm.Lambda[j])
+			}
+		}
+		var kept mat.Dense
+		kept.Mul(sm.Shapes, &pf)
+		X.Sub(X, &kept)
+		corr = mat.NewDense(p, m, nil)
+		corr.Mul(out, X)
+	}
+	sys, err := assembleModal(sm, r, d, spec.F, out, measure, corr, spec.Inputs, spec.Outputs)
+	if err != nil {
+		return nil, err
+	}
+	return &ModalModel{Sys: sys, Modes: sm, Kept: r, Static: static}, nil
 }

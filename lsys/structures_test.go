@@ -390,3 +390,50 @@ func TestSparseModesInterrupt(t *testing.T) {
 		t.Errorf("got %v, want context.Canceled", err)
 	}
 }
+
+// The sparse modal model equals the dense one on the same small model
+// (same modes, same modal damping, the static correction from K^-1 F
+// against the sum over the truncated modes).
+func TestSparseModalModel(t *testing.T) {
+	K, M, err := SpringLattice([]int{7, 5}, 4e3, 0.8, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := K.N
+	F := mat.NewDense(n, 2, nil)
+	F.Set(n-1, 0, 1)
+	F.Set(10, 1, 1)
+	out := mat.NewDense(2, n, nil)
+	out.Set(0, n-1, 1)
+	out.Set(1, 17, 1)
+	measure := []string{MeasureDisplacement, MeasureAcceleration}
+	s, err := NewSecondOrder(sparseToDense(M), nil, sparseToDense(K), F, out, measure)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s, err = s.WithModalDamping([]float64{0.03}); err != nil {
+		t.Fatal(err)
+	}
+	for _, static := range []bool{false, true} {
+		dense, err := NewModalModel(context.Background(), s, 4, static)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sparse, err := NewSparseModalModel(context.Background(), K, M, 4, static, SparseModalSpec{F: F, Out: out, Measure: measure, Ratios: []float64{0.03}}, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, w := range []float64{0, 5, 40, 90} {
+			a, _ := GainAt(dense.Sys, w)
+			b, _ := GainAt(sparse.Sys, w)
+			for i := range a {
+				if d := cmplxAbs(a[i] - b[i]); d > 1e-8*cmplxAbs(a[i])+1e-14 {
+					t.Errorf("static %v, w=%g, channel %d: dense %v, sparse %v", static, w, i, a[i], b[i])
+				}
+			}
+		}
+	}
+	if _, err := NewSparseModalModel(context.Background(), K, M, 40, false, SparseModalSpec{F: F}, nil); err == nil {
+		t.Error("40 modes of 35 DOF accepted")
+	}
+}

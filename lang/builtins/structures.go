@@ -208,29 +208,82 @@ func structuresBuiltins() []*lang.Builtin {
 		{
 			Name: "modalmodel", Group: lang.GroupAnalysis,
 			Params: []lang.Param{
-				{Name: "model", Doc: "a second-order model"},
+				{Name: "model", Doc: "a second-order model, or the stiffness K of a large sparse model (then give M and F)"},
 				{Name: "count", Doc: "how many modes to keep (the lowest; rigid-body modes must all be kept)"},
 				{Name: "static", Doc: "add the static correction of the truncated modes to displacement outputs", Default: true},
+				{Name: "M", Doc: "sparse model: the mass matrix", Optional: true},
+				{Name: "F", Doc: "sparse model: the force map, n x m, or a vector of fewer than n DOF numbers (a unit force at each)", Optional: true},
+				{Name: "sensors", Doc: "sparse model: the output map, p x n, or a vector of fewer than n DOF numbers (one output each; default every DOF)", Optional: true},
+				{Name: "measure", Doc: `sparse model: "displacement", "velocity" or "acceleration", or one per output`, Optional: true},
+				{Name: "damping", Doc: "sparse model: the modal damping ratio of every kept mode, or one per kept mode", Optional: true},
+				{Name: "inputs", Doc: "sparse model: names of the inputs", Optional: true},
+				{Name: "outputs", Doc: "sparse model: names of the outputs", Optional: true},
 			},
-			Help: "The first modes of a second-order model as a small state-space system, with the static correction for the rest; compared with the full model over frequency.",
+			Help: "The first modes of a structure as a small state-space system, with the static correction for the rest; compared with the full model over frequency where it is small.",
 			Doc: "States are the modal displacements (mass-normalized shapes) and their rates, mode j damped by " +
-				"phi_j^T D phi_j (exact for classical damping). The static correction adds the residual flexibility " +
-				"sum over truncated modes of phi phi^T / w^2 as a feedthrough to displacement outputs, so the static gain " +
-				"is exact (Craig & Kurdila 2006, 13.4). For models up to 300 DOF the display compares the two over " +
-				"frequency on the channel where they differ most, with the largest error up to the highest kept mode " +
-				"relative to the channel's peak. Used as a system wherever one is needed.",
-			Examples: []string{soFrame + "modalmodel(frame, 2)"},
+				"phi_j^T D phi_j for a second-order model (exact for classical damping) or by the ratios given for a " +
+				"sparse one. The static correction adds the residual flexibility of the truncated modes as a feedthrough " +
+				"to displacement outputs, so the static gain is exact (Craig & Kurdila 2006, 13.4): the sum over the " +
+				"truncated modes of phi phi^T / w^2 for a second-order model, K^-1 F minus the kept modes' part for a " +
+				"sparse one (K^-1 by the sparse factorization; refused when K has rigid-body modes). For second-order " +
+				"models up to 300 DOF the display compares the two over frequency on the channel where they differ most, " +
+				"with the largest error up to the highest kept mode relative to the channel's peak. The lowest modes of a " +
+				"sparse model come from `lowestmodes`' Lanczos path. Used as a system wherever one is needed.",
+			Examples: []string{soFrame + "modalmodel(frame, 2)",
+				"p = springlattice([20, 10], 1e4, 0.2)\nmodalmodel(p.K, 3, M: p.M, F: [200], sensors: [200, 100], damping: 0.02)"},
 			Fn: func(c *lang.Call) (any, error) {
-				var s *lsys.SecondOrder
-				if err := secondOrderArg(c, "model", &s); err != nil {
-					return nil, err
-				}
 				var r int
 				static := true
 				if err := c.Bind("count", &r, "static", &static); err != nil {
 					return nil, err
 				}
-				return lsys.NewModalModel(c.Context(), s, r, static)
+				if s, ok := c.Value("model").(*lsys.SecondOrder); ok {
+					for _, name := range []string{"M", "F", "sensors", "measure", "damping", "inputs", "outputs"} {
+						if c.Given(name) {
+							return nil, c.Errorf(name, "A second-order model carries its own matrices and names; give them to secondorder.", "modalmodel: '%s' is for sparse models (modalmodel(K, count, M: ..., F: ...))", name)
+						}
+					}
+					return lsys.NewModalModel(c.Context(), s, r, static)
+				}
+				if _, ok := c.Value("model").(*lsys.SparseSym); !ok {
+					if _, dense := c.Value("model").(*mat.Dense); !dense {
+						return nil, c.Errorf("model", "Build one with secondorder(M, K, F, ...), or give a sparse K with M: and F:.", "modalmodel: 'model' must be a second-order model or a stiffness matrix, not %s", c.TypeName(c.Value("model")))
+					}
+				}
+				if !c.Has("M") || !c.Has("F") {
+					return nil, c.Errorf("", "Write modalmodel(K, count, M: M, F: F, ...).", "modalmodel: a stiffness matrix needs the mass matrix M: and the force map F:")
+				}
+				K, err := sparseArg(c, "model")
+				if err != nil {
+					return nil, err
+				}
+				M, err := sparseArg(c, "M")
+				if err != nil {
+					return nil, err
+				}
+				var spec lsys.SparseModalSpec
+				if err := c.Bind("measure", &spec.Measure, "inputs", &spec.Inputs, "outputs", &spec.Outputs); err != nil {
+					return nil, err
+				}
+				if spec.F, err = dofMap(c, "F", K.N, false); err != nil {
+					return nil, err
+				}
+				if c.Has("sensors") {
+					if spec.Out, err = dofMap(c, "sensors", K.N, true); err != nil {
+						return nil, err
+					}
+				}
+				if c.Has("damping") {
+					var d *mat.Dense
+					if err := c.Bind("damping", &d); err != nil {
+						return nil, err
+					}
+					rr, cc := d.Dims()
+					for k := 0; k < rr*cc; k++ {
+						spec.Ratios = append(spec.Ratios, d.At(k/cc, k%cc))
+					}
+				}
+				return lsys.NewSparseModalModel(c.Context(), K, M, r, static, spec, lowestProgress(c, r))
 			},
 		},
 		{
@@ -477,27 +530,7 @@ func fnLowestModes(c *lang.Call) (any, error) {
 	if err != nil {
 		return nil, err
 	}
-	const id = "lsys-lowestmodes-progress"
-	shown, last := false, ""
-	opt.Progress = func(stage string, frac float64, conv int) {
-		var msg string
-		switch stage {
-		case "ordering":
-			msg = fmt.Sprintf("lowestmodes: ordering %d degrees of freedom", K.N)
-		case "factorizing":
-			msg = fmt.Sprintf("lowestmodes: factorizing, %d %%", int(frac*10)*10)
-		case "iterating":
-			msg = fmt.Sprintf("lowestmodes: %d of %d modes converged", conv, count)
-		default:
-			msg = ""
-		}
-		if msg == last {
-			return
-		}
-		last = msg
-		c.Progress(id, msg, !shown)
-		shown = true
-	}
+	opt.Progress = lowestProgress(c, count)
 	return lsys.SparseStructuralModes(c.Context(), K, M, opt, R, dirs)
 }
 
@@ -610,6 +643,60 @@ func fnReadMtx(c *lang.Call) (any, error) {
 	a, err := lsys.ReadMatrixMarket(f)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	return a, nil
+}
+
+// lowestProgress shows the sparse path's stages in one display that
+// updates while it runs and is emptied at the end.
+func lowestProgress(c *lang.Call, count int) func(string, float64, int) {
+	const id = "lsys-lowestmodes-progress"
+	shown, last := false, ""
+	return func(stage string, frac float64, conv int) {
+		var msg string
+		switch stage {
+		case "ordering":
+			msg = fmt.Sprintf("%s: ordering the degrees of freedom", c.Builtin.Name)
+		case "factorizing":
+			msg = fmt.Sprintf("%s: factorizing, %d %%", c.Builtin.Name, int(frac*10)*10)
+		case "iterating":
+			msg = fmt.Sprintf("%s: %d of %d modes converged", c.Builtin.Name, conv, count)
+		}
+		if msg == last {
+			return
+		}
+		last = msg
+		c.Progress(id, msg, !shown)
+		shown = true
+	}
+}
+
+// dofMap reads a force map (n x m) or sensor map (p x n, rows when rows is
+// set); a vector of fewer than n whole numbers names DOFs instead, a unit
+// force or a unit sensor at each, so large models need no n-long vectors.
+func dofMap(c *lang.Call, name string, n int, rows bool) (*mat.Dense, error) {
+	var a *mat.Dense
+	if err := c.Bind(name, &a); err != nil {
+		return nil, err
+	}
+	r, cc := a.Dims()
+	if (r == 1 || cc == 1) && r*cc < n {
+		out := mat.NewDense(n, r*cc, nil)
+		if rows {
+			out = mat.NewDense(r*cc, n, nil)
+		}
+		for k := 0; k < r*cc; k++ {
+			v := a.At(k/cc, k%cc)
+			if v != math.Trunc(v) || v < 1 || v > float64(n) {
+				return nil, c.Errorf(name, "Give DOF numbers from 1 to the model's size, or a full matrix.", "%s: %s is not a degree of freedom of this %d-DOF model", c.Builtin.Name, lang.FormatNumber(v), n)
+			}
+			if rows {
+				out.Set(k, int(v)-1, 1)
+			} else {
+				out.Set(int(v)-1, k, 1)
+			}
+		}
+		return out, nil
 	}
 	return a, nil
 }

@@ -2,6 +2,7 @@ package builtins_test
 
 import (
 	"context"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -143,4 +144,39 @@ func TestBuiltinLowestModesProgress(t *testing.T) {
 	if len(rec.Displays) == 0 {
 		t.Error("no progress display")
 	}
+}
+
+// modalmodel on a stiffness matrix (the sparse path) agrees with the
+// same model entered as a second-order model: the static gain (exact with
+// the static correction either way) and the poles of the kept modes.
+func TestBuiltinModalModelSparse(t *testing.T) {
+	src := "K = [[2e4, -1e4, 0, 0], [-1e4, 2e4, -1e4, 0], [0, -1e4, 2e4, -1e4], [0, 0, -1e4, 1e4]]\n" +
+		"M = 2*identity(4)\nF = [0, 0, 0, 1]\n"
+	for _, probe := range []string{"gain(%s)", "poles(%s)"} {
+		a := stRun(t, src+fmt.Sprintf(probe, "modalmodel(K, 2, M: M, F: F, damping: 0.02)"))
+		b := stRun(t, src+fmt.Sprintf(probe, "modalmodel(secondorder(M, K, F, damping: 0.02), 2)"))
+		if !mat.EqualApprox(asMatrix(a), asMatrix(b), 1e-9) && !mat.CEqualApprox(asCMatrix(a), asCMatrix(b), 1e-6) {
+			t.Errorf("%s: sparse %v, dense %v", probe, lang.FormatValue(a), lang.FormatValue(b))
+		}
+	}
+	stRunErr(t, src+"modalmodel(K, 2, F: F)", "needs the mass matrix")
+	stRunErr(t, src+"modalmodel(K, 2, M: M, F: [5])", "not a degree of freedom")
+	if g := stRun(t, src+"gain(modalmodel(K, 2, M: M, F: [4], sensors: [4]))"); lang.FormatValue(g) != lang.FormatValue(stRun(t, src+"gain(modalmodel(K, 2, M: M, F: F, sensors: transpose(F)))")) {
+		t.Errorf("DOF numbers and the full maps differ: %s", lang.FormatValue(g))
+	}
+	stRunErr(t, src+"modalmodel(secondorder(M, K, F), 2, F: F)", "is for sparse models")
+}
+
+func asMatrix(v any) mat.Matrix {
+	if m, ok := v.(*mat.Dense); ok {
+		return m
+	}
+	return mat.NewDense(1, 1, []float64{math.NaN()})
+}
+
+func asCMatrix(v any) mat.CMatrix {
+	if m, ok := v.(*mat.CDense); ok {
+		return m
+	}
+	return mat.NewCDense(1, 1, []complex128{complex(math.NaN(), 0)})
 }
