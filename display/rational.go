@@ -10,7 +10,9 @@ import (
 )
 
 // Transfer functions: the text form is the language's own syntax (so it can
-// be pasted into a cell); the LaTeX form is a fraction in descending powers.
+// be pasted into a cell); the LaTeX form is a fraction in descending powers,
+// and the HTML form (what notebooks show) the same fraction typeset without
+// MathJax.
 func init() {
 	Register((*lsys.Rational)(nil), func(v any, _ Options) Bundle {
 		r := v.(*lsys.Rational)
@@ -23,6 +25,7 @@ func init() {
 			tex += `\qquad T = ` + latexNum(numfmt.Digits(r.Ts, 6)) + `\,\mathrm{s}`
 		}
 		b.Data[LaTeX] = tex + `$$`
+		b.Data[HTML] = rationalHTML(r)
 		jsonPoly := func(p lsys.Poly) []any { // descending powers, as written
 			t := p.Trim()
 			out := make([]any, len(t))

@@ -132,6 +132,11 @@ func (ev *evaluator) lookup(id *syntax.Ident) (any, error) {
 		}
 		return b, nil
 	}
+	if now, ok := ev.s.reg.Renamed(id.Name); ok {
+		b, _ := ev.s.reg.Lookup(now)
+		return nil, ev.errorAt(id.NamePos, fmt.Sprintf("'%s' was renamed; did you mean '%s'?", id.Name, now),
+			"Usage: "+b.Signature())
+	}
 	cands := append(ev.s.Names(), ev.s.reg.Names()...)
 	if n := len(ev.frames); n > 0 {
 		for k := range ev.frames[n-1] {
@@ -448,6 +453,9 @@ func (ev *evaluator) callBuiltin(b *Builtin, vals []any, poss []syntax.Pos, name
 	c.vals, c.poss, c.given = make([]any, n), make([]syntax.Pos, n), make([]bool, n)
 	for i, v := range vals {
 		switch {
+		case i < n && b.Params[i].NamedOnly:
+			return nil, ev.errorAt(poss[i], fmt.Sprintf("%s takes '%s' by name only", b.Name, b.Params[i].Name),
+				fmt.Sprintf("Write %s: before it. Usage: %s", b.Params[i].Name, b.Signature()))
 		case i < n && !b.Params[i].Variadic:
 			c.vals[i], c.poss[i], c.given[i] = v, poss[i], true
 		case n > 0 && b.Params[n-1].Variadic:
@@ -473,6 +481,10 @@ func (ev *evaluator) callBuiltin(b *Builtin, vals []any, poss []syntax.Pos, name
 			var names []string
 			for _, p := range b.Params {
 				names = append(names, p.Name)
+				if p.Formerly == nv.Name {
+					return nil, ev.errorAt(nv.Pos, fmt.Sprintf("%s has no argument named '%s' (it was renamed); did you mean '%s'?", b.Name, nv.Name, p.Name),
+						"Usage: "+b.Signature())
+				}
 			}
 			return nil, ev.errorAt(nv.Pos, fmt.Sprintf("%s has no argument named '%s'%s", b.Name, nv.Name, DidYouMean(nv.Name, names)),
 				"Usage: "+b.Signature())
@@ -546,7 +558,7 @@ func (ev *evaluator) runBuiltin(b *Builtin, c *Call, pos syntax.Pos) (any, error
 
 // shareSampleTime gives arguments in z whose sample time is still open
 // (1/z) the sample time of the call's sampled arguments, when they all
-// have one and the same: closeloop(Gz, 1/z), connect(Gz, 1/z, ...) (SPEC
+// have one and the same: closeloop(Gz, through: 1/z), wire(Gz, 1/z, ...) (SPEC
 // section 8, "taken from what it is combined with").
 func (c *Call) shareSampleTime() {
 	ts := 0.0

@@ -42,7 +42,7 @@ func TestShiftVariableTakesSampleTime(t *testing.T) {
 		// delay, G = b/(z - a) with a = e^-0.1, b = 1 - a, K = 1/z, has the
 		// characteristic polynomial z^2 - a z + b, roots
 		// (a +- sqrt(a^2 - 4b))/2 = 0.7833569303, 0.1214804877 (closed form).
-		{Src: gz + "poles(closeloop(Gz, 1/z))", Want: "0.7833569303\n0.1214804877"},
+		{Src: gz + "poles(closeloop(Gz, through: 1/z))", Want: "0.7833569303\n0.1214804877"},
 		{Src: gz + "stack(Gz, 1/z).every", Want: "0.1"},
 		{Src: gz + "stack(Gz, sample(system(1/(s + 2)), 0.2), 1/z)", Err: "this transfer function in z has no sample time yet", Line: 2, Col: 43},
 	})
@@ -72,7 +72,7 @@ func TestStaticGainSystems(t *testing.T) {
 		// the integrator plant 1/s with unit gain gives the closed loop
 		// 1/(s + 1), steady-state gain 1 (closed form).
 		{Src: sum + `P = system(1/s, inputs: ["error"], outputs: ["v_out"])` + "\n" +
-			`T = connect(S, P, outputs: ["v_out"])` + "\npoles(T)", Want: "-1"},
+			`T = wire(S, P, outputs: ["v_out"])` + "\npoles(T)", Want: "-1"},
 		{Src: `system([[1, -1]], inputs: ["ref", "v_out"], outputs: ["error"])`, Err: "give D alone: system(D: M); here M is 1x2, 2 inputs and 1 output", Line: 1, Col: 8},
 		{Src: "system(B: [1])", Err: "system needs the state matrix A, or only D for a static gain", Line: 1, Col: 1},
 		{Src: "system(D: [[1, -1]], C: [1])", Err: "system needs the state matrix A, or only D for a static gain", Line: 1, Col: 1},

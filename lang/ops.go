@@ -468,7 +468,7 @@ func (ev *evaluator) systemOp(op syntax.Token, a, b any, pos syntax.Pos) (any, e
 	if op != syntax.ADD && op != syntax.SUB && op != syntax.MUL {
 		hint := "Between systems, * is the series connection and + and - the parallel ones."
 		if op == syntax.DIV {
-			hint = "To close a loop use closeloop(G, K); there is no division of systems."
+			hint = "To close a loop use closeloop(G, through: K); there is no division of systems."
 		}
 		return nil, ev.opError(op, a, b, pos, hint)
 	}

@@ -47,6 +47,13 @@ type Param struct {
 	Default  any  // value used when the argument is not given
 	Optional bool // may be left out; no default value
 	Variadic bool // last parameter only: takes all remaining positional arguments
+	// NamedOnly: the argument is written with its name, never by position
+	// (where the name says what the value means, as the return path of a
+	// loop). Named-only parameters come after the positional ones.
+	NamedOnly bool
+	// Formerly is the name this argument had before it was renamed; a call
+	// that still uses it gets an error naming the new one.
+	Formerly string
 }
 
 // Builtin is one built-in function (or constant, when Value is set).
@@ -60,6 +67,9 @@ type Builtin struct {
 	// AnyNamed lets the call take named arguments that are not parameters
 	// (e.g. locus(f, k: values)); they are in c.Extra.
 	AnyNamed bool
+	// Formerly lists names this built-in had before it was renamed; using
+	// one is an error that names the new one (no alias: one name each).
+	Formerly []string
 	// Returns is a value of the result's type (a typed nil pointer is
 	// fine), so that help() and the reference list the fields of results.
 	Returns any
@@ -109,11 +119,12 @@ type Registry struct {
 	mu       sync.RWMutex
 	builtins map[string]*Builtin
 	types    map[reflect.Type]*TypeInfo
+	former   map[string]string // a former name -> the built-in's name now
 }
 
 // NewRegistry returns an empty registry.
 func NewRegistry() *Registry {
-	return &Registry{builtins: map[string]*Builtin{}, types: map[reflect.Type]*TypeInfo{}}
+	return &Registry{builtins: map[string]*Builtin{}, types: map[reflect.Type]*TypeInfo{}, former: map[string]string{}}
 }
 
 // Add adds built-ins. It panics on a duplicate name or a malformed entry,
@@ -135,6 +146,9 @@ func (r *Registry) Add(bs ...*Builtin) {
 			panic("lang.Registry.Add: two built-ins named " + b.Name)
 		}
 		for i, p := range b.Params {
+			if i > 0 && b.Params[i-1].NamedOnly && !p.NamedOnly {
+				panic("lang.Registry.Add: " + b.Name + ": named-only parameters come last")
+			}
 			if p.Variadic && i != len(b.Params)-1 {
 				panic("lang.Registry.Add: " + b.Name + ": only the last parameter may be variadic")
 			}
@@ -151,7 +165,26 @@ func (r *Registry) Add(bs ...*Builtin) {
 			}
 		}
 		r.builtins[b.Name] = b
+		for _, old := range b.Formerly {
+			r.former[old] = b.Name
+		}
 	}
+	for old, now := range r.former {
+		if _, taken := r.builtins[old]; taken {
+			panic("lang.Registry.Add: " + old + " is both a built-in and a former name of " + now)
+		}
+	}
+}
+
+// Renamed returns the name now of a built-in formerly called old.
+func (r *Registry) Renamed(old string) (string, bool) {
+	if r == nil {
+		return "", false
+	}
+	r.mu.RLock()
+	defer r.mu.RUnlock()
+	now, ok := r.former[old]
+	return now, ok
 }
 
 // Lookup returns the built-in called name.

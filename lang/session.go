@@ -84,6 +84,8 @@ func LanguageInfo() map[string]any {
 		"mimetype":       "text/x-lsys",
 		"file_extension": ".lsys",
 		"pygments_lexer": "text",
+		// our own editor mode, shipped in the kernelspec folder (kernel.js)
+		"codemirror_mode": "lsys",
 	}
 }
 

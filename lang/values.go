@@ -193,29 +193,30 @@ func systemSummary(g *lsys.System) string {
 	return fmt.Sprintf("system: %s, %s, %s, %s", Plural(g.N(), "state"), Plural(g.M(), "input"), Plural(g.P(), "output"), kind)
 }
 
+// systemText is the source that rebuilds the system (numfmt.Source, the
+// same as display's text form) under a comment line with its sizes; when
+// there is none (no outputs, or too large), its signal names.
 func systemText(g *lsys.System) string {
+	at := func(a *mat.Dense) func(i, j int) float64 {
+		return func(i, j int) float64 { return a.At(i, j) }
+	}
+	src := numfmt.Source(numfmt.SystemForm{States: g.StateNames, Inputs: g.InputNames, Outputs: g.OutputNames,
+		A: at(g.A), B: at(g.B), C: at(g.C), D: at(g.D), Every: g.Ts})
+	if src != "" {
+		return "# " + systemSummary(g) + "\n" + src
+	}
 	var b strings.Builder
-	b.WriteString(systemSummary(g))
+	b.WriteString("# " + systemSummary(g))
 	if g.N() > 0 {
-		fmt.Fprintf(&b, "\nstates:  %s", strings.Join(g.StateNames, ", "))
+		fmt.Fprintf(&b, "\n#   states:  %s", strings.Join(g.StateNames, ", "))
 	}
 	if g.M() > 0 {
-		fmt.Fprintf(&b, "\ninputs:  %s", strings.Join(g.InputNames, ", "))
+		fmt.Fprintf(&b, "\n#   inputs:  %s", strings.Join(g.InputNames, ", "))
 	}
 	if g.P() > 0 {
-		fmt.Fprintf(&b, "\noutputs: %s", strings.Join(g.OutputNames, ", "))
+		fmt.Fprintf(&b, "\n#   outputs: %s", strings.Join(g.OutputNames, ", "))
 	}
-	for _, m := range []struct {
-		name string
-		a    *mat.Dense
-	}{{"A", g.A}, {"B", g.B}, {"C", g.C}, {"D", g.D}} {
-		if m.a == nil {
-			continue
-		}
-		fmt.Fprintf(&b, "\n%s =\n", m.name)
-		txt := FormatValue(m.a)
-		b.WriteString("  " + strings.ReplaceAll(txt, "\n", "\n  "))
-	}
+	b.WriteString("\n#   (read the matrices as G.A, G.B, G.C, G.D)")
 	return b.String()
 }
 

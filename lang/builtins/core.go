@@ -490,7 +490,7 @@ func systemBuiltins() []*lang.Builtin {
 			Doc: "Matrices are written row by row: `[[0, 1], [-2, -3]]`. A plain list `[0, 1]` is a column; for C a plain list of n numbers is taken as one output row. " +
 				"With `every: T` the system is sampled: x[k+1] = A x[k] + B u[k]. " +
 				"Given a transfer function (a rational expression in s or z) or a list of lists of them, it returns a minimal state-space realization. " +
-				"Given D alone (`system(D: [[1, -1]])`) it is a static gain y = D u with no states, such as a summing junction for connect. " +
+				"Given D alone (`system(D: [[1, -1]])`) it is a static gain y = D u with no states, such as a summing junction for wire. " +
 				"A matrix of numbers next to a system in `*`, `+` or `-` is such a gain too: `[[1, -1]] * G` subtracts G's second output from its first. " +
 				"The equation form `system { ... }` (see lang/SPEC.md) is usually clearer.",
 			Examples: []string{

@@ -138,7 +138,7 @@ func modelBuiltins() []*lang.Builtin {
 			Name: "locus", Group: lang.GroupModels,
 			Returns: (*lsys.Locus)(nil),
 			Params: []lang.Param{
-				{Name: "family", Doc: "a function of one parameter that gives a system, e.g. f(k) = closeloop(G, k)"},
+				{Name: "family", Doc: "a function of one parameter that gives a system, e.g. f(k) = closeloop(G, through: k)"},
 			},
 			AnyNamed: true,
 			Help:     "How the modes of f(k) move as the parameter k runs over values: locus(f, k: linear(0, 10)).",

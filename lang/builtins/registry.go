@@ -61,6 +61,10 @@
 //   - Named arguments beyond the parameters (locus(f, k: ...)): set AnyNamed
 //     and read c.Extra. Variadic last parameters: c.Rest. Files beside the
 //     notebook: c.Dir(). Calling a user function: c.Apply(f, args...).
+//   - Renaming a built-in or an argument: list the old name in Formerly
+//     (Builtin.Formerly, Param.Formerly), so that using it is an error
+//     naming the new one. An argument whose value means nothing without
+//     its name (closeloop's through:) is NamedOnly.
 //   - After adding or changing a built-in, regenerate the reference in the
 //     README: go test ./lang/builtins -run Reference -update.
 package builtins

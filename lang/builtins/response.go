@@ -314,11 +314,11 @@ func responseBuiltins() []*lang.Builtin {
 			Params: []lang.Param{
 				{Name: "t", Doc: "times (s), increasing"},
 				{Name: "u", Doc: "values: a vector (one channel) or a matrix with one row per time and one column per input"},
-				{Name: "hold", Default: "linear", Doc: `"linear" between rows, or "zoh" to hold each row until the next`},
+				{Name: "hold", Default: lsys.HoldLinear, Doc: `"linear" between rows, or "zero-order" to hold each row until the next`},
 			},
 			Help:     "An input signal from a table of times and values, built in a cell.",
 			Doc:      "After the last time the last row is held. With one column the same values drive every input.",
-			Examples: []string{respExample + "u = table([0, 1, 2, 10], [0, 1, 1, 1], hold: \"zoh\")\nresponse(G, u)"},
+			Examples: []string{respExample + "u = table([0, 1, 2, 10], [0, 1, 1, 1], hold: \"zero-order\")\nresponse(G, u)"},
 			Fn: func(c *lang.Call) (any, error) {
 				t, err := vectorArg(c, "t")
 				if err != nil {
@@ -347,12 +347,12 @@ func responseBuiltins() []*lang.Builtin {
 			Name: "load", Group: lang.GroupOutput,
 			Params: []lang.Param{
 				{Name: "file", Doc: "a CSV file beside the notebook: time in the first column, one column per input"},
-				{Name: "hold", Default: "linear", Doc: `"linear" between rows, or "zoh" to hold each row until the next`},
+				{Name: "hold", Default: lsys.HoldLinear, Doc: `"linear" between rows, or "zero-order" to hold each row until the next`},
 			},
 			Help: "Read an input signal from a CSV table beside the notebook.",
 			Doc: "The first row may hold column names. Separators: comma (or semicolon). The file must lie in the notebook's folder " +
 				"or below it. Rows must have increasing times and finite numbers.",
-			Examples: []string{"# u = load(\"bench_test.csv\") reads time, then one column per input\nreadings(name) = load(name, hold: \"zoh\")"},
+			Examples: []string{"# u = load(\"bench_test.csv\") reads time, then one column per input\nreadings(name) = load(name, hold: \"zero-order\")"},
 			Fn: func(c *lang.Call) (any, error) {
 				name, err := c.String("file")
 				if err != nil {
@@ -374,7 +374,7 @@ func responseBuiltins() []*lang.Builtin {
 			},
 			Help: "Time response to a step, an impulse, an initial state or an input signal.",
 			Doc: "Exact at the samples: continuous systems are propagated through one block matrix exponential per step " +
-				"(Van Loan 1978) with the input held (step, zoh tables) or linear between samples (ramp, sine, tables, functions). " +
+				"(Van Loan 1978) with the input held (step, tables held at zero order) or linear between samples (ramp, sine, tables, functions). " +
 				"Without until/dt the horizon lets the slowest mode settle (6 time constants, 5 periods of an undamped mode, " +
 				"capped at 5 time constants of a growing mode, rounded up to 1, 2 or 5 times a power of ten) and the step resolves " +
 				"the fastest mode with 20 samples per period (200 to 10,000 steps). MIMO step and impulse responses have one panel " +
@@ -569,9 +569,11 @@ func responseBuiltins() []*lang.Builtin {
 			Name: "margins", Group: lang.GroupResponse,
 			Returns: (*lsys.Margins)(nil),
 			Params:  append([]lang.Param{{Name: "loop", Doc: "the loop transfer function L (SISO), negative feedback assumed"}}, freqParams...),
-			Help:    "Gain, phase and delay margins with all crossovers; closed-loop bandwidth and resonant peak; an annotated chart.",
+			Help:    "Gain, phase, delay and modulus margins with all crossovers; closed-loop bandwidth and resonant peak; a chart of the loop's distance from -1.",
 			Doc: "Crossovers are bracketed on the adaptive frequency grid and refined by bisection. The gain margin is the one of smallest |dB| " +
 				"over the phase crossovers, the phase margin the smallest over the gain crossovers, the delay margin PM/w minimised over gain crossovers. " +
+				"The modulus margin is the smallest distance of L(jw) from the critical point -1, min |1 + L| (the inverse of the peak sensitivity), refined between grid points by golden-section search. " +
+				"The chart draws that distance |1 + L| over frequency, with the modulus margin and the gain and phase crossovers marked on it (at a gain crossover the distance is 2 sin(PM/2), at a phase crossover |1 - |L||). " +
 				"Bandwidth and resonant peak are those of T = L/(1 + L). The margins mean something only if the closed loop is stable; the display says whether it is.",
 			Examples: []string{"L = 2 / (s*(s + 1)*(s + 2))\nmargins(L)"},
 			Fn: func(c *lang.Call) (any, error) {
@@ -627,26 +629,32 @@ func responseBuiltins() []*lang.Builtin {
 		{
 			Name: "closeloop", Group: lang.GroupResponse,
 			Params: []lang.Param{
-				{Name: "G", Doc: "the forward path"},
-				{Name: "K", Default: 1.0, Doc: "the return path; 1 is unity feedback"},
-				{Name: "sign", Default: -1.0, Doc: "-1 for negative feedback, +1 for positive"},
+				{Name: "G", Doc: "the forward path, from the loop's input (after the summing point) to its output"},
+				{Name: "through", Default: 1.0, NamedOnly: true, Formerly: "K", Doc: "the return path from the output back to the summing point; 1 (the default) returns the output itself"},
+				{Name: "sense", Default: "negative", NamedOnly: true, Formerly: "sign", Doc: `"negative": the returned signal is subtracted from the reference; "positive": added to it`},
 			},
-			Help: "Close a feedback loop around G with K in the return path: u = r + sign*K*y.",
-			Doc: "Outputs are named as G's; the inputs carry the reference and are named r1, r2, ...; states are G's then K's. With direct feedthrough on both sides the loop is algebraic and must be well posed " +
-				"(I - sign*D_G*D_K invertible). For a controller C in the forward path write closeloop(G*C).",
-			Examples: []string{"P = 2 / (s*(s + 1))\nT = closeloop(P * (s + 3)/(s + 5))\nresponse(T, step)"},
+			Help: "Close a feedback loop around G, returning its output through a block to a summing point at its input.",
+			Doc: "The loop's input is the reference r; the summing point gives G the reference minus the returned signal (sense \"negative\") or plus it (\"positive\"). " +
+				"Outputs are named as G's; the inputs carry the reference and are named r1, r2, ...; states are G's then those of the return path. With direct feedthrough on both sides the loop is algebraic and must be well posed " +
+				"(the identity minus or plus the product of the two feedthroughs invertible). For a controller C in the forward path write closeloop(G*C).",
+			Examples: []string{"P = 2 / (s*(s + 1))\nT = closeloop(P * (s + 3)/(s + 5))\nresponse(T, step)",
+				"P = 2 / (s*(s + 1))\nsensor = 10 / (s + 10)\nclosedloop = closeloop(P, through: sensor, sense: \"negative\")\npoles(closedloop)"},
 			Fn: func(c *lang.Call) (any, error) {
-				var g *lsys.System
-				var sign float64
-				err := c.Bind("G", &g, "sign", &sign)
+				g, err := c.System("G")
 				if err != nil {
 					return nil, err
 				}
-				if sign != 1 && sign != -1 {
-					return nil, c.Errorf("sign", "Write sign: -1 (negative feedback) or sign: +1 (positive).", "closeloop: sign must be +1 or -1, not %s", lang.FormatNumber(sign))
+				how, isWord := c.Value("sense").(string)
+				if !isWord || (how != "negative" && how != "positive") {
+					return nil, c.Errorf("sense", `Write sense: "negative" (the returned signal is subtracted) or sense: "positive" (added).`,
+						"closeloop: the sense of the feedback is \"negative\" or \"positive\", not %s", lang.FormatValue(c.Value("sense")))
+				}
+				sign := -1.0
+				if how == "positive" {
+					sign = 1
 				}
 				var k *lsys.System
-				if kv, ok := c.Value("K").(float64); ok && g.M() == g.P() {
+				if kv, ok := c.Value("through").(float64); ok && g.M() == g.P() {
 					// a number in the return path: that gain on every channel
 					D := mat.NewDense(g.P(), g.P(), nil)
 					for i := 0; i < g.P(); i++ {
@@ -655,10 +663,10 @@ func responseBuiltins() []*lang.Builtin {
 					if k, err = lsys.NewSystem(0, g.P(), g.M(), nil, nil, nil, D, g.Ts); err != nil {
 						return nil, err
 					}
-				} else if k, err = c.System("K"); err != nil {
+				} else if k, err = c.System("through"); err != nil {
 					return nil, err
 				}
-				return lsys.Feedback(g, k, sign)
+				return lsys.CloseLoop(g, k, sign)
 			},
 		},
 		{
@@ -676,19 +684,19 @@ func responseBuiltins() []*lang.Builtin {
 			},
 		},
 		{
-			Name: "connect", Group: lang.GroupResponse,
+			Name: "wire", Group: lang.GroupResponse, Formerly: []string{"connect"},
 			Params: []lang.Param{
-				{Name: "blocks", Variadic: true, Doc: "the systems to connect, with named signals; then optionally outputs: [names] to keep (default: every block output)"},
+				{Name: "blocks", Variadic: true, Doc: "the blocks to wire together, with named signals; then optionally outputs: [names] to keep (default: every block output)"},
 			},
 			AnyNamed: true,
-			Help:     "Connect blocks by signal name: every input named like some block's output is fed by it; the other inputs stay external.",
+			Help:     "Wire blocks together by signal name: every input named like some block's output is fed by it; the other inputs stay external.",
 			Doc: "Output names must be unique across the blocks. Blocks sharing an external input name share that input. " +
 				"Algebraic loops through direct feedthroughs must be well posed.",
 			Examples: []string{
 				"plant = system(2/(s*(s + 1)), inputs: [\"torque\"], outputs: [\"angle\"])\n" +
 					"C = (s + 3)/(s + 5)\n" +
 					"ctrl = system([[C, -C]], inputs: [\"ref\", \"angle\"], outputs: [\"torque\"])\n" +
-					"connect(plant, ctrl, outputs: [\"angle\"])",
+					"wire(plant, ctrl, outputs: [\"angle\"])",
 			},
 			Fn: func(c *lang.Call) (any, error) {
 				gs, err := systemsOf(c)
@@ -698,7 +706,7 @@ func responseBuiltins() []*lang.Builtin {
 				var outs []string
 				for _, nv := range c.Extra {
 					if nv.Name != "outputs" {
-						return nil, c.ErrorAt(nv.Pos, `Usage: connect(block1, block2, ..., outputs: ["name"]).`, "connect has no argument named '%s'", nv.Name)
+						return nil, c.ErrorAt(nv.Pos, `Usage: wire(block1, block2, ..., outputs: ["name"]).`, "wire has no argument named '%s'", nv.Name)
 					}
 					l, ok := nv.Value.(*lang.List)
 					if s, isStr := nv.Value.(string); isStr {
@@ -706,18 +714,18 @@ func responseBuiltins() []*lang.Builtin {
 						continue
 					}
 					if !ok {
-						return nil, c.ErrorAt(nv.Pos, `Write outputs: ["angle"].`, "connect: outputs must be a list of names")
+						return nil, c.ErrorAt(nv.Pos, `Write outputs: ["angle"].`, "wire: outputs must be a list of names")
 					}
 					outs = []string{}
 					for i, it := range l.Items {
 						s, ok := it.(string)
 						if !ok {
-							return nil, c.ErrorAt(nv.Pos, `Write outputs: ["angle"].`, "connect: output %d must be a name in quotes, not %s", i+1, c.TypeName(it))
+							return nil, c.ErrorAt(nv.Pos, `Write outputs: ["angle"].`, "wire: output %d must be a name in quotes, not %s", i+1, c.TypeName(it))
 						}
 						outs = append(outs, s)
 					}
 				}
-				return lsys.Connect(gs, outs)
+				return lsys.Wire(gs, outs)
 			},
 		},
 		{
@@ -725,18 +733,21 @@ func responseBuiltins() []*lang.Builtin {
 			Params: []lang.Param{
 				{Name: "system", Doc: "a continuous system"},
 				{Name: "T", Doc: "sample period in s"},
-				{Name: "method", Default: "zoh", Doc: `"zoh", "foh", "tustin" or "matched"`},
-				{Name: "prewarp", Default: 0.0, Doc: "tustin only: frequency (rad/s) where the response is matched exactly"},
+				{Name: "by", Default: lsys.ZeroOrderHold, Formerly: "method", Doc: `"zero-order hold", "first-order hold", "bilinear" or "matched pole-zero"`},
+				{Name: "prewarp", Default: 0.0, Doc: "bilinear only: the prewarp frequency (rad/s), where the sampled response equals the continuous one exactly"},
 			},
 			Help: "The sampled equivalent of a continuous system.",
-			Doc: "zoh: exact for inputs held between samples (block matrix exponential, Van Loan 1978); foh: exact for inputs linear between samples " +
-				"(triangle hold); tustin: bilinear substitution, optionally prewarped; matched: poles and zeros mapped by z = e^(sT) (SISO).",
-			Examples: []string{respExample + "Gd = sample(G, 0.1)\nresponse(Gd, step)", respExample + "sample(G, 0.1, method: \"tustin\", prewarp: 2)"},
+			Doc: "By zero-order hold: exact for inputs held between samples (block matrix exponential, Van Loan 1978); by first-order hold: exact for inputs linear between samples " +
+				"(triangle hold); bilinear: the substitution s = (2/T)(z - 1)/(z + 1), with a prewarp frequency where the response is to match exactly; matched pole-zero: poles and zeros mapped by z = e^(sT) (SISO).",
+			Examples: []string{respExample + "Gd = sample(G, 0.1)\nresponse(Gd, step)", respExample + "sample(G, 0.1, by: \"bilinear\", prewarp: 2)"},
 			Fn: func(c *lang.Call) (any, error) {
 				var g *lsys.System
 				var T, pw float64
 				var method string
-				if err := c.Bind("system", &g, "T", &T, "method", &method, "prewarp", &pw); err != nil {
+				if err := c.Bind("system", &g, "T", &T, "by", &method, "prewarp", &pw); err != nil {
+					return nil, err
+				}
+				if err := checkMethod(c, method, lsys.SampleMethods); err != nil {
 					return nil, err
 				}
 				return lsys.Sample(g, T, method, pw)
@@ -746,17 +757,20 @@ func responseBuiltins() []*lang.Builtin {
 			Name: "continuous", Group: lang.GroupResponse,
 			Params: []lang.Param{
 				{Name: "system", Doc: "a sampled system"},
-				{Name: "method", Default: "zoh", Doc: `"zoh", "foh" or "tustin": how it was sampled`},
-				{Name: "prewarp", Default: 0.0, Doc: "tustin only: the prewarp frequency used when sampling"},
+				{Name: "by", Default: lsys.ZeroOrderHold, Formerly: "method", Doc: `how it was sampled: "zero-order hold", "first-order hold" or "bilinear"`},
+				{Name: "prewarp", Default: 0.0, Doc: "bilinear only: the prewarp frequency used when sampling"},
 			},
 			Help:     "The continuous system whose sampled equivalent is the given one (the inverse of sample).",
-			Doc:      "zoh and foh: through the principal matrix logarithm (refused when a pole lies on the negative real axis of the z-plane); tustin: the inverse bilinear map (refused for a pole at z = -1).",
-			Examples: []string{respExample + "continuous(sample(G, 0.1))"},
+			Doc:      "Zero-order and first-order hold: through the principal matrix logarithm (refused when a pole lies on the negative real axis of the z-plane); bilinear: the inverse substitution (refused for a pole at z = -1).",
+			Examples: []string{respExample + "continuous(sample(G, 0.1))", respExample + "continuous(sample(G, 0.1, by: \"first-order hold\"), by: \"first-order hold\")"},
 			Fn: func(c *lang.Call) (any, error) {
 				var g *lsys.System
 				var method string
 				var pw float64
-				if err := c.Bind("system", &g, "method", &method, "prewarp", &pw); err != nil {
+				if err := c.Bind("system", &g, "by", &method, "prewarp", &pw); err != nil {
+					return nil, err
+				}
+				if err := checkMethod(c, method, lsys.SampleMethods); err != nil {
 					return nil, err
 				}
 				return lsys.Continuous(g, method, pw)
@@ -781,6 +795,29 @@ func responseBuiltins() []*lang.Builtin {
 			},
 		},
 	}
+}
+
+// shortMethods are abbreviations of sampling methods met elsewhere: each
+// gets an error naming lsys's words for it.
+var shortMethods = map[string]string{"zoh": lsys.ZeroOrderHold, "foh": lsys.FirstOrderHold, "tustin": lsys.Bilinear, "matched": lsys.MatchedPoleZero}
+
+// checkMethod accepts one of methods, the trade's words in full, for the
+// argument by: of sample and continuous.
+func checkMethod(c *lang.Call, method string, methods []string) error {
+	for _, m := range methods {
+		if method == m {
+			return nil
+		}
+	}
+	quoted := make([]string, len(methods))
+	for i, m := range methods {
+		quoted[i] = strconv.Quote(m)
+	}
+	list := strings.Join(quoted[:len(quoted)-1], ", ") + " or " + quoted[len(quoted)-1]
+	if full, ok := shortMethods[strings.ToLower(method)]; ok {
+		return c.Errorf("by", "Write by: "+strconv.Quote(full)+".", "%s: the method is written in full: did you mean %q?", c.Builtin.Name, full)
+	}
+	return c.Errorf("by", "Write one of "+list+".", "%s: unknown method %q%s", c.Builtin.Name, method, lang.DidYouMean(method, methods))
 }
 
 // progress shows "what: 40 %" in a display that updates in steps of 10 %
@@ -828,8 +865,11 @@ func makeTable(c *lang.Call, t []float64, rows [][]float64, name string) (any, e
 	if err != nil {
 		return nil, err
 	}
-	if hold != "linear" && hold != "zoh" {
-		return nil, c.Errorf("hold", `Write hold: "linear" or hold: "zoh".`, "%s: hold must be \"linear\" or \"zoh\", not %q", c.Builtin.Name, hold)
+	if hold == "zoh" {
+		return nil, c.Errorf("hold", `Write hold: "zero-order".`, "%s: the hold is written in words: did you mean \"zero-order\"?", c.Builtin.Name)
+	}
+	if hold != lsys.HoldLinear && hold != lsys.HoldZeroOrder {
+		return nil, c.Errorf("hold", `Write hold: "linear" or hold: "zero-order".`, "%s: hold must be \"linear\" or \"zero-order\", not %q", c.Builtin.Name, hold)
 	}
 	s, err := lsys.TableSignal(t, rows, name)
 	if err != nil {

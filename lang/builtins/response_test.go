@@ -55,7 +55,9 @@ func TestResponseBuiltinsNumbers(t *testing.T) {
 	// unity feedback around 2/(s(s+1)): T = 2/(s^2+s+2), gain 1
 	wantNum(t, "gain(closeloop(2 / (s*(s + 1))))", 1, 1e-14)
 	// positive feedback around 1/(s+2): 1/(s+1), gain 1
-	wantNum(t, "gain(closeloop(1/(s + 2), sign: 1))", 1, 1e-14)
+	wantNum(t, "gain(closeloop(1/(s + 2), sense: \"positive\"))", 1, 1e-14)
+	// a return path 2/(s + 3) (negative feedback): T(0) = (1/2)/(1 + (1/2)(2/3)) = 3/8 (by hand)
+	wantNum(t, "gain(closeloop(1/(s + 2), through: 2/(s + 3)))", 0.375, 1e-14)
 	// ZOH of 1/(s+1) with T = 0.1: Phi = e^-0.1 (Franklin, Powell & Workman)
 	wantNum(t, "Gd = sample(1/(s + 1), 0.1)\ngain(Gd)", 1, 1e-14)
 	// a delay approximant is all-pass
@@ -83,8 +85,9 @@ func TestResponseBuiltinsValues(t *testing.T) {
 		{"polar(1/(s + 1))", "*lsys.PolarChart"},
 		{"singular(stack(1/(s + 1), 2/(s + 3)))", "*lsys.SingularValues"},
 		{"polezero((s + 2)/(s^2 + s + 1))", "*lsys.PoleZeroMap"},
-		{"continuous(sample(1/(s + 1), 0.1, method: \"tustin\"), method: \"tustin\")", "*lsys.System"},
-		{"sample(1/(s + 1), 0.1, method: \"matched\")", "*lsys.System"},
+		{"continuous(sample(1/(s + 1), 0.1, by: \"bilinear\"), by: \"bilinear\")", "*lsys.System"},
+		{"sample(1/(s + 1), 0.1, by: \"matched pole-zero\")", "*lsys.System"},
+		{"sample(1/(s + 1), 0.1, by: \"first-order hold\")", "*lsys.System"},
 		{"delay(0.1)", "*lsys.Rational"},
 		{"table([0, 1], [0, 1])", "*lsys.Signal"},
 	}
@@ -95,7 +98,7 @@ func TestResponseBuiltinsValues(t *testing.T) {
 		}
 	}
 	// the loaded table drives the first-order lag: y(5) = 1 - ... > 0.9
-	v := runOne(t, dir, "r = response(1/(s + 1), load(\"run.csv\", hold: \"zoh\"), dt: 0.01)\nr.y")
+	v := runOne(t, dir, "r = response(1/(s + 1), load(\"run.csv\", hold: \"zero-order\"), dt: 0.01)\nr.y")
 	y := v.(interface{ At(int, int) float64 })
 	if got := y.At(500, 0); got < 0.9 || got > 1 {
 		t.Errorf("load-driven response at 5 s: %g", got)
@@ -143,11 +146,18 @@ func TestResponseBuiltinsErrors(t *testing.T) {
 		{Src: "gain(1/s)", Err: "steady-state gain is infinite"},
 		{Src: "load(\"../secret.csv\")", Err: "outside the notebook's folder"},
 		{Src: "load(\"missing.csv\")", Err: "no file"},
-		{Src: "closeloop(1/(s + 1), sign: 2)", Err: "sign must be +1 or -1"},
+		{Src: "closeloop(1/(s + 1), sense: -1)", Err: "the sense of the feedback is \"negative\" or \"positive\", not -1"},
+		{Src: "closeloop(1/(s + 1), sign: -1)", Err: "no argument named 'sign' (it was renamed); did you mean 'sense'?"},
+		{Src: "closeloop(1/(s + 1), 2)", Err: "closeloop takes 'through' by name only"},
 		{Src: "polezero(1/(s + 1), within: -3)", Err: "'within' must be a positive number"},
-		{Src: "sample(1/(s + 1), 0.1, method: \"fast\")", Err: "unknown method"},
+		{Src: "sample(1/(s + 1), 0.1, by: \"fast\")", Err: "unknown method"},
+		{Src: "sample(1/(s + 1), 0.1, by: \"zoh\")", Err: "did you mean \"zero-order hold\"?"},
+		{Src: "continuous(sample(1/(s + 1), 0.1), by: \"tustin\")", Err: "did you mean \"bilinear\"?"},
+		{Src: "sample(1/(s + 1), 0.1, method: \"zoh\")", Err: "no argument named 'method' (it was renamed); did you mean 'by'?"},
 		{Src: "response(1/(s + 1), step, by: \"pole\")", Err: "by must be"},
-		{Src: "connect(1/(s + 1), nope: 1)", Err: "no argument named 'nope'"},
+		{Src: "table([0, 1], [0, 1], hold: \"zoh\")", Err: "did you mean \"zero-order\"?"},
+		{Src: "wire(1/(s + 1), nope: 1)", Err: "no argument named 'nope'"},
+		{Src: "connect(1/(s + 1))", Err: "'connect' was renamed; did you mean 'wire'?"},
 		{Src: "G = system([[0, 1], [-2, -3]], [0, 1], [1, 0])\nresponse(G, initial: [1])", Err: "initial state has 1 entries"},
 	})
 }

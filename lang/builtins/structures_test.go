@@ -49,7 +49,7 @@ func TestBuiltinSecondOrderAsSystem(t *testing.T) {
 			t.Errorf("pole %d: ratio %g, want 0.02", i+1, zeta)
 		}
 	}
-	stRun(t, soTestFrame+"closeloop(frame, 1)")
+	stRun(t, soTestFrame+"closeloop(frame, through: 1)")
 	stRun(t, soTestFrame+"stack(frame, modalmodel(frame, 1))")
 	stRun(t, soTestFrame+"2 * frame + modalmodel(frame, 2)")
 	stRun(t, soTestFrame+"frequency(frame)")
