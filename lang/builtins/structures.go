@@ -104,6 +104,7 @@ func structuresBuiltins() []*lang.Builtin {
 	return []*lang.Builtin{
 		{
 			Name: "secondorder", Group: lang.GroupSystems,
+			Returns: (*lsys.SecondOrder)(nil),
 			Params: []lang.Param{
 				{Name: "M", Doc: "mass matrix, n x n, symmetric positive definite"},
 				{Name: "K", Doc: "stiffness matrix, n x n, symmetric"},
@@ -128,6 +129,7 @@ func structuresBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "rayleigh", Group: lang.GroupSystems,
+			Returns: (*lsys.SecondOrder)(nil),
 			Params: []lang.Param{
 				{Name: "model", Doc: "a second-order model"},
 				{Name: "f1", Doc: "first frequency, Hz"},
@@ -154,6 +156,7 @@ func structuresBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "normalmodes", Group: lang.GroupAnalysis,
+			Returns: (*lsys.StructuralModes)(nil),
 			Params: []lang.Param{
 				{Name: "model", Doc: "a second-order model"},
 				{Name: "directions", Doc: "excitation directions, n x d: each column a rigid displacement pattern (e.g. all ones for a translation along a chain), or a number: every DOF displaced by it", Optional: true},
@@ -183,6 +186,7 @@ func structuresBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "lowestmodes", Group: lang.GroupAnalysis,
+			Returns: (*lsys.StructuralModes)(nil),
 			Params: []lang.Param{
 				{Name: "K", Doc: "stiffness: a sparse matrix (readmtx, springlattice) or a matrix"},
 				{Name: "M", Doc: "mass: a sparse matrix or a matrix, symmetric positive definite"},
@@ -194,8 +198,10 @@ func structuresBuiltins() []*lang.Builtin {
 			},
 			Help: "The lowest modes (or those nearest a frequency) of a large sparse model, by shift-and-invert Lanczos on a sparse factorization.",
 			Doc: "Thick-restart Lanczos (Wu & Simon 2000) on (K - sigma M)^-1 M in the M-inner product with full " +
-				"reorthogonalization, as in Grimes, Lewis & Simon (1994); K - sigma M is factored as L D L^T (up-looking, " +
-				"Davis 2005) after a nested-dissection ordering on level structures (George 1973; George & Liu 1981). " +
+				"reorthogonalization, as in Grimes, Lewis & Simon (1994); K - sigma M is factored as L D L^T after a " +
+				"nested-dissection ordering on level structures (George 1973; George & Liu 1981): multifrontal on relaxed " +
+				"supernodes (Duff & Reid 1983; Ashcraft & Grimes 1989) when the fronts are dense (3-D meshes), up-looking " +
+				"(Davis 2005) otherwise. `near:` returns the modes whose w^2 is nearest (2 pi f)^2. " +
 				"A Ritz pair is accepted when its residual is at most 1e-10 of its value. sigma is 0 for the lowest modes; " +
 				"when K is singular there (rigid-body modes) it moves to -1e-8 ||K||_1/||M||_1 and the display says so. " +
 				"The display also gives the count of eigenvalues below the shift (Sylvester's inertia of the factor), the " +
@@ -207,6 +213,7 @@ func structuresBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "modalmodel", Group: lang.GroupAnalysis,
+			Returns: (*lsys.ModalModel)(nil),
 			Params: []lang.Param{
 				{Name: "model", Doc: "a second-order model, or the stiffness K of a large sparse model (then give M and F)"},
 				{Name: "count", Doc: "how many modes to keep (the lowest; rigid-body modes must all be kept)"},
@@ -288,6 +295,7 @@ func structuresBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "mac", Group: lang.GroupAnalysis,
+			Returns: (*lsys.MACMatrix)(nil),
 			Params: []lang.Param{
 				{Name: "a", Doc: "shapes: a table of normal modes or a matrix with one shape per column"},
 				{Name: "b", Doc: "shapes to compare with (same number of rows)"},
@@ -332,6 +340,7 @@ func structuresBuiltins() []*lang.Builtin {
 		},
 		{
 			Name: "readmtx", Group: lang.GroupOutput,
+			Returns: (*lsys.SparseSym)(nil),
 			Params: []lang.Param{
 				{Name: "file", Doc: "a .mtx file beside the notebook, or the text of one"},
 			},
