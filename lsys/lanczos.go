@@ -246,12 +246,18 @@ func SparseModes(ctx context.Context, K, M *SparseSym, opt SparseModeOptions) (*
 			}
 			b := math.Sqrt(math.Max(dot(w, mw), 0))
 			tiny := 1e-12 * math.Abs(h[j])
-			if b <= tiny {
+			if b <= tiny || j+1 == n {
 				// An invariant subspace: go on with a fresh direction,
-				// coupled by 0.
+				// coupled by 0 (none is left once the basis spans the
+				// whole space).
 				b = 0
-				if err := newVector(j + 1); err != nil {
-					return nil, err
+				if j+1 < n {
+					if err := newVector(j + 1); err != nil {
+						return nil, err
+					}
+				} else {
+					clear(V[j+1])
+					clear(MV[j+1])
 				}
 			} else {
 				for i := range w {

@@ -437,3 +437,41 @@ func TestSparseModalModel(t *testing.T) {
 		t.Error("40 modes of 35 DOF accepted")
 	}
 }
+
+// Sizes down to one DOF, all modes asked (the basis then spans the whole
+// space), lowest and nearest a shift, against the dense solver.
+func TestSparseModesSmall(t *testing.T) {
+	const tol = 1e-10
+	for _, n := range []int{1, 2, 3, 5, 8, 13} {
+		K, M, err := SpringLattice([]int{n}, 3, 1, true)
+		if err != nil {
+			t.Fatal(err)
+		}
+		d, err := UndampedModes(sparseToDense(M), sparseToDense(K))
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, k := range []int{1, (n + 1) / 2, n} {
+			sm, err := SparseModes(context.Background(), K, M, SparseModeOptions{Count: k})
+			if err != nil {
+				t.Errorf("n=%d k=%d: %v", n, k, err)
+				continue
+			}
+			for j := 0; j < k; j++ {
+				if r := math.Abs(sm.Lambda[j]-d.Lambda[j]) / d.Lambda[j]; r > tol {
+					t.Errorf("n=%d k=%d mode %d: %g, dense %g", n, k, j+1, sm.Lambda[j], d.Lambda[j])
+				}
+			}
+		}
+		// The mode nearest the middle eigenvalue's neighbourhood is that
+		// eigenvalue.
+		mid := d.Lambda[n/2]
+		sm, err := SparseModes(context.Background(), K, M, SparseModeOptions{Count: 1, Shift: mid * (1 + 1e-3), Nearest: true})
+		if err != nil {
+			t.Fatalf("n=%d near: %v", n, err)
+		}
+		if r := math.Abs(sm.Lambda[0]-mid) / mid; r > tol {
+			t.Errorf("n=%d near %g: got %g", n, mid, sm.Lambda[0])
+		}
+	}
+}
