@@ -158,6 +158,7 @@ func renderStructuralModes(v any, opt Options) Bundle {
 		}
 		note(&c.t, &c.h, fmt.Sprintf("Sparse path (%s): %d DOF, %d stored entries of K; %s, %s: L has %d entries (%s); shift %s rad^2/s^2 with %s below it; basis %d, %s, %d solves; largest residual %s (tolerance %s).",
 			kind, st.N, st.NNZK, st.Ordering, st.Factorization, st.FactorNNZ, fmtBytes(st.FactorMem), fmtNum(st.Shift), count(st.Below, "eigenvalue", "eigenvalues"), st.Basis, count(st.Restarts, "restart", "restarts"), st.Solves, fmtNum(st.Residual), fmtNum(st.Tol)))
+		note(&c.t, &c.h, fmt.Sprintf("Smallest pivot of the factorization: %s of the largest diagonal entry (a factorization fails below %s; near it the shift sits close to an eigenvalue and the solves lose digits).", fmtNum(st.MinPivot), fmtNum(lsys.PivotTol)))
 		note(&c.t, &c.h, "Memory held by the matrices, the factor and the Lanczos basis: "+fmtBytes(st.Memory)+".")
 		if st.ShiftNote != "" {
 			note(&c.t, &c.h, st.ShiftNote+".")
