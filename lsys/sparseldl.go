@@ -59,27 +59,9 @@ func FactorLDL(ctx context.Context, a *SparseSym, perm []int, progress func(done
 	for k, p := range perm {
 		f.Pinv[p] = k
 	}
-	parent := make([]int, n)
-	lnz := make([]int, n)
-	flag := make([]int, n)
 	// Symbolic: the elimination tree and column counts.
-	for k := 0; k < n; k++ {
-		parent[k] = -1
-		flag[k] = k
-		kk := perm[k]
-		for p := a.ColPtr[kk]; p < a.ColPtr[kk+1]; p++ {
-			i := f.Pinv[a.RowIdx[p]]
-			if i < k {
-				for ; flag[i] != k; i = parent[i] {
-					if parent[i] == -1 {
-						parent[i] = k
-					}
-					lnz[i]++
-					flag[i] = k
-				}
-			}
-		}
-	}
+	parent, lnz := etreeCounts(a, perm, f.Pinv)
+	flag := make([]int, n)
 	f.Lp = make([]int, n+1)
 	for k := 0; k < n; k++ {
 		f.Lp[k+1] = f.Lp[k] + lnz[k]
