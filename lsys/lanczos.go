@@ -512,8 +512,8 @@ func (f *SupernodalLDL) peakWork() int64   { return f.PeakWork }
 // denseFronts decides between the two factorizations from the column
 // counts of L: the multifrontal one pays for its dense fronts once the
 // mean column count, weighted by the work of each column (sum c_j^2 /
-// sum c_j), exceeds 200 (3-D meshes: 287 at 10^4 DOF, 1188 at 10^5);
-// below (chains 2, plates 47 to 116 at 10^4 to 10^5 DOF) the
+// sum c_j), exceeds 200 (3-D meshes: 269 at 10^4 DOF, 1179 at 10^5);
+// below (chains 2, plates 43 to 104 at 10^4 to 10^5 DOF) the
 // column-by-column one is faster (measured on the lattices of
 // BenchmarkLattice).
 func denseFronts(a *SparseSym, perm []int) bool {
