@@ -267,8 +267,9 @@ type SparseModalSpec struct {
 // K^-1 F minus the kept modes' part Phi_r Omega_r^-2 Phi_r^T F (the same
 // residual flexibility as the dense form, without all modes), K^-1 F by the
 // sparse factorization of K; it needs K nonsingular, so a model with
-// rigid-body modes is refused with static set. No frequency comparison is
-// made (the full model is large).
+// rigid-body modes is refused with static set. Up to ModalCheckMaxDOF DOF,
+// with one damping ratio for all modes, the model is compared with the
+// full one over frequency as NewModalModel does.
 func NewSparseModalModel(ctx context.Context, K, M *SparseSym, r int, static bool, spec SparseModalSpec, progress func(string, float64, int)) (*ModalModel, error) {
 	n := K.N
 	if r < 1 || r > n {
@@ -379,5 +380,39 @@ func NewSparseModalModel(ctx context.Context, K, M *SparseSym, r int, static boo
 	if err != nil {
 		return nil, err
 	}
-	return &ModalModel{Sys: sys, Modes: sm, Kept: r, Static: static}, nil
+	mm := &ModalModel{Sys: sys, Modes: sm, Kept: r, Static: static}
+	// A small model with one ratio for every mode is compared with its full
+	// form (dense, the same ratio in all modes), as the dense path does.
+	if _, m := spec.F.Dims(); n <= ModalCheckMaxDOF && len(ratios) == 1 && m > 0 && p > 0 {
+		full, err := NewSecondOrder(sparseDense(M), nil, sparseDense(K), spec.F, out, measure)
+		if err != nil {
+			return nil, err
+		}
+		if full, err = full.WithModalDamping(ratios); err != nil {
+			return nil, err
+		}
+		all, err := StructuralModesOf(full, nil, nil)
+		if err != nil {
+			return nil, err
+		}
+		g, err := full.System()
+		if err != nil {
+			return nil, err
+		}
+		if mm.Check, err = compareModal(ctx, g, sys, all, r); err != nil {
+			return nil, err
+		}
+	}
+	return mm, nil
+}
+
+// sparseDense is a as a dense matrix (small models only).
+func sparseDense(a *SparseSym) *mat.Dense {
+	d := mat.NewDense(a.N, a.N, nil)
+	for j := 0; j < a.N; j++ {
+		for p := a.ColPtr[j]; p < a.ColPtr[j+1]; p++ {
+			d.Set(int(a.RowIdx[p]), j, a.Val[p])
+		}
+	}
+	return d
 }

@@ -152,15 +152,7 @@ func TestLanczosAgainstDense(t *testing.T) {
 	}
 }
 
-func sparseToDense(a *SparseSym) *mat.Dense {
-	d := mat.NewDense(a.N, a.N, nil)
-	for j := 0; j < a.N; j++ {
-		for p := a.ColPtr[j]; p < a.ColPtr[j+1]; p++ {
-			d.Set(int(a.RowIdx[p]), j, a.Val[p])
-		}
-	}
-	return d
-}
+func sparseToDense(a *SparseSym) *mat.Dense { return sparseDense(a) }
 
 // The modal model with every mode kept reproduces the full model at any
 // frequency (classical damping); with few modes and the static correction
@@ -432,6 +424,19 @@ func TestSparseModalModel(t *testing.T) {
 				}
 			}
 		}
+	}
+	// With one ratio for all modes, a model this small is compared with its
+	// full form, and finds the error the dense path finds.
+	sp, err := NewSparseModalModel(context.Background(), K, M, 6, true, SparseModalSpec{F: F, Out: out, Measure: measure, Ratios: []float64{0.03}}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	dn, err := NewModalModel(context.Background(), s, 6, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if sp.Check == nil || dn.Check == nil || math.Abs(sp.Check.MaxRelErr-dn.Check.MaxRelErr) > 1e-6*dn.Check.MaxRelErr {
+		t.Errorf("frequency comparison: sparse %v, dense %v", sp.Check != nil, dn.Check != nil)
 	}
 	if _, err := NewSparseModalModel(context.Background(), K, M, 40, false, SparseModalSpec{F: F}, nil); err == nil {
 		t.Error("40 modes of 35 DOF accepted")

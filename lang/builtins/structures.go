@@ -232,8 +232,9 @@ func structuresBuiltins() []*lang.Builtin {
 				"sparse one. The static correction adds the residual flexibility of the truncated modes as a feedthrough " +
 				"to displacement outputs, so the static gain is exact (Craig & Kurdila 2006, 13.4): the sum over the " +
 				"truncated modes of phi phi^T / w^2 for a second-order model, K^-1 F minus the kept modes' part for a " +
-				"sparse one (K^-1 by the sparse factorization; refused when K has rigid-body modes). For second-order " +
-				"models up to 300 DOF the display compares the two over frequency on the channel where they differ most, " +
+				"sparse one (K^-1 by the sparse factorization; refused when K has rigid-body modes). For models up to " +
+				"300 DOF (sparse ones with one damping ratio, then given to every mode of the full model) the display " +
+				"compares the two over frequency on the channel where they differ most, " +
 				"with the largest error up to the highest kept mode relative to the channel's peak. The lowest modes of a " +
 				"sparse model come from `lowestmodes`' Lanczos path. Used as a system wherever one is needed.",
 			Examples: []string{soFrame + "modalmodel(frame, 2)",
