@@ -72,6 +72,10 @@ func init() {
 				if ch.XScale != "log" && ch.XScale != "linear" {
 					return nil, c.Errorf("xscale", `Write xscale: "log" or xscale: "linear".`, "chart: xscale must be \"log\" or \"linear\", not %q", ch.XScale)
 				}
+				switch v.(type) {
+				case *lsys.PolarChart, *lsys.PoleZeroMap, *lsys.Locus:
+					return nil, c.Errorf("xscale", "Leave xscale out; frame the chart with xmin, xmax, ymin, ymax.", "chart: a chart in the complex plane has linear axes")
+				}
 				if ch.XScale == "log" && (ch.XMin <= 0 || ch.XMax <= 0) {
 					return nil, c.Errorf("xscale", "", "chart: a log axis needs xmin and xmax above 0")
 				}

@@ -87,6 +87,7 @@ func TestChartBuiltin(t *testing.T) {
 	stRunErr(t, "chart(3)", "has no chart")
 	stRunErr(t, g+`chart(response(G, step), xscale: "cubic")`, `"log" or "linear"`)
 	stRunErr(t, g+`chart(response(G, step), width: 10)`, "width and height go together")
+	stRunErr(t, `chart(polezero(1/(s + 1)), xscale: "log")`, "complex plane has linear axes")
 }
 
 // The modulus margin of loopshapes and of margins are the same figure,
