@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sort"
 )
 
 // LoopShape holds the four closed-loop transfer functions of the SISO loop
@@ -118,11 +119,21 @@ func LoopShapes(ctx context.Context, P, C *System, opt FrequencyOptions) (*LoopS
 			}
 		}
 		if n > 1 && (kPeak == 0 || kPeak == n-1) && ls.Peak[i] > 0 {
-			edge := "lower"
+			edge, toward, inner := "lower", "low", f.W[kPeak]*10
 			if kPeak == n-1 {
-				edge = "upper"
+				edge, toward, inner = "upper", "high", f.W[kPeak]/10
 			}
-			ls.Notes = append(ls.Notes, fmt.Sprintf("the largest |%s| found lies at the %s edge of the range (%.4g rad/s), not at a true maximum", ls.Names[i], edge, f.W[kPeak]))
+			// within 0.1 dB over the last decade: the function levels off
+			// at its limit there, which is its supremum, not a peak
+			k := sort.SearchFloat64s(f.W, inner)
+			if k >= n {
+				k = n - 1
+			}
+			if m := cabs(ls.Gain[i][k]); m > 0 && math.Abs(20*math.Log10(ls.Peak[i]/m)) < 0.1 {
+				ls.Notes = append(ls.Notes, fmt.Sprintf("|%s| levels off at %.4g toward %s frequencies: its largest value is that limit, not a peak", ls.Names[i], ls.Peak[i], toward))
+			} else {
+				ls.Notes = append(ls.Notes, fmt.Sprintf("the largest |%s| found lies at the %s edge of the range (%.4g rad/s), not at a true maximum", ls.Names[i], edge, f.W[kPeak]))
+			}
 		}
 	}
 	ls.ModulusMargin = 1 / ls.Peak[0]
