@@ -3,6 +3,8 @@ package lsys
 import (
 	"fmt"
 	"math"
+
+	"gonum.org/v1/gonum/mat"
 )
 
 // Controller building blocks with physical parameters, as transfer
@@ -135,4 +137,85 @@ func LowPass(w float64, order int, z float64) (*Rational, error) {
 		return &Rational{Num: Poly{w * w}, Den: Poly{w * w, 2 * z * w, 1}}, nil
 	}
 	return nil, fmt.Errorf("the order must be 1 or 2, got %d (cascade sections for more)", order)
+}
+
+// The same blocks as state-space systems in the form of the equation
+// blocks in the comments above: the states the firmware would keep
+// (integral, filtered, ...), input "e" and output "u".
+
+func blockSystem(A, B, C, D []float64, n int, states []string) (*System, error) {
+	var a, b, c *mat.Dense
+	if n > 0 {
+		a, b, c = mat.NewDense(n, n, A), mat.NewDense(n, 1, B), mat.NewDense(1, n, C)
+	}
+	s, err := NewSystem(n, 1, 1, a, b, c, mat.NewDense(1, 1, D), 0)
+	if err != nil {
+		return nil, err
+	}
+	return s.WithNames(states, []string{"e"}, []string{"u"})
+}
+
+// ThreeTermBlock is ThreeTerm as its equation block: states integral
+// (without integral action: none) and filtered (without derivative: none).
+func ThreeTermBlock(kp, ti, td, n float64) (*System, error) {
+	if _, err := ThreeTerm(kp, ti, td, n); err != nil {
+		return nil, err
+	}
+	var A, B, C []float64
+	var states []string
+	integral, deriv := !math.IsInf(ti, 1), td > 0
+	tf := td / n
+	D := kp
+	if deriv {
+		D += kp * td / tf
+	}
+	k := 0
+	if integral {
+		k++
+	}
+	if deriv {
+		k++
+	}
+	A = make([]float64, k*k)
+	i := 0
+	if integral {
+		B, C, states = append(B, 1/ti), append(C, kp), append(states, "integral")
+		i++
+	}
+	if deriv {
+		A[i*k+i] = -1 / tf
+		B, C, states = append(B, 1/tf), append(C, -kp*td/tf), append(states, "filtered")
+	}
+	return blockSystem(A, B, C, []float64{D}, k, states)
+}
+
+// LeadLagBlock is LeadLag as its equation block (state x).
+func LeadLagBlock(w, phase, k float64) (*System, error) {
+	if _, err := LeadLag(w, phase, k); err != nil {
+		return nil, err
+	}
+	wz, wp, a := LeadLagCorners(w, phase)
+	g := k * math.Sqrt(a)
+	return blockSystem([]float64{-wp}, []float64{wp}, []float64{g * (1 - wp/wz)}, []float64{g * wp / wz}, 1, []string{"x"})
+}
+
+// NotchBlock is Notch as its equation block (states a, b).
+func NotchBlock(w, depth, width float64) (*System, error) {
+	if _, err := Notch(w, depth, width); err != nil {
+		return nil, err
+	}
+	zp := width / 2
+	zz := depth * zp
+	return blockSystem([]float64{0, 1, -w * w, -2 * zp * w}, []float64{0, 1}, []float64{0, 2 * (zz - zp) * w}, []float64{1}, 2, []string{"a", "b"})
+}
+
+// LowPassBlock is LowPass as its equation block (state x; or a, b).
+func LowPassBlock(w float64, order int, z float64) (*System, error) {
+	if _, err := LowPass(w, order, z); err != nil {
+		return nil, err
+	}
+	if order == 1 {
+		return blockSystem([]float64{-w}, []float64{w}, []float64{1}, []float64{0}, 1, []string{"x"})
+	}
+	return blockSystem([]float64{0, 1, -w * w, -2 * z * w}, []float64{0, w * w}, []float64{1, 0}, []float64{0}, 2, []string{"a", "b"})
 }

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
@@ -61,12 +62,25 @@ func TestBuildingBlocksAgreeWithBlocks(t *testing.T) {
 		"d = 0.05\nwd = 0.3\nzp = wd/2\nzz = d*zp\nz = 0.3\n"
 	for _, c := range cases {
 		for _, w := range []float64{0.1, 3, 30, 100, 1e4} {
-			src := fmt.Sprintf("%sR = %s\nB = %s\n[R(%gj), gain(B, at: %g)]", params, c.rational, c.block, w, w)
+			blockForm := strings.TrimSuffix(c.rational, ")") + `, form: "block")`
+			src := fmt.Sprintf("%sR = %s\nB = %s\nF = %s\n[R(%gj), gain(B, at: %g), gain(F, at: %g)]", params, c.rational, c.block, blockForm, w, w, w)
 			got := stRun(t, src)
 			items := listItems(t, got)
-			r, b := asComplex(items[0]), asComplex(items[1])
-			if cmplx.Abs(r-b) > 1e-12*cmplx.Abs(r) {
-				t.Errorf("%s at %g rad/s: rational %v, block %v", c.name, w, r, b)
+			r, b, f := asComplex(items[0]), asComplex(items[1]), asComplex(items[2])
+			if cmplx.Abs(r-b) > 1e-12*cmplx.Abs(r) || cmplx.Abs(f-b) > 1e-12*cmplx.Abs(r) {
+				t.Errorf("%s at %g rad/s: rational %v, equation block %v, form: \"block\" %v", c.name, w, r, b, f)
+			}
+		}
+		// form: "block" is the equation block's realization: the same
+		// matrices (to rounding of the coefficients' arithmetic)
+		if c.name == "lag" {
+			continue // the lag's block is written with the corners swapped
+		}
+		blockForm := strings.TrimSuffix(c.rational, ")") + `, form: "block")`
+		for _, m := range []string{"A", "B", "C", "D"} {
+			got := stRun(t, fmt.Sprintf("%sB = %s\nF = %s\nnorm(F.%s - B.%s, 1)/max(1, norm(B.%s, 1))", params, c.block, blockForm, m, m, m)).(float64)
+			if got > 1e-15 {
+				t.Errorf("%s: %s differs from the equation block's by %g (relative)", c.name, m, got)
 			}
 		}
 	}
