@@ -5,6 +5,8 @@ import (
 	"strings"
 	"testing"
 
+	"gonum.org/v1/gonum/mat"
+
 	"lsys/lsys"
 )
 
@@ -40,5 +42,23 @@ func TestChartOptions(t *testing.T) {
 	b := Render(c, Options{})
 	if _, ok := b.Data[SVG]; !ok || strings.Contains(b.Data[Text].(string), "not drawn") {
 		t.Errorf("log time axis not drawn: %s", b.Data[Text])
+	}
+}
+
+// The Jordan form's display shows J, T, T's condition and the warning.
+func TestJordanFormDisplay(t *testing.T) {
+	jf, err := lsys.JordanFormOf(mat.NewDense(2, 2, []float64{2, 1, -1, 4}), 0, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b := Render(jf, Options{})
+	txt := b.Data[Text].(string)
+	for _, want := range []string{"blocks 2 at 3", "J: 2x2 matrix", "T: 2x2 matrix", "condition number of T 2;", "warning: "} {
+		if !strings.Contains(txt, want) {
+			t.Errorf("text lacks %q:\n%s", want, txt)
+		}
+	}
+	if h := b.Data[HTML].(string); !strings.Contains(h, "Jordan form") || !strings.Contains(h, "warning") {
+		t.Errorf("HTML: %.200s", h)
 	}
 }
