@@ -38,3 +38,18 @@ func unresolvedNote(g *System, step float64) string {
 	return fmt.Sprintf("%s not resolved by the step of %.3g s (the fastest, %.3g rad/s, gets %.2g samples per period, so its peaks and oscillations are missed): give a shorter until: or a step dt: of at most %.3g s",
 		what, step, fastest, per, 2*math.Pi/fastest/20)
 }
+
+// ResolutionWarning is the note of unresolvedNote for a continuous
+// response with a horizon given and the step left to us (empty
+// otherwise), so that a front end can show it where it will be read: a
+// chart shows no rule.
+func ResolutionWarning(g *System, opt ResponseOptions) string {
+	if g == nil || g.Sampled() || opt.Until == 0 || opt.Step != 0 {
+		return ""
+	}
+	_, step, _, err := opt.grid(g)
+	if err != nil {
+		return ""
+	}
+	return unresolvedNote(g, step)
+}

@@ -102,3 +102,23 @@ func TestModulusMarginAgrees(t *testing.T) {
 		}
 	}
 }
+
+// Issue 15, friction 5: the warning reaches the error stream, which a
+// notebook shows (a chart shows no rule); a step given says nothing.
+func TestResponseWarnsUnresolvedOnStderr(t *testing.T) {
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	r := &langtest.Recorder{}
+	if _, err := s.Run(context.Background(), "G = 4/(s^2 + 0.4*s + 4)\nresponse(G, step, until: 1e6)", r); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(r.Err.String(), "response: 1 mode faster than") {
+		t.Errorf("stderr %q", r.Err.String())
+	}
+	r = &langtest.Recorder{}
+	if _, err := s.Run(context.Background(), "response(G, step, until: 20)\nresponse(G, step, until: 1e3, dt: 0.1)", r); err != nil {
+		t.Fatal(err)
+	}
+	if r.Err.Len() != 0 {
+		t.Errorf("stderr %q", r.Err.String())
+	}
+}

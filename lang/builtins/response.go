@@ -453,6 +453,10 @@ func responseBuiltins() []*lang.Builtin {
 					return nil, c.Errorf("", "Give an input (step, impulse, ramp, sine(w), a table) or an initial state: response(G, initial: [1, 0]).",
 						"response: nothing drives the system")
 				}
+				if note := lsys.ResolutionWarning(g, opt); note != "" {
+					// the rule says it too, but a chart shows no rule
+					c.Out().Stderr("response: " + note + "\n")
+				}
 				if byMode {
 					return lsys.ByMode(ctx, g, kind, x0, sig, opt)
 				}
