@@ -119,14 +119,22 @@ func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) 
 		if loop {
 			maxDec = 6
 		}
+		// With a dead time the range stops where it has turned the phase
+		// by delayTop rad (about 5 turns): beyond, the grid would need
+		// ever more points to follow it, and nothing of the loop is left
+		// to see. Widening stops there too, as at the Nyquist frequency.
+		limit, top := f.Nyquist, 0.0
+		if opt.Delay > 0 {
+			top = math.Max(delayTop/opt.Delay, lo*10)
+			if limit == 0 || top < limit {
+				limit = top
+			}
+		}
 		var down, up int
-		lo, hi, down, up = bracketRange(ev, lo, hi, f.Nyquist, loop, maxDec)
+		lo, hi, down, up = bracketRange(ev, lo, hi, limit, loop, maxDec)
 		rule += widenedRule(down, up, loop)
-		if opt.Delay > 0 && hi > delayTop/opt.Delay {
-			// beyond this the dead time alone turns the phase by more than
-			// 5 turns: the grid would need ever more points to follow
-			// it, and nothing of the loop is left to see
-			hi = math.Max(delayTop/opt.Delay, lo*10)
+		if top > 0 && hi >= top*(1-1e-12) && (f.Nyquist == 0 || top < f.Nyquist) {
+			hi = top
 			rule += fmt.Sprintf("; stopped at %.4g rad/s, where the dead time has turned the phase by %.3g rad", hi, hi*opt.Delay)
 		}
 	}
