@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+
+	"gonum.org/v1/gonum/mat"
 )
 
 // withDeadTime returns L in series with a Padé model of the dead time T,
@@ -13,7 +15,9 @@ import (
 // fastest gain crossover, where the loop still has gain enough for the
 // approximation to decide stability (the Padé approximant is all-pass, so
 // only its phase error matters). The note says which order was used and
-// whether it falls short. T == 0 returns L itself and no note.
+// whether it falls short. A sampled loop takes a dead time of k whole
+// sample periods as z^-k exactly (and refuses a fraction of one). T == 0
+// returns L itself and no note.
 func withDeadTime(L *System, T float64, crossovers []float64) (*System, string, error) {
 	if T == 0 {
 		return L, "", nil
@@ -36,12 +40,33 @@ func withDeadTime(L *System, T float64, crossovers []float64) (*System, string, 
 	if n > 8 {
 		n = 8
 	}
+	if L.Sampled() {
+		// a whole number of samples is z^-k exactly: k states of shift
+		k := math.Round(T / L.Ts)
+		if k < 1 || math.Abs(T/L.Ts-k) > 1e-9*k || k > 1000 {
+			return nil, fmt.Sprintf("dead time: closed-loop stability not judged, since %.4g s is not a whole number of sample periods (%.4g s); margins and charts use e^(-jwT) exactly", T, L.Ts), fmt.Errorf("sampled loop with a fractional dead time")
+		}
+		m := int(k)
+		A := mat.NewDense(m, m, nil)
+		for i := 1; i < m; i++ {
+			A.Set(i, i-1, 1)
+		}
+		B, C := mat.NewDense(m, 1, nil), mat.NewDense(1, m, nil)
+		B.Set(0, 0, 1)
+		C.Set(0, m-1, 1)
+		z, err := NewSystem(m, 1, 1, A, B, C, mat.NewDense(1, 1, nil), L.Ts)
+		if err != nil {
+			return nil, "", err
+		}
+		Ld, err := Series(L, z)
+		if err != nil {
+			return nil, "", err
+		}
+		return Ld, fmt.Sprintf("dead time: %d sample periods, z^-%d exactly, in the closed-loop stability verdict", m, m), nil
+	}
 	d, err := Delay(T, n)
 	if err != nil {
 		return nil, "", err
-	}
-	if L.Sampled() {
-		return nil, "dead time: closed-loop stability not judged, since a dead time in a sampled loop needs a whole number of samples as z^-k; model it with the loop", fmt.Errorf("sampled loop with a dead time")
 	}
 	Ld, err := Series(L, d)
 	if err != nil {

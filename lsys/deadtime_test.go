@@ -6,6 +6,8 @@ import (
 	"math/cmplx"
 	"strings"
 	"testing"
+
+	"gonum.org/v1/gonum/mat"
 )
 
 // L(s) = k e^(-sT)/s: |L| = 1 at w = k; phase -90 - wT deg, so
@@ -81,5 +83,37 @@ func TestFrequencyExactDelay(t *testing.T) {
 	}
 	if _, err := Frequency(context.Background(), G, FrequencyOptions{Delay: -1}); err == nil {
 		t.Error("negative delay accepted")
+	}
+}
+
+// A sampled loop with a dead time of whole sample periods: the verdict
+// uses z^-k exactly, and agrees with the loop written with 1/z^k. L =
+// 0.5/(z - 1) with T = k Ts: characteristic z^k (z - 1) + 0.5, stable for
+// k = 1 (roots of z^2 - z + 0.5: |z| = 0.707) and unstable for k = 3
+// (z^4 - z^3 + 0.5 has a pair of roots of modulus 1.024, by numpy.roots).
+func TestMarginsSampledDeadTime(t *testing.T) {
+	A := mat.NewDense(1, 1, []float64{1})
+	L, err := NewSystem(1, 1, 1, A, mat.NewDense(1, 1, []float64{1}), mat.NewDense(1, 1, []float64{0.5}), mat.NewDense(1, 1, nil), 0.1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []struct {
+		T      float64
+		stable bool
+	}{{0.1, true}, {0.3, false}} {
+		mg, err := LoopMargins(context.Background(), L, FrequencyOptions{Delay: tc.T})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !mg.ClosedChecked || mg.ClosedStable != tc.stable {
+			t.Errorf("T %g: checked %v stable %v, want %v; notes %q", tc.T, mg.ClosedChecked, mg.ClosedStable, tc.stable, mg.Notes)
+		}
+	}
+	mg, err := LoopMargins(context.Background(), L, FrequencyOptions{Delay: 0.05})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if mg.ClosedChecked || !strings.Contains(strings.Join(mg.Notes, " "), "not a whole number of sample periods") {
+		t.Errorf("fractional delay: checked %v notes %q", mg.ClosedChecked, mg.Notes)
 	}
 }
