@@ -50,6 +50,27 @@ func applyChart(f *rpFigure, c *lsys.Chart) {
 		case "linear":
 			pn.LogX = false
 		}
+		if c.YScale == "log" && pn.YLabel == first {
+			pn.LogY, pn.Simplify = true, false // rpSimplify measures y linearly
+			pn.DBTicks, pn.PhaseTicks, pn.LinTicks, pn.LinYTicks = false, false, false, false
+			for i := range pn.Series {
+				s := &pn.Series[i]
+				var x, y []float64
+				for k := range s.X {
+					if k < len(s.Y) && s.Y[k] > 0 {
+						x, y = append(x, s.X[k]), append(y, s.Y[k])
+					}
+				}
+				s.X, s.Y = x, y
+			}
+			var lines []rpLine
+			for _, l := range pn.Lines {
+				if l.Vertical || l.At > 0 {
+					lines = append(lines, l)
+				}
+			}
+			pn.Lines = lines
+		}
 		xlo, xhi, ylo, yhi := seriesExtent(pn)
 		if !math.IsNaN(c.XMin) || !math.IsNaN(c.XMax) {
 			pn.XMin, pn.XMax = pick(c.XMin, xlo), pick(c.XMax, xhi)

@@ -152,6 +152,9 @@ func embedChart(b *Bundle) {
 	if !ok || svg == "" {
 		return
 	}
+	if h, _ := b.Data[HTML].(string); strings.HasPrefix(h, `<div class="lsys-chart">`) {
+		return // embedded already (a chart(...) renders its value through Render)
+	}
 	alt, _ := b.Data[Text].(string)
 	if i := strings.IndexByte(alt, '\n'); i >= 0 {
 		alt = alt[:i]

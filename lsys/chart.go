@@ -19,6 +19,7 @@ type Chart struct {
 	// an end automatic.
 	XMin, XMax, YMin, YMax float64
 	XScale                 string  // "", "log" or "linear"
+	YScale                 string  // "" (the chart's own) or "log"
 	Width, Height          float64 // cm; 0 leaves the size automatic
 }
 

@@ -21,16 +21,18 @@ func init() {
 			{Name: "ymin", Optional: true, Doc: "lower end of the y axis (dB on magnitude charts); on a frequency chart it applies to the magnitude panels"},
 			{Name: "ymax", Optional: true, Doc: "upper end of the y axis"},
 			{Name: "xscale", Optional: true, Doc: `"log" or "linear": the x axis (a time axis on a log scale leaves out t = 0)`},
+			{Name: "yscale", Optional: true, Doc: `"log": the y axis on a log scale (values at or below 0 are left out; not for dB or phase, which are logarithmic already)`},
 			{Name: "outputs", Optional: true, Doc: "the outputs to show, by name, e.g. [\"angle\"] (time and frequency responses, polar charts)"},
 			{Name: "width", Optional: true, Doc: "width in cm (with height)"},
 			{Name: "height", Optional: true, Doc: "height in cm (with width)"},
 		},
-		Help: "A result's chart with a title, axis ranges, a linear or log x axis, chosen outputs and a size.",
+		Help: "A result's chart with a title, axis ranges, linear or log axes, chosen outputs and a size.",
 		Doc: "The result keeps its tables and text; only the drawing changes, and nothing is recomputed: to evaluate a frequency response " +
 			"on another range give from: and to: to frequency() itself, and chart(...) then frames what is drawn. An end left out stays automatic.",
 		Examples: []string{
 			"G = 4/(s^2 + 0.4*s + 4)\nchart(frequency(G), title: \"suspension mode\", xmin: 0.5, xmax: 10, ymin: -30)",
 			"G = system([[-1, 0], [0, -3]], [[1], [1]], [[1, 0], [0, 1]], outputs: [\"near\", \"far\"])\nchart(response(G, step), outputs: [\"far\"], xscale: \"log\", width: 12, height: 6)",
+			"G = 1/(s + 1)\nchart(response(G, impulse, until: 10), yscale: \"log\", title: \"decay on a log scale\")",
 		},
 		Fn: func(c *lang.Call) (any, error) {
 			v := c.Value("result")
@@ -78,6 +80,22 @@ func init() {
 				}
 				if ch.XScale == "log" && (ch.XMin <= 0 || ch.XMax <= 0) {
 					return nil, c.Errorf("xscale", "", "chart: a log axis needs xmin and xmax above 0")
+				}
+			}
+			if c.Given("yscale") {
+				if ch.YScale, err = c.String("yscale"); err != nil {
+					return nil, err
+				}
+				if ch.YScale != "log" {
+					return nil, c.Errorf("yscale", `Write yscale: "log", or leave it out for the chart's own axis.`, "chart: yscale must be \"log\", not %q", ch.YScale)
+				}
+				switch v.(type) {
+				case *lsys.Response, *lsys.Overlay:
+				default:
+					return nil, c.Errorf("yscale", "Magnitudes are in dB already; a log y axis is for time responses.", "chart: a log y axis is for time responses (and overlays of them)")
+				}
+				if ch.YMin <= 0 || ch.YMax <= 0 {
+					return nil, c.Errorf("yscale", "", "chart: a log axis needs ymin and ymax above 0")
 				}
 			}
 			if c.Given("outputs") {
