@@ -14,14 +14,16 @@ import (
 // point one way: front ends -> {language, display} -> lsys -> gonum. A new
 // package must be added here, at its layer, before this test passes.
 var layers = map[string][]string{
-	"lsys/lsys":        {},
-	"lsys/lsys/numfmt": {},
-	"lsys/display":     {"lsys/lsys", "lsys/lsys/numfmt"},
-	"lsys/lang/syntax": {},
-	"lsys/lang":        {"lsys/lang/syntax", "lsys/lsys", "lsys/lsys/numfmt"},
-	"lsys/kernel":      {"lsys/lang", "lsys/lang/syntax", "lsys/display", "lsys/lsys"},
-	"lsys/runner":      {"lsys/lang", "lsys/lang/syntax", "lsys/display", "lsys/lsys"},
-	"lsys":             {"lsys/kernel", "lsys/runner", "lsys/lang", "lsys/lang/syntax", "lsys/display", "lsys/lsys"},
+	"lsys/lsys":           {"lsys/lsys/cgolapack"},
+	"lsys/lsys/cgolapack": {},
+	"lsys/lsys/numfmt":    {},
+	"lsys/display":        {"lsys/lsys", "lsys/lsys/numfmt"},
+	"lsys/lang/syntax":    {},
+	"lsys/lang":           {"lsys/lang/syntax", "lsys/lsys", "lsys/lsys/numfmt"},
+	"lsys/kernel":         {"lsys/lang", "lsys/lang/syntax", "lsys/display", "lsys/lsys"},
+	"lsys/runner":         {"lsys/lang", "lsys/lang/syntax", "lsys/display", "lsys/lsys"},
+	"lsys/bench/inproc":   {"lsys/lsys"},
+	"lsys":                {"lsys/kernel", "lsys/runner", "lsys/lang", "lsys/lang/syntax", "lsys/display", "lsys/lsys"},
 }
 
 // outside lists third-party modules only the protocol may use: numerics,
