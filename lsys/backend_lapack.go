@@ -9,5 +9,5 @@ import "lsys/lsys/cgolapack"
 func init() {
 	cgolapack.Use()
 	denseImpl = cgolapack.Implementation{}
-	Backend = "LAPACK and OpenBLAS (cgo)"
+	Backend = "LAPACK and OpenBLAS (cgo; OpenBLAS kernel " + cgolapack.CoreName() + ")"
 }

@@ -5,6 +5,7 @@ package cgolapack
 /*
 #cgo LDFLAGS: -llapacke -lopenblas
 #include <lapacke.h>
+char* openblas_get_corename(void);
 */
 import "C"
 
@@ -102,3 +103,7 @@ func (Implementation) Dgesvd(jobU, jobVT lapack.SVDJob, m, n int, a []float64, l
 	}
 	return info == 0
 }
+
+// CoreName is the processor kernel OpenBLAS chose (OPENBLAS_CORETYPE
+// overrides its own detection).
+func CoreName() string { return C.GoString(C.openblas_get_corename()) }
