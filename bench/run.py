@@ -305,6 +305,7 @@ def main():
     ap.add_argument("--no-lapack", action="store_true", help="skip lsys's LAPACK backend")
     ap.add_argument("--readme", action="store_true", help="write the table into README.md's Performance section")
     ap.add_argument("--note", default="", help="a remark on the machine for the README (e.g. shared with other work)")
+    ap.add_argument("--models", help="only write the models into this folder (for bench/inproc -cpuprofile)")
     ap.add_argument("--numpy-worker", nargs=4, help=argparse.SUPPRESS)
     a = ap.parse_args()
     if a.numpy_worker:
@@ -312,6 +313,12 @@ def main():
         numpy_worker(d, [int(x) for x in s.split(",")], [int(x) for x in r.split(",")], o.split(","))
         return
     sizes = [50, 200] if a.quick else [int(x) for x in a.sizes.split(",")]
+    if a.models:
+        os.makedirs(a.models, exist_ok=True)
+        for n in sizes:
+            for name, M in zip("ABC", model(n)):
+                np.ascontiguousarray(M, dtype="<f8").tofile(os.path.join(a.models, "%s%d.bin" % (name, n)))
+        return
     reps = [{50: 7, 200: 5, 500: 3}.get(n, 1) for n in sizes]
     if a.quick:
         reps = [3, 2][: len(sizes)]

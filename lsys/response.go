@@ -338,7 +338,15 @@ func negligible(A *mat.Dense) float64 {
 }
 
 func (o ResponseOptions) grid(g *System) ([]float64, float64, string, error) {
-	until, step, rule := AutoHorizon(g)
+	// The modes are needed only for what is not given (an eigenvalue
+	// computation costs as much as the rest of a large response).
+	var until, step float64
+	var rule string
+	if o.Until == 0 || o.Step == 0 && !g.Sampled() {
+		until, step, rule = AutoHorizon(g)
+	} else if g.Sampled() {
+		step = g.Ts
+	}
 	if o.Until != 0 {
 		if !(o.Until > 0) || math.IsInf(o.Until, 0) {
 			return nil, 0, "", fmt.Errorf("the horizon must be a finite number > 0 s, got %v", o.Until)
@@ -451,6 +459,13 @@ func freeOrForced(ctx context.Context, g *System, kind string, x0 []float64, opt
 	}
 	if p == 0 {
 		return r, nil
+	}
+	if n >= modalMinStates && !g.Sampled() {
+		if ok, err := modalResponse(ctx, g, kind, x0, h, r, opt); err != nil {
+			return nil, err
+		} else if ok {
+			return r, checkFiniteResponse(r)
+		}
 	}
 	// X: n x nch states, one column per channel.
 	var Phi, Gam *mat.Dense

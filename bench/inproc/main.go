@@ -4,6 +4,8 @@
 //
 //	go run ./bench/inproc -dir DIR -n 50,200 -reps 5 [-ops modes,exp]
 //	go run -tags lapack ./bench/inproc ...   (the LAPACK backend)
+//
+// The models come from bench/run.py; -cpuprofile profiles the timed work.
 package main
 
 import (
@@ -16,6 +18,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"runtime/pprof"
 	"strconv"
 	"strings"
 	"time"
@@ -30,7 +33,18 @@ func main() {
 	sizes := flag.String("n", "50,200", "model orders, comma-separated")
 	reps := flag.String("reps", "5", "repetitions per order, comma-separated in the order of -n (or one for all)")
 	ops := flag.String("ops", "", "operations to time (default: all)")
+	prof := flag.String("cpuprofile", "", "write a CPU profile of the timed work to this file (go tool pprof)")
 	flag.Parse()
+	if *prof != "" {
+		f, err := os.Create(*prof)
+		if err != nil {
+			fail(err)
+		}
+		if err := pprof.StartCPUProfile(f); err != nil {
+			fail(err)
+		}
+		defer pprof.StopCPUProfile()
+	}
 	out := json.NewEncoder(os.Stdout)
 	out.Encode(map[string]any{"backend": lsys.Backend, "go": runtime.Version(), "gomaxprocs": runtime.GOMAXPROCS(0)})
 	want := map[string]bool{}
@@ -127,6 +141,7 @@ func read(dir, name string, r, c int) *mat.Dense {
 }
 
 func fail(err error) {
+	pprof.StopCPUProfile()
 	fmt.Fprintln(os.Stderr, "inproc:", err)
 	os.Exit(1)
 }
