@@ -434,11 +434,6 @@ func freeOrForced(ctx context.Context, g *System, kind string, x0 []float64, opt
 	}
 	n, m, p := g.N(), g.M(), g.P()
 	r := &Response{System: g, Kind: kind, T: t, Outputs: append([]string(nil), g.OutputNames...), Rule: rule, Sampled: g.Sampled()}
-	if kind == "step" && Stable(g) {
-		if G, ok := DCGain(g); ok && G != nil {
-			r.Final = G
-		}
-	}
 	nch := m
 	if kind == "initial" {
 		nch = 1
@@ -461,12 +456,15 @@ func freeOrForced(ctx context.Context, g *System, kind string, x0 []float64, opt
 		return r, nil
 	}
 	if n >= modalMinStates && !g.Sampled() {
-		if ok, err := modalResponse(ctx, g, kind, x0, h, r, opt); err != nil {
+		if vals, err := modalResponse(ctx, g, kind, x0, h, r, opt); err != nil {
 			return nil, err
-		} else if ok {
+		} else if vals != nil {
+			// The decomposition's eigenvalues decide stability too.
+			r.final(g, stableValues(g, vals))
 			return r, checkFiniteResponse(r)
 		}
 	}
+	r.final(g, Stable(g))
 	// X: n x nch states, one column per channel.
 	var Phi, Gam *mat.Dense
 	if n > 0 {
@@ -724,6 +722,15 @@ func DCGain(g *System) (*mat.Dense, bool) {
 	return add(g.D, mul(g.C, &x)), true
 }
 
+// final sets the values a step response settles at, when it does.
+func (r *Response) final(g *System, stable bool) {
+	if r.Kind == "step" && stable {
+		if G, ok := DCGain(g); ok && G != nil {
+			r.Final = G
+		}
+	}
+}
+
 // Stable reports whether every pole lies strictly in the stable region
 // (Re s < 0, or |z| < 1), by more than 1000 u ||A||_1 so that a rigid-body
 // mode computed as -1e-17 does not pass for a stable one.
@@ -735,8 +742,13 @@ func Stable(g *System) bool {
 	if !ev.Factorize(g.A, mat.EigenNone) {
 		return false
 	}
+	return stableValues(g, ev.Values(nil))
+}
+
+// stableValues is Stable on eigenvalues already computed.
+func stableValues(g *System, vals []complex128) bool {
 	thr := negligible(g.A)
-	for _, l := range ev.Values(nil) {
+	for _, l := range vals {
 		if g.Sampled() && cmplx.Abs(l) >= 1-thr || !g.Sampled() && real(l) >= -thr {
 			return false
 		}

@@ -28,14 +28,15 @@ const (
 )
 
 // modalResponse fills r.Y for a continuous system's step, impulse or
-// initial response on the uniform grid of step h, or reports false (and
-// touches nothing) when the modal basis is ill conditioned or the
-// decomposition fails, so that the caller takes the dense step.
-func modalResponse(ctx context.Context, g *System, kind string, x0 []float64, h float64, r *Response, opt ResponseOptions) (bool, error) {
+// initial response on the uniform grid of step h and returns the
+// eigenvalues, or returns nil (and touches nothing) when the modal basis
+// is ill conditioned or the decomposition fails, so that the caller takes
+// the dense step.
+func modalResponse(ctx context.Context, g *System, kind string, x0 []float64, h float64, r *Response, opt ResponseOptions) ([]complex128, error) {
 	n, p := g.N(), g.P()
 	var eig mat.Eigen
 	if !eig.Factorize(g.A, mat.EigenRight) {
-		return false, nil
+		return nil, nil
 	}
 	vals := eig.Values(nil)
 	var vc mat.CDense
@@ -59,7 +60,7 @@ func modalResponse(ctx context.Context, g *System, kind string, x0 []float64, h 
 				V.Set(i, k+1, imag(v))
 			}
 		default:
-			return false, nil
+			return nil, nil
 		}
 		modes = append(modes, k)
 		if imag(l) != 0 {
@@ -69,7 +70,7 @@ func modalResponse(ctx context.Context, g *System, kind string, x0 []float64, h 
 	var lu mat.LU
 	lu.Factorize(V)
 	if c := lu.Cond(); !(c <= modalMaxCond) {
-		return false, nil
+		return nil, nil
 	}
 	// Right-hand sides: the initial states of each channel, then B.
 	nch := len(r.Channels)
@@ -92,7 +93,7 @@ func modalResponse(ctx context.Context, g *System, kind string, x0 []float64, h 
 	}
 	var w mat.Dense
 	if err := lu.SolveTo(&w, false, rhs); err != nil {
-		return false, nil
+		return nil, nil
 	}
 	// A pair's real coordinates (a, b) on (Re v, Im v) are the complex
 	// coordinate a - i b on v: x = Re((a - i b) v).
@@ -130,7 +131,7 @@ func modalResponse(ctx context.Context, g *System, kind string, x0 []float64, h 
 		for k := 0; k < N; k++ {
 			if k&255 == 0 {
 				if err := ctx.Err(); err != nil {
-					return true, fmt.Errorf("interrupted: %w", err)
+					return nil, fmt.Errorf("interrupted: %w", err)
 				}
 				if opt.Progress != nil {
 					opt.Progress((float64(c) + float64(k)/float64(N)) / float64(nch))
@@ -152,7 +153,7 @@ func modalResponse(ctx context.Context, g *System, kind string, x0 []float64, h 
 			}
 		}
 	}
-	return true, nil
+	return vals, nil
 }
 
 // zohMode returns e^(l h) and the zero-order-hold integral
