@@ -15,11 +15,13 @@ import (
 	"os"
 	"os/signal"
 	"path/filepath"
+	"runtime/debug"
 	"strconv"
 	"syscall"
 	"time"
 
 	"lsys/kernel"
+	"lsys/lang"
 	"lsys/lsys"
 )
 
@@ -63,7 +65,7 @@ func main() {
 func usage() {
 	fmt.Fprint(os.Stderr, `usage:
   lsys kernel <connection file>   serve a Jupyter front end (Jupyter starts this)
-  lsys kernelspec [--user | --prefix DIR | --sys-prefix] [--name NAME]
+  lsys kernelspec [--user | --prefix DIR | --sys-prefix] [--name NAME] [--memory 8G]
                                   register the kernel with Jupyter
   lsys run NOTEBOOK.ipynb | SCRIPT.lsys [--html REPORT.html] [--inplace | -o OUT.ipynb]
            [--keep-going] [--set name=value ...] [-q]
@@ -80,7 +82,11 @@ func runKernel(args []string) error {
 	if err != nil {
 		return err
 	}
-	k, err := kernel.New(kernel.Config{Conn: conn, Version: version, HelpURL: helpURL})
+	lim, err := memoryLimits()
+	if err != nil {
+		return err
+	}
+	k, err := kernel.New(kernel.Config{Conn: conn, Version: version, HelpURL: helpURL, Limits: lim})
 	if err != nil {
 		return err
 	}
@@ -111,6 +117,7 @@ func runKernelspec(args []string) error {
 	prefix := fs.String("prefix", "", "install under `DIR`/share/jupyter/kernels")
 	sysPrefix := fs.Bool("sys-prefix", false, "install under the sys.prefix of the Python that runs Jupyter")
 	name := fs.String("name", "lsys", "kernel `NAME` as Jupyter lists it")
+	memory := fs.String("memory", "", "memory budget per value, e.g. 8G (written as LSYS_MEMORY in the kernelspec's env; default a quarter of the machine's memory)")
 	if err := fs.Parse(args); err != nil {
 		return err
 	}
@@ -133,7 +140,14 @@ func runKernelspec(args []string) error {
 	if err != nil {
 		return err
 	}
-	if err := kernel.WriteKernelspec(dir, kernel.SpecFor(exe)); err != nil {
+	spec := kernel.SpecFor(exe)
+	if *memory != "" {
+		if _, err := lang.ParseMemory(*memory); err != nil {
+			return err
+		}
+		spec.Env = map[string]string{"LSYS_MEMORY": *memory}
+	}
+	if err := kernel.WriteKernelspec(dir, spec); err != nil {
 		return err
 	}
 	fmt.Println("lsys kernelspec written to", dir)
@@ -164,4 +178,25 @@ func watchParent(pid int, gone func()) {
 			return
 		}
 	}
+}
+
+// memoryLimits reads the memory budget from LSYS_MEMORY (e.g. "8G"; the
+// kernelspec's env can set it), defaulting to the language's (a quarter of
+// the machine's memory), and sets the runtime's soft memory limit to twice
+// the budget as a second line: the budget refuses a value before its bytes
+// are asked for; the soft limit makes the collector work harder before the
+// process grows past it.
+func memoryLimits() (lang.Limits, error) {
+	var lim lang.Limits
+	if v := os.Getenv("LSYS_MEMORY"); v != "" {
+		m, err := lang.ParseMemory(v)
+		if err != nil {
+			return lim, fmt.Errorf("LSYS_MEMORY: %v", err)
+		}
+		lim.Memory = m
+	} else {
+		lim.Memory = lang.DefaultMemory()
+	}
+	debug.SetMemoryLimit(2 * lim.Memory)
+	return lim, nil
 }

@@ -78,7 +78,11 @@ func runHeadless(args []string, stdout, stderr io.Writer) error {
 
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
-	opt := runner.Options{Dir: filepath.Dir(in), Set: sets, KeepGoing: *keepGoing}
+	lim, err := memoryLimits()
+	if err != nil {
+		return err
+	}
+	opt := runner.Options{Dir: filepath.Dir(in), Set: sets, KeepGoing: *keepGoing, Limits: lim}
 	if !*quiet {
 		opt.Progress = stderr
 	}

@@ -14,6 +14,7 @@ import (
 	"math/cmplx"
 	"strings"
 
+	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
 	"lsys/lsys"
@@ -242,10 +243,41 @@ func lcFigure(l *lsys.Locus) *rpFigure {
 	// parameter values at a few points between the ends (the legend
 	// gives the ends), in the upper half-plane only (the lower half
 	// mirrors it), and never two labels on top of each other: a label
-	// takes about 1/100 of the chart's width per character and 1/25 of
-	// its height (8 pt text on a 16 x 10 cm chart)
+	// takes about 1/90 of the chart's width per character and 1/20 of
+	// its height (9 pt text on a 16 x 10 cm chart)
 	type box struct{ x, y, w float64 }
 	var boxes []box
+	overlaps := func(nb box) bool {
+		for _, o := range boxes {
+			left, right := o, nb
+			if nb.x < o.x {
+				left, right = nb, o
+			}
+			if right.x-left.x < left.w && math.Abs(nb.y-o.y) < view/1.6/20 {
+				return true
+			}
+		}
+		return false
+	}
+	// damping-ratio labels that would cover one another move inward
+	// along their ray, or are left out (the ray stays)
+	var grid []rpText
+	for _, t := range texts {
+		var zeta float64
+		if _, err := fmt.Sscanf(t.Text, "ζ %g", &zeta); err != nil {
+			grid = append(grid, t)
+			continue
+		}
+		for _, f := range []float64{1, 0.8, 0.62} {
+			nb := box{t.X * f, t.Y * f, view / 90 * float64(len([]rune(t.Text))+1)}
+			if !overlaps(nb) {
+				boxes = append(boxes, nb)
+				grid = append(grid, rpText{X: nb.x, Y: nb.y, Text: t.Text})
+				break
+			}
+		}
+	}
+	texts = grid
 	var lx, ly []float64
 	for _, k := range lcLabelIndices(len(l.Values)) {
 		for _, br := range l.Branches {
@@ -254,18 +286,9 @@ func lcFigure(l *lsys.Locus) *rpFigure {
 				continue
 			}
 			txt := p + " = " + fmtNum(l.Values[k])
-			nb := box{real(z), imag(z), view / 100 * float64(len([]rune(txt))+1)}
+			nb := box{real(z), imag(z), view / 90 * float64(len([]rune(txt))+1)}
 			free := cmplx.Abs(z-br[0]) > view/50 && cmplx.Abs(z-br[last]) > view/50
-			for _, o := range boxes {
-				left, right := o, nb
-				if nb.x < o.x {
-					left, right = nb, o
-				}
-				if right.x-left.x < left.w && math.Abs(nb.y-o.y) < view/1.6/25 {
-					free = false
-				}
-			}
-			if !free {
+			if !free || overlaps(nb) {
 				continue
 			}
 			boxes = append(boxes, nb)
@@ -285,7 +308,18 @@ func lcFigure(l *lsys.Locus) *rpFigure {
 	en := rpMark("end, "+p+" = "+fmtNum(l.Values[last]), ends, -1, draw.BoxGlyph{}, 3)
 	pn.Series = append(pn.Series, st, en)
 	pn.Texts = texts
-	return &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}}
+	// equal scales for the data area's real shape, the figure's height
+	// following the branches' shape (between a square and a wide data
+	// area) so little of the frame is empty
+	fig := &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}, W: 16 * cmLen, H: 10 * cmLen}
+	if w, h := xmax-xmin, ymax-ymin; w > 0 && h > 0 {
+		want := math.Min(math.Max(w/h, 0.75), 2.2)
+		if dw, dh := fig.dataSize(0); dw > 0 && dh > 0 {
+			fig.H = min(max(fig.H-dh+dw/vg.Length(want), 8*cmLen), 17*cmLen)
+		}
+	}
+	pn.Ratio = fig.dataRatio(0)
+	return fig
 }
 
 // lcViewWidth estimates the width of the chart in data units, as the

@@ -170,15 +170,22 @@ func sxModesHTML(t *lsys.ModeTable) string {
 	if s != nil {
 		inputs, outputs = s.InputNames, s.OutputNames
 	}
-	for _, u := range inputs {
-		h.WriteString(th + "reach from " + html.EscapeString(u) + "</th>")
-	}
-	for _, y := range outputs {
-		h.WriteString(th + "seen by " + html.EscapeString(y) + "</th>")
-	}
+	// One table fits a 980 px notebook column with up to two signal
+	// columns; with more, the reach and visibility bars and the shapes
+	// move to a second table (one row per mode), transposed (one row per
+	// signal) when there are more signals than modes.
+	split := len(inputs)+len(outputs) > 2
 	showShape := s != nil && s.N() <= 24
-	if showShape {
-		h.WriteString(th + "shape</th>")
+	if !split {
+		for _, u := range inputs {
+			h.WriteString(th + "reach from " + html.EscapeString(u) + "</th>")
+		}
+		for _, y := range outputs {
+			h.WriteString(th + "seen by " + html.EscapeString(y) + "</th>")
+		}
+		if showShape {
+			h.WriteString(th + "shape</th>")
+		}
 	}
 	h.WriteString("</tr>")
 	// Bars are scaled per signal column against the largest value in it.
@@ -215,6 +222,76 @@ func sxModesHTML(t *lsys.ModeTable) string {
 			}
 			fmt.Fprintf(&h, "<td style=\"%s\"%s>%s</td>", style, title, html.EscapeString(c))
 		}
+		if !split {
+			for j, r := range m.Reach {
+				h.WriteString(sxBarCell(r, maxReach[j]))
+			}
+			for k, o := range m.Visibility {
+				h.WriteString(sxBarCell(o, maxVis[k]))
+			}
+			if showShape {
+				h.WriteString("<td style=\"padding:2px 6px\">" + sxShapeBars(m, s.StateNames) + "</td>")
+			}
+		}
+		h.WriteString("</tr>")
+	}
+	h.WriteString("</table>")
+	if split {
+		sxLinksHTML(&h, t, inputs, outputs, maxReach, maxVis, showShape)
+	}
+	fmt.Fprintf(&h, "<div style=\"color:#555;margin-top:4px\">%s. Shaded rows do not decay. Bars: reach |w<sup>H</sup> b<sub>j</sub>|/||b<sub>j</sub>|| and visibility |c<sub>i</sub> v|/||c<sub>i</sub>|| in the balanced system (unit left and right eigenvectors w, v; 0 = none, 1 = along the mode) relative to the largest for the same signal; hover a verdict for its margin. Shape: one bar per state, magnitude relative to the largest; bars below the line are in antiphase (phase beyond &plusmn;90&deg;).</div>", html.EscapeString(sxVerdictNote(t)))
+	h.WriteString("</div>")
+	return h.String()
+}
+
+// sxLinksHTML is the second table of a mode table with many signals:
+// reach per input and visibility per output with their bars, and the
+// shapes; one row per mode, or one row per signal when there are more
+// signals than modes (so the table grows down, not across).
+func sxLinksHTML(h *strings.Builder, t *lsys.ModeTable, inputs, outputs []string, maxReach, maxVis []float64, showShape bool) {
+	th := "<th " + thStyle + ">"
+	thL := `<th style="padding:2px 6px;text-align:left;font-weight:normal;color:#333">`
+	h.WriteString("<div style=\"font-weight:bold;margin:8px 0 2px 0\">reach and visibility</div><table style=\"border-collapse:collapse\">")
+	if len(inputs)+len(outputs) > len(t.Modes) {
+		h.WriteString("<tr>" + th + "</th>")
+		for i := range t.Modes {
+			fmt.Fprintf(h, "%smode %d</th>", th, i+1)
+		}
+		h.WriteString("</tr>")
+		row := func(label string, at func(m lsys.Mode) string) {
+			h.WriteString("<tr>" + thL + html.EscapeString(label) + "</th>")
+			for _, m := range t.Modes {
+				h.WriteString(at(m))
+			}
+			h.WriteString("</tr>")
+		}
+		for j, u := range inputs {
+			row("reach from "+u, func(m lsys.Mode) string { return sxBarCell(m.Reach[j], maxReach[j]) })
+		}
+		for i, y := range outputs {
+			row("seen by "+y, func(m lsys.Mode) string { return sxBarCell(m.Visibility[i], maxVis[i]) })
+		}
+		if showShape {
+			row("shape", func(m lsys.Mode) string {
+				return "<td style=\"padding:2px 6px\">" + sxShapeBars(m, t.System.StateNames) + "</td>"
+			})
+		}
+		h.WriteString("</table>")
+		return
+	}
+	h.WriteString("<tr>" + th + "#</th>")
+	for _, u := range inputs {
+		h.WriteString(th + "from " + html.EscapeString(u) + "</th>")
+	}
+	for _, y := range outputs {
+		h.WriteString(th + "to " + html.EscapeString(y) + "</th>")
+	}
+	if showShape {
+		h.WriteString(th + "shape</th>")
+	}
+	h.WriteString("</tr>")
+	for i, m := range t.Modes {
+		fmt.Fprintf(h, "<tr><td style=\"%s\">%d</td>", tdNumStyle, i+1)
 		for j, r := range m.Reach {
 			h.WriteString(sxBarCell(r, maxReach[j]))
 		}
@@ -222,14 +299,11 @@ func sxModesHTML(t *lsys.ModeTable) string {
 			h.WriteString(sxBarCell(o, maxVis[k]))
 		}
 		if showShape {
-			h.WriteString("<td style=\"padding:2px 6px\">" + sxShapeBars(m, s.StateNames) + "</td>")
+			h.WriteString("<td style=\"padding:2px 6px\">" + sxShapeBars(m, t.System.StateNames) + "</td>")
 		}
 		h.WriteString("</tr>")
 	}
 	h.WriteString("</table>")
-	fmt.Fprintf(&h, "<div style=\"color:#555;margin-top:4px\">%s. Shaded rows do not decay. Bars: reach |w<sup>H</sup> b<sub>j</sub>|/||b<sub>j</sub>|| and visibility |c<sub>i</sub> v|/||c<sub>i</sub>|| in the balanced system (unit left and right eigenvectors w, v; 0 = none, 1 = along the mode) relative to the largest in the column; hover a verdict for its margin. Shape: one bar per state, magnitude relative to the largest; bars below the line are in antiphase (phase beyond &plusmn;90&deg;).</div>", html.EscapeString(sxVerdictNote(t)))
-	h.WriteString("</div>")
-	return h.String()
 }
 
 // sxBarCell is a number with a horizontal bar scaled to max.

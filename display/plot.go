@@ -83,6 +83,7 @@ type rpLine struct {
 	At       float64
 	Vertical bool
 	Dashed   bool
+	Label    string // written beside the line's top (vertical) or right end
 }
 
 // rpText is an annotation placed at data coordinates.
@@ -102,23 +103,29 @@ type rpPanel struct {
 	// Fixed ranges (both ends set) or NaN for automatic.
 	XMin, XMax, YMin, YMax float64
 	Equal                  bool // equal scales on both axes (pole-zero and polar charts)
+	// Ratio is the width over the height of the data area that Equal
+	// assumes (measure it with rpFigure.dataRatio); 0 means 1.6.
+	Ratio float64
 	// Exact uses the fixed ranges as they are: no equal-scale widening and
 	// no padding (a chart that marks points on the frame's edge).
 	Exact bool
 	// LinTicks labels both axes with rpLinTicks (one format per axis, 0
 	// always labelled); charts in the complex plane set it.
 	LinTicks   bool
+	LinYTicks  bool // the y axis alone labelled with rpLinTicks (a linear y beside a log x)
 	PhaseTicks bool // y ticks at multiples of 45, 90 or 180 degrees
 	DBTicks    bool // y ticks at multiples of 10, 20, 40 ... dB
-	// LegendBelow puts this panel's legend in a strip below the figure
-	// (for many or long labels) instead of inside the frame.
+	// Legends are drawn in a strip below the figure, never over the data:
+	// with LegendBelow this panel's entries alone (set it on the one panel
+	// whose legend stands for all), otherwise the entries of all panels
+	// with Legend, each name once.
 	LegendBelow bool
 	// Simplify drops points that lie within a quarter pixel of the line
 	// through their neighbours after decimation (smooth curves then need
 	// a few hundred points, not thousands); newPanel sets it.
 	Simplify bool
 
-	below []rpLegendEntry // filled by build when LegendBelow
+	below []rpLegendEntry // filled by build when Legend
 }
 
 // rpLegendEntry is a legend line drawn outside a panel.
@@ -360,15 +367,15 @@ func styleColor(i int) color.Color {
 func (pn *rpPanel) build(buckets int) *plot.Plot {
 	p := plot.New()
 	p.Title.Text = pn.Title
-	p.Title.TextStyle.Font.Size = vg.Points(10)
+	p.Title.TextStyle.Font.Size = vg.Points(11)
 	p.X.Label.Text = pn.XLabel
 	p.Y.Label.Text = pn.YLabel
 	for _, ax := range []*plot.Axis{&p.X, &p.Y} {
-		ax.Label.TextStyle.Font.Size = vg.Points(9)
-		ax.Tick.Label.Font.Size = vg.Points(8)
+		ax.Label.TextStyle.Font.Size = vg.Points(10)
+		ax.Tick.Label.Font.Size = rpSmallText
 	}
-	p.Legend.TextStyle.Font.Size = vg.Points(8)
-	p.Legend.Padding = vg.Points(1.5) // keeps entries apart when a viewer substitutes a taller font
+	p.Legend.TextStyle.Font.Size = rpSmallText
+	p.Legend.Padding = vg.Points(3) // keeps entries apart, also when a viewer substitutes a taller font
 	p.Legend.Top = true
 	p.Legend.ThumbnailWidth = vg.Points(26)
 	grid := plotter.NewGrid()
@@ -381,6 +388,9 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 	}
 	if pn.LinTicks {
 		p.X.Tick.Marker, p.Y.Tick.Marker = rpLinTicks{}, rpLinTicks{}
+	}
+	if pn.LinYTicks {
+		p.Y.Tick.Marker = rpLinTicks{}
 	}
 	if pn.PhaseTicks {
 		p.Y.Tick.Marker = rpPhaseTicker
@@ -509,12 +519,10 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 				thumbs = append(thumbs, sc)
 			}
 		}
+		// every legend goes below the panels: inside the frame, at 9 pt,
+		// it covered the curves
 		if pn.Legend && s.Name != "" && len(thumbs) > 0 {
-			if pn.LegendBelow {
-				pn.below = append(pn.below, rpLegendEntry{s.Name, thumbs})
-			} else {
-				p.Legend.Add(s.Name, thumbs...)
-			}
+			pn.below = append(pn.below, rpLegendEntry{s.Name, thumbs})
 		}
 	}
 	if !ok(xmin) {
@@ -528,6 +536,9 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 	}
 	if ok(pn.YMin) && ok(pn.YMax) {
 		ymin, ymax = pn.YMin, pn.YMax
+	}
+	if pn.DBTicks && !(ok(pn.YMin) && ok(pn.YMax)) {
+		ymin = rpDBFloor(pn, ymin, ymax)
 	}
 	for _, l := range pn.Lines {
 		if l.Vertical {
@@ -560,22 +571,51 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 		}
 		p.Add(ln)
 	}
-	if len(pn.Texts) > 0 {
-		var lx plotter.XYLabels
-		for _, t := range pn.Texts {
-			if ok(t.X) && ok(t.Y) {
-				lx.XYs = append(lx.XYs, plotter.XY{X: t.X, Y: t.Y})
-				lx.Labels = append(lx.Labels, t.Text)
-			}
+	texts := append([]rpText(nil), pn.Texts...)
+	for _, l := range pn.Lines {
+		if l.Label != "" && l.Vertical {
+			texts = append(texts, rpText{X: l.At, Y: ymax - 0.08*(ymax-ymin), Text: l.Label})
 		}
-		if len(lx.XYs) > 0 {
+	}
+	if len(texts) > 0 {
+		// a label in the right quarter of the frame ends at its point
+		// instead of starting there, so it is not cut by the frame
+		tx := func(v float64) float64 {
+			if pn.LogX {
+				return math.Log10(v)
+			}
+			return v
+		}
+		var left, right plotter.XYLabels
+		for _, t := range texts {
+			if !ok(t.X) || !ok(t.Y) || (pn.LogX && t.X <= 0) {
+				continue
+			}
+			side := &left
+			if tx(t.X) > tx(xmin)+0.75*(tx(xmax)-tx(xmin)) {
+				side = &right
+			}
+			side.XYs = append(side.XYs, plotter.XY{X: t.X, Y: t.Y})
+			side.Labels = append(side.Labels, t.Text)
+		}
+		for k, lx := range []plotter.XYLabels{left, right} {
+			if len(lx.XYs) == 0 {
+				continue
+			}
 			if lb, err := plotter.NewLabels(lx); err == nil {
 				for i := range lb.TextStyle {
-					lb.TextStyle[i].Font.Size = vg.Points(8)
+					lb.TextStyle[i].Font.Size = rpSmallText
 					lb.TextStyle[i].Color = rpBlack
 					lb.TextStyle[i].XAlign = draw.XLeft
 				}
 				lb.Offset = vg.Point{X: vg.Points(3), Y: vg.Points(3)}
+				if k == 1 {
+					for i := range lb.TextStyle {
+						lb.TextStyle[i].XAlign = draw.XRight
+					}
+					lb.Offset.X = -vg.Points(3)
+					lb.Offset.Y = -vg.Points(13) // below its point, off the curve it marks
+				}
 				p.Add(lb)
 			}
 		}
@@ -583,12 +623,16 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 	if pn.Equal && !pn.Exact {
 		// widen the shorter span so both axes have the same scale (the
 		// panel is drawn about 1.6 times wider than high)
+		r := pn.Ratio
+		if !(r > 0) {
+			r = 1.6
+		}
 		cx, cy := (xmin+xmax)/2, (ymin+ymax)/2
 		sx, sy := (xmax-xmin)*1.1, (ymax-ymin)*1.1
-		if sx < 1.6*sy {
-			sx = 1.6 * sy
+		if sx < r*sy {
+			sx = r * sy
 		} else {
-			sy = sx / 1.6
+			sy = sx / r
 		}
 		xmin, xmax, ymin, ymax = cx-sx/2, cx+sx/2, cy-sy/2, cy+sy/2
 	}
@@ -603,6 +647,36 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 
 // draw renders the figure onto a canvas.
 func (f *rpFigure) draw(c vg.CanvasSizer) {
+	plots, canvases := f.layout(c)
+	for r := range plots {
+		for k := range plots[r] {
+			plots[r][k].Draw(canvases[r][k])
+		}
+	}
+}
+
+// dataRatio is the width over the height of panel i's data area when the
+// figure is drawn at its size: what a chart with equal scales on both
+// axes must give its frame (the frame's own width over height).
+func (f *rpFigure) dataRatio(i int) float64 {
+	dw, dh := f.dataSize(i)
+	if !(dw > 0) || !(dh > 0) {
+		return 1.6
+	}
+	return float64(dw / dh)
+}
+
+// dataSize is the size of panel i's data area when the figure is drawn.
+func (f *rpFigure) dataSize(i int) (vg.Length, vg.Length) {
+	w, h := f.size()
+	plots, canvases := f.layout(vgimg.NewWith(vgimg.UseWH(w, h), vgimg.UseDPI(96)))
+	r, k := i/max(f.Cols, 1), i%max(f.Cols, 1)
+	da := plots[r][k].DataCanvas(canvases[r][k])
+	return da.Max.X - da.Min.X, da.Max.Y - da.Min.Y
+}
+
+// layout builds the panels' plots and the canvases they are drawn on.
+func (f *rpFigure) layout(c vg.CanvasSizer) ([][]*plot.Plot, [][]draw.Canvas) {
 	dc := draw.New(c)
 	buckets := rpPixels / max(f.Cols, 1)
 	plots := make([][]*plot.Plot, f.Rows)
@@ -618,7 +692,9 @@ func (f *rpFigure) draw(c vg.CanvasSizer) {
 			}
 		}
 	}
-	// a legend strip below the panels, from the first panel that asks
+	// a legend strip below the panels: from the first panel that asks
+	// for one, else the entries of every panel with a legend, each name
+	// once (panels that share curves share entries)
 	var below []rpLegendEntry
 	for _, pn := range f.Panels {
 		if pn != nil && pn.LegendBelow && len(pn.below) > 0 {
@@ -626,17 +702,26 @@ func (f *rpFigure) draw(c vg.CanvasSizer) {
 			break
 		}
 	}
+	if below == nil {
+		seen := map[string]bool{}
+		for _, pn := range f.Panels {
+			if pn == nil {
+				continue
+			}
+			for _, e := range pn.below {
+				if !seen[e.name] {
+					seen[e.name] = true
+					below = append(below, e)
+				}
+			}
+		}
+	}
 	if len(below) > 0 {
 		dc = f.drawLegendBelow(dc, below)
 	}
 	pad := vg.Points(6)
 	tiles := draw.Tiles{Rows: f.Rows, Cols: f.Cols, PadTop: pad, PadBottom: pad, PadLeft: pad, PadRight: pad, PadX: vg.Points(14), PadY: vg.Points(12)}
-	canvases := plot.Align(plots, tiles, dc)
-	for r := range plots {
-		for k := range plots[r] {
-			plots[r][k].Draw(canvases[r][k])
-		}
-	}
+	return plots, plot.Align(plots, tiles, dc)
 }
 
 // drawLegendBelow draws the entries in columns along the bottom of the
@@ -644,9 +729,9 @@ func (f *rpFigure) draw(c vg.CanvasSizer) {
 func (f *rpFigure) drawLegendBelow(dc draw.Canvas, entries []rpLegendEntry) draw.Canvas {
 	mk := func() plot.Legend {
 		l := plot.NewLegend()
-		l.TextStyle.Font.Size = vg.Points(8)
+		l.TextStyle.Font.Size = rpSmallText
 		l.ThumbnailWidth = vg.Points(26)
-		l.Padding = vg.Points(1.5)
+		l.Padding = vg.Points(3)
 		l.Top, l.Left = true, true
 		return l
 	}
@@ -678,6 +763,41 @@ func (f *rpFigure) drawLegendBelow(dc draw.Canvas, entries []rpLegendEntry) draw
 		l.Draw(cc)
 	}
 	return draw.Crop(dc, 0, 0, h, 0)
+}
+
+// rpDBFloor is the bottom of a magnitude axis in dB: the lowest value
+// drawn, but no more than 60 dB below the level that 97 % of the points
+// stay above, so that a few points plunging towards a zero on the axis
+// (-240 dB at the Nyquist frequency of a sampled system with a zero at
+// z = -1) or one rounding spike do not decide the range; such points run
+// out of the frame. Annotations (margin bars and labels) stay inside.
+func rpDBFloor(pn *rpPanel, ymin, ymax float64) float64 {
+	var all []float64
+	for _, s := range pn.Series {
+		for _, v := range s.Y {
+			if ok(v) {
+				all = append(all, v)
+			}
+		}
+	}
+	if len(all) < 20 {
+		return ymin
+	}
+	sort.Float64s(all)
+	floor := math.Min(all[len(all)*3/100]-60, ymax-20)
+	for _, t := range pn.Texts {
+		if ok(t.Y) {
+			floor = math.Min(floor, t.Y-10)
+		}
+	}
+	for _, s := range pn.Series {
+		if s.Width >= 2.5 { // the margin bars
+			for _, v := range s.Y {
+				floor = math.Min(floor, v-10)
+			}
+		}
+	}
+	return math.Max(ymin, floor)
 }
 
 // rpSimplify drops the points that lie within a quarter pixel of the
@@ -752,8 +872,18 @@ func rpSimplify(x, y []float64, xspan, yspan float64, logX bool) ([]float64, []f
 	return xs, ys
 }
 
-// size chooses the figure size: 16 x 10 cm for one panel, 9 x 6 cm per
-// panel otherwise (capped at 30 cm wide).
+// rpSmallText is the size of tick labels, legends and annotations: 9 pt
+// is 12 CSS px, so at 100 % zoom no text of a chart is below 11 px (a
+// chart is never wider than rpMaxWidth, so a notebook does not shrink it).
+const rpSmallText = vg.Length(9)
+
+// rpMaxWidth fits a 980 px notebook column (964 px at 96 dpi).
+const rpMaxWidth = 25.5 * vg.Centimeter
+
+// size chooses the figure size: 16 x 10 cm for one panel; otherwise at
+// least 16 cm wide (a column of panels uses the width instead of being a
+// thin strip), 9 cm per column up to rpMaxWidth, and 6.5 cm per row (7 cm
+// when the rows are full width).
 func (f *rpFigure) size() (vg.Length, vg.Length) {
 	if f.W > 0 && f.H > 0 {
 		return f.W, f.H
@@ -761,12 +891,13 @@ func (f *rpFigure) size() (vg.Length, vg.Length) {
 	if f.Rows == 1 && f.Cols == 1 {
 		return 16 * vg.Centimeter, 10 * vg.Centimeter
 	}
-	w := vg.Length(f.Cols) * 9 * vg.Centimeter
-	h := vg.Length(f.Rows) * 6 * vg.Centimeter
-	if w > 30*vg.Centimeter {
-		w = 30 * vg.Centimeter
+	w := max(vg.Length(f.Cols)*9*vg.Centimeter, 16*vg.Centimeter)
+	w = min(w, rpMaxWidth)
+	row := 6.5 * vg.Centimeter
+	if f.Cols == 1 {
+		row = 7 * vg.Centimeter
 	}
-	return w, h
+	return w, vg.Length(f.Rows) * row
 }
 
 // SVG renders the figure as SVG bytes (fonts referenced, not embedded).

@@ -6,10 +6,13 @@ import (
 	"strings"
 
 	"lsys/lsys"
+	"lsys/lsys/numfmt"
 )
 
 // Transfer functions: the text form is the language's own syntax (so it can
-// be pasted into a cell); the LaTeX form is a fraction in descending powers.
+// be pasted into a cell); the LaTeX form is a fraction in descending powers,
+// and the HTML form (what notebooks show) the same fraction typeset without
+// MathJax.
 func init() {
 	Register((*lsys.Rational)(nil), func(v any, _ Options) Bundle {
 		r := v.(*lsys.Rational)
@@ -19,9 +22,10 @@ func init() {
 			tex = `$$\frac{` + latexPoly(r.Num, r.VarName()) + `}{` + latexPoly(r.Den, r.VarName()) + `}`
 		}
 		if r.Ts > 0 {
-			tex += `\qquad T = ` + latexNum(fmtDigits(r.Ts, 6)) + `\,\mathrm{s}`
+			tex += `\qquad T = ` + latexNum(numfmt.Digits(r.Ts, 6)) + `\,\mathrm{s}`
 		}
 		b.Data[LaTeX] = tex + `$$`
+		b.Data[HTML] = rationalHTML(r)
 		jsonPoly := func(p lsys.Poly) []any { // descending powers, as written
 			t := p.Trim()
 			out := make([]any, len(t))
@@ -58,7 +62,7 @@ func latexPoly(p lsys.Poly, v string) string {
 		}
 		a := math.Abs(c)
 		if a != 1 || i == 0 {
-			b.WriteString(latexNum(fmtDigits(a, 6)))
+			b.WriteString(latexNum(numfmt.Digits(a, 6)))
 			if i > 0 {
 				b.WriteString(`\,`)
 			}

@@ -115,19 +115,26 @@ func renderResponse(v any, opt Options) Bundle {
 			}
 			pn := newPanel(title, "time (s)", r.Outputs[i])
 			pn.Series = append(pn.Series, rpSeries{Name: r.Outputs[i], X: r.T, Y: r.Y[i][c], Style: 0, Stairs: r.Sampled})
-			if r.Kind == "input" && len(r.U) == 1 {
-				pn.Series = append(pn.Series, rpSeries{Name: "input " + r.System.InputNames[0], X: r.T, Y: r.U[0], Style: 1, Width: 1, Stairs: r.Sampled})
-				// one legend below the figure; with several outputs the
-				// curve is "output" (each panel's y label names it)
-				pn.Legend, pn.LegendBelow = i == 0 && c == 0, true
-				if rows > 1 {
-					pn.Series[0].Name = "output"
-				}
-			}
 			if gain != nil {
 				pn.Lines = append(pn.Lines, rpLine{At: gain[i*len(r.Channels)+c], Dashed: true})
 			}
 			f.Panels = append(f.Panels, pn)
+		}
+	}
+	// The input on its own axis below the outputs: it has its own units
+	// (a force under a position), and on a shared axis one of the two
+	// would be flattened.
+	if r.Kind == "input" && len(r.U) == 1 {
+		name := r.System.InputNames[0]
+		in := newPanel("input "+name, "time (s)", name)
+		in.Series = []rpSeries{{Name: name, X: r.T, Y: r.U[0], Style: 1, Width: 1.2, Stairs: r.Sampled}}
+		f.Rows++
+		for c := 0; c < cols; c++ {
+			if c == 0 {
+				f.Panels = append(f.Panels, in)
+			} else {
+				f.Panels = append(f.Panels, nil)
+			}
 		}
 	}
 	b := rpBundle(text, f, opt)
@@ -269,7 +276,7 @@ func renderSignal(v any, _ Options) Bundle {
 		d = fmt.Sprintf("ramp of slope %s per second", fmtNum(s.Amp))
 	case "table":
 		hold := "linear between rows"
-		if s.Hold == "zoh" {
+		if s.Hold == lsys.HoldZeroOrder {
 			hold = "held between rows"
 		}
 		d = fmt.Sprintf("table %s: %d rows x %d channel(s) from %s to %s s, %s", s.Name, len(s.T), s.Channels(), fmtNum(s.T[0]), fmtNum(s.T[len(s.T)-1]), hold)

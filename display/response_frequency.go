@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
 	"lsys/lsys"
@@ -17,7 +18,6 @@ func init() {
 	Register((*lsys.FrequencyResponse)(nil), renderFrequency)
 	Register((*lsys.PolarChart)(nil), renderPolar)
 	Register((*lsys.SingularValues)(nil), renderSingular)
-	Register((*lsys.Margins)(nil), renderMargins)
 	Register((*lsys.PoleZeroMap)(nil), renderPoleZero)
 }
 
@@ -85,8 +85,8 @@ func renderFrequency(v any, opt Options) Bundle {
 			ph.PhaseTicks = true
 			ph.Series = []rpSeries{{X: x, Y: f.Phase(i, j), Style: 0}}
 			if f.Nyquist > 0 {
-				mg.Lines = append(mg.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true})
-				ph.Lines = append(ph.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true})
+				mg.Lines = append(mg.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true, Label: "Nyquist"})
+				ph.Lines = append(ph.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true, Label: "Nyquist"})
 			}
 			mags, phs = append(mags, mg), append(phs, ph)
 		}
@@ -162,6 +162,14 @@ func renderPolar(v any, opt Options) Bundle {
 			fig.Panels = append(fig.Panels, pn)
 		}
 	}
+	// equal scales for the data area's real shape, measured once (the
+	// panels are alike)
+	if len(fig.Panels) > 0 {
+		ratio := fig.dataRatio(0)
+		for _, pn := range fig.Panels {
+			pn.Ratio = ratio
+		}
+	}
 	b := rpBundle(text, fig, opt)
 	b.Data[JSON] = map[string]any{"outputs": f.Outputs, "inputs": f.Inputs, "points": len(f.W)}
 	return b
@@ -205,6 +213,10 @@ func renderSingular(v any, opt Options) Bundle {
 		}
 		pn.Series = append(pn.Series, rpSeries{Name: fmt.Sprintf("σ%d", i+1), X: x, Y: y, Style: i, Glyph: k > 1})
 	}
+	if f.Nyquist > 0 {
+		_, _, sc := rpFreqAxis(f)
+		pn.Lines = append(pn.Lines, rpLine{At: f.Nyquist * sc, Vertical: true, Dashed: true, Label: "Nyquist"})
+	}
 	b := rpBundle(text, &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}}, opt)
 	b.Data[JSON] = map[string]any{"count": k, "points": len(f.W), "peak_db": jsonNum(20 * math.Log10(peak)), "peak_at": at, "unit": unit}
 	return b
@@ -218,144 +230,6 @@ func rpFreq(w float64, hz bool) string {
 		return fmtNum(w/(2*math.Pi)) + " Hz"
 	}
 	return fmtNum(w) + " rad/s"
-}
-
-// rpListWith lists frequencies each with a figure in brackets.
-func rpListWith(ws, vals []float64, hz bool, what, unit string) string {
-	i := -1
-	return joinList(ws, func(w float64) string {
-		i++
-		if i < len(vals) {
-			return rpFreq(w, hz) + " (" + what + " " + fmtNum(vals[i]) + unit + ")"
-		}
-		return rpFreq(w, hz)
-	})
-}
-
-func renderMargins(v any, opt Options) Bundle {
-	mg := v.(*lsys.Margins)
-	f := mg.Loop
-	hz := f.Hz
-	gm := "infinite (no phase crossover)"
-	if !math.IsInf(mg.GainMargin, 1) {
-		gm = fmt.Sprintf("%s dB (factor %s) at %s", fmtNum(mg.GainMarginDB), fmtNum(mg.GainMargin), rpFreq(mg.PhaseCrossover, hz))
-	}
-	pm := "infinite (no gain crossover)"
-	dm := "infinite"
-	if !math.IsInf(mg.PhaseMargin, 1) {
-		pm = fmt.Sprintf("%s deg at %s", fmtNum(mg.PhaseMargin), rpFreq(mg.GainCrossover, hz))
-		dm = fmtNum(mg.DelayMargin) + " s"
-	}
-	verdict := "closed loop (negative unity feedback): stability not checked"
-	if mg.ClosedChecked {
-		switch {
-		case mg.ClosedStable:
-			verdict = "closed loop (negative unity feedback) is stable"
-		case mg.ClosedBoundary > 0:
-			verdict = fmt.Sprintf("closed loop (negative unity feedback) is marginally stable: %s on the stability boundary, none beyond it (often a state the loop does not see, such as a position under a speed loop; check that it may drift)",
-				count(mg.ClosedBoundary, "pole", "poles"))
-		default:
-			verdict = "closed loop (negative unity feedback) is UNSTABLE: the margins do not describe a working loop"
-		}
-	}
-	bw := rpFreq(mg.Bandwidth, hz)
-	if math.IsNaN(mg.Bandwidth) {
-		bw = "n/a: " + mg.BandwidthNote
-	}
-	peak := fmt.Sprintf("%s dB at %s", fmtNum(mg.ResonantPeak), rpFreq(mg.ResonantFreq, hz))
-	if mg.ClosedNote != "" {
-		dm, peak = "n/a: "+mg.ClosedNote, "n/a: "+mg.ClosedNote
-	}
-	head := []string{"figure", "value"}
-	rows := [][]string{
-		{"gain margin", gm},
-		{"phase margin (180 + angle L, in (-180, 180] deg)", pm},
-		{"delay margin", dm},
-		{"gain crossovers (|L| = 1)", rpListWith(mg.GainCrossovers, mg.PhaseMargins, hz, "PM", " deg")},
-		{"phase crossovers (angle L = -180 deg)", rpListWith(mg.PhaseCrossovers, mg.GainMarginsDB, hz, "GM", " dB")},
-		{"closed-loop bandwidth (-3 dB)", bw},
-		{"closed-loop resonant peak", peak},
-	}
-	text := textTable("loop margins", head, rows) + "\n" + verdict
-	for _, n := range mg.Notes {
-		text += "\nnote: " + n
-	}
-	x, xl, sc := rpFreqAxis(f)
-	mag := newPanel("loop gain with margins", xl, "magnitude (dB)")
-	mag.LogX = true
-	mag.DBTicks = true
-	mag.Series = []rpSeries{{X: x, Y: db(f.Magnitude(0, 0)), Style: 0}}
-	mag.Lines = []rpLine{{At: 0, Dashed: true}}
-	ph := newPanel("", xl, "phase (deg)")
-	ph.LogX = true
-	ph.PhaseTicks = true
-	phase := f.Phase(0, 0)
-	ph.Series = []rpSeries{{X: x, Y: phase, Style: 0}}
-	// -180 + k 360 lines: the one nearest the phase at each crossover (or
-	// at the start of the curve when there is none)
-	refAt := func(w float64) float64 {
-		probe := phase[0]
-		if ok(w) {
-			probe = interpAt(f.W, phase, w)
-		}
-		return -180 + 360*math.Round((probe+180)/360)
-	}
-	refs := map[float64]bool{}
-	addRef := func(r float64) {
-		if !refs[r] {
-			refs[r] = true
-			ph.Lines = append(ph.Lines, rpLine{At: r, Dashed: true})
-		}
-	}
-	if len(phase) > 0 && len(mg.GainCrossovers) == 0 {
-		addRef(refAt(math.NaN()))
-	}
-	// every phase crossover: a bar from |L| up to 0 dB on the magnitude
-	// chart, labelled with its gain margin
-	for i, w := range mg.PhaseCrossovers {
-		if i >= len(mg.GainMarginsDB) || !ok(mg.GainMarginsDB[i]) {
-			continue
-		}
-		g := mg.GainMarginsDB[i]
-		mag.Lines = append(mag.Lines, rpLine{At: w * sc, Vertical: true, Dashed: true})
-		mag.Texts = append(mag.Texts, rpText{X: w * sc, Y: -g, Text: "GM " + fmtNum(g) + " dB"})
-		mag.Series = append(mag.Series, rpSeries{X: []float64{w * sc, w * sc}, Y: []float64{-g, 0}, Style: 1, Width: 2.5, Color: rpPalette[1]})
-	}
-	// every gain crossover: a bar from the -180 line to the phase on the
-	// phase chart, labelled with its phase margin
-	for i, w := range mg.GainCrossovers {
-		if i >= len(mg.PhaseMargins) || len(phase) == 0 {
-			continue
-		}
-		p := mg.PhaseMargins[i]
-		ref := refAt(w)
-		addRef(ref)
-		ph.Lines = append(ph.Lines, rpLine{At: w * sc, Vertical: true, Dashed: true})
-		ph.Texts = append(ph.Texts, rpText{X: w * sc, Y: ref + p, Text: "PM " + fmtNum(p) + "°"})
-		ph.Series = append(ph.Series, rpSeries{X: []float64{w * sc, w * sc}, Y: []float64{ref, ref + p}, Style: 2, Width: 2.5, Color: rpPalette[2]})
-	}
-	fig := &rpFigure{Rows: 2, Cols: 1, Panels: []*rpPanel{mag, ph}, W: 16 * cmLen, H: 14 * cmLen}
-	b := rpBundle(text, fig, opt)
-	b.Data[HTML] = htmlTableCard("lsys-response", "Loop margins", head, rows, 2, append([]string{verdict}, mg.Notes...)...)
-	notes := mg.Notes
-	if notes == nil {
-		notes = []string{}
-	}
-	b.Data[JSON] = map[string]any{
-		"gain_margin": jsonNum(mg.GainMargin), "gain_margin_db": jsonNum(mg.GainMarginDB), "phase_crossover": jsonNum(mg.PhaseCrossover),
-		"phase_margin_deg": jsonNum(mg.PhaseMargin), "gain_crossover": jsonNum(mg.GainCrossover), "delay_margin": jsonNum(mg.DelayMargin),
-		"gain_crossovers": mg.GainCrossovers, "phase_crossovers": mg.PhaseCrossovers,
-		"phase_margins_deg": jsonNums(mg.PhaseMargins), "gain_margins_db": jsonNums(mg.GainMarginsDB), "bandwidth": jsonNum(mg.Bandwidth),
-		"resonant_peak_db": jsonNum(mg.ResonantPeak), "resonant_freq": jsonNum(mg.ResonantFreq), "closed_loop_stable": mg.ClosedStable,
-		"notes": notes, "phase_margin_convention": "180 + angle L, in (-180, 180] deg",
-	}
-	if mg.BandwidthNote != "" {
-		b.Data[JSON].(map[string]any)["bandwidth_note"] = "n/a: " + mg.BandwidthNote
-	}
-	if mg.ClosedNote != "" {
-		b.Data[JSON].(map[string]any)["closed_loop_note"] = "n/a: " + mg.ClosedNote
-	}
-	return b
 }
 
 // interpAt interpolates y(x) linearly in log x.
@@ -498,7 +372,15 @@ func renderPoleZero(v any, opt Options) Bundle {
 	} else {
 		fr = pzFrame(append(append([]complex128(nil), nearPoles...), nearZeros...), g.Sampled())
 	}
-	fr, equal := fr.aspect(1.6)
+	// the frame's shape for equal scales: that of the chart's data area,
+	// measured on a probe of this chart (tick labels and the legend take
+	// their room first)
+	probe := newPanel(pn.Title, pn.XLabel, pn.YLabel)
+	probe.Series = []rpSeries{rpMark("poles", pz.Poles[:min(1, len(pz.Poles))], 0, draw.CrossGlyph{}, 4.5), rpMark("zeros", pz.Poles[:min(1, len(pz.Poles))], 1, draw.RingGlyph{}, 4.5)}
+	probe.Legend, probe.LegendBelow, probe.LinTicks, probe.Exact = true, true, true, true
+	probe.XMin, probe.XMax, probe.YMin, probe.YMax = fr.x0, fr.x1, fr.y0, fr.y1
+	fig := &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{probe}, W: 16 * cmLen, H: 10 * cmLen}
+	fr, equal := pzEqualFrame(fig, fr, g.Sampled())
 	if !equal {
 		text += "\nthe chart's axes have different scales (to fit the points); the damping-ratio lines are drawn to those scales"
 	}
@@ -507,6 +389,7 @@ func renderPoleZero(v any, opt Options) Bundle {
 	grid, texts := splaneGrid(g.Ts, gR, gridLabelOnAxis)
 	if !g.Sampled() {
 		texts = gridRayLabelsIn(texts, fr.x0, fr.x1, fr.y0, fr.y1)
+		texts = pzLabelsOffMarkers(texts, append(append([]complex128(nil), nearPoles...), nearZeros...), fr)
 	}
 	pn.Series = append(pn.Series, grid...)
 	if !g.Sampled() {
@@ -515,7 +398,14 @@ func renderPoleZero(v any, opt Options) Bundle {
 	// far points on the frame's edge, in their direction from the origin,
 	// labelled with their value; a label that would overlap one already
 	// placed moves a line further from the point (see farLabel)
+	// the markers drawn inside count as placed, so no label covers one
 	var placed []rpText
+	cw := (fr.x1 - fr.x0) / 100
+	for _, p := range append(append([]complex128(nil), nearPoles...), nearZeros...) {
+		if !cmplx.IsNaN(p) && !cmplx.IsInf(p) {
+			placed = append(placed, rpText{X: real(p) - 1.5*cw, Y: imag(p)})
+		}
+	}
 	edge := func(v []complex128) []complex128 {
 		out := make([]complex128, len(v))
 		for i, p := range v {
@@ -536,13 +426,66 @@ func renderPoleZero(v any, opt Options) Bundle {
 	pn.LegendBelow = true
 	pn.XMin, pn.XMax, pn.YMin, pn.YMax = fr.x0, fr.x1, fr.y0, fr.y1
 	pn.Texts = texts
-	fig := &rpFigure{Rows: 1, Cols: 1, Panels: []*rpPanel{pn}}
+	fig.Panels = []*rpPanel{pn}
 	out := rpBundle(text, fig, opt)
 	js := map[string]any{"sampled": g.Sampled(), "poles": rpComplexJSON(pz.Poles), "zeros_known": pz.ZerosKnown}
 	if pz.ZerosKnown {
 		js["zeros"] = rpComplexJSON(pz.Zeros)
 	}
 	out.Data[JSON] = js
+	return out
+}
+
+// pzEqualFrame gives a pole-zero chart equal scales: the figure (16 cm
+// wide, its one panel a probe with the chart's labels and legend) gets a
+// height that follows the points' shape, between a square and a wide data
+// area, and the frame is widened to the data area's measured shape (to
+// the left in continuous time, where the stable points are, not into the
+// empty right half plane). equal is false when that would leave more than
+// 70 % of the frame empty; the frame is then left as it is.
+func pzEqualFrame(fig *rpFigure, fr pzBox, sampled bool) (pzBox, bool) {
+	want := math.Min(math.Max((fr.x1-fr.x0)/(fr.y1-fr.y0), 0.75), 2.2)
+	if dw, dh := fig.dataSize(0); dw > 0 && dh > 0 {
+		fig.H = min(max(fig.H-dh+dw/vg.Length(want), 8*cmLen), 17*cmLen)
+	}
+	x1 := fr.x1
+	fr, equal := fr.aspect(fig.dataRatio(0))
+	if equal && !sampled && fr.x1 > x1 {
+		fr.x0, fr.x1 = fr.x0-(fr.x1-x1), x1
+	}
+	return fr, equal
+}
+
+// pzLabelsOffMarkers moves a damping-ratio label that would cover a pole
+// or zero along its ray (to 0.65, 0.5 or 0.95 of the way to the frame
+// instead of 0.8), or leaves it out when every place is covered (the ray
+// itself stays). Boxes are estimated for 9 pt text on a 16 cm chart: 1/90
+// of the frame's width per character, 1/20 of its height per line.
+func pzLabelsOffMarkers(texts []rpText, pts []complex128, fr pzBox) []rpText {
+	cw, lh := (fr.x1-fr.x0)/90, (fr.y1-fr.y0)/20
+	covers := func(t rpText) bool {
+		w := float64(len([]rune(t.Text))+1) * cw
+		for _, p := range pts {
+			if real(p) > t.X-cw && real(p) < t.X+w && imag(p) > t.Y-0.5*lh && imag(p) < t.Y+1.5*lh {
+				return true
+			}
+		}
+		return false
+	}
+	var out []rpText
+	for _, t := range texts {
+		var zeta float64
+		if _, err := fmt.Sscanf(t.Text, "ζ %g", &zeta); err != nil || !covers(t) {
+			out = append(out, t)
+			continue
+		}
+		for _, f := range []float64{0.65 / 0.8, 0.5 / 0.8, 0.95 / 0.8} {
+			if n := (rpText{X: t.X * f, Y: t.Y * f, Text: t.Text}); !covers(n) && n.X >= fr.x0 && n.Y <= fr.y1 {
+				out = append(out, n)
+				break
+			}
+		}
+	}
 	return out
 }
 
@@ -583,18 +526,18 @@ func pzFrame(pts []complex128, sampled bool) pzBox {
 
 // aspect widens the shorter side of the frame about its centre so both
 // axes have the same scale on a chart r times wider than high, unless
-// that would leave more than half of the width (or height) empty; then
+// that would leave more than 70 % of the width (or height) empty; then
 // the frame stays as it is and equal is false.
 func (b pzBox) aspect(r float64) (pzBox, bool) {
 	sx, sy := b.x1-b.x0, b.y1-b.y0
 	cx, cy := (b.x0+b.x1)/2, (b.y0+b.y1)/2
 	if sx < r*sy {
-		if sx < 0.5*r*sy {
+		if sx < 0.3*r*sy {
 			return b, false
 		}
 		sx = r * sy
 	} else {
-		if sy < 0.5*sx/r {
+		if sy < 0.3*sx/r {
 			return b, false
 		}
 		sy = sx / r

@@ -8,9 +8,9 @@ import (
 	"strconv"
 	"strings"
 
-	"lsys/lsys"
-
 	"gonum.org/v1/gonum/mat"
+
+	"lsys/lsys"
 )
 
 func init() {
@@ -244,7 +244,7 @@ func renderStructure(v any, _ Options) Bundle {
 		rows = append(rows, []string{p.Name, strconv.Itoa(p.Dim), sxValues(p.Modes)})
 	}
 	gridTable(t, h, []string{"part", "states", "modes"}, rows, 0)
-	note(t, h, fmt.Sprintf("Orthogonal staircase forms decide every rank, reachability on (A, B) alone and observability on (A, C) alone, each pair balanced on its own (states, and inputs or outputs, scaled by powers of two, so a tolerance means the same in any units), at %s x the norm of [A B] (or [A; C]); a small kept value marks a weakly reached or seen direction (the mode table's PBH margins measure each mode); the Krylov matrix is not used. Reachable and unobservable subspaces intersected at principal-angle tolerance %s; Kalman transformation condition number %s.",
+	note(t, h, fmt.Sprintf("Orthogonal staircase forms decide every rank, reachability on (A, B) alone and observability on (A, C) alone, each pair balanced on its own (states, and inputs or outputs, scaled by powers of two, so a tolerance means the same in any units), at %s x the norm of [[A, B]] (or [[A], [C]]); a small kept value marks a weakly reached or seen direction (the mode table's PBH margins measure each mode); the Krylov matrix is not used. Reachable and unobservable subspaces intersected at principal-angle tolerance %s; Kalman transformation condition number %s.",
 		fmtNum(st.RelTol), fmtNum(st.AngleTol), fmtNum(st.Cond)))
 	b := c.bundle()
 	parts := make([]any, 4)

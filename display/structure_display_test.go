@@ -5,9 +5,9 @@ import (
 	"strings"
 	"testing"
 
-	"lsys/lsys"
-
 	"gonum.org/v1/gonum/mat"
+
+	"lsys/lsys"
 )
 
 func sxTestSystem(t *testing.T) *lsys.System {
@@ -38,8 +38,16 @@ func TestSystemCard(t *testing.T) {
 		}
 	}
 	h := b.Data[HTML].(string)
-	if !strings.Contains(h, "lsys-system") || !strings.Contains(h, `\frac{d}{dt}`) {
+	if !strings.Contains(h, "lsys-system") || !strings.Contains(h, "lsys-equations") || !strings.Contains(h, "d/dt") {
 		t.Errorf("html card incomplete: %s", h)
+	}
+	// The equations are HTML, typeset without MathJax, and carry the
+	// matrices: no LaTeX and no second copy of A as a table in the card.
+	if strings.Contains(h, "$$") || strings.Contains(h, `\begin`) || strings.Contains(h, "<caption") {
+		t.Errorf("card has LaTeX or matrix tables beside its equations: %s", h)
+	}
+	if l, _ := b.Data[LaTeX].(string); !strings.Contains(l, `\frac{d}{dt}`) {
+		t.Errorf("text/latex part lacks the equations: %q", l)
 	}
 	if _, err := json.Marshal(b.Data); err != nil {
 		t.Fatal(err)
@@ -163,7 +171,7 @@ func TestSystemCardLarge(t *testing.T) {
 	s, _ := lsys.FromMatrices(A, nil, nil, nil, 0)
 	b := Render(s, Options{})
 	txt := b.Data[Text].(string)
-	if !strings.Contains(txt, "matrices not shown") || !strings.Contains(txt, "(27 more)") || len(txt) > 2000 {
+	if !strings.Contains(txt, "no source form above 16") || !strings.Contains(txt, "(27 more)") || len(txt) > 2000 {
 		t.Errorf("large card (%d bytes):\n%s", len(txt), txt)
 	}
 }

@@ -5,9 +5,10 @@ import (
 	"html"
 	"strings"
 
-	"lsys/lsys"
-
 	"gonum.org/v1/gonum/mat"
+
+	"lsys/lsys"
+	"lsys/lsys/numfmt"
 )
 
 func init() {
@@ -19,7 +20,7 @@ func sxStability(s *lsys.System) string {
 	if s.N() == 0 {
 		return "static gain"
 	}
-	st, err := lsys.StabilityOf(s)
+	st, err := s.Stability() // carried by the system, computed once in lsys
 	if err != nil {
 		return "stability unknown: " + err.Error()
 	}
@@ -174,14 +175,29 @@ func sxNameList(names []string) string {
 	return strings.Join(names[:10], ", ") + fmt.Sprintf(", ... (%d more) ..., ", len(names)-13) + strings.Join(names[len(names)-3:], ", ")
 }
 
+// sxSource is the lsys source that rebuilds s (numfmt.Source), "" when
+// the system is too large or has no outputs.
+func sxSource(s *lsys.System) string {
+	at := func(a *mat.Dense) func(i, j int) float64 {
+		return func(i, j int) float64 { return a.At(i, j) }
+	}
+	return numfmt.Source(numfmt.SystemForm{States: s.StateNames, Inputs: s.InputNames, Outputs: s.OutputNames,
+		A: at(s.A), B: at(s.B), C: at(s.C), D: at(s.D), Every: s.Ts})
+}
+
+// renderSystem shows a system as the source that rebuilds it, under a
+// comment line with its sizes and stability verdict: a user can copy the
+// text into a cell. HTML adds the state equations in LaTeX; the matrices
+// show as tables only where the equations are too large to read.
 func renderSystem(v any, _ Options) Bundle {
 	s := v.(*lsys.System)
 	if s == nil {
 		return NewBundle("(no system)")
 	}
 	n, m, p := s.N(), s.M(), s.P()
+	src := sxSource(s)
 	var t strings.Builder
-	t.WriteString(sxHeadline(s) + "\n")
+	t.WriteString("# " + sxHeadline(s) + "\n")
 	sig := [][]string{}
 	if n > 0 {
 		sig = append(sig, []string{"states", sxNameList(s.StateNames)})
@@ -192,32 +208,18 @@ func renderSystem(v any, _ Options) Bundle {
 	if p > 0 {
 		sig = append(sig, []string{"outputs", sxNameList(s.OutputNames)})
 	}
-	for _, r := range sig {
-		fmt.Fprintf(&t, "  %-8s %s\n", r[0], r[1])
-	}
-	type blk struct {
-		name       string
-		a          *mat.Dense
-		rows, cols []string
-	}
-	blocks := []blk{
-		{"A", s.A, s.StateNames, s.StateNames},
-		{"B", s.B, s.StateNames, s.InputNames},
-		{"C", s.C, s.OutputNames, s.StateNames},
-		{"D", s.D, s.OutputNames, s.InputNames},
-	}
-	// Large models: matrices are not printed (read them with G.A etc.).
 	showMatrices := n <= sxMaxShown && m <= sxMaxShown && p <= sxMaxShown
-	if !showMatrices {
-		blocks = nil
-		fmt.Fprintf(&t, "  (matrices not shown above %d states, inputs or outputs; read them as G.A, G.B, G.C, G.D)\n", sxMaxShown)
-	}
-	for _, bl := range blocks {
-		if len(bl.rows) == 0 || len(bl.cols) == 0 {
-			continue
+	if src != "" {
+		t.WriteString(src + "\n")
+	} else {
+		for _, r := range sig {
+			fmt.Fprintf(&t, "#   %-8s %s\n", r[0], r[1])
 		}
-		t.WriteString("\n")
-		sxMatrixText(&t, bl.name, bl.a, bl.rows, bl.cols)
+		if showMatrices {
+			t.WriteString("#   (no source form without outputs; read the matrices as G.A, G.B, G.C, G.D)\n")
+		} else {
+			fmt.Fprintf(&t, "#   (no source form above %d states, inputs or outputs; read the matrices as G.A, G.B, G.C, G.D)\n", sxMaxShown)
+		}
 	}
 
 	var h strings.Builder
@@ -230,22 +232,39 @@ func renderSystem(v any, _ Options) Bundle {
 		h.WriteString("</table>")
 	}
 	eq := sxStateEquations(s)
-	if eq != "" {
-		fmt.Fprintf(&h, "<div style=\"margin:4px 0\">$$%s$$</div>", html.EscapeString(eq))
+	// the equations carry the matrices: shown, they replace the tables
+	eqHTML := sxEquationHTML(s)
+	h.WriteString(eqHTML)
+	if src != "" {
+		fmt.Fprintf(&h, "<details><summary style=\"color:#555\">lsys source that rebuilds it</summary><pre style=\"margin:4px 0\">%s</pre></details>", html.EscapeString(src))
 	}
 	if !showMatrices {
 		fmt.Fprintf(&h, "<div style=\"color:#555\">Matrices not shown above %d states, inputs or outputs; read them as G.A, G.B, G.C, G.D.</div>", sxMaxShown)
 	}
-	h.WriteString("<div>")
-	for _, bl := range blocks {
-		if len(bl.rows) == 0 || len(bl.cols) == 0 {
-			continue
+	if eqHTML == "" && showMatrices {
+		// too large for equations: the matrices as tables, rows and
+		// columns labelled with the signals
+		h.WriteString("<div>")
+		for _, bl := range []struct {
+			name       string
+			a          *mat.Dense
+			rows, cols []string
+		}{
+			{"state matrix", s.A, s.StateNames, s.StateNames},
+			{"input matrix", s.B, s.StateNames, s.InputNames},
+			{"output matrix", s.C, s.OutputNames, s.StateNames},
+			{"feedthrough", s.D, s.OutputNames, s.InputNames},
+		} {
+			if len(bl.rows) == 0 || len(bl.cols) == 0 {
+				continue
+			}
+			sxMatrixHTML(&h, bl.name, bl.a, bl.rows, bl.cols)
 		}
-		sxMatrixHTML(&h, bl.name, bl.a, bl.rows, bl.cols)
+		h.WriteString("</div>")
 	}
-	h.WriteString("</div></div>")
+	h.WriteString("</div>")
 
-	b := NewBundle(t.String())
+	b := NewBundle(strings.TrimSuffix(t.String(), "\n"))
 	b.Data[HTML] = h.String()
 	if eq != "" {
 		b.Data[LaTeX] = "$$" + eq + "$$"

@@ -8,61 +8,19 @@ import (
 	"fmt"
 	"html"
 	"math"
-	"math/cmplx"
 	"strconv"
 	"strings"
+
+	"lsys/lsys/numfmt"
 )
 
 // fmtNum formats a real number for tables: four significant digits, plain
 // notation for moderate magnitudes, exponent notation otherwise, no "-0".
 func fmtNum(v float64) string {
-	if s, ok := fmtSpecial(v, "n/a"); ok {
-		return s
+	if math.IsNaN(v) {
+		return "n/a"
 	}
-	a := math.Abs(v)
-	if a >= 1e-3 && a < 1e5 {
-		// Four significant digits, trailing zeros trimmed.
-		dec := max(3-int(math.Floor(math.Log10(a))), 0)
-		s := strconv.FormatFloat(v, 'f', dec, 64)
-		if strings.Contains(s, ".") {
-			s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
-		}
-		if s == "-0" {
-			s = "0"
-		}
-		return s
-	}
-	s := strconv.FormatFloat(v, 'e', 3, 64)
-	if i := strings.IndexByte(s, 'e'); i > 0 {
-		mant := strings.TrimRight(strings.TrimRight(s[:i], "0"), ".")
-		s = mant + s[i:]
-	}
-	return s
-}
-
-// fmtSpecial spells the numbers that need no digits: NaN (as nan), the
-// infinities and zero (never "-0").
-func fmtSpecial(v float64, nan string) (string, bool) {
-	switch {
-	case math.IsNaN(v):
-		return nan, true
-	case math.IsInf(v, 1):
-		return "inf", true
-	case math.IsInf(v, -1):
-		return "-inf", true
-	case v == 0:
-		return "0", true
-	}
-	return "", false
-}
-
-// fmtDigits writes v with at most d significant digits, without "-0"
-// (plain values; the language's print shows 10).
-func fmtDigits(v float64, d int) string {
-	if s, ok := fmtSpecial(v, "nan"); ok {
-		return s
-	}
-	return strconv.FormatFloat(v, 'g', d, 64)
+	return numfmt.Short(v)
 }
 
 // fmtComplex formats an eigenvalue or zero in table style; pair == true
@@ -82,26 +40,6 @@ func fmtComplex(z complex128, pair bool) string {
 	return fmtNum(re) + sign + fmtNum(math.Abs(im)) + "j"
 }
 
-// fmtComplexDigits writes a + bj with d significant digits, in the
-// language's notation (a pure imaginary number is "bj").
-func fmtComplexDigits(z complex128, d int) string {
-	if cmplx.IsNaN(z) {
-		return "nan"
-	}
-	re, im := real(z), imag(z)
-	if im == 0 {
-		return fmtDigits(re, d)
-	}
-	if re == 0 {
-		return fmtDigits(im, d) + "j"
-	}
-	sign := " + "
-	if im < 0 {
-		sign, im = " - ", -im
-	}
-	return fmtDigits(re, d) + sign + fmtDigits(im, d) + "j"
-}
-
 // latexNum turns a formatted number such as 1.5e-07 into 1.5\cdot 10^{-7}.
 func latexNum(s string) string {
 	if i := strings.IndexByte(s, 'e'); i >= 0 {
@@ -116,7 +54,7 @@ func latexNum(s string) string {
 // become the strings "nan", "inf" and "-inf".
 func jsonNum(v float64) any {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return fmtDigits(v, 1)
+		return numfmt.Digits(v, 1)
 	}
 	return v
 }
@@ -158,31 +96,7 @@ func choose(ok bool, yes, no string) string {
 // apart, every line starts with indent and ends in a newline, trailing
 // blanks trimmed.
 func writeColumns(b *strings.Builder, cells [][]string, indent string, rightFrom int) {
-	var width []int
-	for _, row := range cells {
-		for j, s := range row {
-			if j >= len(width) {
-				width = append(width, 0)
-			}
-			width[j] = max(width[j], len([]rune(s)))
-		}
-	}
-	for _, row := range cells {
-		line := indent
-		for j, s := range row {
-			if j > 0 {
-				line += "  "
-			}
-			pad := strings.Repeat(" ", width[j]-len([]rune(s)))
-			if j < rightFrom {
-				line += s + pad
-			} else {
-				line += pad + s
-			}
-		}
-		b.WriteString(strings.TrimRight(line, " "))
-		b.WriteByte('\n')
-	}
+	b.WriteString(numfmt.Columns(cells, indent, rightFrom))
 }
 
 // textTable is a titled text table with a header row, all columns

@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"lsys/lsys"
+	"lsys/lsys/numfmt"
 )
 
 // Plain values: numbers, booleans, strings, real and complex matrices. The
@@ -18,13 +19,13 @@ import (
 func init() {
 	Register(float64(0), func(v any, _ Options) Bundle {
 		x := v.(float64)
-		b := NewBundle(fmtDigits(x, 10))
+		b := NewBundle(numfmt.Digits(x, 10))
 		b.Data[JSON] = map[string]any{"value": jsonNum(x)}
 		return b
 	})
 	Register(complex128(0), func(v any, _ Options) Bundle {
 		z := v.(complex128)
-		b := NewBundle(fmtComplexDigits(z, 10))
+		b := NewBundle(numfmt.ComplexDigits(z, 10))
 		b.Data[JSON] = map[string]any{"re": jsonNum(real(z)), "im": jsonNum(imag(z))}
 		return b
 	})
@@ -63,7 +64,7 @@ func matrixBundle(r, c int, at func(i, j int) complex128, isComplex bool) Bundle
 	for i := range cells {
 		cells[i] = make([]string, c)
 		for j := range cells[i] {
-			cells[i][j] = fmtComplexDigits(at(i, j), 10)
+			cells[i][j] = numfmt.ComplexDigits(at(i, j), 10)
 		}
 	}
 	var t strings.Builder
@@ -74,7 +75,7 @@ func matrixBundle(r, c int, at func(i, j int) complex128, isComplex bool) Bundle
 	var h strings.Builder
 	htmlMatrix(&h, kind, fmt.Sprintf("%dx%d", r, c), numbered(r), numbered(c), func(i, j int) (string, bool) {
 		z := at(i, j)
-		return fmtComplexDigits(z, 6), z == 0
+		return numfmt.ComplexDigits(z, 6), z == 0
 	})
 
 	// text/latex: a bracketed matrix, exponents written as powers of ten.
@@ -88,7 +89,7 @@ func matrixBundle(r, c int, at func(i, j int) complex128, isComplex bool) Bundle
 			if j > 0 {
 				l.WriteString(` & `)
 			}
-			l.WriteString(valLatex(fmtComplexDigits(at(i, j), 6)))
+			l.WriteString(valLatex(numfmt.ComplexDigits(at(i, j), 6)))
 		}
 	}
 	l.WriteString(`\end{bmatrix}$$`)
@@ -192,7 +193,7 @@ func largeMatrixBundle(r, c int, at func(i, j int) complex128, isComplex bool, t
 			case i < 0 || j < 0:
 				row = append(row, "...")
 			default:
-				row = append(row, fmtComplexDigits(at(i, j), 6))
+				row = append(row, numfmt.ComplexDigits(at(i, j), 6))
 			}
 		}
 		cells = append(cells, row)

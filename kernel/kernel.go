@@ -21,6 +21,7 @@ import (
 
 	"lsys/display"
 	"lsys/lang"
+	"lsys/lang/builtins"
 )
 
 // Config configures a kernel.
@@ -35,6 +36,10 @@ type Config struct {
 	// shell, control or stdin; 0 means DefaultMaxMessageSize. A peer that
 	// sends more is disconnected before the bytes are read.
 	MaxMessageSize int64
+
+	// Limits bound each cell (steps, depth, memory); zero values take the
+	// language's defaults.
+	Limits lang.Limits
 }
 
 // Wire limits. Real cells and their replies are far below them; they exist
@@ -100,7 +105,7 @@ func New(cfg Config) (*Kernel, error) {
 		cfg.MaxMessageSize = DefaultMaxMessageSize
 	}
 	k := &Kernel{cfg: cfg, signer: s, session: newID(), log: cfg.Log,
-		lang: lang.NewSession(lang.Options{Dir: cfg.Dir, Text: display.TextOf}),
+		lang: lang.NewSession(lang.Options{Dir: cfg.Dir, Text: display.TextOf, Builtins: builtins.Registry(), Limits: cfg.Limits}),
 		seen: newReplayGuard(replayMemory)}
 	k.shellMux = NewMux()
 	k.controlMux = NewMux()

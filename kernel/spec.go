@@ -67,7 +67,8 @@ func SysPrefix() (string, error) {
 	return "", fmt.Errorf("no python3 found to tell sys.prefix; use --prefix instead")
 }
 
-// WriteKernelspec writes kernel.json and our logos into dir.
+// WriteKernelspec writes kernel.json, our editor mode (kernel.js) and its
+// colours (kernel.css), and our logos into dir.
 func WriteKernelspec(dir string, spec KernelSpec) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return err
@@ -76,7 +77,7 @@ func WriteKernelspec(dir string, spec KernelSpec) error {
 	if err != nil {
 		return err
 	}
-	files := map[string][]byte{"kernel.json": append(b, '\n'), "logo-svg.svg": []byte(LogoSVG)}
+	files := map[string][]byte{"kernel.json": append(b, '\n'), "logo-svg.svg": []byte(LogoSVG), "kernel.js": []byte(EditorModeJS()), "kernel.css": []byte(EditorCSS())}
 	for _, size := range []int{32, 64} {
 		var buf bytes.Buffer
 		if err := png.Encode(&buf, Logo(size)); err != nil {
@@ -84,7 +85,7 @@ func WriteKernelspec(dir string, spec KernelSpec) error {
 		}
 		files[fmt.Sprintf("logo-%dx%d.png", size, size)] = buf.Bytes()
 	}
-	for _, name := range []string{"kernel.json", "logo-svg.svg", "logo-32x32.png", "logo-64x64.png"} {
+	for _, name := range []string{"kernel.json", "kernel.js", "kernel.css", "logo-svg.svg", "logo-32x32.png", "logo-64x64.png"} {
 		if err := os.WriteFile(filepath.Join(dir, name), files[name], 0o644); err != nil {
 			return err
 		}

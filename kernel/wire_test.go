@@ -474,3 +474,27 @@ func TestSIGTERMDuringCell(t *testing.T) {
 		t.Fatalf("kernel still running 5 s after SIGTERM\n%s", c.stderr)
 	}
 }
+
+// TestMemoryProbesKeepKernel: under a 64 MiB budget, a string doubled
+// without end, a system stacked on itself and a sampled response with a
+// horizon of 1e12 s are refused with a message; the kernel and the
+// bindings made before them survive.
+func TestMemoryProbesKeepKernel(t *testing.T) {
+	c := startWireEnv(t, []string{"LSYS_MEMORY=64M"})
+	if r := c.execute("keep = 42"); r["status"] != "ok" {
+		t.Fatalf("keep = 42: %v", r)
+	}
+	for _, probe := range []string{
+		"f(x, k) = if k == 0 then x else f(x + x, k - 1)\nf(\"ab\", 40)",
+		"G = system(1/(s+1))\ng(x, k) = if k == 0 then x else g(stack(x, x), k - 1)\ng(G, 15)",
+		"response(sample(1/(s+1), 0.1), step, until: 1e12)",
+	} {
+		if r := c.execute(probe); r["status"] != "error" {
+			t.Errorf("%q: status %v, want an error", probe, r["status"])
+		}
+	}
+	r := c.execute("keep + 1")
+	if r["status"] != "ok" {
+		t.Fatalf("after the probes: %v\n%s", r, c.stderr)
+	}
+}

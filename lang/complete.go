@@ -182,7 +182,7 @@ func (s *Session) Complete(src string, cursor int) (matches []string, start, end
 	// After a dot: fields of the value before it.
 	if start > 0 && runes[start-1] == '.' {
 		if v, ok := s.valueBefore(runes[:start-1]); ok {
-			add(fieldNames(v), "")
+			add(s.reg.fieldNames(v), "")
 		}
 		return matches, start, cursor
 	}
@@ -196,7 +196,7 @@ func (s *Session) Complete(src string, cursor int) (matches []string, start, end
 		for _, g := range oc.given {
 			given[g] = true
 		}
-		if b, ok := Lookup(oc.callee); ok && b.Fn != nil {
+		if b, ok := s.reg.Lookup(oc.callee); ok && b.Fn != nil {
 			for _, p := range b.Params {
 				if !p.Variadic && !given[p.Name] {
 					params = append(params, p.Name)
@@ -235,7 +235,7 @@ func (s *Session) Complete(src string, cursor int) (matches []string, start, end
 		return matches, start, cursor
 	}
 	add(s.Names(), "")
-	add(builtinNames(), "")
+	add(s.reg.Names(), "")
 	var kws []string
 	for k := range syntax.Keywords {
 		kws = append(kws, k)
@@ -287,7 +287,7 @@ func (s *Session) valueBefore(runes []rune) (any, bool) {
 		return nil, false
 	}
 	for _, f := range chain[1:] {
-		fr, has := fieldsOf(v)
+		fr, has := s.reg.fieldsOf(v)
 		if !has {
 			return nil, false
 		}
@@ -328,13 +328,13 @@ func (s *Session) Inspect(src string, cursor int) (text string, found bool) {
 		if v, ok := s.valueBefore(runes[:start-1]); ok {
 			var fv any
 			has := false
-			if fr, ok := fieldsOf(v); ok {
+			if fr, ok := s.reg.fieldsOf(v); ok {
 				var err error
 				fv, has, err = fr.get(name)
 				has = has && err == nil
 			}
 			if has {
-				return fmt.Sprintf("%s: %s\n\n%s", name, typeName(fv), s.Format(fv)), true
+				return fmt.Sprintf("%s: %s\n\n%s", name, s.reg.TypeName(fv), s.Format(fv)), true
 			}
 		}
 	}
@@ -348,8 +348,8 @@ func (s *Session) Inspect(src string, cursor int) (text string, found bool) {
 	if v, ok := s.Get(name); ok {
 		return s.bindingHelp(name, v), true
 	}
-	if b, ok := Lookup(name); ok {
-		return builtinHelp(b), true
+	if b, ok := s.reg.Lookup(name); ok {
+		return s.reg.HelpText(b), true
 	}
 	if syntax.IsKeyword(name) {
 		return keywordHelp[name], keywordHelp[name] != ""
@@ -366,41 +366,6 @@ var keywordHelp = map[string]string{
 	"not":   "not a: true when a is false.",
 	"true":  "The boolean true.",
 	"false": "The boolean false.",
-}
-
-func builtinHelp(b *Builtin) string {
-	var sb strings.Builder
-	sb.WriteString(b.Signature())
-	sb.WriteString("\n\n")
-	sb.WriteString(b.Help)
-	if len(b.Params) > 0 {
-		sb.WriteString("\n\nArguments:")
-		for _, p := range b.Params {
-			fmt.Fprintf(&sb, "\n  %s", p.Name)
-			if p.Default != nil {
-				fmt.Fprintf(&sb, " (default %s)", inlineString(p.Default, nil))
-			} else if p.Optional {
-				sb.WriteString(" (optional)")
-			}
-			if p.Doc != "" {
-				sb.WriteString(": " + p.Doc)
-			}
-		}
-	}
-	if b.Doc != "" {
-		sb.WriteString("\n\n")
-		sb.WriteString(b.Doc)
-	}
-	for i, ex := range b.Examples {
-		if i == 0 {
-			sb.WriteString("\n\nExample:")
-		}
-		sb.WriteString("\n  " + strings.ReplaceAll(ex, "\n", "\n  "))
-		if i < len(b.Examples)-1 {
-			sb.WriteString("\n")
-		}
-	}
-	return sb.String()
 }
 
 // bindingHelp summarises a bound value for inspect.
@@ -422,5 +387,5 @@ func (s *Session) bindingHelp(name string, v any) string {
 		}
 		text = text[:cut] + "\n..."
 	}
-	return fmt.Sprintf("%s: %s\n\n%s", name, typeName(v), text)
+	return fmt.Sprintf("%s: %s\n\n%s", name, s.reg.TypeName(v), text)
 }

@@ -35,6 +35,9 @@ type evaluator struct {
 	frames []map[string]any
 }
 
+// typeName names the kind of v for messages, with the session's registry.
+func (ev *evaluator) typeName(v any) string { return ev.s.reg.TypeName(v) }
+
 func (ev *evaluator) errorAt(pos syntax.Pos, msg, hint string) error {
 	return &syntax.Error{Pos: pos, Msg: msg, Hint: hint, Source: syntax.LineAt(ev.src, pos.Line), Where: ev.where}
 }
@@ -115,22 +118,32 @@ func (ev *evaluator) lookup(id *syntax.Ident) (any, error) {
 			return v, nil
 		}
 	}
-	if v, ok := ev.s.globals[id.Name]; ok {
+	// Under the read lock: a built-in abandoned at an interrupt may still
+	// evaluate a function argument while the next cell binds names.
+	ev.s.mu.RLock()
+	v, ok := ev.s.globals[id.Name]
+	ev.s.mu.RUnlock()
+	if ok {
 		return v, nil
 	}
-	if b, ok := Lookup(id.Name); ok {
+	if b, ok := ev.s.reg.Lookup(id.Name); ok {
 		if b.Fn == nil {
 			return b.Value, nil
 		}
 		return b, nil
 	}
-	cands := append(ev.s.Names(), builtinNames()...)
+	if now, ok := ev.s.reg.Renamed(id.Name); ok {
+		b, _ := ev.s.reg.Lookup(now)
+		return nil, ev.errorAt(id.NamePos, fmt.Sprintf("'%s' was renamed; did you mean '%s'?", id.Name, now),
+			"Usage: "+b.Signature())
+	}
+	cands := append(ev.s.Names(), ev.s.reg.Names()...)
 	if n := len(ev.frames); n > 0 {
 		for k := range ev.frames[n-1] {
 			cands = append(cands, k)
 		}
 	}
-	return nil, ev.errorAt(id.NamePos, fmt.Sprintf("unknown name '%s'%s", id.Name, didYouMean(id.Name, cands)),
+	return nil, ev.errorAt(id.NamePos, fmt.Sprintf("unknown name '%s'%s", id.Name, DidYouMean(id.Name, cands)),
 		"Bind it first (name = value), or check the spelling.")
 }
 
@@ -174,7 +187,7 @@ func (ev *evaluator) eval(e syntax.Expr) (v any, err error) {
 		if x.Op == syntax.NOT {
 			b, ok := v.(bool)
 			if !ok {
-				return nil, ev.errorAt(x.OpPos, fmt.Sprintf("'not' needs true or false, not %s", typeName(v)), "Use a comparison, such as not (k > 0).")
+				return nil, ev.errorAt(x.OpPos, fmt.Sprintf("'not' needs true or false, not %s", ev.typeName(v)), "Use a comparison, such as not (k > 0).")
 			}
 			return !b, nil
 		}
@@ -183,15 +196,7 @@ func (ev *evaluator) eval(e syntax.Expr) (v any, err error) {
 		if x.Op == syntax.AND || x.Op == syntax.OR {
 			return ev.logic(x)
 		}
-		a, err := ev.eval(x.X)
-		if err != nil {
-			return nil, err
-		}
-		b, err := ev.eval(x.Y)
-		if err != nil {
-			return nil, err
-		}
-		return ev.binary(x.Op, a, b, x.OpPos, x)
+		return ev.evalChain(x)
 	case *syntax.CallExpr:
 		return ev.evalCall(x)
 	case *syntax.IndexExpr:
@@ -209,7 +214,7 @@ func (ev *evaluator) eval(e syntax.Expr) (v any, err error) {
 		}
 		b, ok := c.(bool)
 		if !ok {
-			return nil, ev.errorAt(x.Cond.Pos(), fmt.Sprintf("the condition of 'if' must be true or false, not %s", typeName(c)),
+			return nil, ev.errorAt(x.Cond.Pos(), fmt.Sprintf("the condition of 'if' must be true or false, not %s", ev.typeName(c)),
 				"Compare with <, <=, ==, != ... to get true or false.")
 		}
 		if b {
@@ -229,7 +234,7 @@ func (ev *evaluator) logic(x *syntax.BinaryExpr) (any, error) {
 	}
 	ab, ok := a.(bool)
 	if !ok {
-		return nil, ev.errorAt(x.X.Pos(), fmt.Sprintf("'%s' needs true or false on both sides, not %s", x.Op, typeName(a)), "Use comparisons: k > 0 and b < 1.")
+		return nil, ev.errorAt(x.X.Pos(), fmt.Sprintf("'%s' needs true or false on both sides, not %s", x.Op, ev.typeName(a)), "Use comparisons: k > 0 and b < 1.")
 	}
 	if (x.Op == syntax.AND && !ab) || (x.Op == syntax.OR && ab) {
 		return ab, nil
@@ -240,7 +245,7 @@ func (ev *evaluator) logic(x *syntax.BinaryExpr) (any, error) {
 	}
 	bb, ok := b.(bool)
 	if !ok {
-		return nil, ev.errorAt(x.Y.Pos(), fmt.Sprintf("'%s' needs true or false on both sides, not %s", x.Op, typeName(b)), "Use comparisons: k > 0 and b < 1.")
+		return nil, ev.errorAt(x.Y.Pos(), fmt.Sprintf("'%s' needs true or false on both sides, not %s", x.Op, ev.typeName(b)), "Use comparisons: k > 0 and b < 1.")
 	}
 	return bb, nil
 }
@@ -290,7 +295,7 @@ func (ev *evaluator) evalList(x *syntax.ListLit) (any, error) {
 			return nil, ev.tooBig(x.Lbrack, len(vals), 1)
 		}
 		for i, v := range vals {
-			if !finite(v) {
+			if !Finite(v) {
 				return nil, ev.errorAt(x.Elems[i].Pos(), fmt.Sprintf("entry %d is %s; matrices hold finite numbers only", i+1, FormatValue(v)), "Check how the entry was computed; inf and nan cannot enter a matrix or a system.")
 			}
 		}
@@ -412,19 +417,19 @@ func (ev *evaluator) evalCall(x *syntax.CallExpr) (any, error) {
 				"For the frequency response at w rad/s write H(w*1j).")
 		}
 		v := f.Eval(toComplex(vals[0]))
-		if !finite(v) {
+		if !Finite(v) {
 			return nil, ev.errorAt(pos[0], fmt.Sprintf("%s is a pole of the transfer function", FormatValue(vals[0])),
 				"Evaluate it at another point.")
 		}
-		return number(v), nil
+		return Number(v), nil
 	}
 	hint := "Only functions can be called; to index a matrix use M[2, 1]."
 	if id, ok := x.Fun.(*syntax.Ident); ok {
-		if b, ok := Lookup(id.Name); ok && b.Fn != nil {
+		if b, ok := ev.s.reg.Lookup(id.Name); ok && b.Fn != nil {
 			hint = fmt.Sprintf("Your binding '%s' hides the built-in %s; give your value another name.", id.Name, b.Signature())
 		}
 	}
-	return nil, ev.errorAt(x.Lparen, fmt.Sprintf("%s is %s, not a function", syntax.ExprString(x.Fun), typeName(fn)), hint)
+	return nil, ev.errorAt(x.Lparen, fmt.Sprintf("%s is %s, not a function", syntax.ExprString(x.Fun), ev.typeName(fn)), hint)
 }
 
 // apply calls f with values (used by built-ins that take functions).
@@ -439,7 +444,7 @@ func (ev *evaluator) apply(f any, vals []any, named []NamedValue, pos syntax.Pos
 	case *Function:
 		return ev.callFunction(fn, vals, poss, named, pos)
 	}
-	return nil, ev.errorAt(pos, fmt.Sprintf("expected a function, got %s", typeName(f)), "Define one first: f(k) = ...")
+	return nil, ev.errorAt(pos, fmt.Sprintf("expected a function, got %s", ev.typeName(f)), "Define one first: f(k) = ...")
 }
 
 func (ev *evaluator) callBuiltin(b *Builtin, vals []any, poss []syntax.Pos, named []NamedValue, pos syntax.Pos) (result any, err error) {
@@ -448,6 +453,9 @@ func (ev *evaluator) callBuiltin(b *Builtin, vals []any, poss []syntax.Pos, name
 	c.vals, c.poss, c.given = make([]any, n), make([]syntax.Pos, n), make([]bool, n)
 	for i, v := range vals {
 		switch {
+		case i < n && b.Params[i].NamedOnly:
+			return nil, ev.errorAt(poss[i], fmt.Sprintf("%s takes '%s' by name only", b.Name, b.Params[i].Name),
+				fmt.Sprintf("Write %s: before it. Usage: %s", b.Params[i].Name, b.Signature()))
 		case i < n && !b.Params[i].Variadic:
 			c.vals[i], c.poss[i], c.given[i] = v, poss[i], true
 		case n > 0 && b.Params[n-1].Variadic:
@@ -455,7 +463,7 @@ func (ev *evaluator) callBuiltin(b *Builtin, vals []any, poss []syntax.Pos, name
 			c.RestPos = append(c.RestPos, poss[i])
 			c.given[n-1] = true
 		default:
-			return nil, ev.errorAt(poss[i], fmt.Sprintf("%s takes at most %s", b.Name, plural(n, "argument")), "Usage: "+b.Signature())
+			return nil, ev.errorAt(poss[i], fmt.Sprintf("%s takes at most %s", b.Name, Plural(n, "argument")), "Usage: "+b.Signature())
 		}
 	}
 	for _, nv := range named {
@@ -473,8 +481,12 @@ func (ev *evaluator) callBuiltin(b *Builtin, vals []any, poss []syntax.Pos, name
 			var names []string
 			for _, p := range b.Params {
 				names = append(names, p.Name)
+				if p.Formerly == nv.Name {
+					return nil, ev.errorAt(nv.Pos, fmt.Sprintf("%s has no argument named '%s' (it was renamed); did you mean '%s'?", b.Name, nv.Name, p.Name),
+						"Usage: "+b.Signature())
+				}
 			}
-			return nil, ev.errorAt(nv.Pos, fmt.Sprintf("%s has no argument named '%s'%s", b.Name, nv.Name, didYouMean(nv.Name, names)),
+			return nil, ev.errorAt(nv.Pos, fmt.Sprintf("%s has no argument named '%s'%s", b.Name, nv.Name, DidYouMean(nv.Name, names)),
 				"Usage: "+b.Signature())
 		}
 		if c.given[i] {
@@ -488,26 +500,65 @@ func (ev *evaluator) callBuiltin(b *Builtin, vals []any, poss []syntax.Pos, name
 		}
 	}
 	c.shareSampleTime()
-	defer func() {
-		if r := recover(); r != nil {
-			result = nil
-			err = ev.errorAt(pos, fmt.Sprintf("%s failed inside: %v", b.Name, r),
-				"This is a bug in lsys, not in your cell; please report it with this cell.")
-			if debugPanics {
-				err = fmt.Errorf("%w\n%s", err, debug.Stack())
-			}
-		}
-	}()
-	result, err = b.Fn(c)
+	result, err = ev.runBuiltin(b, c, pos)
 	if err != nil {
 		return nil, c.wrapErr(err)
+	}
+	if err := ev.checkBudget(result, pos, b.Name); err != nil {
+		return nil, err
 	}
 	return result, nil
 }
 
+// runBuiltin calls the built-in on a goroutine of its own and waits for it
+// or for the cell's interruption, whichever comes first, so an interrupt
+// ends the cell within moments even inside a library routine that cannot
+// be stopped (a dense eigen-solver on 1500 states runs for seconds between
+// any two points where it could look). The abandoned computation finishes
+// in the background and its result is dropped; what it would still print
+// goes nowhere (see guardedOutput), and it sees the interrupt at its next
+// check. A panic inside becomes the cell's error.
+func (ev *evaluator) runBuiltin(b *Builtin, c *Call, pos syntax.Pos) (any, error) {
+	type outcome struct {
+		v     any
+		err   error
+		pan   any
+		stack []byte
+	}
+	done := make(chan outcome, 1)
+	go func() {
+		defer func() {
+			if r := recover(); r != nil {
+				done <- outcome{pan: r, stack: debug.Stack()}
+			}
+		}()
+		v, err := b.Fn(c)
+		done <- outcome{v: v, err: err}
+	}()
+	var o outcome
+	select {
+	case o = <-done:
+	case <-ev.ctx.Done():
+		select {
+		case o = <-done: // finished at the same moment: keep it
+		default:
+			return nil, ev.interrupted(pos, ev.ctx.Err())
+		}
+	}
+	if o.pan != nil {
+		err := ev.errorAt(pos, fmt.Sprintf("%s failed inside: %v", b.Name, o.pan),
+			"This is a bug in lsys, not in your cell; please report it with this cell.")
+		if debugPanics {
+			err = fmt.Errorf("%w\n%s", err, o.stack)
+		}
+		return nil, err
+	}
+	return o.v, o.err
+}
+
 // shareSampleTime gives arguments in z whose sample time is still open
 // (1/z) the sample time of the call's sampled arguments, when they all
-// have one and the same: closeloop(Gz, 1/z), connect(Gz, 1/z, ...) (SPEC
+// have one and the same: closeloop(Gz, through: 1/z), wire(Gz, 1/z, ...) (SPEC
 // section 8, "taken from what it is combined with").
 func (c *Call) shareSampleTime() {
 	ts := 0.0
@@ -561,7 +612,7 @@ var debugPanics = false
 
 func (ev *evaluator) callFunction(f *Function, vals []any, poss []syntax.Pos, named []NamedValue, pos syntax.Pos) (any, error) {
 	if len(vals) > len(f.Params) {
-		return nil, ev.errorAt(poss[len(f.Params)], fmt.Sprintf("%s takes %s", f.Name, plural(len(f.Params), "argument")),
+		return nil, ev.errorAt(poss[len(f.Params)], fmt.Sprintf("%s takes %s", f.Name, Plural(len(f.Params), "argument")),
 			fmt.Sprintf("It is defined as %s.", f))
 	}
 	frame := make(map[string]any, len(f.Params))
@@ -576,7 +627,7 @@ func (ev *evaluator) callFunction(f *Function, vals []any, poss []syntax.Pos, na
 			}
 		}
 		if !found {
-			return nil, ev.errorAt(nv.Pos, fmt.Sprintf("%s has no parameter named '%s'%s", f.Name, nv.Name, didYouMean(nv.Name, f.Params)),
+			return nil, ev.errorAt(nv.Pos, fmt.Sprintf("%s has no parameter named '%s'%s", f.Name, nv.Name, DidYouMean(nv.Name, f.Params)),
 				fmt.Sprintf("It is defined as %s.", f))
 		}
 		if _, dup := frame[nv.Name]; dup {
@@ -679,7 +730,7 @@ func (ev *evaluator) evalIndex(x *syntax.IndexExpr) (any, error) {
 		if len(x.Indices) != 1 {
 			return nil, ev.errorAt(x.Lbrack, "a list takes one index", "Write l[2] or l[2:3].")
 		}
-		lo, hi, isRange, err := ev.span(x.Indices[0], len(t.Items), typeName(t))
+		lo, hi, isRange, err := ev.span(x.Indices[0], len(t.Items), ev.typeName(t))
 		if err != nil {
 			return nil, err
 		}
@@ -712,14 +763,14 @@ func (ev *evaluator) evalIndex(x *syntax.IndexExpr) (any, error) {
 					out.Set(i-r0, j-c0, d.At(i, j))
 				}
 			}
-			return realIfPossible(out)
+			return RealIfPossible(out)
 		}
 		switch len(x.Indices) {
 		case 1:
 			if r != 1 && c != 1 {
-				return nil, ev.errorAt(x.Lbrack, fmt.Sprintf("%s needs a row and a column", typeName(v)), "Write M[2, 1] (row 2, column 1), M[2, :] (row 2) or M[:, 1] (column 1).")
+				return nil, ev.errorAt(x.Lbrack, fmt.Sprintf("%s needs a row and a column", ev.typeName(v)), "Write M[2, 1] (row 2, column 1), M[2, :] (row 2) or M[:, 1] (column 1).")
 			}
-			lo, hi, isRange, err := ev.span(x.Indices[0], r*c, typeName(v))
+			lo, hi, isRange, err := ev.span(x.Indices[0], r*c, ev.typeName(v))
 			if err != nil {
 				return nil, err
 			}
@@ -733,11 +784,11 @@ func (ev *evaluator) evalIndex(x *syntax.IndexExpr) (any, error) {
 			}
 			return sub(0, 0, lo, hi), nil
 		case 2:
-			r0, r1, rr, err := ev.span(x.Indices[0], r, fmt.Sprintf("the rows of %s", typeName(v)))
+			r0, r1, rr, err := ev.span(x.Indices[0], r, fmt.Sprintf("the rows of %s", ev.typeName(v)))
 			if err != nil {
 				return nil, err
 			}
-			c0, c1, cr, err := ev.span(x.Indices[1], c, fmt.Sprintf("the columns of %s", typeName(v)))
+			c0, c1, cr, err := ev.span(x.Indices[1], c, fmt.Sprintf("the columns of %s", ev.typeName(v)))
 			if err != nil {
 				return nil, err
 			}
@@ -750,25 +801,25 @@ func (ev *evaluator) evalIndex(x *syntax.IndexExpr) (any, error) {
 	}
 	for _, e := range x.Indices {
 		if r, ok := e.(*syntax.RangeExpr); ok {
-			return nil, ev.errorAt(r.Colon, fmt.Sprintf("%s cannot be sliced", typeName(v)), "Ranges a:b select entries of vectors, matrices and lists.")
+			return nil, ev.errorAt(r.Colon, fmt.Sprintf("%s cannot be sliced", ev.typeName(v)), "Ranges a:b select entries of vectors, matrices and lists.")
 		}
 	}
-	return nil, ev.errorAt(x.Lbrack, fmt.Sprintf("%s cannot be indexed", typeName(v)), "Index vectors, matrices and lists: v[3], M[2, 1].")
+	return nil, ev.errorAt(x.Lbrack, fmt.Sprintf("%s cannot be indexed", ev.typeName(v)), "Index vectors, matrices and lists: v[3], M[2, 1].")
 }
 
 // systemFields are the fixed fields of a system; signal names follow.
 var systemFields = []string{"A", "B", "C", "D", "states", "inputs", "outputs", "every"}
 
 func (ev *evaluator) field(v any, name *syntax.Ident) (any, error) {
-	fr, ok := fieldsOf(v)
+	fr, ok := ev.s.reg.fieldsOf(v)
 	if !ok {
-		return nil, ev.errorAt(name.NamePos, fmt.Sprintf("%s has no fields", typeName(v)), "Records, systems, models and results of analysis have fields; completion after '.' lists them.")
+		return nil, ev.errorAt(name.NamePos, fmt.Sprintf("%s has no fields", ev.typeName(v)), "Records, systems, models and results of analysis have fields; completion after '.' lists them.")
 	}
 	f, found, err := fr.get(name.Name)
 	if err != nil {
 		hint := "This is a bug in lsys, not in your cell; please report it."
 		if _, isSys := v.(*lsys.System); isSys {
-			hint = "Fields of a system: A, B, C, D, states, inputs, outputs, every, and its signal names."
+			hint = "Fields of a system: " + strings.Join(systemFields, ", ") + ", and its signal names."
 		}
 		return nil, ev.errorAt(name.NamePos, err.Error(), hint)
 	}
@@ -780,10 +831,10 @@ func (ev *evaluator) field(v any, name *syntax.Ident) (any, error) {
 	if len(fields) > 0 {
 		hint = "Its fields are: " + strings.Join(fields, ", ") + "."
 	}
-	if m, ok := v.(*NonlinearModel); ok {
+	if m, ok := v.(*lsys.Model); ok {
 		// A model's signals are not fields (a system's are): point the
 		// way when the name is, or is close to, one of them.
-		signals := append(append(append([]string(nil), m.bs.states...), m.bs.inputs...), m.bs.outputs...)
+		signals := append(append(append([]string(nil), m.StateNames...), m.InputNames...), m.OutputNames...)
 		sig := ""
 		for _, s := range signals {
 			if s == name.Name {
@@ -802,12 +853,12 @@ func (ev *evaluator) field(v any, name *syntax.Ident) (any, error) {
 				fmt.Sprintf("A model's signals are reached after linearizing it: linearize(model, at: {...}).%s. %s", sig, hint))
 		}
 	}
-	return nil, ev.errorAt(name.NamePos, fmt.Sprintf("%s has no field '%s'%s", typeName(v), name.Name, didYouMean(name.Name, fields)), hint)
+	return nil, ev.errorAt(name.NamePos, fmt.Sprintf("%s has no field '%s'%s", ev.typeName(v), name.Name, DidYouMean(name.Name, fields)), hint)
 }
 
 // fieldNames lists what may follow '.' after v, for completion and hints.
-func fieldNames(v any) []string {
-	if fr, ok := fieldsOf(v); ok {
+func (r *Registry) fieldNames(v any) []string {
+	if fr, ok := r.fieldsOf(v); ok {
 		return fr.names()
 	}
 	return nil
@@ -826,7 +877,7 @@ type fieldReader struct {
 // fieldsOf gives the fields of records, systems (matrices, names and
 // signals), results of analysis (their registered TypeInfo) and the
 // language's own values with fields (models, equilibria).
-func fieldsOf(v any) (fieldReader, bool) {
+func (r *Registry) fieldsOf(v any) (fieldReader, bool) {
 	switch t := v.(type) {
 	case *Record:
 		return fieldReader{
@@ -842,28 +893,11 @@ func fieldsOf(v any) (fieldReader, bool) {
 			get:   func(n string) (any, bool, error) { return systemField(t, n) },
 		}, true
 	}
-	if ti, ok := typeNames.info(v); ok && ti.Field != nil {
-		return fieldReader{
-			names: func() []string {
-				if ti.FieldNames != nil {
-					return ti.FieldNames(v)
-				}
-				return ti.Fields
-			},
-			get: func(n string) (f any, found bool, err error) {
-				err = guard(func() error { f, found = ti.Field(v, n); return nil })
-				return f, found, err
-			},
-		}, true
+	if t, ok := fieldTable(v); ok {
+		return tableReader(v, t, nil), true
 	}
-	if fd, ok := v.(fielder); ok {
-		return fieldReader{
-			names: fd.FieldNames,
-			get: func(n string) (any, bool, error) {
-				f, ok := fd.Field(n)
-				return f, ok, nil
-			},
-		}, true
+	if ti, ok := r.typeInfo(v); ok && (len(ti.Fields) > 0 || ti.ByName != nil) {
+		return tableReader(v, ti.Fields, ti.ByName), true
 	}
 	return fieldReader{}, false
 }
@@ -886,7 +920,8 @@ func systemFieldNames(g *lsys.System) []string {
 	return out
 }
 
-func namesList(names []string) *List {
+// NameList is a list of names (strings).
+func NameList(names []string) *List {
 	l := &List{Items: make([]any, len(names))}
 	for i, n := range names {
 		l.Items[i] = n
@@ -906,11 +941,11 @@ func systemField(g *lsys.System, name string) (any, bool, error) {
 		}
 		return mat.DenseCopyOf(m), true, nil
 	case "states":
-		return namesList(g.StateNames), true, nil
+		return NameList(g.StateNames), true, nil
 	case "inputs":
-		return namesList(g.InputNames), true, nil
+		return NameList(g.InputNames), true, nil
 	case "outputs":
-		return namesList(g.OutputNames), true, nil
+		return NameList(g.OutputNames), true, nil
 	case "every":
 		return g.Ts, true, nil
 	}
@@ -976,14 +1011,14 @@ func (ev *evaluator) toSystem(v any, pos syntax.Pos) (*lsys.System, error) {
 	switch t := v.(type) {
 	case *lsys.System:
 		return t, nil
-	case *NonlinearModel:
-		return nil, t.needLinearize(ev, pos)
+	case *lsys.Model:
+		return nil, needLinearize(t, ev, pos)
 	case *lsys.Rational:
 		return ev.realize([][]*lsys.Rational{{t}}, pos)
 	case float64:
 		return staticGain(mat.NewDense(1, 1, []float64{t}), 0)
 	case *List:
-		rows, ok := transferRows(t)
+		rows, ok := TransferRows(t)
 		if !ok {
 			return nil, nil
 		}
@@ -997,8 +1032,8 @@ func staticGain(d *mat.Dense, ts float64) (*lsys.System, error) {
 	return lsys.NewSystem(0, c, r, nil, nil, nil, d, ts)
 }
 
-// transferRows reads a list of lists of transfer functions and numbers.
-func transferRows(l *List) ([][]*lsys.Rational, bool) {
+// TransferRows reads a list of lists of transfer functions and numbers.
+func TransferRows(l *List) ([][]*lsys.Rational, bool) {
 	var rows [][]*lsys.Rational
 	for _, it := range l.Items {
 		var row []*lsys.Rational
@@ -1094,12 +1129,6 @@ func (ev *evaluator) realize(rows [][]*lsys.Rational, pos syntax.Pos) (*lsys.Sys
 	return g, nil
 }
 
-// fielder is implemented by language values with fields (r.name).
-type fielder interface {
-	Field(name string) (any, bool)
-	FieldNames() []string
-}
-
 func entries(k int) string {
 	if k == 1 {
 		return "1 entry"
@@ -1116,4 +1145,44 @@ func guard(f func() error) (err error) {
 		}
 	}()
 	return f()
+}
+
+// evalChain evaluates a binary expression and the chain of binary
+// expressions down its left side (a + b + c + ... parses as a left-leaning
+// tree) in a loop, not by recursion: a one-line sum of millions of terms
+// would otherwise recurse millions deep and overflow the stack, which no
+// recover catches.
+func (ev *evaluator) evalChain(x *syntax.BinaryExpr) (any, error) {
+	var chain []*syntax.BinaryExpr
+	for e := x; ; {
+		chain = append(chain, e)
+		l, ok := e.X.(*syntax.BinaryExpr)
+		if !ok || l.Op == syntax.AND || l.Op == syntax.OR {
+			break
+		}
+		if err := ev.step(l.Pos()); err != nil {
+			return nil, err
+		}
+		e = l
+	}
+	acc, err := ev.eval(chain[len(chain)-1].X)
+	if err != nil {
+		return nil, err
+	}
+	for i := len(chain) - 1; i >= 0; i-- {
+		e := chain[i]
+		b, err := ev.eval(e.Y)
+		if err != nil {
+			return nil, err
+		}
+		v, err := ev.binary(e.Op, acc, b, e.OpPos, e)
+		if err != nil {
+			return nil, err
+		}
+		if err := ev.checkBudget(v, e.OpPos, "this operation"); err != nil {
+			return nil, err
+		}
+		acc = v
+	}
+	return acc, nil
 }

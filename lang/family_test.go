@@ -1,4 +1,4 @@
-package lang
+package lang_test
 
 import (
 	"context"
@@ -8,6 +8,9 @@ import (
 	"testing"
 	"time"
 
+	"lsys/lang"
+	"lsys/lang/builtins"
+	"lsys/lang/langtest"
 	"lsys/lsys"
 )
 
@@ -26,38 +29,38 @@ family(k) = system {
 // its body (values: the block's matrices follow from m x” + c x' + k x = f,
 // common practice).
 func TestFunctionParametersInBlocks(t *testing.T) {
-	runCells(t, []cell{
-		{src: mountFamily + "family(4).A", want: " 0     1\n-4  -0.4"},
-		{src: mountFamily + "family(k: 2.5).A[2, 1]", want: "-2.5"},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: mountFamily + "family(4).A", Want: " 0     1\n-4  -0.4"},
+		{Src: mountFamily + "family(k: 2.5).A[2, 1]", Want: "-2.5"},
 		// the function's parameter hides a session binding of the same name
-		{src: "k = 100\nf(k) = system {\n  states x\n  x' = -k*x\n}\nf(2).A", want: "-2"},
+		{Src: "k = 100\nf(k) = system {\n  states x\n  x' = -k*x\n}\nf(2).A", Want: "-2"},
 		// and the block copies it: the session's k is unchanged
-		{src: "k = 100\nf(k) = system {\n  states x\n  x' = -k*x\n}\ng = f(2)\nk", want: "100"},
+		{Src: "k = 100\nf(k) = system {\n  states x\n  x' = -k*x\n}\ng = f(2)\nk", Want: "100"},
 		// a record passed as the parameter: its fields are parameters
-		{src: "f(p) = system {\n  states x\n  x' = -p.k*x\n}\nf({k: 3}).A", want: "-3"},
+		{Src: "f(p) = system {\n  states x\n  x' = -p.k*x\n}\nf({k: 3}).A", Want: "-3"},
 		// a function passed as the parameter can be called in the equations
-		{src: "sq(a) = a^2\nf(g) = system {\n  states x\n  x' = -g(2)*x\n}\nf(sq).A", want: "-4"},
+		{Src: "sq(a) = a^2\nf(g) = system {\n  states x\n  x' = -g(2)*x\n}\nf(sq).A", Want: "-4"},
 		// nonlinear models record the function's parameter
-		{src: "f(k) = system {\n  states x\n  x' = -k*x^3\n}\nf(2).parameters", want: "{k: 2}"},
+		{Src: "f(k) = system {\n  states x\n  x' = -k*x^3\n}\nf(2).parameters", Want: "{k: 2}"},
 		// a block in a function called from another function sees the
 		// inner function's parameters
-		{src: "inner(a) = system {\n  states x\n  x' = -a*x\n}\nouter(b) = inner(2*b)\nouter(3).A", want: "-6"},
-		{src: mountFamily + "l = locus(family, k: [1, 4, 9])\nl.values", want: "1\n4\n9"},
-		{src: mountFamily + "sensitivity(family(5)).parameters", want: "[\"k\", \"c\", \"m\"]"},
+		{Src: "inner(a) = system {\n  states x\n  x' = -a*x\n}\nouter(b) = inner(2*b)\nouter(3).A", Want: "-6"},
+		{Src: mountFamily + "l = locus(family, k: [1, 4, 9])\nl.values", Want: "1\n4\n9"},
+		{Src: mountFamily + "sensitivity(family(5)).parameters", Want: "[\"k\", \"c\", \"m\"]"},
 	})
 }
 
 // Errors that involve a function's parameters inside a block: message,
 // line and column.
 func TestFunctionParametersInBlocksErrors(t *testing.T) {
-	runCells(t, []cell{
-		{src: "f(gain) = system {\n  states x\n  x' = -gian*x\n}\nf(2)", err: "'gian' is not a state, input or parameter of this system; did you mean 'gain' (a parameter)?", line: 3, col: 9},
-		{src: "f(k) = system {\n  states x\n  x' = -k*x\n}\nf([1, 2])", err: "'k' is a vector of 2; a parameter in an equation must be a real number", line: 3, col: 9},
-		{src: "f(k) = system {\n  states x\n  x' = -k*x\n}\nf(\"stiff\")", err: "'k' is a string", line: 3, col: 9},
-		{src: mountFamily + "sensitivity(family, [\"k\"])", err: "sensitivity needs a model, not the function family", line: 8, col: 13},
-		{src: mountFamily + "sensitivity(family(5), [\"q\"])", err: "'q' is not a parameter of this model", line: 8, col: 24},
-		{src: "f(k) = system {\n  states x\n  x' = -2*x\n}\nsensitivity(f(1))", err: "this model uses no named parameters", line: 5, col: 13},
-		{src: mountFamily + "sensitivity(family(5), [])", err: "give at least one parameter name", line: 8, col: 24},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: "f(gain) = system {\n  states x\n  x' = -gian*x\n}\nf(2)", Err: "'gian' is not a state, input or parameter of this system; did you mean 'gain' (a parameter)?", Line: 3, Col: 9},
+		{Src: "f(k) = system {\n  states x\n  x' = -k*x\n}\nf([1, 2])", Err: "'k' is a vector of 2; a parameter in an equation must be a real number", Line: 3, Col: 9},
+		{Src: "f(k) = system {\n  states x\n  x' = -k*x\n}\nf(\"stiff\")", Err: "'k' is a string", Line: 3, Col: 9},
+		{Src: mountFamily + "sensitivity(family, [\"k\"])", Err: "sensitivity needs a model, not the function family", Line: 8, Col: 13},
+		{Src: mountFamily + "sensitivity(family(5), [\"q\"])", Err: "'q' is not a parameter of this model", Line: 8, Col: 24},
+		{Src: "f(k) = system {\n  states x\n  x' = -2*x\n}\nsensitivity(f(1))", Err: "this model uses no named parameters", Line: 5, Col: 13},
+		{Src: mountFamily + "sensitivity(family(5), [])", Err: "give at least one parameter name", Line: 8, Col: 24},
 	})
 }
 
@@ -67,8 +70,8 @@ func TestFunctionParametersInBlocksErrors(t *testing.T) {
 // k = 5 against the derivative of that closed form:
 // d s/dk = j / (2 m w_d), d s/dc = -1/2m - j c / (4 m^2 w_d).
 func TestFamilyLocusAndSensitivityClosedForm(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
-	v, err := s.Run(context.Background(), mountFamily+"locus(family, k: linear(1, 10, n: 19))", &recorder{})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	v, err := s.Run(context.Background(), mountFamily+"locus(family, k: linear(1, 10, n: 19))", &langtest.Recorder{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -91,7 +94,7 @@ func TestFamilyLocusAndSensitivityClosedForm(t *testing.T) {
 			t.Errorf("k = %g: branch 2 at %v, want %v", k, l.Branches[1][i], cmplx.Conj(want))
 		}
 	}
-	v, err = s.Run(context.Background(), `sensitivity(family(5), ["k", "c"])`, &recorder{})
+	v, err = s.Run(context.Background(), `sensitivity(family(5), ["k", "c"])`, &langtest.Recorder{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -118,30 +121,30 @@ func TestFamilyLocusAndSensitivityClosedForm(t *testing.T) {
 // from the definition in SPEC.md section 5.
 func TestSlicing(t *testing.T) {
 	const M = "M = [[1, 2, 3], [4, 5, 6], [7, 8, 9]]\n"
-	runCells(t, []cell{
-		{src: M + "M[1, :]", want: "1  2  3"},
-		{src: M + "M[:, 2]", want: "2\n5\n8"},
-		{src: M + "M[2:3, 1:2]", want: "4  5\n7  8"},
-		{src: M + "M[2:, :2]", want: "4  5\n7  8"},
-		{src: M + "M[:, :] == M", want: "true"},
-		{src: M + "M[2, 3]", want: "6"},
-		{src: M + "M[3, 2:2]", want: "8"},
-		{src: "v = [10, 20, 30, 40]\nv[2:3]", want: "20\n30"},
-		{src: "v = [10, 20, 30, 40]\nv[3:]", want: "30\n40"},
-		{src: "r = [[10, 20, 30]]\nr[:2]", want: "10  20"},
-		{src: "[\"k\", \"b\", \"m\"][2:3]", want: "[\"b\", \"m\"]"},
-		{src: "C = [[1 + 2j, 3], [4, 5j]]\nC[2, :]", want: "4  5j"},
-		{src: "C = [[1 + 2j, 3], [4, 5j]]\nC[:, 1]", want: "1 + 2j\n     4"},
-		{src: "C = [[1 + 2j, 3], [4, 5j]]\nC[2, 1:1]", want: "4"},
-		{src: "G = system([[0, 1], [-2, -3]], [0, 1], [1, 0])\nG.A[2, :]", want: "-2  -3"},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: M + "M[1, :]", Want: "1  2  3"},
+		{Src: M + "M[:, 2]", Want: "2\n5\n8"},
+		{Src: M + "M[2:3, 1:2]", Want: "4  5\n7  8"},
+		{Src: M + "M[2:, :2]", Want: "4  5\n7  8"},
+		{Src: M + "M[:, :] == M", Want: "true"},
+		{Src: M + "M[2, 3]", Want: "6"},
+		{Src: M + "M[3, 2:2]", Want: "8"},
+		{Src: "v = [10, 20, 30, 40]\nv[2:3]", Want: "20\n30"},
+		{Src: "v = [10, 20, 30, 40]\nv[3:]", Want: "30\n40"},
+		{Src: "r = [[10, 20, 30]]\nr[:2]", Want: "10  20"},
+		{Src: "[\"k\", \"b\", \"m\"][2:3]", Want: "[\"b\", \"m\"]"},
+		{Src: "C = [[1 + 2j, 3], [4, 5j]]\nC[2, :]", Want: "4  5j"},
+		{Src: "C = [[1 + 2j, 3], [4, 5j]]\nC[:, 1]", Want: "1 + 2j\n     4"},
+		{Src: "C = [[1 + 2j, 3], [4, 5j]]\nC[2, 1:1]", Want: "4"},
+		{Src: "G = system([[0, 1], [-2, -3]], [0, 1], [1, 0])\nG.A[2, :]", Want: "-2  -3"},
 	})
-	runCells(t, []cell{
-		{src: "v = [1, 2, 3]\nv[3:2]", err: "the range 3:2 is empty", line: 2, col: 4},
-		{src: "v = [1, 2, 3]\nv[2:5]", err: "index 5 is out of range", line: 2, col: 5},
-		{src: "M = [[1, 2], [3, 4]]\nM[1:2]", err: "needs a row and a column", line: 2, col: 2},
-		{src: "M = [[1, 2], [3, 4]]\nM[:, 0]", err: "index 0 is out of range for the columns", line: 2, col: 6},
-		{src: "x = 3\nx[1:2]", err: "a number cannot be sliced", line: 2, col: 4},
-		{src: "v = [1, 2]\nv[1:1.5]", err: "an index must be a whole number", line: 2, col: 5},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: "v = [1, 2, 3]\nv[3:2]", Err: "the range 3:2 is empty", Line: 2, Col: 4},
+		{Src: "v = [1, 2, 3]\nv[2:5]", Err: "index 5 is out of range", Line: 2, Col: 5},
+		{Src: "M = [[1, 2], [3, 4]]\nM[1:2]", Err: "needs a row and a column", Line: 2, Col: 2},
+		{Src: "M = [[1, 2], [3, 4]]\nM[:, 0]", Err: "index 0 is out of range for the columns", Line: 2, Col: 6},
+		{Src: "x = 3\nx[1:2]", Err: "a number cannot be sliced", Line: 2, Col: 4},
+		{Src: "v = [1, 2]\nv[1:1.5]", Err: "an index must be a whole number", Line: 2, Col: 5},
 	})
 }
 
@@ -149,16 +152,14 @@ func TestSlicing(t *testing.T) {
 // their block sources go with them (the session keeps sources under weak
 // keys), while a system still bound keeps its source for sensitivity.
 func TestLocusDoesNotKeepItsSystems(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
-	if _, err := s.Run(context.Background(), mountFamily+"kept = family(2)\nl = locus(family, k: linear(1, 10, n: 2000))", &recorder{}); err != nil {
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	if _, err := s.Run(context.Background(), mountFamily+"kept = family(2)\nl = locus(family, k: linear(1, 10, n: 2000))", &langtest.Recorder{}); err != nil {
 		t.Fatal(err)
 	}
 	n := 0
 	for try := 0; try < 200; try++ {
 		runtime.GC()
-		s.mu.RLock()
-		n = len(s.sources)
-		s.mu.RUnlock()
+		n = lang.SourcesCount(s)
 		if n <= 1 {
 			break
 		}
@@ -167,7 +168,7 @@ func TestLocusDoesNotKeepItsSystems(t *testing.T) {
 	if n > 1 {
 		t.Errorf("%d block sources kept after a locus of 2000 values; want only the bound system's", n)
 	}
-	if _, err := s.Run(context.Background(), `sensitivity(kept, ["k"])`, &recorder{}); err != nil {
+	if _, err := s.Run(context.Background(), `sensitivity(kept, ["k"])`, &langtest.Recorder{}); err != nil {
 		t.Errorf("the bound system lost its source: %v", err)
 	}
 }

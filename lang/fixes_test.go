@@ -1,4 +1,4 @@
-package lang
+package lang_test
 
 import (
 	"context"
@@ -6,6 +6,9 @@ import (
 	"regexp"
 	"testing"
 
+	"lsys/lang"
+	"lsys/lang/builtins"
+	"lsys/lang/langtest"
 	"lsys/lang/syntax"
 	"lsys/lsys"
 )
@@ -19,29 +22,29 @@ import (
 // the steady-state gain 1 (z = 1).
 func TestShiftVariableTakesSampleTime(t *testing.T) {
 	const gz = "Gz = sample(system(1/(s + 1)), 0.1)\n"
-	runCells(t, []cell{
-		{src: gz + "poles(Gz * (1/z))", want: "0.904837418\n          0"},
-		{src: gz + "poles((1/z) * Gz)", want: "0.904837418\n          0"},
-		{src: gz + "gain(Gz * (1/z))", want: "1"},
-		{src: gz + "(Gz * (1/z)).every", want: "0.1"},
-		{src: "Gz = sample(system(1/(s + 1)), 5e-6)\n(Gz * (1/z)).every", want: "5e-06"},
-		{src: gz + "poles(Gz + 1/z)", want: "0.904837418\n          0"},
-		{src: gz + "(Gz - 0.5/z^2).every", want: "0.1"},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: gz + "poles(Gz * (1/z))", Want: "0.904837418\n          0"},
+		{Src: gz + "poles((1/z) * Gz)", Want: "0.904837418\n          0"},
+		{Src: gz + "gain(Gz * (1/z))", Want: "1"},
+		{Src: gz + "(Gz * (1/z)).every", Want: "0.1"},
+		{Src: "Gz = sample(system(1/(s + 1)), 5e-6)\n(Gz * (1/z)).every", Want: "5e-06"},
+		{Src: gz + "poles(Gz + 1/z)", Want: "0.904837418\n          0"},
+		{Src: gz + "(Gz - 0.5/z^2).every", Want: "0.1"},
 		// A transfer matrix: open z entries and constants take the sample time.
-		{src: gz + "(Gz * [[1/z, 1]]).every", want: "0.1"},
-		{src: "system([[0.1/(z - 0.9), 1]], every: 0.5).every", want: "0.5"},
+		{Src: gz + "(Gz * [[1/z, 1]]).every", Want: "0.1"},
+		{Src: "system([[0.1/(z - 0.9), 1]], every: 0.5).every", Want: "0.5"},
 		// Nothing to take it from.
-		{src: "system(0.1/(z - 0.9))", err: "this transfer function in z has no sample time yet", line: 1, col: 8},
-		{src: "G = system(1/(s + 1))\nG * (1/z)", err: "cannot combine a transfer function in z with a continuous system", line: 2, col: 3},
-		{src: "G = system(1/(s + 1))\n(1/z) + G", err: "cannot combine a transfer function in z with a continuous system", line: 2, col: 7},
-		{src: gz + "Gz * sample(system(1/(s + 2)), 0.2)", err: "sample time", line: 2, col: 4},
+		{Src: "system(0.1/(z - 0.9))", Err: "this transfer function in z has no sample time yet", Line: 1, Col: 8},
+		{Src: "G = system(1/(s + 1))\nG * (1/z)", Err: "cannot combine a transfer function in z with a continuous system", Line: 2, Col: 3},
+		{Src: "G = system(1/(s + 1))\n(1/z) + G", Err: "cannot combine a transfer function in z with a continuous system", Line: 2, Col: 7},
+		{Src: gz + "Gz * sample(system(1/(s + 2)), 0.2)", Err: "sample time", Line: 2, Col: 4},
 		// Arguments of one call: closing the loop through one sample of
 		// delay, G = b/(z - a) with a = e^-0.1, b = 1 - a, K = 1/z, has the
 		// characteristic polynomial z^2 - a z + b, roots
 		// (a +- sqrt(a^2 - 4b))/2 = 0.7833569303, 0.1214804877 (closed form).
-		{src: gz + "poles(closeloop(Gz, 1/z))", want: "0.7833569303\n0.1214804877"},
-		{src: gz + "stack(Gz, 1/z).every", want: "0.1"},
-		{src: gz + "stack(Gz, sample(system(1/(s + 2)), 0.2), 1/z)", err: "this transfer function in z has no sample time yet", line: 2, col: 43},
+		{Src: gz + "poles(closeloop(Gz, through: 1/z))", Want: "0.7833569303\n0.1214804877"},
+		{Src: gz + "stack(Gz, 1/z).every", Want: "0.1"},
+		{Src: gz + "stack(Gz, sample(system(1/(s + 2)), 0.2), 1/z)", Err: "this transfer function in z has no sample time yet", Line: 2, Col: 43},
 	})
 }
 
@@ -53,31 +56,31 @@ func TestShiftVariableTakesSampleTime(t *testing.T) {
 func TestStaticGainSystems(t *testing.T) {
 	const g = "G = system([[-1, 0], [0, -2]], [[1], [1]], identity(2))\n"
 	const sum = `S = system(D: [[1, -1]], inputs: ["ref", "v_out"], outputs: ["error"])` + "\n"
-	runCells(t, []cell{
-		{src: sum + "S.D", want: "1  -1"},
-		{src: sum + "S.inputs", want: `["ref", "v_out"]`},
-		{src: sum + "S.outputs", want: `["error"]`},
-		{src: sum + "poles(S)", want: "[]"},
-		{src: "system(D: 2, every: 0.1).every", want: "0.1"},
-		{src: "gain(system(D: [[1, -1], [0, 3]]))", want: "1  -1\n0   3"},
-		{src: g + "gain([[1, -1]] * G)", want: "0.5"},
-		{src: g + "gain([[2, 3]] * G)", want: "3.5"},
-		{src: g + "gain(G * [[1, -1]])", want: "  1    -1\n0.5  -0.5"},
-		{src: g + "gain(G + [[1], [2]])", want: "  2\n2.5"},
-		{src: g + "gain([[1], [2]] - G)", want: "  0\n1.5"},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: sum + "S.D", Want: "1  -1"},
+		{Src: sum + "S.inputs", Want: `["ref", "v_out"]`},
+		{Src: sum + "S.outputs", Want: `["error"]`},
+		{Src: sum + "poles(S)", Want: "[]"},
+		{Src: "system(D: 2, every: 0.1).every", Want: "0.1"},
+		{Src: "gain(system(D: [[1, -1], [0, 3]]))", Want: "1  -1\n0   3"},
+		{Src: g + "gain([[1, -1]] * G)", Want: "0.5"},
+		{Src: g + "gain([[2, 3]] * G)", Want: "3.5"},
+		{Src: g + "gain(G * [[1, -1]])", Want: "  1    -1\n0.5  -0.5"},
+		{Src: g + "gain(G + [[1], [2]])", Want: "  2\n2.5"},
+		{Src: g + "gain([[1], [2]] - G)", Want: "  0\n1.5"},
 		// A summing junction wired by connect: error = ref - angle around
 		// the integrator plant 1/s with unit gain gives the closed loop
 		// 1/(s + 1), steady-state gain 1 (closed form).
-		{src: sum + `P = system(1/s, inputs: ["error"], outputs: ["v_out"])` + "\n" +
-			`T = connect(S, P, outputs: ["v_out"])` + "\npoles(T)", want: "-1"},
-		{src: `system([[1, -1]], inputs: ["ref", "v_out"], outputs: ["error"])`, err: "give D alone: system(D: M); here M is 1x2, 2 inputs and 1 output", line: 1, col: 8},
-		{src: "system(B: [1])", err: "system needs the state matrix A, or only D for a static gain", line: 1, col: 1},
-		{src: "system(D: [[1, -1]], C: [1])", err: "system needs the state matrix A, or only D for a static gain", line: 1, col: 1},
-		{src: "system()", err: "system needs the state matrix A, or only D for a static gain", line: 1, col: 1},
-		{src: `system(D: "a")`, err: "the argument 'D' must be a real matrix or vector, not a string", line: 1, col: 11},
-		{src: `system(D: [[1, -1]], inputs: ["ref"])`, err: "1 input names given for a system with 2 inputs", line: 1, col: 30},
-		{src: g + "G + [[1, -1]]", err: "cannot connect in parallel a system with 1 input and 2 outputs to one with 2 inputs and 1 output", line: 2, col: 3},
-		{src: g + "[[1, -1, 1]] * G", err: "cannot connect in series: the left system has 3 inputs but the right one has 2 outputs", line: 2, col: 14},
+		{Src: sum + `P = system(1/s, inputs: ["error"], outputs: ["v_out"])` + "\n" +
+			`T = wire(S, P, outputs: ["v_out"])` + "\npoles(T)", Want: "-1"},
+		{Src: `system([[1, -1]], inputs: ["ref", "v_out"], outputs: ["error"])`, Err: "give D alone: system(D: M); here M is 1x2, 2 inputs and 1 output", Line: 1, Col: 8},
+		{Src: "system(B: [1])", Err: "system needs the state matrix A, or only D for a static gain", Line: 1, Col: 1},
+		{Src: "system(D: [[1, -1]], C: [1])", Err: "system needs the state matrix A, or only D for a static gain", Line: 1, Col: 1},
+		{Src: "system()", Err: "system needs the state matrix A, or only D for a static gain", Line: 1, Col: 1},
+		{Src: `system(D: "a")`, Err: "the argument 'D' must be a real matrix or vector, not a string", Line: 1, Col: 11},
+		{Src: `system(D: [[1, -1]], inputs: ["ref"])`, Err: "1 input names given for a system with 2 inputs", Line: 1, Col: 30},
+		{Src: g + "G + [[1, -1]]", Err: "cannot connect in parallel a system with 1 input and 2 outputs to one with 2 inputs and 1 output", Line: 2, Col: 3},
+		{Src: g + "[[1, -1, 1]] * G", Err: "cannot connect in series: the left system has 3 inputs but the right one has 2 outputs", Line: 2, Col: 14},
 	})
 }
 
@@ -88,19 +91,19 @@ var goSyntax = regexp.MustCompile(`\*|\blang\.|\blsys\.|\bmat\.|\[\]|\bfloat64\b
 // example gives, and every field of it, is named in words, and a
 // misspelt field on it gives a message in words.
 func TestTypeNamesInWords(t *testing.T) {
-	for _, b := range Builtins() {
+	for _, b := range builtins.Registry().Builtins() {
 		for _, ex := range b.Examples {
-			s := NewSession(Options{Dir: t.TempDir()})
-			v, err := s.Run(context.Background(), ex, &recorder{})
+			s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+			v, err := s.Run(context.Background(), ex, &langtest.Recorder{})
 			if err != nil || v == nil {
 				continue
 			}
-			if n := typeName(v); goSyntax.MatchString(n) {
+			if n := builtins.Registry().TypeName(v); goSyntax.MatchString(n) {
 				t.Errorf("%s example: the result is named %q", b.Name, n)
 			}
-			s.globals["value"] = v
-			for _, f := range fieldNames(v) {
-				fv, err := s.Run(context.Background(), "value."+f, &recorder{})
+			s.Set("value", v)
+			for _, f := range lang.FieldNames(s, v) {
+				fv, err := s.Run(context.Background(), "value."+f, &langtest.Recorder{})
 				if err != nil {
 					// Some listed fields are empty for some values (A of
 					// a static gain); the message must still be in words.
@@ -109,17 +112,17 @@ func TestTypeNamesInWords(t *testing.T) {
 					}
 					continue
 				}
-				if n := typeName(fv); goSyntax.MatchString(n) {
+				if n := builtins.Registry().TypeName(fv); goSyntax.MatchString(n) {
 					t.Errorf("%s example: field %s is named %q", b.Name, f, n)
 				}
 			}
-			_, err = s.Run(context.Background(), "value.qqqqqq", &recorder{})
+			_, err = s.Run(context.Background(), "value.qqqqqq", &langtest.Recorder{})
 			if err != nil && goSyntax.MatchString(err.Error()) {
 				t.Errorf("%s example: %v", b.Name, err)
 			}
 		}
 	}
-	if n := wordsOfType(&lsys.PoleZeroMap{}); n != "a result (pole zero map)" {
+	if n := lang.WordsOfType(&lsys.PoleZeroMap{}); n != "a result (pole zero map)" {
 		t.Errorf("fallback name %q", n)
 	}
 }
@@ -129,15 +132,15 @@ func TestTypeNamesInWords(t *testing.T) {
 func TestFieldErrorsInWords(t *testing.T) {
 	const crane = "g = 9.81; L = 2\ncrane = system {\n  states x, v, theta, omega\n  inputs force\n" +
 		"  x' = v\n  v' = force\n  theta' = omega\n  omega' = -(g/L)*sin(theta) - force/L\n}\n"
-	runCells(t, []cell{
-		{src: crane + "crane.omegaa", err: "a nonlinear model has no field 'omegaa'; did you mean the signal 'omega'?", line: 10, col: 7},
-		{src: crane + "crane.omega", err: "a nonlinear model has no field 'omega'", line: 10, col: 7},
-		{src: crane + "crane.stats", err: "a nonlinear model has no field 'stats'; did you mean 'states'?", line: 10, col: 7},
-		{src: crane + "crane.inputs", want: `["force"]`},
-		{src: crane + "e = equilibrium(crane, inputs: {force: 0})\ne.residul", err: "a steady state (equilibrium) has no field 'residul'; did you mean 'residual'?", line: 11, col: 3},
-		{src: crane + "crane[1]", err: "a nonlinear model cannot be indexed", line: 10, col: 6},
-		{src: crane + "crane + 1", err: "this is a nonlinear model, not a linear system", line: 10, col: 7},
-		{src: "p = polezero(1/(s + 1))\np.pols", err: "a pole-zero map has no field 'pols'; did you mean 'poles'?", line: 2, col: 3},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: crane + "crane.omegaa", Err: "a nonlinear model has no field 'omegaa'; did you mean the signal 'omega'?", Line: 10, Col: 7},
+		{Src: crane + "crane.omega", Err: "a nonlinear model has no field 'omega'", Line: 10, Col: 7},
+		{Src: crane + "crane.stats", Err: "a nonlinear model has no field 'stats'; did you mean 'states'?", Line: 10, Col: 7},
+		{Src: crane + "crane.inputs", Want: `["force"]`},
+		{Src: crane + "e = equilibrium(crane, inputs: {force: 0})\ne.residul", Err: "a steady state (equilibrium) has no field 'residul'; did you mean 'residual'?", Line: 11, Col: 3},
+		{Src: crane + "crane[1]", Err: "a nonlinear model cannot be indexed", Line: 10, Col: 6},
+		{Src: crane + "crane + 1", Err: "this is a nonlinear model, not a linear system", Line: 10, Col: 7},
+		{Src: "p = polezero(1/(s + 1))\np.pols", Err: "a pole-zero map has no field 'pols'; did you mean 'poles'?", Line: 2, Col: 3},
 	})
 }
 
@@ -148,21 +151,21 @@ func TestFieldErrorsInWords(t *testing.T) {
 // (common practice: x' = A x + B u read off the equations).
 func TestDerivativeOnRightHandSide(t *testing.T) {
 	const head = "m = system {\n  states v, omega\n  inputs f\n  v' = f\n"
-	runCells(t, []cell{
-		{src: head + "  omega' = -(v'/2)\n}", err: "the derivative v' cannot be used on a right-hand side", line: 5, col: 15},
-		{src: head + "  omega' = -v' / 2\n}", err: "Define a helper with the right-hand side of v' (dv = ...)", line: 5, col: 14},
-		{src: "m = system {\n  states v, omega\n  inputs f\n  dv = f\n  v' = dv\n  omega' = -dv/2\n}\nm.B", want: "   1\n-0.5"},
-		{src: "y = x'", err: "a derivative x' can only be written inside system { ... }", line: 1, col: 6},
-		{src: "x' = 3", err: "a derivative x' can only be written inside system { ... }", line: 1, col: 2},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: head + "  omega' = -(v'/2)\n}", Err: "the derivative v' cannot be used on a right-hand side", Line: 5, Col: 15},
+		{Src: head + "  omega' = -v' / 2\n}", Err: "Define a helper with the right-hand side of v' (dv = ...)", Line: 5, Col: 14},
+		{Src: "m = system {\n  states v, omega\n  inputs f\n  dv = f\n  v' = dv\n  omega' = -dv/2\n}\nm.B", Want: "   1\n-0.5"},
+		{Src: "y = x'", Err: "a derivative x' can only be written inside system { ... }", Line: 1, Col: 6},
+		{Src: "x' = 3", Err: "a derivative x' can only be written inside system { ... }", Line: 1, Col: 2},
 	})
-	s := NewSession(Options{Dir: t.TempDir()})
-	_, err := s.Run(context.Background(), head+"  omega' = -(v'/2)\n}", &recorder{})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	_, err := s.Run(context.Background(), head+"  omega' = -(v'/2)\n}", &langtest.Recorder{})
 	var l syntax.ErrorList
 	if !errors.As(err, &l) || len(l) != 1 {
 		t.Errorf("want exactly one error, got %v", err)
 	}
 	// Two bad equations: both reported.
-	_, err = s.Run(context.Background(), "m = system {\n  states v, w\n  v' = w'\n  w' = v' + 1\n}", &recorder{})
+	_, err = s.Run(context.Background(), "m = system {\n  states v, w\n  v' = w'\n  w' = v' + 1\n}", &langtest.Recorder{})
 	if !errors.As(err, &l) || len(l) != 2 || l[0].Pos.Line != 3 || l[1].Pos.Line != 4 {
 		t.Errorf("want two errors on lines 3 and 4, got %v", err)
 	}
@@ -197,35 +200,35 @@ func TestEquilibriumFamily(t *testing.T) {
 		"  rate' = -9.81*sin(angle) - 0.1*rate + torque\n}\ne = equilibrium(pendulum, inputs: {torque: 0}, guess: {angle: 3})\n"
 	const masses = "two = system {\n  states x1, v1, x2, v2\n  x1' = v1\n  v1' = -v1\n  x2' = v2\n  v2' = -v2 + 0.1*v2^3\n}\n" +
 		"e = equilibrium(two, guess: {x1: 1, x2: -2, v1: 0.1})\n"
-	runCells(t, []cell{
-		{src: crane + "e.free", want: "1\n0\n0\n0"},
-		{src: crane + "e.unique", want: "false"},
-		{src: crane + "e.rank", want: "3"},
-		{src: crane + "e.x", want: "3"},
-		{src: tanks + "e.free", want: "0.7071067812\n0.7071067812"},
-		{src: tanks + "[e.rank, abs(e.h1 - e.h2) < 1e-12]", want: "[1, true]"},
-		{src: pendulum + "[e.unique, e.rank]", want: "[true, 2]"},
-		{src: pendulum + "e.free", want: "[]"},
-		{src: pendulum + "abs(e.angle - pi) < 1e-12", want: "true"},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: crane + "e.free", Want: "1\n0\n0\n0"},
+		{Src: crane + "e.unique", Want: "false"},
+		{Src: crane + "e.rank", Want: "3"},
+		{Src: crane + "e.x", Want: "3"},
+		{Src: tanks + "e.free", Want: "0.7071067812\n0.7071067812"},
+		{Src: tanks + "[e.rank, abs(e.h1 - e.h2) < 1e-12]", Want: "[1, true]"},
+		{Src: pendulum + "[e.unique, e.rank]", Want: "[true, 2]"},
+		{Src: pendulum + "e.free", Want: "[]"},
+		{Src: pendulum + "abs(e.angle - pi) < 1e-12", Want: "true"},
 		// Two free positions: the projector onto the free directions does
 		// not depend on the basis chosen.
-		{src: masses + "e.rank", want: "2"},
-		{src: masses + "P = e.free * transpose(e.free)\n[P[1, 1], P[3, 3], P[2, 2], P[4, 4], P[1, 3]]", want: "1\n1\n0\n0\n0"},
+		{Src: masses + "e.rank", Want: "2"},
+		{Src: masses + "P = e.free * transpose(e.free)\n[P[1, 1], P[3, 3], P[2, 2], P[4, 4], P[1, 3]]", Want: "1\n1\n0\n0\n0"},
 		// A system in matrix form: the state of least norm, and the family.
-		{src: "e = equilibrium(system([[0, 1], [0, -2]], [0, 1]), inputs: {u1: 0})\ne.free", want: "1\n0"},
-		{src: "e = equilibrium(system([[0, 1], [0, -2]], [0, 1]), inputs: {u1: 0})\n[e.iterations, e.residual, e.rank, e.x1, e.x2]", want: "1\n0\n1\n0\n0"},
+		{Src: "e = equilibrium(system([[0, 1], [0, -2]], [0, 1]), inputs: {u1: 0})\ne.free", Want: "1\n0"},
+		{Src: "e = equilibrium(system([[0, 1], [0, -2]], [0, 1]), inputs: {u1: 0})\n[e.iterations, e.residual, e.rank, e.x1, e.x2]", Want: "1\n0\n1\n0\n0"},
 		// Sampled: a and b swap each step; at rest wherever a = b (J = A - I =
 		// [[-1, 1], [1, -1]], rank 1, null space (1, 1)/sqrt(2)).
-		{src: "m = system every 0.1 {\n  states a, b\n  next a = b\n  next b = a\n}\ne = equilibrium(m, guess: {a: 2, b: 2})\n[e.rank, e.free[1], e.free[2]]", want: "           1\n0.7071067812\n0.7071067812"},
-		{src: pendulum + "e.fre", err: "a steady state (equilibrium) has no field 'fre'; did you mean 'free'?", line: 8, col: 3},
+		{Src: "m = system every 0.1 {\n  states a, b\n  next a = b\n  next b = a\n}\ne = equilibrium(m, guess: {a: 2, b: 2})\n[e.rank, e.free[1], e.free[2]]", Want: "           1\n0.7071067812\n0.7071067812"},
+		{Src: pendulum + "e.fre", Err: "a steady state (equilibrium) has no field 'fre'; did you mean 'free'?", Line: 8, Col: 3},
 	})
 	// The verdict is lsys's own result type, which display renders
 	// (display/equilibrium_test.go checks the words).
-	s := NewSession(Options{Dir: t.TempDir()})
-	if e, ok := run(t, s, crane+"e").(*lsys.Equilibrium); !ok || e.Free == nil || e.MinNorm {
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	if e, ok := langtest.Run(t, s, crane+"e").(*lsys.Equilibrium); !ok || e.Free == nil || e.MinNorm {
 		t.Errorf("crane equilibrium: %#v", e)
 	}
-	if e := run(t, s, pendulum+"e").(*lsys.Equilibrium); e.Free != nil {
+	if e := langtest.Run(t, s, pendulum+"e").(*lsys.Equilibrium); e.Free != nil {
 		t.Errorf("pendulum equilibrium called a family: rank %d", e.Rank)
 	}
 }
@@ -235,16 +238,16 @@ func TestEquilibriumFamily(t *testing.T) {
 // 8, item 7; the rule of SPEC section 5 on scalar multiplication).
 func TestScalarTimesSystemKeepsNames(t *testing.T) {
 	const g = `G = system([[-1, 0], [0, -2]], [[1, 0], [0, 1]], [[1, 0], [0, 1]], inputs: ["force", "torque"], outputs: ["pos", "angle"])` + "\n"
-	runCells(t, []cell{
-		{src: g + "(0.05 * G).outputs", want: `["pos", "angle"]`},
-		{src: g + "(0.05 * G).inputs", want: `["force", "torque"]`},
-		{src: g + "(G * 0.05).outputs", want: `["pos", "angle"]`},
-		{src: g + "(G * 0.05).inputs", want: `["force", "torque"]`},
-		{src: g + "(G + 2).outputs", want: `["pos", "angle"]`},
-		{src: g + "(2 + G).inputs", want: `["force", "torque"]`},
-		{src: g + "(2 - G).outputs", want: `["pos", "angle"]`},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: g + "(0.05 * G).outputs", Want: `["pos", "angle"]`},
+		{Src: g + "(0.05 * G).inputs", Want: `["force", "torque"]`},
+		{Src: g + "(G * 0.05).outputs", Want: `["pos", "angle"]`},
+		{Src: g + "(G * 0.05).inputs", Want: `["force", "torque"]`},
+		{Src: g + "(G + 2).outputs", Want: `["pos", "angle"]`},
+		{Src: g + "(2 + G).inputs", Want: `["force", "torque"]`},
+		{Src: g + "(2 - G).outputs", Want: `["pos", "angle"]`},
 		// the gain itself: 0.05 times 1/(s + 1) at s = 0 (closed form)
-		{src: g + "gain(0.05 * G)[1, 1]", want: "0.05"},
+		{Src: g + "gain(0.05 * G)[1, 1]", Want: "0.05"},
 	})
 }
 
@@ -252,9 +255,9 @@ func TestScalarTimesSystemKeepsNames(t *testing.T) {
 // .w in rad/s and .f in Hz whatever the display (issue 8, item 6). From
 // 0.01 to 10 Hz, the first point is 0.01 Hz = 2 pi 0.01 rad/s (definition).
 func TestFrequencyFieldsInStatedUnits(t *testing.T) {
-	runCells(t, []cell{
-		{src: "frequency(1/(s + 1), from: 0.01, to: 10, hz: true).f[1]", want: "0.01"},
-		{src: "frequency(1/(s + 1), from: 0.01, to: 10, hz: true).w[1]", want: "0.06283185307"},
-		{src: "frequency(1/(s + 1), from: 0.01, to: 10).w[1]", want: "0.01"},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: "frequency(1/(s + 1), from: 0.01, to: 10, hz: true).f[1]", Want: "0.01"},
+		{Src: "frequency(1/(s + 1), from: 0.01, to: 10, hz: true).w[1]", Want: "0.06283185307"},
+		{Src: "frequency(1/(s + 1), from: 0.01, to: 10).w[1]", Want: "0.01"},
 	})
 }

@@ -1,4 +1,4 @@
-package lang
+package lang_test
 
 import (
 	"context"
@@ -11,6 +11,9 @@ import (
 	"testing"
 	"time"
 
+	"lsys/lang"
+	"lsys/lang/builtins"
+	"lsys/lang/langtest"
 	"lsys/lang/syntax"
 )
 
@@ -24,7 +27,7 @@ var fuzzSeeds = []string{
 	"r = {angle: 0.1, rate: 0}\nr.angle",
 	"H = 5 / (s^2 + 2*s + 5)\nsystem(H)",
 	"system every 0.1 {\n  states level\n  inputs inflow\n  next level = 0.9*level + 0.1*inflow\n}",
-	pendulumCell + "linearize(pendulum, at: {angle: pi, rate: 0, torque: 0})",
+	langtest.Pendulum + "linearize(pendulum, at: {angle: pi, rate: 0, torque: 0})",
 	"\"unterminated",
 	"x = (1 +",
 	"a.b.c[1, 2](3)",
@@ -39,7 +42,7 @@ func seedFuzz(f *testing.F) {
 	for _, s := range fuzzSeeds {
 		f.Add(s)
 	}
-	for _, b := range Builtins() {
+	for _, b := range builtins.Registry().Builtins() {
 		for _, ex := range b.Examples {
 			f.Add(ex)
 		}
@@ -49,7 +52,7 @@ func seedFuzz(f *testing.F) {
 func FuzzEval(f *testing.F) {
 	seedFuzz(f)
 	f.Fuzz(func(t *testing.T, src string) {
-		s := NewSession(Options{})
+		s := lang.NewSession(lang.Options{Builtins: builtins.Registry()})
 		ctx, cancel := context.WithTimeout(context.Background(), 200*time.Millisecond)
 		defer cancel()
 		_, err := s.Run(ctx, src, nil)
@@ -78,7 +81,7 @@ func TestWriteFuzzCorpus(t *testing.T) {
 	for _, c := range corpusCells {
 		seeds = append(seeds, c)
 	}
-	for _, b := range Builtins() {
+	for _, b := range builtins.Registry().Builtins() {
 		seeds = append(seeds, b.Examples...)
 	}
 	// The scanner's and parser's fuzzers live in package syntax, which

@@ -1,4 +1,4 @@
-package lang
+package lang_test
 
 import (
 	"context"
@@ -6,187 +6,126 @@ import (
 	"strings"
 	"testing"
 
+	"lsys/lang"
+	"lsys/lang/builtins"
+	"lsys/lang/langtest"
 	"lsys/lang/syntax"
 )
-
-// recorder is an Output that keeps everything for the tests.
-type recorder struct {
-	stdout, stderr strings.Builder
-	displays       []any
-	updates        []any
-	ids            []string
-}
-
-func (r *recorder) Stdout(s string) { r.stdout.WriteString(s) }
-func (r *recorder) Stderr(s string) { r.stderr.WriteString(s) }
-func (r *recorder) Display(v any, id string) {
-	r.displays = append(r.displays, v)
-	r.ids = append(r.ids, id)
-}
-func (r *recorder) UpdateDisplay(v any, id string) { r.updates = append(r.updates, v) }
-func (r *recorder) ClearOutput(bool)               {}
-
-// cell is one row of the table: a cell's source and either its expected
-// value (as FormatValue prints it) or its expected error (a fragment of
-// the message, with line and column).
-type cell struct {
-	src  string
-	want string // expected FormatValue of the result; "" with err set
-	err  string // fragment of the expected error message
-	line int
-	col  int
-}
-
-func runCells(t *testing.T, cells []cell) {
-	t.Helper()
-	for _, c := range cells {
-		s := NewSession(Options{Dir: t.TempDir()})
-		v, err := s.Run(context.Background(), c.src, &recorder{})
-		if c.err != "" {
-			if err == nil {
-				t.Errorf("%q: want error %q, got value %s", c.src, c.err, FormatValue(v))
-				continue
-			}
-			if !strings.Contains(err.Error(), c.err) {
-				t.Errorf("%q: error\n%s\ndoes not contain %q", c.src, err, c.err)
-			}
-			if h := hintOf(err); h == "" {
-				t.Errorf("%q: the error says nothing about what to do:\n%v", c.src, err)
-			}
-			pos, ok := syntax.Position(err)
-			if !ok {
-				t.Errorf("%q: error without a position: %v", c.src, err)
-				continue
-			}
-			if c.line != 0 && (pos.Line != c.line || pos.Column != c.col) {
-				t.Errorf("%q: error at %d:%d, want %d:%d\n%s", c.src, pos.Line, pos.Column, c.line, c.col, err)
-			}
-			continue
-		}
-		if err != nil {
-			t.Errorf("%q: unexpected error:\n%v", c.src, err)
-			continue
-		}
-		if got := FormatValue(v); got != c.want {
-			t.Errorf("%q:\n got %s\nwant %s", c.src, got, c.want)
-		}
-	}
-}
 
 // Values here follow from the arithmetic rules of the language (common
 // practice: precedence and associativity as in mathematics).
 func TestCellsValues(t *testing.T) {
-	runCells(t, []cell{
-		{src: "1 + 2*3", want: "7"},
-		{src: "(1 + 2)*3", want: "9"},
-		{src: "-2^2", want: "-4"},
-		{src: "2^3^2", want: "512"},
-		{src: "2^-1", want: "0.5"},
-		{src: "7 / 2", want: "3.5"},
-		{src: "1e-3 * 1000", want: "1"},
-		{src: ".5 + 1.", want: "1.5"},
-		{src: "x = 4; y = x / 2\ny", want: "2"},
-		{src: "x = 4\nx = x + 1\nx", want: "5"},
-		{src: "# a comment\nk = 3 # trailing\nk", want: "3"},
-		{src: "a = 1 + \\\n  2\na", want: "3"},
-		{src: "-1 + 2j", want: "-1 + 2j"},
-		{src: "(1 + 2j) * (1 - 2j)", want: "5"}, // |1+2j|^2 = 5
-		{src: "1j^2", want: "-1"},
-		{src: "abs(3 + 4j)", want: "5"},
-		{src: "sqrt(-4)", want: "2j"},
-		{src: "\"gimbal\" + \" axis\"", want: "gimbal axis"},
-		{src: "true and not false", want: "true"},
-		{src: "1 < 2 or 1/0 > 1", want: "true"}, // or does not evaluate its right side
-		{src: "3 == 3.0", want: "true"},
-		{src: "\"a\" != \"b\"", want: "true"},
-		{src: "if 2 > 1 then \"yes\" else \"no\"", want: "yes"},
-		{src: "[1, 2, 3]", want: "1\n2\n3"},
-		{src: "[[0, 1], [-2, -3]]", want: " 0   1\n-2  -3"},
-		{src: "[[1, 2, 3]]", want: "1  2  3"},
-		{src: "[[1],\n [2]]", want: "1\n2"},
-		{src: "M = [[0, 1], [-2, -3]]\nM[2, 1]", want: "-2"},
-		{src: "v = [10, 20, 30]\nv[3]", want: "30"},
-		{src: "[[1, 2], [3, 4]] * [1, 1]", want: "3\n7"},
-		{src: "[[1, 2], [3, 4]] + [[1, 0], [0, 1]]", want: "2  2\n3  5"},
-		{src: "2 * [[1, 2], [3, 4]] / 4", want: "0.5  1\n1.5  2"},
-		{src: "[[2, 0], [0, 3]]^2", want: "4  0\n0  9"},
-		{src: "[[2, 0], [0, 4]]^-1", want: "0.5     0\n  0  0.25"},
-		{src: "r = {angle: 0.1, rate: 0}\nr.angle", want: "0.1"},
-		{src: "{angle: 0.1, rate: [1, 2]}", want: "{angle: 0.1, rate: [1, 2]}"},
-		{src: "[\"k\", \"b\"]", want: "[\"k\", \"b\"]"},
-		{src: "[\"k\", \"b\"][2]", want: "b"},
-		{src: "[]", want: "[]"},
-		{src: "f(k) = k^2 + 1\nf(3)", want: "10"},
-		{src: "f(a, b) = a - b\nf(b: 1, a: 5)", want: "4"},
-		{src: "fact(n) = if n <= 1 then 1 else n*fact(n - 1)\nfact(10)", want: "3628800"},
-		{src: "pi", want: "3.141592654"},
-		{src: "inf > 1e300", want: "true"},
-		{src: "x = 1", want: "(nothing)"},
-		{src: "print(1)", want: "(nothing)"},
-		{src: "{a: 1}", want: "{a: 1}"},
-		{src: "f = 50\n2*pi*f", want: "314.1592654"},
-		{src: "g(x) = [x, 2*x]\ng(3)[2]", want: "6"},
-		{src: "5 \u2212 3", want: "2"}, // a typographic minus, as pasted
-		{src: "system {\n  states x\n  x\u2032 = \u22122*x\n}.A", want: "-2"},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: "1 + 2*3", Want: "7"},
+		{Src: "(1 + 2)*3", Want: "9"},
+		{Src: "-2^2", Want: "-4"},
+		{Src: "2^3^2", Want: "512"},
+		{Src: "2^-1", Want: "0.5"},
+		{Src: "7 / 2", Want: "3.5"},
+		{Src: "1e-3 * 1000", Want: "1"},
+		{Src: ".5 + 1.", Want: "1.5"},
+		{Src: "x = 4; y = x / 2\ny", Want: "2"},
+		{Src: "x = 4\nx = x + 1\nx", Want: "5"},
+		{Src: "# a comment\nk = 3 # trailing\nk", Want: "3"},
+		{Src: "a = 1 + \\\n  2\na", Want: "3"},
+		{Src: "-1 + 2j", Want: "-1 + 2j"},
+		{Src: "(1 + 2j) * (1 - 2j)", Want: "5"}, // |1+2j|^2 = 5
+		{Src: "1j^2", Want: "-1"},
+		{Src: "abs(3 + 4j)", Want: "5"},
+		{Src: "sqrt(-4)", Want: "2j"},
+		{Src: "\"gimbal\" + \" axis\"", Want: "gimbal axis"},
+		{Src: "true and not false", Want: "true"},
+		{Src: "1 < 2 or 1/0 > 1", Want: "true"}, // or does not evaluate its right side
+		{Src: "3 == 3.0", Want: "true"},
+		{Src: "\"a\" != \"b\"", Want: "true"},
+		{Src: "if 2 > 1 then \"yes\" else \"no\"", Want: "yes"},
+		{Src: "[1, 2, 3]", Want: "1\n2\n3"},
+		{Src: "[[0, 1], [-2, -3]]", Want: " 0   1\n-2  -3"},
+		{Src: "[[1, 2, 3]]", Want: "1  2  3"},
+		{Src: "[[1],\n [2]]", Want: "1\n2"},
+		{Src: "M = [[0, 1], [-2, -3]]\nM[2, 1]", Want: "-2"},
+		{Src: "v = [10, 20, 30]\nv[3]", Want: "30"},
+		{Src: "[[1, 2], [3, 4]] * [1, 1]", Want: "3\n7"},
+		{Src: "[[1, 2], [3, 4]] + [[1, 0], [0, 1]]", Want: "2  2\n3  5"},
+		{Src: "2 * [[1, 2], [3, 4]] / 4", Want: "0.5  1\n1.5  2"},
+		{Src: "[[2, 0], [0, 3]]^2", Want: "4  0\n0  9"},
+		{Src: "[[2, 0], [0, 4]]^-1", Want: "0.5     0\n  0  0.25"},
+		{Src: "r = {angle: 0.1, rate: 0}\nr.angle", Want: "0.1"},
+		{Src: "{angle: 0.1, rate: [1, 2]}", Want: "{angle: 0.1, rate: [1, 2]}"},
+		{Src: "[\"k\", \"b\"]", Want: "[\"k\", \"b\"]"},
+		{Src: "[\"k\", \"b\"][2]", Want: "b"},
+		{Src: "[]", Want: "[]"},
+		{Src: "f(k) = k^2 + 1\nf(3)", Want: "10"},
+		{Src: "f(a, b) = a - b\nf(b: 1, a: 5)", Want: "4"},
+		{Src: "fact(n) = if n <= 1 then 1 else n*fact(n - 1)\nfact(10)", Want: "3628800"},
+		{Src: "pi", Want: "3.141592654"},
+		{Src: "inf > 1e300", Want: "true"},
+		{Src: "x = 1", Want: "(nothing)"},
+		{Src: "print(1)", Want: "(nothing)"},
+		{Src: "{a: 1}", Want: "{a: 1}"},
+		{Src: "f = 50\n2*pi*f", Want: "314.1592654"},
+		{Src: "g(x) = [x, 2*x]\ng(3)[2]", Want: "6"},
+		{Src: "5 \u2212 3", Want: "2"}, // a typographic minus, as pasted
+		{Src: "system {\n  states x\n  x\u2032 = \u22122*x\n}.A", Want: "-2"},
 	})
 }
 
 // The error table: message fragment, line and column (1-based, in runes).
 func TestCellsErrors(t *testing.T) {
-	runCells(t, []cell{
-		{src: "torqe = 1\ntorque", err: "unknown name 'torque'; did you mean 'torqe'?", line: 2, col: 1},
-		{src: "x = 1 +", err: "expected a value, found end of cell", line: 1, col: 8},
-		{src: "x = (1 + 2", err: "expected ')'", line: 1, col: 11},
-		{src: "x = [1, 2\ny = 3", err: "expected ']' to close the list", line: 2, col: 1},
-		{src: "1 / 0", err: "division by zero", line: 1, col: 3},
-		{src: "[[1, 2], [3]]", err: "row 2 has 1 entry but row 1 has 2", line: 1, col: 10},
-		{src: "[[1, 2], [3, 4]] * [1, 2, 3]", err: "cannot multiply a 2x2 by a 3x1 matrix", line: 1, col: 18},
-		{src: "[[1, 2]] + [[1, 2, 3]]", err: "cannot add a 1x2 and a 1x3 matrix", line: 1, col: 10},
-		{src: "v = [1, 2]\nv[3]", err: "index 3 is out of range", line: 2, col: 3},
-		{src: "v = [1, 2]\nv[0]", err: "index 0 is out of range", line: 2, col: 3},
-		{src: "v = [1, 2]\nv[1.5]", err: "an index must be a whole number", line: 2, col: 3},
-		{src: "r = {angle: 1}\nr.angel", err: "has no field 'angel'; did you mean 'angle'?", line: 2, col: 3},
-		{src: "sin(1, 2)", err: "sin takes at most 1 argument", line: 1, col: 8},
-		{src: "system([[0]], sample: 1)", err: "system has no argument named 'sample'", line: 1, col: 15},
-		{src: "system([[0, 1]])", err: "needs a square matrix, not a 1x2 one", line: 1, col: 8},
-		{src: "system([[0, 1], [0, 0]], [1, 2, 3])", err: "B must have as many rows as A: got 3x1 against 2x2", line: 1, col: 1},
-		{src: "system()", err: "system needs the state matrix A, or only D for a static gain", line: 1, col: 1},
-		{src: "modes = 3\nmodes(1)", err: "hides the built-in modes(system, tol?)", line: 2, col: 6},
-		{src: "m = system {\n states x\n inputs u\n x' = -x^3 + u\n}\nequilibrium(m, inputs: {v: 1})", err: "'v' is not an input of this model", line: 6, col: 24},
-		{src: "m = system {\n states x\n inputs u\n x' = -x^3 + u\n}\nequilibrium(m, guess: {y: 1})", err: "'y' is not a state of this model", line: 6, col: 23},
-		{src: "m = system {\n states x\n inputs u\n x' = -x^3 + u\n}\nequilibrium(m, guess: {x: \"a\"})", err: "the value of 'x' must be a finite real number", line: 6, col: 23},
-		{src: "equilibrium(system([[-1]], [1]), inputs: {w: 1})", err: "'w' is not an input of this system", line: 1, col: 42},
-		{src: "equilibrium(system([[-1]], [1]), inputs: 3)", err: "a record such as {torque: 0}", line: 1, col: 42},
-		{src: "x = 3\nx(2)", err: "x is a number, not a function", line: 2, col: 2},
-		{src: "f(k) = k\nf(1, 2)", err: "f takes 1 argument", line: 2, col: 6},
-		{src: "f(k) = g(k)\nf(1)", err: "unknown name 'g'", line: 1, col: 8},
-		{src: "h(n) = h(n + 1)\nh(1)", err: "more than 200 levels deep", line: 1, col: 8},
-		{src: "if 1 then 2 else 3", err: "the condition of 'if' must be true or false", line: 1, col: 4},
-		{src: "\"abc", err: "string not closed", line: 1, col: 1},
-		{src: "x = 2k", err: "a number runs into a name", line: 1, col: 6},
-		{src: "x = 1 $ 2", err: "unexpected character '$'", line: 1, col: 7},
-		{src: "x = \u201ctext\u201d", err: "Strings use straight double quotes", line: 1, col: 5},
-		{src: "k = 2 \u00d7 3", err: "Write multiplication with '*'", line: 1, col: 7},
-		{src: "a.b = 1", err: "the left side of '=' must be a name", line: 1, col: 5},
-		{src: "x' = 1", err: "derivative x' can only be written inside system", line: 1, col: 2},
-		{src: "f(1) = 2", err: "parameters of a function definition must be plain names", line: 1, col: 3},
-		{src: "f(x, y: 1, 3)", err: "a positional argument cannot follow a named one", line: 1, col: 12},
-		{src: "1 < 2 < 3", err: "comparisons cannot be chained", line: 1, col: 7},
-		{src: "1e999", err: "number 1e999 is too large", line: 1, col: 1},
-		{src: "10^400", err: "is not a finite number", line: 1, col: 3},
-		{src: "(1 + 2j) < 3", err: "Complex numbers have no order", line: 1, col: 10},
-		{src: "[1, 2] / [1, 2]", err: "cannot divide by a matrix", line: 1, col: 8},
-		{src: "x = print(1)", err: "gives no value to bind", line: 1, col: 5},
-		{src: "identity(1e9)", err: "the size must be between 1 and 1000", line: 1, col: 10},
-		{src: "{a: 1, a: 2}", err: "field 'a' appears twice", line: 1, col: 8},
-		{src: "x = 1\n)", err: "found ')'", line: 2, col: 1},
-		{src: "[1; 2]", err: "expected ']' to close the list, found ';'", line: 1, col: 3},
-		{src: "ok = 1\nbad = 1 +\nalso = (", err: "expected a value", line: 2, col: 10},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: "torqe = 1\ntorque", Err: "unknown name 'torque'; did you mean 'torqe'?", Line: 2, Col: 1},
+		{Src: "x = 1 +", Err: "expected a value, found end of cell", Line: 1, Col: 8},
+		{Src: "x = (1 + 2", Err: "expected ')'", Line: 1, Col: 11},
+		{Src: "x = [1, 2\ny = 3", Err: "expected ']' to close the list", Line: 2, Col: 1},
+		{Src: "1 / 0", Err: "division by zero", Line: 1, Col: 3},
+		{Src: "[[1, 2], [3]]", Err: "row 2 has 1 entry but row 1 has 2", Line: 1, Col: 10},
+		{Src: "[[1, 2], [3, 4]] * [1, 2, 3]", Err: "cannot multiply a 2x2 by a 3x1 matrix", Line: 1, Col: 18},
+		{Src: "[[1, 2]] + [[1, 2, 3]]", Err: "cannot add a 1x2 and a 1x3 matrix", Line: 1, Col: 10},
+		{Src: "v = [1, 2]\nv[3]", Err: "index 3 is out of range", Line: 2, Col: 3},
+		{Src: "v = [1, 2]\nv[0]", Err: "index 0 is out of range", Line: 2, Col: 3},
+		{Src: "v = [1, 2]\nv[1.5]", Err: "an index must be a whole number", Line: 2, Col: 3},
+		{Src: "r = {angle: 1}\nr.angel", Err: "has no field 'angel'; did you mean 'angle'?", Line: 2, Col: 3},
+		{Src: "sin(1, 2)", Err: "sin takes at most 1 argument", Line: 1, Col: 8},
+		{Src: "system([[0]], sample: 1)", Err: "system has no argument named 'sample'", Line: 1, Col: 15},
+		{Src: "system([[0, 1]])", Err: "needs a square matrix, not a 1x2 one", Line: 1, Col: 8},
+		{Src: "system([[0, 1], [0, 0]], [1, 2, 3])", Err: "B must have as many rows as A: got 3x1 against 2x2", Line: 1, Col: 1},
+		{Src: "system()", Err: "system needs the state matrix A, or only D for a static gain", Line: 1, Col: 1},
+		{Src: "modes = 3\nmodes(1)", Err: "hides the built-in modes(system, tol?)", Line: 2, Col: 6},
+		{Src: "m = system {\n states x\n inputs u\n x' = -x^3 + u\n}\nequilibrium(m, inputs: {v: 1})", Err: "'v' is not an input of this model", Line: 6, Col: 24},
+		{Src: "m = system {\n states x\n inputs u\n x' = -x^3 + u\n}\nequilibrium(m, guess: {y: 1})", Err: "'y' is not a state of this model", Line: 6, Col: 23},
+		{Src: "m = system {\n states x\n inputs u\n x' = -x^3 + u\n}\nequilibrium(m, guess: {x: \"a\"})", Err: "the value of 'x' must be a finite real number", Line: 6, Col: 23},
+		{Src: "equilibrium(system([[-1]], [1]), inputs: {w: 1})", Err: "'w' is not an input of this system", Line: 1, Col: 42},
+		{Src: "equilibrium(system([[-1]], [1]), inputs: 3)", Err: "a record such as {torque: 0}", Line: 1, Col: 42},
+		{Src: "x = 3\nx(2)", Err: "x is a number, not a function", Line: 2, Col: 2},
+		{Src: "f(k) = k\nf(1, 2)", Err: "f takes 1 argument", Line: 2, Col: 6},
+		{Src: "f(k) = g(k)\nf(1)", Err: "unknown name 'g'", Line: 1, Col: 8},
+		{Src: "h(n) = h(n + 1)\nh(1)", Err: "more than 200 levels deep", Line: 1, Col: 8},
+		{Src: "if 1 then 2 else 3", Err: "the condition of 'if' must be true or false", Line: 1, Col: 4},
+		{Src: "\"abc", Err: "string not closed", Line: 1, Col: 1},
+		{Src: "x = 2k", Err: "a number runs into a name", Line: 1, Col: 6},
+		{Src: "x = 1 $ 2", Err: "unexpected character '$'", Line: 1, Col: 7},
+		{Src: "x = \u201ctext\u201d", Err: "Strings use straight double quotes", Line: 1, Col: 5},
+		{Src: "k = 2 \u00d7 3", Err: "Write multiplication with '*'", Line: 1, Col: 7},
+		{Src: "a.b = 1", Err: "the left side of '=' must be a name", Line: 1, Col: 5},
+		{Src: "x' = 1", Err: "derivative x' can only be written inside system", Line: 1, Col: 2},
+		{Src: "f(1) = 2", Err: "parameters of a function definition must be plain names", Line: 1, Col: 3},
+		{Src: "f(x, y: 1, 3)", Err: "a positional argument cannot follow a named one", Line: 1, Col: 12},
+		{Src: "1 < 2 < 3", Err: "comparisons cannot be chained", Line: 1, Col: 7},
+		{Src: "1e999", Err: "number 1e999 is too large", Line: 1, Col: 1},
+		{Src: "10^400", Err: "is not a finite number", Line: 1, Col: 3},
+		{Src: "(1 + 2j) < 3", Err: "Complex numbers have no order", Line: 1, Col: 10},
+		{Src: "[1, 2] / [1, 2]", Err: "cannot divide by a matrix", Line: 1, Col: 8},
+		{Src: "x = print(1)", Err: "gives no value to bind", Line: 1, Col: 5},
+		{Src: "identity(1e9)", Err: "the size must be between 1 and 1000", Line: 1, Col: 10},
+		{Src: "{a: 1, a: 2}", Err: "field 'a' appears twice", Line: 1, Col: 8},
+		{Src: "x = 1\n)", Err: "found ')'", Line: 2, Col: 1},
+		{Src: "[1; 2]", Err: "expected ']' to close the list, found ';'", Line: 1, Col: 3},
+		{Src: "ok = 1\nbad = 1 +\nalso = (", Err: "expected a value", Line: 2, Col: 10},
 	})
 }
 
 func TestBindingsSurviveErrors(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
 	ctx := context.Background()
 	if _, err := s.Run(ctx, "k = 2\nj = k / 0\nm = 3", nil); err == nil {
 		t.Fatal("want an error")
@@ -210,8 +149,8 @@ func TestBindingsSurviveErrors(t *testing.T) {
 }
 
 func TestOutputStreams(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
-	r := &recorder{}
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	r := &langtest.Recorder{}
 	v, err := s.Run(context.Background(), "x = 1.5\nprint(\"x is\", x, [1, 2])\nwarn(\"careful\")\nshow(x)\nx", r)
 	if err != nil {
 		t.Fatal(err)
@@ -219,19 +158,19 @@ func TestOutputStreams(t *testing.T) {
 	if v != 1.5 {
 		t.Errorf("value %v, want 1.5", v)
 	}
-	if got := r.stdout.String(); got != "x is 1.5 1\n2\n" {
+	if got := r.Out.String(); got != "x is 1.5 1\n2\n" {
 		t.Errorf("stdout %q", got)
 	}
-	if got := r.stderr.String(); got != "careful\n" {
+	if got := r.Err.String(); got != "careful\n" {
 		t.Errorf("stderr %q", got)
 	}
-	if len(r.displays) != 1 || r.displays[0] != 1.5 {
-		t.Errorf("displays %v", r.displays)
+	if len(r.Displays) != 1 || r.Displays[0] != 1.5 {
+		t.Errorf("displays %v", r.Displays)
 	}
 }
 
 func TestErrorText(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
 	_, err := s.Run(context.Background(), "torque = 1\ny = 2 * torqe", nil)
 	want := "line 2, column 9: unknown name 'torqe'; did you mean 'torque'?\n" +
 		"    y = 2 * torqe\n" +
@@ -243,7 +182,7 @@ func TestErrorText(t *testing.T) {
 }
 
 func TestInterrupt(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
 	_, err := s.Run(ctx, "f(n) = if n <= 0 then 0 else f(n - 1)\nf(100)", nil)
@@ -256,7 +195,7 @@ func TestInterrupt(t *testing.T) {
 }
 
 func TestStepLimit(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
 	// Doubly recursive: 2^40 calls, far beyond MaxSteps.
 	_, err := s.Run(context.Background(), "f(n) = if n <= 0 then 0 else f(n - 1) + f(n - 1)\nf(40)", nil)
 	if err == nil || !strings.Contains(err.Error(), "evaluation steps") {
@@ -265,7 +204,7 @@ func TestStepLimit(t *testing.T) {
 }
 
 func TestIsComplete(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
 	for _, c := range []struct{ src, status, indent string }{
 		{"x = 1", "complete", ""},
 		{"", "complete", ""},
@@ -286,7 +225,7 @@ func TestIsComplete(t *testing.T) {
 }
 
 func TestComplete(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
 	if _, err := s.Run(context.Background(), "gimbal = system([[0, 1], [-2, -3]], [0, 1], [1, 0], states: [\"angle\", \"rate\"], inputs: [\"torque\"], outputs: [\"speed\"])\ngain_k = 2\nrec = {angle: 1, rate: 2}", nil); err != nil {
 		t.Fatal(err)
 	}
@@ -313,14 +252,14 @@ func TestComplete(t *testing.T) {
 		m, st, en := s.Complete(c.src, c.cursor)
 		// Built-ins added later may add matches: the wanted ones must be
 		// there, in order, ahead of the others only for named arguments.
-		if !hasInOrder(m, c.want) || st != c.start || en != c.end {
+		if !langtest.HasInOrder(m, c.want) || st != c.start || en != c.end {
 			t.Errorf("Complete(%q, %d) = %v, %d, %d; want %v, %d, %d", c.src, c.cursor, m, st, en, c.want, c.start, c.end)
 		}
 	}
 }
 
 func TestInspect(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
 	if _, err := s.Run(context.Background(), "G = system([[0, 1], [-2, -3]], [0, 1], [1, 0])\nf(k) = k + 1", nil); err != nil {
 		t.Fatal(err)
 	}
@@ -355,10 +294,10 @@ func TestInspect(t *testing.T) {
 // Every example in the registry runs (those of built-ins whose numerics
 // are not in the tree yet are reported, not failed).
 func TestRegistryExamples(t *testing.T) {
-	for _, b := range Builtins() {
+	for _, b := range builtins.Registry().Builtins() {
 		for _, ex := range b.Examples {
-			s := NewSession(Options{Dir: t.TempDir()})
-			_, err := s.Run(context.Background(), ex, &recorder{})
+			s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+			_, err := s.Run(context.Background(), ex, &langtest.Recorder{})
 			if err != nil {
 				if strings.Contains(err.Error(), "not implemented yet") {
 					t.Logf("%s: example waits for its numerics: %v", b.Name, strings.SplitN(err.Error(), "\n", 2)[0])
@@ -371,7 +310,7 @@ func TestRegistryExamples(t *testing.T) {
 }
 
 func TestRegistryEntries(t *testing.T) {
-	for _, b := range Builtins() {
+	for _, b := range builtins.Registry().Builtins() {
 		if b.Help == "" || len(b.Examples) == 0 {
 			t.Errorf("%s: help and an example are required", b.Name)
 		}
@@ -381,23 +320,10 @@ func TestRegistryEntries(t *testing.T) {
 	}
 }
 
-// hintOf returns the "what to do" line of the first error.
-func hintOf(err error) string {
-	var l syntax.ErrorList
-	if errors.As(err, &l) && len(l) > 0 {
-		return l[0].Hint
-	}
-	var e *syntax.Error
-	if errors.As(err, &e) {
-		return e.Hint
-	}
-	return ""
-}
-
 // Completion and inspection while a cell runs (the kernel answers them
 // from another goroutine); run with -race to check.
 func TestConcurrentHelpWhileRunning(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
 	done := make(chan error)
 	go func() {
 		_, err := s.Run(context.Background(), "f(n) = if n <= 0 then 0 else 1 + f(n - 1)\nfor_k = 3\nG = system([[0, 1], [-2, -3]], [0, 1], [1, 0])\nx = f(150)", nil)
@@ -415,7 +341,7 @@ func TestConcurrentHelpWhileRunning(t *testing.T) {
 }
 
 func TestErrorInFunctionFromEarlierCell(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
 	if _, err := s.Run(context.Background(), "# helpers\nratio(a, b) = a / b", nil); err != nil {
 		t.Fatal(err)
 	}
@@ -426,15 +352,4 @@ func TestErrorInFunctionFromEarlierCell(t *testing.T) {
 	if err == nil || !strings.HasPrefix(err.Error(), want) {
 		t.Errorf("error:\n%v\nwant it to start with:\n%s", err, want)
 	}
-}
-
-// hasInOrder reports whether want appears in got as a subsequence.
-func hasInOrder(got, want []string) bool {
-	i := 0
-	for _, g := range got {
-		if i < len(want) && g == want[i] {
-			i++
-		}
-	}
-	return i == len(want)
 }

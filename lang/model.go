@@ -9,7 +9,7 @@ package lang
 // are evaluated over hyper-dual numbers (lsys.HyperDual). Seeding the e1
 // part of one state or input gives one column of the Jacobian exactly, with
 // no step size. A block whose right-hand sides are linear in the states and
-// inputs gives an *lsys.System directly; otherwise a *NonlinearModel that
+// inputs gives an *lsys.System directly; otherwise an *lsys.Model that
 // must be linearized at an operating point before linear analysis.
 
 import (
@@ -39,80 +39,56 @@ type blockSource struct {
 	firstNL                 syntax.Expr // first nonlinear term, nil when linear
 }
 
-// NonlinearModel is the value of an equation block whose right-hand sides
-// are not all linear in the states and inputs. It must be linearized
+// describe is the value of a block whose right-hand sides are not all
+// linear in the states and inputs: lsys's Model, which must be linearized
 // (linearize) before linear analysis.
-type NonlinearModel struct {
-	bs *blockSource
-}
-
-func (m *NonlinearModel) String() string {
-	bs := m.bs
-	var b strings.Builder
-	kind := "continuous"
-	if bs.ts > 0 {
-		kind = "sampled every " + FormatNumber(bs.ts) + " s"
+func (bs *blockSource) describe() *lsys.Model {
+	m := &lsys.Model{
+		StateNames: bs.states, InputNames: bs.inputs, OutputNames: bs.outputs, Ts: bs.ts,
+		FirstNonlinear: syntax.ExprString(bs.firstNL), Line: bs.firstNL.Pos().Line, Column: bs.firstNL.Pos().Column,
 	}
-	fmt.Fprintf(&b, "nonlinear model: %s, %s, %s, %s", plural(len(bs.states), "state"), plural(len(bs.inputs), "input"), plural(len(bs.outputs), "output"), kind)
-	fmt.Fprintf(&b, "\nstates:  %s", strings.Join(bs.states, ", "))
-	if len(bs.inputs) > 0 {
-		fmt.Fprintf(&b, "\ninputs:  %s", strings.Join(bs.inputs, ", "))
-	}
-	fmt.Fprintf(&b, "\noutputs: %s", strings.Join(bs.outputs, ", "))
-	if len(bs.paramOrder) > 0 {
-		var ps []string
-		for _, p := range bs.paramOrder {
-			ps = append(ps, p+" = "+FormatNumber(bs.params[p]))
-		}
-		fmt.Fprintf(&b, "\nparameters: %s", strings.Join(ps, ", "))
+	for _, p := range bs.paramOrder {
+		m.ParameterNames = append(m.ParameterNames, p)
+		m.ParameterValues = append(m.ParameterValues, bs.params[p])
 	}
 	for i, s := range bs.states {
-		e := bs.stateEq[i]
-		if e.Kind == syntax.EqNext {
-			fmt.Fprintf(&b, "\n  next %s = %s", s, syntax.ExprString(e.Rhs))
-		} else {
-			fmt.Fprintf(&b, "\n  %s' = %s", s, syntax.ExprString(e.Rhs))
+		kind := "derivative"
+		if bs.stateEq[i].Kind == syntax.EqNext {
+			kind = "next"
 		}
+		m.Equations = append(m.Equations, lsys.ModelEquation{Kind: kind, Name: s, Rhs: syntax.ExprString(bs.stateEq[i].Rhs)})
 	}
 	for _, e := range bs.plain {
-		fmt.Fprintf(&b, "\n  %s = %s", e.Name.Name, syntax.ExprString(e.Rhs))
+		m.Equations = append(m.Equations, lsys.ModelEquation{Kind: "plain", Name: e.Name.Name, Rhs: syntax.ExprString(e.Rhs)})
 	}
-	fmt.Fprintf(&b, "\nfirst nonlinear term: %s (line %d, column %d); linearize it for linear analysis",
-		syntax.ExprString(bs.firstNL), bs.firstNL.Pos().Line, bs.firstNL.Pos().Column)
-	return b.String()
+	return m
 }
 
-// Field reads model.states, .inputs, .outputs, .parameters, .every.
-func (m *NonlinearModel) Field(name string) (any, bool) {
-	switch name {
-	case "states":
-		return namesList(m.bs.states), true
-	case "inputs":
-		return namesList(m.bs.inputs), true
-	case "outputs":
-		return namesList(m.bs.outputs), true
-	case "parameters":
-		r := &Record{}
-		for _, p := range m.bs.paramOrder {
-			r.Names = append(r.Names, p)
-			r.Values = append(r.Values, m.bs.params[p])
-		}
-		return r, true
-	case "every":
-		return m.bs.ts, true
+// modelFields are the fields of a nonlinear model.
+var modelFields = []Field{
+	FieldOf("states", "the state names", func(m *lsys.Model) any { return NameList(m.StateNames) }),
+	FieldOf("inputs", "the input names", func(m *lsys.Model) any { return NameList(m.InputNames) }),
+	FieldOf("outputs", "the output names", func(m *lsys.Model) any { return NameList(m.OutputNames) }),
+	FieldOf("parameters", "the parameters the block copied from the session, as a record", func(m *lsys.Model) any {
+		return &Record{Names: append([]string(nil), m.ParameterNames...), Values: numbers(m.ParameterValues)}
+	}),
+	FieldOf("every", "the sample time in seconds, 0 when continuous", func(m *lsys.Model) any { return m.Ts }),
+}
+
+// numbers are the values of a record of numbers.
+func numbers(v []float64) []any {
+	out := make([]any, len(v))
+	for i, x := range v {
+		out[i] = x
 	}
-	return nil, false
+	return out
 }
 
-// FieldNames lists the fields of a model.
-func (m *NonlinearModel) FieldNames() []string {
-	return []string{"states", "inputs", "outputs", "parameters", "every"}
-}
-
-func (m *NonlinearModel) needLinearize(ev *evaluator, pos syntax.Pos) error {
-	t := m.bs.firstNL
+// needLinearize says that m must be linearized where a linear system is
+// needed.
+func needLinearize(m *lsys.Model, ev *evaluator, pos syntax.Pos) error {
 	return ev.errorAt(pos, fmt.Sprintf("this is a nonlinear model, not a linear system: its first nonlinear term is %s (line %d, column %d of the cell that defines it)",
-		syntax.ExprString(t), t.Pos().Line, t.Pos().Column),
+		m.FirstNonlinear, m.Line, m.Column),
 		"Linearize it first: linearize(model, at: {state: value, ..., input: value}); equilibrium(model, inputs: {...}) finds an operating point.")
 }
 
@@ -139,6 +115,10 @@ type meval struct {
 }
 
 var equationFuncs = map[string]bool{"sin": true, "cos": true, "tan": true, "exp": true, "log": true, "sqrt": true, "abs": true}
+
+// EquationFunction reports whether the right-hand sides of equation blocks
+// may call the built-in name (sin, cos, tan, exp, log, sqrt, abs).
+func EquationFunction(name string) bool { return equationFuncs[name] }
 
 // nonlinear records a nonlinear term; the first in source order wins.
 // Inside a user function the term is the call in the block.
@@ -193,10 +173,10 @@ func (me *meval) lookup(id *syntax.Ident) (mval, error) {
 			if me.ev.isLocal(id.Name) {
 				hint = fmt.Sprintf("'%s' is a parameter of the function being called: call it with a number for '%s'.", id.Name, id.Name)
 			}
-			return mval{}, me.ev.errorAt(id.NamePos, fmt.Sprintf("'%s' is %s; a parameter in an equation must be a real number", id.Name, typeName(v)), hint)
+			return mval{}, me.ev.errorAt(id.NamePos, fmt.Sprintf("'%s' is %s; a parameter in an equation must be a real number", id.Name, me.ev.typeName(v)), hint)
 		}
 	}
-	if b, ok := Lookup(id.Name); ok && b.Fn == nil {
+	if b, ok := me.ev.s.reg.Lookup(id.Name); ok && b.Fn == nil {
 		if f, ok := b.Value.(float64); ok {
 			return mval{x: lsys.Const(f)}, nil
 		}
@@ -304,7 +284,7 @@ func (me *meval) eval(e syntax.Expr) (mval, error) {
 				me.bs.paramOrder = append(me.bs.paramOrder, key)
 				return mval{x: lsys.Const(f)}, nil
 			}
-			return mval{}, me.ev.errorAt(x.Name.NamePos, fmt.Sprintf("%s is %s; equations need real numbers", key, typeName(v)), "Use a field that holds a number.")
+			return mval{}, me.ev.errorAt(x.Name.NamePos, fmt.Sprintf("%s is %s; equations need real numbers", key, me.ev.typeName(v)), "Use a field that holds a number.")
 		}
 	}
 	return mval{}, me.ev.errorAt(e.Pos(), fmt.Sprintf("%s cannot appear in an equation", syntax.ExprString(e)),
@@ -442,7 +422,7 @@ func (me *meval) call(x *syntax.CallExpr) (mval, error) {
 			}
 		}
 		if len(x.Args) != len(f.Params) {
-			return mval{}, me.ev.errorAt(x.Lparen, fmt.Sprintf("%s takes %s, not %d", f.Name, plural(len(f.Params), "argument"), len(x.Args)), fmt.Sprintf("It is defined as %s.", f))
+			return mval{}, me.ev.errorAt(x.Lparen, fmt.Sprintf("%s takes %s, not %d", f.Name, Plural(len(f.Params), "argument"), len(x.Args)), fmt.Sprintf("It is defined as %s.", f))
 		}
 		frame := map[string]mval{}
 		for i, a := range x.Args {
@@ -523,7 +503,9 @@ func (ev *evaluator) evalSystemBlock(b *syntax.SystemBlock) (any, error) {
 		return nil, err
 	}
 	if bs.firstNL != nil {
-		return &NonlinearModel{bs: bs}, nil
+		m := bs.describe()
+		remember(ev.s, ev.s.models, m, bs)
+		return m, nil
 	}
 	n, m := len(bs.states), len(bs.inputs)
 	x := make([]float64, n)
@@ -560,7 +542,7 @@ func (ev *evaluator) evalSystemBlock(b *syntax.SystemBlock) (any, error) {
 	if err != nil {
 		return nil, ev.errorAt(b.SystemPos, err.Error(), "Check the parameters: a coefficient is not a finite number.")
 	}
-	ev.s.remember(g, bs)
+	remember(ev.s, ev.s.sources, g, bs)
 	return g, nil
 }
 
@@ -627,51 +609,14 @@ func (bs *blockSource) evalAt(ev *evaluator, x, u []float64, seed int, pseed str
 	return f, y, nil
 }
 
-// jacobians returns A = df/dx, B = df/du, C = dg/dx, D = dg/du at (x, u),
-// one forward pass per state and input. With pseed set it returns the
-// derivatives of those matrices with respect to that parameter instead
-// (mixed second derivatives from the e1e2 part).
+// jacobians returns A = df/dx, B = df/du, C = dg/dx, D = dg/du at (x, u)
+// (lsys.Jacobians: one forward pass of the block per state and input).
+// With pseed set it returns the derivatives of those matrices with respect
+// to that parameter instead.
 func (bs *blockSource) jacobians(ev *evaluator, x, u []float64, pseed string, params map[string]float64) (A, B, C, D *mat.Dense, err error) {
-	n, m, p := len(bs.states), len(bs.inputs), len(bs.outputs)
-	if n > 0 {
-		A = mat.NewDense(n, n, nil)
-	}
-	if n > 0 && m > 0 {
-		B = mat.NewDense(n, m, nil)
-	}
-	if p > 0 && n > 0 {
-		C = mat.NewDense(p, n, nil)
-	}
-	if p > 0 && m > 0 {
-		D = mat.NewDense(p, m, nil)
-	}
-	part := func(h lsys.HyperDual) float64 {
-		if pseed != "" {
-			return h.E12
-		}
-		return h.E1
-	}
-	for j := 0; j < n+m; j++ {
-		f, y, err := bs.evalAt(ev, x, u, j, pseed, params)
-		if err != nil {
-			return nil, nil, nil, nil, err
-		}
-		for i := 0; i < n; i++ {
-			if j < n {
-				A.Set(i, j, part(f[i]))
-			} else {
-				B.Set(i, j-n, part(f[i]))
-			}
-		}
-		for i := 0; i < p; i++ {
-			if j < n {
-				C.Set(i, j, part(y[i]))
-			} else {
-				D.Set(i, j-n, part(y[i]))
-			}
-		}
-	}
-	return A, B, C, D, nil
+	return lsys.Jacobians(len(bs.states), len(bs.inputs), len(bs.outputs), pseed != "", func(seed int) (f, y []lsys.HyperDual, err error) {
+		return bs.evalAt(ev, x, u, seed, pseed, params)
+	})
 }
 
 // compileBlock checks a block's declarations and equations and finds its
@@ -757,7 +702,7 @@ func (ev *evaluator) compileBlock(b *syntax.SystemBlock) (*blockSource, error) {
 				case "output":
 					return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is an output; write %s = ...", name, name), "Outputs are defined by plain equations; only states have x' = ... or next x = ...")
 				}
-				return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is not a declared state%s", name, didYouMean(name, bs.states)),
+				return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is not a declared state%s", name, DidYouMean(name, bs.states)),
 					fmt.Sprintf("Declare it: states %s, ...", name))
 			}
 			if prev := bs.stateEq[i]; prev != nil {
@@ -804,7 +749,7 @@ func (ev *evaluator) compileBlock(b *syntax.SystemBlock) (*blockSource, error) {
 			for _, e := range bs.plain {
 				defined = append(defined, e.Name.Name)
 			}
-			return nil, ev.errorAt(declPos[o], fmt.Sprintf("the output '%s' is never defined%s", o, didYouMean(o, defined)),
+			return nil, ev.errorAt(declPos[o], fmt.Sprintf("the output '%s' is never defined%s", o, DidYouMean(o, defined)),
 				fmt.Sprintf("Add %s = ... (an expression of states and inputs), or remove it from outputs.", o))
 		}
 	}
@@ -910,8 +855,11 @@ func (ev *evaluator) isLocal(name string) bool {
 // system built from an equation block in this session.
 func (s *Session) sourceOf(v any) (*blockSource, bool) {
 	switch t := v.(type) {
-	case *NonlinearModel:
-		return t.bs, true
+	case *lsys.Model:
+		s.mu.RLock()
+		defer s.mu.RUnlock()
+		bs, ok := s.models[weak.Make(t)]
+		return bs, ok
 	case *lsys.System:
 		s.mu.RLock()
 		defer s.mu.RUnlock()
@@ -919,4 +867,95 @@ func (s *Session) sourceOf(v any) (*blockSource, bool) {
 		return bs, ok
 	}
 	return nil, false
+}
+
+// Block is what built-ins see of an equation block: its signals and
+// parameters, and its right-hand sides and their exact Jacobians at an
+// operating point (evaluated in the calling cell, so errors in the
+// equations point at the block's own lines).
+type Block struct {
+	bs *blockSource
+	ev *evaluator
+}
+
+// Block returns the equation block behind v: a nonlinear model, or a
+// system built from an equation block in this session.
+func (c *Call) Block(v any) (*Block, bool) {
+	bs, ok := c.ev.s.sourceOf(v)
+	if !ok {
+		return nil, false
+	}
+	return &Block{bs: bs, ev: c.ev}, true
+}
+
+// States, Inputs and Outputs are the block's signal names in declaration
+// order (every state when no outputs are declared). Do not modify them.
+func (b *Block) States() []string  { return b.bs.states }
+func (b *Block) Inputs() []string  { return b.bs.inputs }
+func (b *Block) Outputs() []string { return b.bs.outputs }
+
+// Every is the sample time, 0 for a continuous block.
+func (b *Block) Every() float64 { return b.bs.ts }
+
+// Parameters are the names of the numbers the block copied from the
+// session, in the order its equations first use them.
+func (b *Block) Parameters() []string { return b.bs.paramOrder }
+
+// Parameter is the value the block holds for a parameter.
+func (b *Block) Parameter(name string) (float64, bool) {
+	v, ok := b.bs.params[name]
+	return v, ok
+}
+
+// Linear reports whether every right-hand side is linear in the states and
+// inputs.
+func (b *Block) Linear() bool { return b.bs.firstNL == nil }
+
+// Eval evaluates the block at states x and inputs u: the state equations'
+// right-hand sides dx (x', or next x when sampled) and the outputs y.
+func (b *Block) Eval(x, u []float64) (dx, y []float64, err error) {
+	f, g, err := b.bs.evalAt(b.ev, x, u, -1, "", nil)
+	if err != nil {
+		return nil, nil, err
+	}
+	dx = make([]float64, len(f))
+	for i := range f {
+		dx[i] = f[i].V
+	}
+	y = make([]float64, len(g))
+	for i := range g {
+		y[i] = g[i].V
+	}
+	return dx, y, nil
+}
+
+// Feedthrough reports whether some output depends on some input at (x, u)
+// (a nonzero derivative), which would make a loop closed around the model
+// algebraic.
+func (b *Block) Feedthrough(x, u []float64) (bool, error) {
+	for j := range u {
+		_, y, err := b.bs.evalAt(b.ev, x, u, len(x)+j, "", nil)
+		if err != nil {
+			return false, err
+		}
+		for _, v := range y {
+			if v.E1 != 0 {
+				return true, nil
+			}
+		}
+	}
+	return false, nil
+}
+
+// Jacobians returns A = df/dx, B = df/du, C = dg/dx, D = dg/du at (x, u),
+// exact (dual numbers). With param set it returns the derivatives of those
+// matrices with respect to that parameter instead.
+func (b *Block) Jacobians(x, u []float64, param string) (A, B, C, D *mat.Dense, err error) {
+	return b.bs.jacobians(b.ev, x, u, param, nil)
+}
+
+// System is the linear system with the given matrices and the block's
+// signal names and sample time.
+func (b *Block) System(A, B, C, D *mat.Dense) (*lsys.System, error) {
+	return b.bs.system(A, B, C, D)
 }

@@ -21,9 +21,9 @@ func toComplex(v any) complex128 {
 	return 0
 }
 
-// number normalises a complex result with an exactly zero imaginary part
+// Number normalises a complex result with an exactly zero imaginary part
 // to a real number.
-func number(c complex128) any {
+func Number(c complex128) any {
 	if imag(c) == 0 {
 		return real(c)
 	}
@@ -62,7 +62,7 @@ func (ev *evaluator) negate(v any, pos syntax.Pos) (any, error) {
 	case *lsys.System:
 		return ev.binary(syntax.MUL, -1.0, x, pos, nil)
 	}
-	return nil, ev.errorAt(pos, fmt.Sprintf("cannot negate %s", typeName(v)), "Numbers, matrices, transfer functions and systems can be negated.")
+	return nil, ev.errorAt(pos, fmt.Sprintf("cannot negate %s", ev.typeName(v)), "Numbers, matrices, transfer functions and systems can be negated.")
 }
 
 var opVerb = map[syntax.Token]string{syntax.ADD: "add", syntax.SUB: "subtract", syntax.MUL: "multiply", syntax.DIV: "divide", syntax.POW: "raise"}
@@ -71,17 +71,17 @@ func (ev *evaluator) opError(op syntax.Token, a, b any, pos syntax.Pos, hint str
 	var msg string
 	switch op {
 	case syntax.ADD:
-		msg = fmt.Sprintf("cannot add %s and %s", typeName(a), typeName(b))
+		msg = fmt.Sprintf("cannot add %s and %s", ev.typeName(a), ev.typeName(b))
 	case syntax.SUB:
-		msg = fmt.Sprintf("cannot subtract %s from %s", typeName(b), typeName(a))
+		msg = fmt.Sprintf("cannot subtract %s from %s", ev.typeName(b), ev.typeName(a))
 	case syntax.MUL:
-		msg = fmt.Sprintf("cannot multiply %s by %s", typeName(a), typeName(b))
+		msg = fmt.Sprintf("cannot multiply %s by %s", ev.typeName(a), ev.typeName(b))
 	case syntax.DIV:
-		msg = fmt.Sprintf("cannot divide %s by %s", typeName(a), typeName(b))
+		msg = fmt.Sprintf("cannot divide %s by %s", ev.typeName(a), ev.typeName(b))
 	case syntax.POW:
-		msg = fmt.Sprintf("cannot raise %s to the power %s", typeName(a), typeName(b))
+		msg = fmt.Sprintf("cannot raise %s to the power %s", ev.typeName(a), ev.typeName(b))
 	default:
-		msg = fmt.Sprintf("cannot compare %s with %s using '%s'", typeName(a), typeName(b), op)
+		msg = fmt.Sprintf("cannot compare %s with %s using '%s'", ev.typeName(a), ev.typeName(b), op)
 	}
 	return ev.errorAt(pos, msg, hint)
 }
@@ -98,6 +98,11 @@ func (ev *evaluator) binary(op syntax.Token, a, b any, pos syntax.Pos, node *syn
 	}
 	if sa, ok := a.(string); ok {
 		if sb, ok := b.(string); ok && op == syntax.ADD {
+			// Checked before the bytes are asked for: doubling a string
+			// forty times would ask for a terabyte.
+			if n := int64(len(sa)) + int64(len(sb)); n > ev.s.limits.Memory {
+				return nil, ev.overBudget(pos, "joining these strings", n)
+			}
 			return sa + sb, nil
 		}
 	}
@@ -108,11 +113,11 @@ func (ev *evaluator) binary(op syntax.Token, a, b any, pos syntax.Pos, node *syn
 	if _, ok := b.(*lsys.System); ok {
 		return ev.systemOp(op, a, b, pos)
 	}
-	if _, ok := a.(*NonlinearModel); ok {
-		return nil, a.(*NonlinearModel).needLinearize(ev, pos)
+	if m, ok := a.(*lsys.Model); ok {
+		return nil, needLinearize(m, ev, pos)
 	}
-	if _, ok := b.(*NonlinearModel); ok {
-		return nil, b.(*NonlinearModel).needLinearize(ev, pos)
+	if m, ok := b.(*lsys.Model); ok {
+		return nil, needLinearize(m, ev, pos)
 	}
 	// Transfer functions.
 	_, ra := a.(*lsys.Rational)
@@ -139,7 +144,7 @@ func (ev *evaluator) binary(op syntax.Token, a, b any, pos syntax.Pos, node *syn
 func (ev *evaluator) scalar(op syntax.Token, a, b any, pos syntax.Pos) (any, error) {
 	fa, okA := a.(float64)
 	fb, okB := b.(float64)
-	inputsFinite := finite(a) && finite(b)
+	inputsFinite := Finite(a) && Finite(b)
 	var r any
 	if okA && okB {
 		switch op {
@@ -159,7 +164,7 @@ func (ev *evaluator) scalar(op syntax.Token, a, b any, pos syntax.Pos) (any, err
 				return nil, ev.errorAt(pos, "zero to a negative power is division by zero", "The base is zero here; check the values it is made of.")
 			}
 			if fa < 0 && fb != math.Trunc(fb) {
-				r = number(cmplx.Pow(complex(fa, 0), complex(fb, 0)))
+				r = Number(cmplx.Pow(complex(fa, 0), complex(fb, 0)))
 			} else {
 				r = math.Pow(fa, fb)
 			}
@@ -168,28 +173,28 @@ func (ev *evaluator) scalar(op syntax.Token, a, b any, pos syntax.Pos) (any, err
 		ca, cb := toComplex(a), toComplex(b)
 		switch op {
 		case syntax.ADD:
-			r = number(ca + cb)
+			r = Number(ca + cb)
 		case syntax.SUB:
-			r = number(ca - cb)
+			r = Number(ca - cb)
 		case syntax.MUL:
-			r = number(ca * cb)
+			r = Number(ca * cb)
 		case syntax.DIV:
 			if cb == 0 {
 				return nil, ev.errorAt(pos, "division by zero", "The divisor is zero here; check the values it is made of.")
 			}
-			r = number(ca / cb)
+			r = Number(ca / cb)
 		case syntax.POW:
 			if ca == 0 && real(cb) < 0 {
 				return nil, ev.errorAt(pos, "zero to a negative power is division by zero", "The base is zero here; check the values it is made of.")
 			}
 			if imag(cb) == 0 && real(cb) == math.Trunc(real(cb)) && math.Abs(real(cb)) <= 64 {
-				r = number(cpowInt(ca, int(real(cb))))
+				r = Number(cpowInt(ca, int(real(cb))))
 			} else {
-				r = number(cmplx.Pow(ca, cb))
+				r = Number(cmplx.Pow(ca, cb))
 			}
 		}
 	}
-	if !finite(r) {
+	if !Finite(r) {
 		if !inputsFinite {
 			if f, ok := r.(float64); ok && math.IsInf(f, 0) {
 				return r, nil
@@ -452,7 +457,7 @@ func (ev *evaluator) systemOp(op syntax.Token, a, b any, pos syntax.Pos) (any, e
 	if op != syntax.ADD && op != syntax.SUB && op != syntax.MUL {
 		hint := "Between systems, * is the series connection and + and - the parallel ones."
 		if op == syntax.DIV {
-			hint = "To close a loop use closeloop(G, K); there is no division of systems."
+			hint = "To close a loop use closeloop(G, through: K); there is no division of systems."
 		}
 		return nil, ev.opError(op, a, b, pos, hint)
 	}
@@ -518,14 +523,14 @@ func (ev *evaluator) systemOp(op syntax.Token, a, b any, pos syntax.Pos) (any, e
 	case syntax.MUL:
 		if ga.M() != gb.P() {
 			return nil, ev.errorAt(pos, fmt.Sprintf("cannot connect in series: the left system has %s but the right one has %s",
-				plural(ga.M(), "input"), plural(gb.P(), "output")),
+				Plural(ga.M(), "input"), Plural(gb.P(), "output")),
 				"In G * K the outputs of K feed the inputs of G, so their numbers must match.")
 		}
 		err = guard(func() (err error) { g, err = lsys.Series(ga, gb); return })
 	case syntax.ADD, syntax.SUB:
 		if ga.M() != gb.M() || ga.P() != gb.P() {
 			return nil, ev.errorAt(pos, fmt.Sprintf("cannot connect in parallel a system with %s and %s to one with %s and %s",
-				plural(ga.M(), "input"), plural(ga.P(), "output"), plural(gb.M(), "input"), plural(gb.P(), "output")),
+				Plural(ga.M(), "input"), Plural(ga.P(), "output"), Plural(gb.M(), "input"), Plural(gb.P(), "output")),
 				"Both sides of + and - need the same numbers of inputs and outputs.")
 		}
 		sign := 1.0
@@ -645,9 +650,9 @@ func asCMatrix(v any) (*mat.CDense, bool) {
 	return nil, false
 }
 
-// realIfPossible turns a complex matrix whose imaginary parts are all
+// RealIfPossible turns a complex matrix whose imaginary parts are all
 // exactly zero into a real one.
-func realIfPossible(m *mat.CDense) any {
+func RealIfPossible(m *mat.CDense) any {
 	r, c := m.Dims()
 	for i := 0; i < r; i++ {
 		for j := 0; j < c; j++ {
@@ -729,12 +734,12 @@ func (ev *evaluator) complexMatrixOp(op syntax.Token, a, b any, pos syntax.Pos) 
 	r, c := out.Dims()
 	for i := 0; i < r; i++ {
 		for j := 0; j < c; j++ {
-			if !finite(out.At(i, j)) {
+			if !Finite(out.At(i, j)) {
 				return nil, ev.errorAt(pos, "the result has entries that are not finite numbers", "Rescale the quantities (other units).")
 			}
 		}
 	}
-	return realIfPossible(out), nil
+	return RealIfPossible(out), nil
 }
 
 func scaleC(m *mat.CDense, k complex128) *mat.CDense {

@@ -1,4 +1,4 @@
-package lang
+package lang_test
 
 import (
 	"context"
@@ -6,6 +6,9 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"lsys/lang"
+	"lsys/lang/builtins"
 )
 
 // TestREADMETourRuns runs the cells of the README's tour (code blocks with
@@ -21,7 +24,7 @@ func TestREADMETourRuns(t *testing.T) {
 	if i := strings.Index(text, "## Language reference"); i >= 0 {
 		text = text[:i]
 	}
-	s := NewSession(Options{Dir: t.TempDir()})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
 	cells := 0
 	var cell []string
 	inBlock, runIt := false, false

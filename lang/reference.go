@@ -2,29 +2,16 @@ package lang
 
 import (
 	"fmt"
-	"sort"
 	"strings"
 )
 
 // Reference returns the language reference in Markdown, generated from the
 // registry: one section per group, one entry per built-in with its
-// signature, help, arguments, doc and examples. The README carries it
+// signature, help, arguments, doc, the fields of its result and examples. The README carries it
 // between the markers <!-- reference:start --> and <!-- reference:end -->.
-func Reference() string {
+func (r *Registry) Reference() string {
 	var b strings.Builder
-	byGroup := map[string][]*Builtin{}
-	for _, bi := range Builtins() {
-		byGroup[bi.Group] = append(byGroup[bi.Group], bi)
-	}
-	groups := append([]string(nil), groupOrder...)
-	var extra []string
-	for g := range byGroup {
-		if !contains(groupOrder, g) {
-			extra = append(extra, g)
-		}
-	}
-	sort.Strings(extra)
-	groups = append(groups, extra...)
+	groups, byGroup := r.ByGroup()
 	b.WriteString("Built-ins by topic:\n")
 	for _, g := range groups {
 		list := byGroup[g]
@@ -67,6 +54,12 @@ func Reference() string {
 			}
 			if bi.Doc != "" {
 				fmt.Fprintf(&b, "\n%s\n", bi.Doc)
+			}
+			if fs := r.fieldsDoc(bi.Returns); len(fs) > 0 {
+				b.WriteString("\n| field of the result | meaning |\n|---|---|\n")
+				for _, f := range fs {
+					fmt.Fprintf(&b, "| `.%s` | %s |\n", f.Name, strings.ReplaceAll(f.Doc, "|", "\\|"))
+				}
 			}
 			for _, ex := range bi.Examples {
 				fmt.Fprintf(&b, "\n```\n%s\n```\n", strings.TrimRight(ex, "\n"))

@@ -1,4 +1,4 @@
-package lang
+package lang_test
 
 import (
 	"flag"
@@ -6,6 +6,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"lsys/lang/builtins"
 )
 
 var update = flag.Bool("update", false, "rewrite the language reference in README.md")
@@ -29,7 +31,7 @@ func TestReferenceInREADME(t *testing.T) {
 	if i < 0 || j < 0 || j < i {
 		t.Fatalf("README.md must contain the markers %s and %s (in that order) where the language reference goes; add them, then run go test ./lang -run Reference -update", refStart, refEnd)
 	}
-	want := refStart + "\n" + Reference() + refEnd
+	want := refStart + "\n" + builtins.Registry().Reference() + refEnd
 	got := text[i : j+len(refEnd)]
 	if got == want {
 		return
@@ -46,13 +48,13 @@ func TestReferenceInREADME(t *testing.T) {
 }
 
 func TestReferenceContents(t *testing.T) {
-	ref := Reference()
-	for _, b := range Builtins() {
+	ref := builtins.Registry().Reference()
+	for _, b := range builtins.Registry().Builtins() {
 		if !strings.Contains(ref, "#### `"+b.Signature()+"`") {
 			t.Errorf("reference lacks %s", b.Name)
 		}
 	}
-	if Reference() != ref {
+	if builtins.Registry().Reference() != ref {
 		t.Error("the reference is not deterministic")
 	}
 }

@@ -1,7 +1,8 @@
-// Package lang is the lsys system-description language: the evaluator and
-// the one registry of built-in functions that drives evaluation,
-// completion, inspection and the language reference. The scanner, syntax
-// tree and parser are in lang/syntax.
+// Package lang is the lsys system-description language: the evaluator, its
+// values, and the public API built-ins are written against (Registry,
+// Builtin, Call, Block). The scanner, syntax tree and parser are in
+// lang/syntax; the built-ins themselves in lang/builtins, whose registry
+// the front ends pass to NewSession.
 //
 // The kernel and the headless runner use it only through Session.
 package lang
@@ -35,6 +36,12 @@ type Output interface {
 	ClearOutput(wait bool)
 }
 
+// Pager is an optional interface of Output: a front end with a pager (the
+// Jupyter page payload) shows long help there instead of in the cell's output.
+type Pager interface {
+	Page(text string)
+}
+
 // Options are what a front end passes to a new session. The language sets
 // no package globals from outside: two sessions with different options can
 // run side by side in one process.
@@ -50,6 +57,10 @@ type Options struct {
 	Text func(v any) (string, bool)
 	// Limits bound one cell's work; zero fields take the defaults.
 	Limits Limits
+	// Builtins is the registry of built-ins the session evaluates with
+	// (front ends pass builtins.Registry() of package lang/builtins); nil
+	// is a language without built-ins.
+	Builtins *Registry
 }
 
 // Limits bound the work of one cell so that a runaway loop or recursion
@@ -57,6 +68,11 @@ type Options struct {
 type Limits struct {
 	Steps int64 // evaluation steps per cell (default MaxSteps)
 	Depth int   // nesting of user function calls (default MaxDepth)
+	// Memory is the budget in bytes for one value a cell makes (a matrix,
+	// a response, a string); default DefaultMemory(). A value over it is
+	// refused with its size and the budget, and the session keeps what it
+	// had.
+	Memory int64
 }
 
 // LanguageInfo describes the language as notebooks record it (the
@@ -68,6 +84,8 @@ func LanguageInfo() map[string]any {
 		"mimetype":       "text/x-lsys",
 		"file_extension": ".lsys",
 		"pygments_lexer": "text",
+		// our own editor mode, shipped in the kernelspec folder (kernel.js)
+		"codemirror_mode": "lsys",
 	}
 }
 
@@ -75,6 +93,7 @@ func LanguageInfo() map[string]any {
 // called from several goroutines (the kernel answers completion requests
 // while a cell runs); Run calls are serialised.
 type Session struct {
+	reg    *Registry
 	dir    string
 	text   func(v any) (string, bool)
 	limits Limits
@@ -87,6 +106,9 @@ type Session struct {
 	// keys are weak: a system nobody holds any more (the thousands a
 	// locus builds) takes its entry with it (see remember).
 	sources map[weak.Pointer[lsys.System]]*blockSource
+	// models does the same for nonlinear models, whose equations only the
+	// block can evaluate.
+	models map[weak.Pointer[lsys.Model]]*blockSource
 }
 
 // NewSession starts an empty session with the given options.
@@ -98,23 +120,41 @@ func NewSession(opt Options) *Session {
 	if lim.Depth <= 0 {
 		lim.Depth = MaxDepth
 	}
-	return &Session{dir: opt.Dir, text: opt.Text, limits: lim, globals: map[string]any{}, sources: map[weak.Pointer[lsys.System]]*blockSource{}}
+	if lim.Memory <= 0 {
+		lim.Memory = DefaultMemory()
+	}
+	return &Session{reg: opt.Builtins, dir: opt.Dir, text: opt.Text, limits: lim, globals: map[string]any{}, sources: map[weak.Pointer[lsys.System]]*blockSource{}, models: map[weak.Pointer[lsys.Model]]*blockSource{}}
 }
 
 // Format is the text form of v as print shows it in this session: the
 // language's own form, or the session's Text option for analysis results.
-func (s *Session) Format(v any) string { return formatValue(v, s.text) }
+func (s *Session) Format(v any) string { return formatValue(v, s.textOrName) }
 
-// remember records the block behind a system built from it; the entry
-// goes when the system is garbage collected.
-func (s *Session) remember(g *lsys.System, bs *blockSource) {
-	wp := weak.Make(g)
+// textOrName is the session's Text option, and for what it does not
+// format the result's kind as the registry names it.
+func (s *Session) textOrName(v any) (string, bool) {
+	if s.text != nil {
+		if t, ok := s.text(v); ok {
+			return t, true
+		}
+	}
+	return "(" + s.reg.TypeName(v) + "; show(x) displays it)", true
+}
+
+// Builtins is the session's registry of built-ins (front ends ask it which
+// words to highlight as built-ins).
+func (s *Session) Builtins() *Registry { return s.reg }
+
+// remember records in m the block behind a system or model built from it;
+// the entry goes when the value is garbage collected.
+func remember[T any](s *Session, m map[weak.Pointer[T]]*blockSource, v *T, bs *blockSource) {
+	wp := weak.Make(v)
 	s.mu.Lock()
-	s.sources[wp] = bs
+	m[wp] = bs
 	s.mu.Unlock()
-	runtime.AddCleanup(g, func(wp weak.Pointer[lsys.System]) {
+	runtime.AddCleanup(v, func(wp weak.Pointer[T]) {
 		s.mu.Lock()
-		delete(s.sources, wp)
+		delete(m, wp)
 		s.mu.Unlock()
 	}, wp)
 }
@@ -127,6 +167,10 @@ func (s *Session) bind(name string, v any) {
 	defer s.mu.Unlock()
 	s.globals[name] = v
 }
+
+// Set binds name to v, as a cell's name = ... does; v should be a value
+// the language hands out (a number, a matrix, an lsys result).
+func (s *Session) Set(name string, v any) { s.bind(name, v) }
 
 // Get returns the value bound to name.
 func (s *Session) Get(name string) (any, bool) {
@@ -175,7 +219,9 @@ func (s *Session) Run(ctx context.Context, src string, out Output) (value any, e
 		syntax.AttachSource(perr, src)
 		return nil, perr
 	}
-	ev := &evaluator{s: s, ctx: ctx, out: out, src: src}
+	g := &guardedOutput{out: out}
+	defer g.close()
+	ev := &evaluator{s: s, ctx: ctx, out: g, src: src}
 	value, err = ev.run(stmts)
 	if err != nil {
 		syntax.AttachSource(err, src)
@@ -211,4 +257,49 @@ func Describe(err error) (kind, headline string, lines []string) {
 		headline = msg[:i]
 	}
 	return "Error", headline, strings.Split(msg, "\n")
+}
+
+// guardedOutput passes a cell's output on until the cell ends; a built-in
+// abandoned at an interrupt (see runBuiltin) may still try to print or
+// show progress, and that must not land in a later cell's output.
+type guardedOutput struct {
+	mu     sync.Mutex
+	out    Output
+	closed bool
+}
+
+func (g *guardedOutput) close() {
+	g.mu.Lock()
+	g.closed = true
+	g.mu.Unlock()
+}
+
+func (g *guardedOutput) do(f func(o Output)) {
+	g.mu.Lock()
+	defer g.mu.Unlock()
+	if !g.closed {
+		f(g.out)
+	}
+}
+
+func (g *guardedOutput) Stdout(text string) { g.do(func(o Output) { o.Stdout(text) }) }
+func (g *guardedOutput) Stderr(text string) { g.do(func(o Output) { o.Stderr(text) }) }
+func (g *guardedOutput) Display(v any, id string) {
+	g.do(func(o Output) { o.Display(v, id) })
+}
+func (g *guardedOutput) UpdateDisplay(v any, id string) {
+	g.do(func(o Output) { o.UpdateDisplay(v, id) })
+}
+func (g *guardedOutput) ClearOutput(wait bool) { g.do(func(o Output) { o.ClearOutput(wait) }) }
+
+// Page forwards to the front end's pager when it has one; otherwise the
+// text goes to stdout, as help does without a pager.
+func (g *guardedOutput) Page(text string) {
+	g.do(func(o Output) {
+		if p, ok := o.(Pager); ok {
+			p.Page(text)
+		} else {
+			o.Stdout(text + "\n")
+		}
+	})
 }

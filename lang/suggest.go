@@ -54,8 +54,8 @@ func closest(name string, candidates []string) string {
 	return ""
 }
 
-// didYouMean returns "; did you mean 'x'?" or "".
-func didYouMean(name string, candidates []string) string {
+// DidYouMean returns "; did you mean 'x'?" or "".
+func DidYouMean(name string, candidates []string) string {
 	if c := closest(name, candidates); c != "" {
 		return fmt.Sprintf("; did you mean '%s'?", c)
 	}

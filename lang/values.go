@@ -161,37 +161,23 @@ func formatValue(v any, text func(any) (string, bool)) string {
 			return t
 		}
 	}
-	return "(" + typeName(v) + "; show(x) displays it)"
+	return "(" + fallbackTypeName(v) + "; show(x) displays it)"
 }
 
 func formatMatrix(dims func() (int, int), at func(i, j int) string) string {
 	r, c := dims()
 	cells := make([][]string, r)
-	width := make([]int, c)
-	for i := 0; i < r; i++ {
+	for i := range cells {
 		cells[i] = make([]string, c)
-		for j := 0; j < c; j++ {
+		for j := range cells[i] {
 			cells[i][j] = at(i, j)
-			width[j] = max(width[j], len(cells[i][j]))
 		}
 	}
-	var b strings.Builder
-	for i := 0; i < r; i++ {
-		if i > 0 {
-			b.WriteByte('\n')
-		}
-		for j := 0; j < c; j++ {
-			if j > 0 {
-				b.WriteString("  ")
-			}
-			b.WriteString(strings.Repeat(" ", width[j]-len(cells[i][j])))
-			b.WriteString(cells[i][j])
-		}
-	}
-	return b.String()
+	return strings.TrimSuffix(numfmt.Columns(cells, "", 0), "\n")
 }
 
-func plural(n int, word string) string {
+// Plural is "1 state", "2 states".
+func Plural(n int, word string) string {
 	if n == 1 {
 		return fmt.Sprintf("%d %s", n, word)
 	}
@@ -204,84 +190,93 @@ func systemSummary(g *lsys.System) string {
 	if g.Ts > 0 {
 		kind = "sampled every " + FormatNumber(g.Ts) + " s"
 	}
-	return fmt.Sprintf("system: %s, %s, %s, %s", plural(g.N(), "state"), plural(g.M(), "input"), plural(g.P(), "output"), kind)
+	return fmt.Sprintf("system: %s, %s, %s, %s", Plural(g.N(), "state"), Plural(g.M(), "input"), Plural(g.P(), "output"), kind)
 }
 
+// systemText is the source that rebuilds the system (numfmt.Source, the
+// same as display's text form) under a comment line with its sizes; when
+// there is none (no outputs, or too large), its signal names.
 func systemText(g *lsys.System) string {
+	at := func(a *mat.Dense) func(i, j int) float64 {
+		return func(i, j int) float64 { return a.At(i, j) }
+	}
+	src := numfmt.Source(numfmt.SystemForm{States: g.StateNames, Inputs: g.InputNames, Outputs: g.OutputNames,
+		A: at(g.A), B: at(g.B), C: at(g.C), D: at(g.D), Every: g.Ts})
+	if src != "" {
+		return "# " + systemSummary(g) + "\n" + src
+	}
 	var b strings.Builder
-	b.WriteString(systemSummary(g))
+	b.WriteString("# " + systemSummary(g))
 	if g.N() > 0 {
-		fmt.Fprintf(&b, "\nstates:  %s", strings.Join(g.StateNames, ", "))
+		fmt.Fprintf(&b, "\n#   states:  %s", strings.Join(g.StateNames, ", "))
 	}
 	if g.M() > 0 {
-		fmt.Fprintf(&b, "\ninputs:  %s", strings.Join(g.InputNames, ", "))
+		fmt.Fprintf(&b, "\n#   inputs:  %s", strings.Join(g.InputNames, ", "))
 	}
 	if g.P() > 0 {
-		fmt.Fprintf(&b, "\noutputs: %s", strings.Join(g.OutputNames, ", "))
+		fmt.Fprintf(&b, "\n#   outputs: %s", strings.Join(g.OutputNames, ", "))
 	}
-	for _, m := range []struct {
-		name string
-		a    *mat.Dense
-	}{{"A", g.A}, {"B", g.B}, {"C", g.C}, {"D", g.D}} {
-		if m.a == nil {
-			continue
-		}
-		fmt.Fprintf(&b, "\n%s =\n", m.name)
-		txt := FormatValue(m.a)
-		b.WriteString("  " + strings.ReplaceAll(txt, "\n", "\n  "))
-	}
+	b.WriteString("\n#   (read the matrices as G.A, G.B, G.C, G.D)")
 	return b.String()
 }
 
-// typeName names the kind of a value for messages ("a number", "a system").
-func typeName(v any) string {
-	switch x := v.(type) {
-	case nil:
-		return "nothing"
-	case float64:
-		return "a number"
-	case complex128:
-		return "a complex number"
-	case bool:
-		return "a boolean"
-	case string:
-		return "a string"
-	case *mat.Dense:
-		r, c := x.Dims()
-		if c == 1 {
-			return fmt.Sprintf("a vector of %d", r)
-		}
-		return fmt.Sprintf("a %dx%d matrix", r, c)
-	case *mat.CDense:
-		r, c := x.Dims()
-		if c == 1 {
-			return fmt.Sprintf("a complex vector of %d", r)
-		}
-		return fmt.Sprintf("a complex %dx%d matrix", r, c)
-	case *Record:
-		return "a record"
-	case *List:
-		return fmt.Sprintf("a list of %d", len(x.Items))
-	case *Function:
-		return "a function"
-	case *Builtin:
-		return "a built-in function"
-	case *lsys.System:
-		return "a system"
-	case *lsys.Rational:
-		return "a transfer function"
-	case *lsys.ModeTable:
-		return "a mode table"
-	case *NonlinearModel:
-		return "a nonlinear model"
-	}
-	if n, ok := typeNames.lookup(v); ok {
+// fallbackTypeName names v without a registry: the language's own types,
+// else words from its Go type name. Session.Format names results with the
+// session's registry before it comes to this.
+func fallbackTypeName(v any) string {
+	if n, ok := builtinTypeName(v); ok {
 		return n
 	}
 	return wordsOfType(v)
 }
 
-// wordsOfType names a value whose type nobody described with RegisterType
+// builtinTypeName names the language's own kinds of value and the lsys
+// types it builds itself; ok is false for any other type.
+func builtinTypeName(v any) (string, bool) {
+	switch x := v.(type) {
+	case nil:
+		return "nothing", true
+	case float64:
+		return "a number", true
+	case complex128:
+		return "a complex number", true
+	case bool:
+		return "a boolean", true
+	case string:
+		return "a string", true
+	case *mat.Dense:
+		r, c := x.Dims()
+		if c == 1 {
+			return fmt.Sprintf("a vector of %d", r), true
+		}
+		return fmt.Sprintf("a %dx%d matrix", r, c), true
+	case *mat.CDense:
+		r, c := x.Dims()
+		if c == 1 {
+			return fmt.Sprintf("a complex vector of %d", r), true
+		}
+		return fmt.Sprintf("a complex %dx%d matrix", r, c), true
+	case *Record:
+		return "a record", true
+	case *List:
+		return fmt.Sprintf("a list of %d", len(x.Items)), true
+	case *Function:
+		return "a function", true
+	case *Builtin:
+		return "a built-in function", true
+	case *lsys.System:
+		return "a system", true
+	case *lsys.Rational:
+		return "a transfer function", true
+	case *lsys.ModeTable:
+		return "a mode table", true
+	case *lsys.Model:
+		return "a nonlinear model", true
+	}
+	return "", false
+}
+
+// wordsOfType names a value whose type no registry describes (Registry.AddType)
 // in words taken from its Go type name (lsys.PoleZeroMap -> "a result: pole
 // zero map"), so that no Go syntax reaches a message.
 func wordsOfType(v any) string {
@@ -307,26 +302,26 @@ func wordsOfType(v any) string {
 // or an empty list when there is nothing (no zeros, no crossovers), so an
 // empty result prints as [] and has length 0 whatever built-in made it.
 
-// realVector is a real column vector.
-func realVector(vals []float64) any {
+// RealVector is a real column vector.
+func RealVector(vals []float64) any {
 	if len(vals) == 0 {
 		return &List{}
 	}
 	return mat.NewDense(len(vals), 1, append([]float64(nil), vals...))
 }
 
-// intVector is a column vector of whole numbers.
-func intVector(vals []int) any {
+// IntVector is a column vector of whole numbers.
+func IntVector(vals []int) any {
 	f := make([]float64, len(vals))
 	for i, v := range vals {
 		f[i] = float64(v)
 	}
-	return realVector(f)
+	return RealVector(f)
 }
 
-// complexVector is a column vector of complex values: a real vector when
+// ComplexVector is a column vector of complex values: a real vector when
 // every imaginary part is zero.
-func complexVector(vals []complex128) any {
+func ComplexVector(vals []complex128) any {
 	if len(vals) == 0 {
 		return &List{}
 	}

@@ -101,7 +101,7 @@ func Parallel(g, h *System, sign float64) (*System, error) {
 	return s, nil
 }
 
-// Feedback closes the loop around g with k in the return path; sign -1 is
+// CloseLoop closes the loop around g with k in the return path; sign -1 is
 // negative feedback (the default of the trade), +1 positive:
 //
 //	u = r + sign*K y,  y = G u.
@@ -112,7 +112,7 @@ func Parallel(g, h *System, sign float64) (*System, error) {
 // reciprocal condition number is below 1e-12) the loop is refused as
 // ill-posed. States are ordered g's first, then k's; outputs are named as
 // g's; the inputs, which carry the reference r, are named r1, r2, ...
-func Feedback(g, k *System, sign float64) (*System, error) {
+func CloseLoop(g, k *System, sign float64) (*System, error) {
 	if g == nil || k == nil {
 		return nil, errors.New("a system is missing")
 	}
@@ -211,14 +211,14 @@ func Stack(systems ...*System) (*System, error) {
 	return out, nil
 }
 
-// Connect joins several blocks by signal name: every input whose name is
+// Wire joins several blocks by signal name: every input whose name is
 // the name of some block's output is fed by that output; the other inputs
 // stay external, and blocks that share an external input name share that
 // input. outputs selects the outputs of the result by name (nil keeps every
 // block output, in block order). Output names must be unique across the
 // blocks, and the algebraic loop through the direct feedthroughs must be
 // well posed (I - P D invertible, reciprocal condition above 1e-12).
-func Connect(systems []*System, outputs []string) (*System, error) {
+func Wire(systems []*System, outputs []string) (*System, error) {
 	if len(systems) == 0 {
 		return nil, errors.New("give at least one system")
 	}

@@ -48,7 +48,7 @@ func closeC(a, b complex128, tol float64) bool {
 	return cmplx.Abs(a-b) <= tol*math.Max(1, cmplx.Abs(b))
 }
 
-func TestSeriesParallelFeedbackClosedForms(t *testing.T) {
+func TestSeriesParallelCloseLoopClosedForms(t *testing.T) {
 	g1 := siso(t, []float64{1}, []float64{1, 1}) // 1/(s+1)
 	g2 := siso(t, []float64{1}, []float64{2, 1}) // 1/(s+2)
 	ser, err := Series(g1, g2)
@@ -75,11 +75,11 @@ func TestSeriesParallelFeedbackClosedForms(t *testing.T) {
 	K := 4.0
 	L := siso(t, []float64{K}, []float64{0, 1, 1})
 	one, _ := NewSystem(0, 1, 1, nil, nil, nil, mat.NewDense(1, 1, []float64{1}), 0)
-	cl, err := Feedback(L, one, -1)
+	cl, err := CloseLoop(L, one, -1)
 	if err != nil {
 		t.Fatal(err)
 	}
-	pos, err := Feedback(L, one, +1)
+	pos, err := CloseLoop(L, one, +1)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -94,7 +94,7 @@ func TestSeriesParallelFeedbackClosedForms(t *testing.T) {
 	}
 	// Static algebraic loop: 2/(1+2*1) = 2/3.
 	two, _ := NewSystem(0, 1, 1, nil, nil, nil, mat.NewDense(1, 1, []float64{2}), 0)
-	st, err := Feedback(two, one, -1)
+	st, err := CloseLoop(two, one, -1)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -102,7 +102,7 @@ func TestSeriesParallelFeedbackClosedForms(t *testing.T) {
 		t.Errorf("static loop: got %v want 2/3", got)
 	}
 	// Ill-posed: 1 with positive unity feedback.
-	if _, err := Feedback(one, one, +1); err == nil {
+	if _, err := CloseLoop(one, one, +1); err == nil {
 		t.Error("ill-posed algebraic loop accepted")
 	}
 }
@@ -140,7 +140,7 @@ func TestInterconnectionNamesAndShapes(t *testing.T) {
 	}
 }
 
-func TestConnectByName(t *testing.T) {
+func TestWireByName(t *testing.T) {
 	// plant: torque -> rate, controller: error -> torque, summing junction:
 	// (ref, rate) -> error = ref - rate. Connecting by name must equal the
 	// unity feedback loop around plant*controller.
@@ -150,7 +150,7 @@ func TestConnectByName(t *testing.T) {
 	ctrl, _ = ctrl.WithNames(nil, []string{"error"}, []string{"torque"})
 	sum, _ := NewSystem(0, 2, 1, nil, nil, nil, mat.NewDense(1, 2, []float64{1, -1}), 0)
 	sum, _ = sum.WithNames(nil, []string{"ref", "rate"}, []string{"error"})
-	cl, err := Connect([]*System{plant, ctrl, sum}, []string{"rate"})
+	cl, err := Wire([]*System{plant, ctrl, sum}, []string{"rate"})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -170,15 +170,15 @@ func TestConnectByName(t *testing.T) {
 			t.Errorf("connect at %v: got %v want %v", s, got, want)
 		}
 	}
-	if _, err := Connect([]*System{plant, plant}, nil); err == nil {
+	if _, err := Wire([]*System{plant, plant}, nil); err == nil {
 		t.Error("two blocks producing the same output accepted")
 	}
-	if _, err := Connect([]*System{plant, ctrl, sum}, []string{"nope"}); err == nil {
+	if _, err := Wire([]*System{plant, ctrl, sum}, []string{"nope"}); err == nil {
 		t.Error("unknown output name accepted")
 	}
 }
 
-func TestFeedbackMIMOAgainstFormula(t *testing.T) {
+func TestCloseLoopMIMOAgainstFormula(t *testing.T) {
 	// T = (I - sign G K)^{-1} G for 2x2 blocks with direct feedthrough
 	// (common practice: the closed-loop transfer matrix with K in the
 	// return path), compared at test points.
@@ -186,7 +186,7 @@ func TestFeedbackMIMOAgainstFormula(t *testing.T) {
 	G2, _ := FromMatrices(G.A, mat.NewDense(4, 2, []float64{1, 0, 0, 1, 1, 1, 0.5, -1}), mat.NewDense(2, 4, []float64{1, 0, 1, 0, 0, 1, 0, 1}), mat.NewDense(2, 2, []float64{0.1, 0, 0.2, 0.3}), 0)
 	K, _ := FromMatrices(mat.NewDense(1, 1, []float64{-5}), mat.NewDense(1, 2, []float64{1, 2}), mat.NewDense(2, 1, []float64{3, -1}), mat.NewDense(2, 2, []float64{0.5, 0.1, 0, 0.4}), 0)
 	for _, sign := range []float64{-1, 1} {
-		cl, err := Feedback(G2, K, sign)
+		cl, err := CloseLoop(G2, K, sign)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -220,12 +220,12 @@ func TestFeedbackMIMOAgainstFormula(t *testing.T) {
 	}
 }
 
-func TestConnectSharedInputAndAllOutputs(t *testing.T) {
+func TestWireSharedInputAndAllOutputs(t *testing.T) {
 	// Two sensors read the same external signal "force"; with outputs nil
 	// every block output is kept, in block order.
 	a, _ := siso(t, []float64{1}, []float64{1, 1}).WithNames(nil, []string{"force"}, []string{"accel"})
 	b, _ := siso(t, []float64{2}, []float64{3, 1}).WithNames(nil, []string{"force"}, []string{"strain"})
-	c, err := Connect([]*System{a, b}, nil)
+	c, err := Wire([]*System{a, b}, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -268,7 +268,7 @@ func TestConnectionNames(t *testing.T) {
 		t.Errorf("sum of two 'trolley' outputs named %q", sum.OutputNames[0])
 	}
 	g.InputNames = []string{"error"}
-	cl, err := Feedback(g, nil1(t), -1)
+	cl, err := CloseLoop(g, nil1(t), -1)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -34,7 +34,7 @@ func ExampleResponseMetrics() {
 // Sampling a first-order lag 1/(s+2) with a zero-order hold every 0.1 s.
 func ExampleSample() {
 	G, _ := lsys.Realize([][]*lsys.Rational{{{Num: lsys.Poly{1}, Den: lsys.Poly{2, 1}}}}, 0)
-	Gd, _ := lsys.Sample(G, 0.1, "zoh", 0)
+	Gd, _ := lsys.Sample(G, 0.1, lsys.ZeroOrderHold, 0)
 	fmt.Printf("pole %.6f (e^-0.2 = 0.818731)\n", Gd.A.At(0, 0))
 	// Output:
 	// pole 0.818731 (e^-0.2 = 0.818731)

@@ -55,7 +55,7 @@ func TestFrequencyClosedForms(t *testing.T) {
 		t.Errorf("adaptive grid peak %g vs resonant peak %g (rel %g)", peak, mr, e)
 	}
 	// a sampled system stops at Nyquist
-	d, _ := Sample(first(1), 0.1, "zoh", 0)
+	d, _ := Sample(first(1), 0.1, ZeroOrderHold, 0)
 	f, _ = Frequency(ctx, d, FrequencyOptions{})
 	if last := f.W[len(f.W)-1]; math.Abs(last-math.Pi/0.1) > 1e-9 {
 		t.Errorf("sampled grid ends at %g, want pi/T", last)

@@ -8,6 +8,8 @@ import (
 	"math/cmplx"
 	"sort"
 	"strings"
+
+	"gonum.org/v1/gonum/mat"
 )
 
 // Margins are the stability margins of a SISO loop transfer function L,
@@ -27,6 +29,19 @@ type Margins struct {
 	PhaseCrossovers []float64 // every w with angle L = -180 + k 360
 	PhaseMargins    []float64 // degrees, 180 + angle L in (-180, 180], at each of GainCrossovers
 	GainMarginsDB   []float64 // dB, -20 log10 |L|, at each of PhaseCrossovers
+
+	// ModulusMargin is the smallest distance of L(jw) from the critical
+	// point -1 over the range, min |1 + L(jw)| (= 1/max|S| for the
+	// sensitivity S = 1/(1 + L)), reached at ModulusFreq (rad/s; +Inf
+	// when only approached as w grows without bound, 0 at zero frequency).
+	ModulusMargin float64
+	ModulusFreq   float64
+	// Distance is |1 + L(jw)| at each frequency of Loop; GainDistances
+	// and PhaseDistances are its values at GainCrossovers and
+	// PhaseCrossovers (2 sin(|PM|/2) and |1 - |L|| there).
+	Distance       []float64
+	GainDistances  []float64
+	PhaseDistances []float64
 
 	Bandwidth     float64 // rad/s: first w where |T| falls 3 dB below |T(0)|; NaN if not found (BandwidthNote says why)
 	BandwidthNote string  // why Bandwidth is NaN
@@ -197,6 +212,7 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 			}
 		}
 	}
+	notes = append(notes, mg.modulus(f, L, val, unit)...)
 	// closed loop T = L/(1+L) on the same grid
 	mg.ResonantPeak = math.Inf(-1)
 	t0 := math.NaN()
@@ -292,7 +308,7 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 	one, err := NewSystem(0, 1, 1, nil, nil, nil, nil, L.Ts)
 	if err == nil {
 		one.D.Set(0, 0, 1)
-		if cl, err := Feedback(L, one, -1); err == nil {
+		if cl, err := CloseLoop(L, one, -1); err == nil {
 			mg.ClosedChecked = true
 			mg.ClosedStable = Stable(cl)
 			if st, err := StabilityOf(cl); err == nil && !mg.ClosedStable && st.Marginal {
@@ -339,4 +355,97 @@ func joinFreqs(ws []float64, unit func(float64) string) string {
 		s = append(s, unit(w))
 	}
 	return strings.Join(s, ", ")
+}
+
+// modulus fills the distance from -1 and the modulus margin: the smallest
+// |1 + L| on the grid, refined by golden-section search in log frequency
+// between the grid neighbours (the same search as the resonant peak). At
+// the upper edge of a continuous strictly proper loop |L| -> 0, so the
+// distance tends to 1 as w grows: that limit is the margin when nothing
+// nearer is found. At the lower edge of a loop with a finite DC gain the
+// value at w = 0 is taken when it is smaller. Otherwise a minimum at an
+// edge of the range gets a note.
+func (mg *Margins) modulus(f *FrequencyResponse, L *System, val func(float64) complex128, unit func(float64) string) []string {
+	dist := func(w float64) float64 { return cabs(1 + val(w)) }
+	mg.ModulusMargin, mg.ModulusFreq = math.Inf(1), math.NaN()
+	mg.Distance = make([]float64, len(f.W))
+	k0 := -1
+	for k := range f.W {
+		d := cabs(1 + f.G[k][0])
+		mg.Distance[k] = d
+		if d < mg.ModulusMargin {
+			mg.ModulusMargin, mg.ModulusFreq, k0 = d, f.W[k], k
+		}
+	}
+	for _, w := range mg.GainCrossovers {
+		mg.GainDistances = append(mg.GainDistances, dist(w))
+	}
+	for _, w := range mg.PhaseCrossovers {
+		mg.PhaseDistances = append(mg.PhaseDistances, dist(w))
+	}
+	n := len(f.W)
+	if k0 < 0 {
+		return nil
+	}
+	if k0 > 0 && k0 < n-1 {
+		w := goldenMin(f.W[k0-1], f.W[k0+1], dist)
+		if d := dist(w); d < mg.ModulusMargin {
+			mg.ModulusMargin, mg.ModulusFreq = d, w
+		}
+		return nil
+	}
+	if k0 == n-1 {
+		if f.Nyquist > 0 && f.W[n-1] >= f.Nyquist*(1-1e-9) {
+			return nil // the Nyquist frequency ends the band: a true edge
+		}
+		if !L.Sampled() && allZero(L.D) && mg.ModulusMargin >= 1-1e-3 {
+			mg.ModulusMargin, mg.ModulusFreq = 1, math.Inf(1)
+			return nil
+		}
+		return []string{"modulus margin: the smallest |1 + L| found lies at " + unit(f.W[n-1]) + ", the upper edge of the range, not at a true minimum"}
+	}
+	if dc, ok := DCGain(L); ok && dc != nil {
+		if d := math.Abs(1 + dc.At(0, 0)); d <= mg.ModulusMargin {
+			mg.ModulusMargin, mg.ModulusFreq = d, 0
+			return nil
+		}
+	}
+	return []string{"modulus margin: the smallest |1 + L| found lies at " + unit(f.W[0]) + ", the lower edge of the range, not at a true minimum"}
+}
+
+// goldenMin returns the w in [a, b] (a > 0) where fn is smallest, for fn
+// unimodal there, by golden-section search in log w (60 steps).
+func goldenMin(a, b float64, fn func(float64) float64) float64 {
+	la, lb := math.Log(a), math.Log(b)
+	g := (math.Sqrt(5) - 1) / 2
+	c, d := lb-g*(lb-la), la+g*(lb-la)
+	fc, fd := fn(math.Exp(c)), fn(math.Exp(d))
+	for i := 0; i < 60; i++ {
+		if fc < fd {
+			lb, d, fd = d, c, fc
+			c = lb - g*(lb-la)
+			fc = fn(math.Exp(c))
+		} else {
+			la, c, fc = c, d, fd
+			d = la + g*(lb-la)
+			fd = fn(math.Exp(d))
+		}
+	}
+	return math.Exp((la + lb) / 2)
+}
+
+// allZero reports whether every entry of a is zero (a nil matrix is).
+func allZero(a *mat.Dense) bool {
+	if a == nil {
+		return true
+	}
+	r, c := a.Dims()
+	for i := 0; i < r; i++ {
+		for j := 0; j < c; j++ {
+			if a.At(i, j) != 0 {
+				return false
+			}
+		}
+	}
+	return true
 }

@@ -313,7 +313,7 @@ func TestMarginsNoCrossoverWhereLoopGainIsZero(t *testing.T) {
 			t.Errorf("phase crossover at the zero 2 rad/s: %v", mg.PhaseCrossovers)
 		}
 	}
-	gz, err := Sample(siso(t, []float64{20}, []float64{2, 3, 1}), 0.1, "tustin", 0)
+	gz, err := Sample(siso(t, []float64{20}, []float64{2, 3, 1}), 0.1, Bilinear, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -323,5 +323,50 @@ func TestMarginsNoCrossoverWhereLoopGainIsZero(t *testing.T) {
 	}
 	if !math.IsInf(mg.GainMarginDB, 1) || len(mg.PhaseCrossovers) != 0 {
 		t.Errorf("gain margin %g dB, phase crossovers %v; want none (|L| = 0 at pi/T)", mg.GainMarginDB, mg.PhaseCrossovers)
+	}
+}
+
+func TestModulusMarginClosedForm(t *testing.T) {
+	// L = K/(s(s + 1)): with x = w^2, |1 + L|^2 = 1 + K (K - 2x)/(x (x + 1)),
+	// smallest where 2x^2 - 2Kx - K = 0, x* = (K + sqrt(K^2 + 2K))/2
+	// (derived by hand from |jw(jw + 1) + K|^2 / |jw(jw + 1)|^2).
+	for _, K := range []float64{0.5, 2, 10, 300} {
+		mg, err := LoopMargins(context.Background(), siso(t, []float64{K}, []float64{0, 1, 1}), FrequencyOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		x := (K + math.Sqrt(K*K+2*K)) / 2
+		want := math.Sqrt(1 + K*(K-2*x)/(x*(x+1)))
+		if math.Abs(mg.ModulusMargin-want) > 1e-12 {
+			t.Errorf("K=%g: modulus margin %.17g, want %.17g", K, mg.ModulusMargin, want)
+		}
+		// the minimum is flat: its place is known to about sqrt(eps)
+		if w := math.Sqrt(x); math.Abs(mg.ModulusFreq-w)/w > 1e-6 {
+			t.Errorf("K=%g: at %g rad/s, want %g", K, mg.ModulusFreq, w)
+		}
+		// at a gain crossover the distance is 2 sin(PM/2) (common practice)
+		if len(mg.GainDistances) != 1 || math.Abs(mg.GainDistances[0]-2*math.Sin(mg.PhaseMargin*math.Pi/360)) > 1e-12 {
+			t.Errorf("K=%g: distance at the gain crossover %v, PM %g", K, mg.GainDistances, mg.PhaseMargin)
+		}
+	}
+}
+
+func TestModulusMarginAtTheEdges(t *testing.T) {
+	// L = K/s: |1 + L| = sqrt(1 + K^2/w^2) falls toward 1 as w grows; the
+	// margin is that limit. L = -0.5/(s + 1) (positive feedback in effect):
+	// |1 + L|^2 = (0.25 + w^2)/(1 + w^2) is smallest at w = 0, 0.5.
+	mg, err := LoopMargins(context.Background(), siso(t, []float64{3}, []float64{0, 1}), FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if mg.ModulusMargin != 1 || !math.IsInf(mg.ModulusFreq, 1) {
+		t.Errorf("K/s: modulus margin %g at %g, want 1 as w -> inf", mg.ModulusMargin, mg.ModulusFreq)
+	}
+	mg, err = LoopMargins(context.Background(), siso(t, []float64{-0.5}, []float64{1, 1}), FrequencyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(mg.ModulusMargin-0.5) > 1e-15 || mg.ModulusFreq != 0 {
+		t.Errorf("-0.5/(s + 1): modulus margin %g at %g, want 0.5 at 0", mg.ModulusMargin, mg.ModulusFreq)
 	}
 }

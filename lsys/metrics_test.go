@@ -117,7 +117,7 @@ func TestMetricsNoOvershootPeakUndefined(t *testing.T) {
 // is first reached at k = 1 (0.39), 90 % at k = 5 (0.918), and the band
 // is entered for good at k = 8 (0.9817; closed form).
 func TestMetricsSampledAtSamples(t *testing.T) {
-	gz, err := Sample(siso(t, []float64{1}, []float64{1, 1}), 0.5, "zoh", 0)
+	gz, err := Sample(siso(t, []float64{1}, []float64{1, 1}), 0.5, ZeroOrderHold, 0)
 	if err != nil {
 		t.Fatal(err)
 	}

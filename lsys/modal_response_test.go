@@ -89,7 +89,7 @@ func TestByModeSampledImpulseWithFeedthrough(t *testing.T) {
 	// A sampled unit-pulse response starts with D at k = 0; the direct
 	// part must carry it so the parts still sum to the response.
 	g := siso(t, []float64{1, 2}, []float64{3, 4, 1})
-	d, err := Sample(g, 0.1, "tustin", 0)
+	d, err := Sample(g, 0.1, Bilinear, 0)
 	if err != nil {
 		t.Fatal(err)
 	}

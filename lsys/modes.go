@@ -173,8 +173,8 @@ func Modes(s *System) (*ModeTable, error) {
 // left and right eigenvectors there, so reachability depends on (A, B)
 // only and observability on (A, C) only. Otherwise the verdicts
 // would depend on units: in SI units a floor of 2000 t driven in N has
-// b = 5e-7 next to k/m = 2000, and a tolerance relative to ||[A B]|| calls
-// every mode unreached; a tolerance on ||C v|| relative to ||[A B]|| is set
+// b = 5e-7 next to k/m = 2000, and a tolerance relative to ||[[A, B]]|| calls
+// every mode unreached; a tolerance on ||C v|| relative to ||[[A, B]]|| is set
 // by the size of B. The reach of a mode is judged against RelTol ||B~||_F
 // and its visibility against RelTol ||C~||_F.
 func ModesTol(s *System, relTol float64) (*ModeTable, error) {

@@ -211,7 +211,7 @@ func TestRealizeTypeIIILoopSteadyState(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	cl, err := Feedback(loop, one, -1)
+	cl, err := CloseLoop(loop, one, -1)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -12,6 +12,12 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
+// How a table's values go between its rows.
+const (
+	HoldLinear    = "linear"     // interpolated linearly (the default)
+	HoldZeroOrder = "zero-order" // each row held until the next
+)
+
 // Signal is an input signal u(t) for Simulate. Build one with Sine, Ramp,
 // StepSignal, TableSignal or FuncSignal. A signal with one channel feeds
 // every input of the system the same value; a table may have one column per
@@ -25,8 +31,8 @@ type Signal struct {
 
 	// Table: times (increasing) and values (one row per time, one column
 	// per channel). Between rows the value is interpolated linearly (Hold
-	// "linear", the default) or held (Hold "zoh"); after the last row the
-	// last value is held.
+	// "linear", the default) or held (Hold HoldZeroOrder); after the last
+	// row the last value is held.
 	T    []float64
 	U    [][]float64
 	Hold string
@@ -111,7 +117,7 @@ func (s Signal) At(t float64, ch int) (float64, error) {
 		if s.T[k] == tt {
 			return s.U[k][ch], nil
 		}
-		if s.Hold == "zoh" {
+		if s.Hold == HoldZeroOrder {
 			return s.U[k-1][ch], nil
 		}
 		f := (tt - s.T[k-1]) / (s.T[k] - s.T[k-1])
@@ -566,7 +572,7 @@ func checkFiniteResponse(r *Response) error {
 // with one column per input drives each input by its own column. For
 // continuous systems the input is taken as linear between samples
 // (first-order hold, exact for ramps and linear-interpolated tables) or, for
-// a table with Hold "zoh" and a step, constant; both are propagated exactly
+// a table with Hold HoldZeroOrder and a step, constant; both are propagated exactly
 // through one block exponential (Van Loan 1978), piece by piece across every
 // row of a table and a delay between samples, so a switch at 0.35 s acts at
 // 0.35 s whatever the step. A sampled system reads the input at its samples:

@@ -42,7 +42,7 @@ type piecewise struct {
 func newPiecewise(g *System, u Signal) *piecewise {
 	m := g.M()
 	pw := &piecewise{g: g, u: u, cache: map[float64]pieceMats{},
-		held: u.Kind == "step" || u.Kind == "table" && u.Hold == "zoh",
+		held: u.Kind == "step" || u.Kind == "table" && u.Hold == HoldZeroOrder,
 		ua:   mat.NewVecDense(m, nil), ub: mat.NewVecDense(m, nil), tmp: mat.NewVecDense(max(g.N(), 1), nil)}
 	if u.Delay > 0 {
 		pw.breaks = append(pw.breaks, u.Delay)
@@ -163,7 +163,7 @@ func (pw *piecewise) piece(x *mat.VecDense, a, b, step float64) error {
 // input only at its samples. Linear tables and other signals are sampled
 // as they are and report 0.
 func sampledTimingError(u Signal, ts float64, until float64) (worst, at float64) {
-	if !(u.Kind == "step" || u.Kind == "table" && u.Hold == "zoh") {
+	if !(u.Kind == "step" || u.Kind == "table" && u.Hold == HoldZeroOrder) {
 		return 0, 0
 	}
 	times := []float64{u.Delay}

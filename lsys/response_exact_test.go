@@ -53,7 +53,7 @@ func TestSimulateTableExactBetweenSamples(t *testing.T) {
 	tb := []float64{0, 0.35, 1.23}
 	ub := []float64{0, 1, -1}
 	rows := [][]float64{{0}, {1}, {-1}}
-	for _, hold := range []string{"zoh", "linear"} {
+	for _, hold := range []string{HoldZeroOrder, HoldLinear} {
 		u, err := TableSignal(tb, rows, "")
 		if err != nil {
 			t.Fatal(err)
@@ -66,7 +66,7 @@ func TestSimulateTableExactBetweenSamples(t *testing.T) {
 			}
 			worst := 0.0
 			for k, tk := range r.T {
-				worst = math.Max(worst, math.Abs(r.Y[0][0][k]-lagTable(tb, ub, hold == "zoh", tk)))
+				worst = math.Max(worst, math.Abs(r.Y[0][0][k]-lagTable(tb, ub, hold == HoldZeroOrder, tk)))
 			}
 			if worst > 1e-12 {
 				t.Errorf("hold %s, dt %g: largest error %.3g against the closed form", hold, dt, worst)
@@ -79,7 +79,7 @@ func TestSimulateTableExactBetweenSamples(t *testing.T) {
 				if !ok {
 					t.Fatalf("hold %s: no exact value between samples", hold)
 				}
-				worst = math.Max(worst, math.Abs(v-lagTable(tb, ub, hold == "zoh", tm)))
+				worst = math.Max(worst, math.Abs(v-lagTable(tb, ub, hold == HoldZeroOrder, tm)))
 			}
 			if worst > 1e-12 {
 				t.Errorf("hold %s, dt %g: largest error between samples %.3g against the closed form", hold, dt, worst)
@@ -110,12 +110,12 @@ func TestSimulateTableExactBetweenSamples(t *testing.T) {
 // at 1.23 s at 1.3 s (0.07 s late, the largest; arithmetic).
 func TestSimulateSampledTableWarnsTiming(t *testing.T) {
 	g := siso(t, []float64{1}, []float64{1, 1})
-	gz, err := Sample(g, 0.1, "zoh", 0)
+	gz, err := Sample(g, 0.1, ZeroOrderHold, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
 	u, _ := TableSignal([]float64{0, 0.35, 1.23}, [][]float64{{0}, {1}, {-1}}, "")
-	u.Hold = "zoh"
+	u.Hold = HoldZeroOrder
 	r, err := Simulate(context.Background(), gz, u, nil, ResponseOptions{Until: 2})
 	if err != nil {
 		t.Fatal(err)

@@ -23,7 +23,7 @@ type responseRef struct {
 		Expm       [][]float64
 		ZOH        refSys `json:"zoh"`
 		FOH        refSys `json:"foh"`
-		Tustin     refSys `json:"tustin"`
+		Bilinear   refSys `json:"tustin"`
 		W          []float64
 		FreqRe     [][]float64 `json:"freq_re"`
 		FreqIm     [][]float64 `json:"freq_im"`
@@ -102,7 +102,7 @@ func TestResponseAgainstReference(t *testing.T) {
 		for _, c := range []struct {
 			method string
 			want   refSys
-		}{{"zoh", r.ZOH}, {"foh", r.FOH}, {"tustin", r.Tustin}} {
+		}{{ZeroOrderHold, r.ZOH}, {FirstOrderHold, r.FOH}, {Bilinear, r.Bilinear}} {
 			d, err := Sample(g, r.T, c.method, 0)
 			if err != nil {
 				t.Fatal(err)
@@ -122,7 +122,7 @@ func TestResponseAgainstReference(t *testing.T) {
 			}
 		}
 		note("frequency response", fe, 1e-9, r.Name)
-		d, _ := Sample(g, r.T, "zoh", 0)
+		d, _ := Sample(g, r.T, ZeroOrderHold, 0)
 		fd, err := Frequency(context.Background(), d, FrequencyOptions{Grid: r.Wd})
 		if err != nil {
 			t.Fatal(err)
@@ -155,7 +155,7 @@ func TestResponseAgainstReference(t *testing.T) {
 		}
 		note("step response", se, 1e-9, r.Name)
 	}
-	for _, k := range []string{"expm", "zoh", "foh", "tustin", "frequency response", "sampled frequency response", "step response"} {
+	for _, k := range []string{"expm", ZeroOrderHold, FirstOrderHold, Bilinear, "frequency response", "sampled frequency response", "step response"} {
 		t.Logf("worst relative error against numpy/scipy, %s: %.3g", k, worst[k])
 	}
 }

@@ -42,7 +42,7 @@ func TestZOHFirstOrderClosedForm(t *testing.T) {
 	// Powell & Workman, Digital Control of Dynamic Systems, 3rd ed., 1998,
 	// Section 4.3, from memory).
 	for _, c := range []struct{ a, T float64 }{{1, 0.1}, {3, 0.5}, {0.2, 2}} {
-		d, err := Sample(first(c.a), c.T, "zoh", 0)
+		d, err := Sample(first(c.a), c.T, ZeroOrderHold, 0)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -56,7 +56,7 @@ func TestZOHFirstOrderClosedForm(t *testing.T) {
 		// FOH: Gamma2 = [T(1-e)/a - 1/a^2 + e(T/a + 1/a^2)]/T, e = e^{-aT}
 		// (integral of e^{-a(T-t)} t/T over [0, T], by hand);
 		// Bd = Gamma1 + (Phi - 1) Gamma2, Dd = Gamma2.
-		f, err := Sample(first(c.a), c.T, "foh", 0)
+		f, err := Sample(first(c.a), c.T, FirstOrderHold, 0)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -75,7 +75,7 @@ func TestTustinFirstOrderAndRoundTrips(t *testing.T) {
 	// Tustin of a/(s+a): Ad = (1 - aT/2)/(1 + aT/2) (common practice, by
 	// substituting s = (2/T)(z-1)/(z+1)).
 	a, T := 2.0, 0.1
-	d, err := Sample(first(a), T, "tustin", 0)
+	d, err := Sample(first(a), T, Bilinear, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -86,7 +86,7 @@ func TestTustinFirstOrderAndRoundTrips(t *testing.T) {
 	for _, c := range []struct {
 		method  string
 		prewarp float64
-	}{{"zoh", 0}, {"foh", 0}, {"tustin", 0}, {"tustin", 4}} {
+	}{{ZeroOrderHold, 0}, {FirstOrderHold, 0}, {Bilinear, 0}, {Bilinear, 4}} {
 		d, err := Sample(g, 0.05, c.method, c.prewarp)
 		if err != nil {
 			t.Fatal(err)
@@ -105,7 +105,7 @@ func TestTustinFirstOrderAndRoundTrips(t *testing.T) {
 	}
 	// Prewarped tustin matches the continuous response exactly at w0.
 	w0 := 4.0
-	d, _ = Sample(g, 0.05, "tustin", w0)
+	d, _ = Sample(g, 0.05, Bilinear, w0)
 	gc := evalSys(t, g, complex(0, w0))[0]
 	hd := newHessenberg(d)
 	out := make([]complex128, 1)
@@ -118,10 +118,10 @@ func TestTustinFirstOrderAndRoundTrips(t *testing.T) {
 	}
 	// A pole at z = -0.5 has no real zoh counterpart.
 	neg, _ := FromMatrices(mat.NewDense(1, 1, []float64{-0.5}), mat.NewDense(1, 1, []float64{1}), mat.NewDense(1, 1, []float64{1}), nil, 0.1)
-	if _, err := Continuous(neg, "zoh", 0); err == nil {
+	if _, err := Continuous(neg, ZeroOrderHold, 0); err == nil {
 		t.Error("zoh inverse of a negative real pole accepted")
 	}
-	if _, err := Sample(stackTwo(g), 0.1, "matched", 0); err == nil {
+	if _, err := Sample(stackTwo(g), 0.1, MatchedPoleZero, 0); err == nil {
 		t.Error("matched accepted a two-input system")
 	}
 }
@@ -208,7 +208,7 @@ func TestSimulateInputs(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	tab.Hold = "zoh"
+	tab.Hold = HoldZeroOrder
 	r, err = Simulate(ctx, first(1), tab, nil, ResponseOptions{Step: 0.1})
 	if err != nil {
 		t.Fatal(err)
@@ -308,7 +308,7 @@ func TestMatchedPoleZero(t *testing.T) {
 	// memory). Relative degree 1: no zero at z = -1 is added.
 	T := 0.1
 	g := siso(t, []float64{1, 1}, []float64{6, 5, 1})
-	d, err := Sample(g, T, "matched", 0)
+	d, err := Sample(g, T, MatchedPoleZero, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -329,7 +329,7 @@ func TestMatchedPoleZero(t *testing.T) {
 		}
 	}
 	// Relative degree 2: 1/((s+2)(s+3)) gets one zero at z = -1.
-	d, err = Sample(siso(t, []float64{1}, []float64{6, 5, 1}), T, "matched", 0)
+	d, err = Sample(siso(t, []float64{1}, []float64{6, 5, 1}), T, MatchedPoleZero, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -370,7 +370,7 @@ func TestSimulateTablePerInput(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	tab.Hold = "zoh"
+	tab.Hold = HoldZeroOrder
 	r, err := Simulate(context.Background(), y, tab, nil, ResponseOptions{Until: 2, Step: 0.01})
 	if err != nil {
 		t.Fatal(err)

@@ -9,31 +9,35 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
-// Sampling methods understood by Sample and Continuous.
+// Sampling methods understood by Sample and Continuous, in the trade's
+// words in full.
 const (
-	MethodZOH     = "zoh"     // zero-order hold: inputs held constant over a period
-	MethodFOH     = "foh"     // first-order (triangle) hold: inputs linear between samples
-	MethodTustin  = "tustin"  // bilinear substitution s = (2/T)(z-1)/(z+1)
-	MethodMatched = "matched" // matched poles and zeros (needs the zeros of the system)
+	ZeroOrderHold   = "zero-order hold"   // inputs held constant over a period
+	FirstOrderHold  = "first-order hold"  // triangle hold: inputs linear between samples
+	Bilinear        = "bilinear"          // the substitution s = (2/T)(z-1)/(z+1), optionally prewarped
+	MatchedPoleZero = "matched pole-zero" // poles and zeros mapped by z = e^(sT) (needs the zeros of the system)
 )
+
+// SampleMethods lists the methods of Sample in the order help shows them.
+var SampleMethods = []string{ZeroOrderHold, FirstOrderHold, Bilinear, MatchedPoleZero}
 
 // Sample returns the sampled equivalent of the continuous system g with
 // period T.
 //
-//   - "zoh": exact for inputs held constant between samples. Phi = e^{AT}
+//   - zero-order hold: exact for inputs held constant between samples. Phi = e^{AT}
 //     and Gamma = int_0^T e^{As} ds B from one exponential of the block
 //     matrix [[A, B], [0, 0]] T (Van Loan 1978, "Computing integrals
 //     involving the matrix exponential", IEEE TAC 23(3):395-404).
-//   - "foh": exact for inputs linear between samples (triangle hold), from
+//   - first-order hold: exact for inputs linear between samples (triangle hold), from
 //     the exponential of [[A, B, 0], [0, 0, I/T], [0, 0, 0]] T giving Phi,
 //     Gamma1, Gamma2; then Bd = Gamma1 + (Phi - I) Gamma2, Cd = C,
 //     Dd = D + C Gamma2 (Franklin, Powell & Workman, Digital Control of
 //     Dynamic Systems, 3rd ed., 1998, Section 6.3.2).
-//   - "tustin": the bilinear substitution with step h = T, or, with
+//   - bilinear: the bilinear substitution with step h = T, or, with
 //     prewarp w0 > 0, h = 2 tan(w0 T/2)/w0 so that the frequency response
 //     agrees exactly at w0. With M = I - hA/2: Ad = M^{-1}(I + hA/2),
 //     Bd = M^{-1} B h, Cd = C M^{-1}, Dd = D + C M^{-1} B h/2.
-//   - "matched" (SISO): the poles and finite zeros of a minimal realization
+//   - matched pole-zero (SISO): the poles and finite zeros of a minimal realization
 //     map by z = e^{sT}; of the zeros at infinity all but one go to z = -1
 //     and one stays at infinity, so a strictly proper system stays strictly
 //     proper (a one-sample computation delay); the gain is matched at
@@ -58,8 +62,8 @@ func Sample(g *System, T float64, method string, prewarp float64) (*System, erro
 	if math.IsNaN(prewarp) || math.IsInf(prewarp, 0) || prewarp < 0 {
 		return nil, fmt.Errorf("the prewarp frequency must be finite and >= 0 rad/s, got %v", prewarp)
 	}
-	if prewarp > 0 && method != MethodTustin {
-		return nil, fmt.Errorf("prewarp applies to the tustin method only, not %q", method)
+	if prewarp > 0 && method != Bilinear {
+		return nil, fmt.Errorf("a prewarp frequency applies to the bilinear method only, not to %q", method)
 	}
 	if prewarp*T/2 >= math.Pi/2 {
 		return nil, fmt.Errorf("the prewarp frequency %g rad/s must be below the Nyquist frequency pi/T = %g rad/s", prewarp, math.Pi/T)
@@ -68,7 +72,7 @@ func Sample(g *System, T float64, method string, prewarp float64) (*System, erro
 	var out *System
 	var err error
 	switch method {
-	case MethodZOH, "":
+	case ZeroOrderHold, "":
 		if n == 0 || m == 0 {
 			out, err = sampleFree(g, T)
 			break
@@ -78,7 +82,7 @@ func Sample(g *System, T float64, method string, prewarp float64) (*System, erro
 			return nil, xerr
 		}
 		out, err = NewSystem(n, m, p, Phi, Gam, g.C, g.D, T)
-	case MethodFOH:
+	case FirstOrderHold:
 		if n == 0 || m == 0 {
 			out, err = sampleFree(g, T)
 			break
@@ -91,16 +95,16 @@ func Sample(g *System, T float64, method string, prewarp float64) (*System, erro
 		PmI.Sub(Phi, identity(n))
 		Bd := add(G1, mul(&PmI, G2))
 		out, err = NewSystem(n, m, p, Phi, Bd, g.C, add(g.D, mul(g.C, G2)), T)
-	case MethodTustin:
+	case Bilinear:
 		h := T
 		if prewarp > 0 {
 			h = 2 * math.Tan(prewarp*T/2) / prewarp
 		}
 		out, err = bilinear(g, h, T)
-	case MethodMatched:
+	case MatchedPoleZero:
 		out, err = matched(g, T)
 	default:
-		return nil, fmt.Errorf("unknown method %q; use \"zoh\", \"foh\", \"tustin\" or \"matched\"", method)
+		return nil, fmt.Errorf("unknown method %q; use \"zero-order hold\", \"first-order hold\", \"bilinear\" or \"matched pole-zero\"", method)
 	}
 	if err != nil {
 		return nil, err
@@ -114,18 +118,18 @@ func Sample(g *System, T float64, method string, prewarp float64) (*System, erro
 // Continuous returns the continuous system whose sampled equivalent is gd,
 // inverting Sample where that is defined:
 //
-//   - "tustin" (with the same prewarp as used for sampling): exact inverse,
+//   - bilinear (with the same prewarp as used for sampling): exact inverse,
 //     needs Ad + I invertible (no pole at z = -1).
-//   - "zoh": the principal matrix logarithm of [[Ad, Bd], [0, I]] divided by
+//   - zero-order hold: the principal matrix logarithm of [[Ad, Bd], [0, I]] divided by
 //     T, by inverse scaling and squaring (Kenney & Laub 1989, "Condition
 //     estimates for matrix functions", SIAM J. Matrix Anal. Appl. 10(2);
 //     Higham, Functions of Matrices, 2008, Section 11.5) with Denman-Beavers
 //     square roots. Defined when Ad has no eigenvalue on the closed negative
 //     real axis; refused otherwise.
-//   - "foh": A from the same logarithm of Ad, then B and D from the linear
+//   - first-order hold: A from the same logarithm of Ad, then B and D from the linear
 //     relations Bd = (M1 + (Ad - I) M2) B and Dd = D + C M2 B, with M1, M2
 //     the hold integrals of the block exponential.
-//   - "matched" is not inverted here.
+//   - matched pole-zero is not inverted here.
 func Continuous(gd *System, method string, prewarp float64) (*System, error) {
 	if gd == nil {
 		return nil, errors.New("the system is missing")
@@ -138,7 +142,7 @@ func Continuous(gd *System, method string, prewarp float64) (*System, error) {
 	var out *System
 	var err error
 	switch method {
-	case MethodTustin:
+	case Bilinear:
 		h := T
 		if prewarp > 0 {
 			if prewarp*T/2 >= math.Pi/2 {
@@ -157,7 +161,7 @@ func Continuous(gd *System, method string, prewarp float64) (*System, error) {
 		var lu mat.LU
 		lu.Factorize(&ApI)
 		if c := lu.Cond(); c > 1e12 || lu.Det() == 0 {
-			return nil, errors.New("the sampled system has a pole at z = -1 (or very near it), which has no continuous counterpart under the tustin map")
+			return nil, errors.New("the sampled system has a pole at z = -1 (or very near it), which has no continuous counterpart under the bilinear map")
 		}
 		var inv mat.Dense
 		if err := lu.SolveTo(&inv, false, identity(n)); err != nil {
@@ -169,7 +173,7 @@ func Continuous(gd *System, method string, prewarp float64) (*System, error) {
 		C := mul(gd.C, M)
 		D := add(gd.D, scale(-1, mul(gd.C, mul(&inv, gd.B))))
 		out, err = NewSystem(n, m, p, A, B, C, D, 0)
-	case MethodZOH, "":
+	case ZeroOrderHold, "":
 		if n == 0 {
 			out, err = NewSystem(0, m, p, nil, nil, nil, gd.D, 0)
 			break
@@ -186,7 +190,7 @@ func Continuous(gd *System, method string, prewarp float64) (*System, error) {
 			B = mat.DenseCopyOf(L.Slice(0, n, n, n+m))
 		}
 		out, err = NewSystem(n, m, p, A, B, gd.C, gd.D, 0)
-	case MethodFOH:
+	case FirstOrderHold:
 		if n == 0 {
 			out, err = NewSystem(0, m, p, nil, nil, nil, gd.D, 0)
 			break
@@ -219,7 +223,7 @@ func Continuous(gd *System, method string, prewarp float64) (*System, error) {
 		D := add(gd.D, scale(-1, mul(gd.C, mul(M2, B))))
 		out, err = NewSystem(n, m, p, A, B, gd.C, D, 0)
 	default:
-		return nil, fmt.Errorf("method %q cannot be inverted here; use \"zoh\", \"foh\" or \"tustin\"", method)
+		return nil, fmt.Errorf("method %q cannot be inverted here; use \"zero-order hold\", \"first-order hold\" or \"bilinear\"", method)
 	}
 	if err != nil {
 		return nil, err
@@ -239,7 +243,7 @@ func bilinear(g *System, h, T float64) (*System, error) {
 	var lu mat.LU
 	lu.Factorize(Mm)
 	if c := lu.Cond(); c > 1e12 || lu.Det() == 0 {
-		return nil, fmt.Errorf("tustin: I - A h/2 is singular (a pole at s = 2/h = %g); choose another period", 2/h)
+		return nil, fmt.Errorf("bilinear: I - A h/2 is singular (a pole at s = 2/h = %g); choose another period", 2/h)
 	}
 	var inv mat.Dense
 	if err := lu.SolveTo(&inv, false, identity(n)); err != nil {
@@ -369,7 +373,7 @@ func logm(F *mat.Dense) (*mat.Dense, error) {
 // matched implements the matched pole-zero method (see Sample).
 func matched(g *System, T float64) (*System, error) {
 	if g.M() != 1 || g.P() != 1 {
-		return nil, fmt.Errorf("the matched method is for one input and one output; this system has %d and %d (sample each channel, or use zoh)", g.M(), g.P())
+		return nil, fmt.Errorf("the matched method is for one input and one output; this system has %d and %d (sample each channel, or use the zero-order hold)", g.M(), g.P())
 	}
 	if g.N() == 0 {
 		return NewSystem(0, 1, 1, nil, nil, nil, g.D, T)

@@ -94,9 +94,9 @@ func (st *Staircase) basis(c0, c1, n int) *mat.Dense {
 // depends on A and B alone and observability on A and C alone, and a
 // relative tolerance means the same in any units: in SI units an actuator
 // entry 1/m = 1e-4 next to stiffness entries k/m = 1e3 would otherwise be
-// dropped by a tolerance relative to ||[A B]||, and steps through the
+// dropped by a tolerance relative to ||[[A, B]]||, and steps through the
 // kinematic entries 1 of x' = v would look small next to k/m. Tol is
-// relTol times the norm of the balanced [A B] (or [A; C]). The reachable
+// relTol times the norm of the balanced [[A, B]] (or [[A], [C]]). The reachable
 // and unobservable subspaces do not depend on these scalings; use
 // LeadingBasis and TrailingBasis to read them in the original coordinates.
 func StaircasesOf(s *System, relTol float64) (reach, observe *Staircase, err error) {
@@ -240,7 +240,7 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 
 // ControllabilityStaircase reduces (A, B) to the staircase form by
 // orthogonal transformations, deciding each rank by a singular value
-// decomposition against tol = relTol * ||[A B]||_F (Van Dooren 1981,
+// decomposition against tol = relTol * ||[[A, B]]||_F (Van Dooren 1981,
 // The generalized eigenstructure problem in linear system theory, IEEE TAC
 // 26(1); Paige 1981, Properties of numerical algorithms related to
 // computing controllability, IEEE TAC 26(1)). The rank of the Krylov matrix

@@ -443,7 +443,7 @@ func Reachable(s *System, relTol float64) (*Subspace, error) {
 	}
 	V := rs.LeadingBasis()
 	sub := newSubspace("reachable subspace", s, s.A, V, math.Max(1e3*float64(s.N())*dlamchE, rs.Tol/math.Max(1, mat.Norm(rs.A, 2))))
-	sub.Note = fmt.Sprintf("controllability staircase of (A, B) balanced together, steps %v, rank tolerance %.3g = %.3g x the norm of the balanced [A B] (smallest kept singular value per step %s, largest dropped %.3g)", rs.Steps, rs.Tol, rs.Tol/stackedNorm(rs.A, rs.B), fmtFloats(rs.StepKept), rs.Dropped)
+	sub.Note = fmt.Sprintf("controllability staircase of (A, B) balanced together, steps %v, rank tolerance %.3g = %.3g x the norm of the balanced [[A, B]] (smallest kept singular value per step %s, largest dropped %.3g)", rs.Steps, rs.Tol, rs.Tol/stackedNorm(rs.A, rs.B), fmtFloats(rs.StepKept), rs.Dropped)
 	return sub, nil
 }
 
@@ -460,7 +460,7 @@ func Unobservable(s *System, relTol float64) (*Subspace, error) {
 	n := s.N()
 	V := os.TrailingBasis()
 	sub := newSubspace("unobservable subspace", s, s.A, V, math.Max(1e3*float64(n)*dlamchE, os.Tol/math.Max(1, mat.Norm(os.A, 2))))
-	sub.Note = fmt.Sprintf("observability staircase of (A, C) balanced together, steps %v, rank tolerance %.3g = %.3g x the norm of the balanced [A; C] (smallest kept singular value per step %s, largest dropped %.3g)", os.Steps, os.Tol, os.Tol/stackedNorm(os.A, os.B), fmtFloats(os.StepKept), os.Dropped)
+	sub.Note = fmt.Sprintf("observability staircase of (A, C) balanced together, steps %v, rank tolerance %.3g = %.3g x the norm of the balanced [[A], [C]] (smallest kept singular value per step %s, largest dropped %.3g)", os.Steps, os.Tol, os.Tol/stackedNorm(os.A, os.B), fmtFloats(os.StepKept), os.Dropped)
 	return sub, nil
 }
 

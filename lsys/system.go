@@ -8,6 +8,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sync"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -31,6 +32,27 @@ type System struct {
 	OutputNames []string // len p
 
 	n, m, p int
+
+	// verdict caches Stability, so that a display reads the verdict
+	// instead of computing it. Shallow copies (WithNames) keep A and share
+	// it; Copy gives the copy its own, since a deep copy may be changed.
+	verdict *stabilityCache
+}
+
+type stabilityCache struct {
+	once sync.Once
+	st   Stability
+	err  error
+}
+
+// Stability is StabilityOf(s), computed once per system (systems are not
+// changed after they are built) and then carried with it.
+func (s *System) Stability() (Stability, error) {
+	if s.verdict == nil {
+		return StabilityOf(s)
+	}
+	s.verdict.once.Do(func() { s.verdict.st, s.verdict.err = StabilityOf(s) })
+	return s.verdict.st, s.verdict.err
 }
 
 // ShapeError reports matrices whose shapes do not fit together. Its message
@@ -92,7 +114,7 @@ func NewSystem(n, m, p int, A, B, C, D *mat.Dense, ts float64) (*System, error) 
 		}
 		return mat.DenseCopyOf(a), nil
 	}
-	s := &System{Ts: ts, n: n, m: m, p: p}
+	s := &System{Ts: ts, n: n, m: m, p: p, verdict: &stabilityCache{}}
 	var err error
 	if s.A, err = check("A", A, n, n); err != nil {
 		return nil, err
@@ -191,6 +213,7 @@ func (s *System) Copy() *System {
 		return mat.DenseCopyOf(a)
 	}
 	c.A, c.B, c.C, c.D = cp(s.A), cp(s.B), cp(s.C), cp(s.D)
+	c.verdict = &stabilityCache{}
 	c.StateNames = append([]string(nil), s.StateNames...)
 	c.InputNames = append([]string(nil), s.InputNames...)
 	c.OutputNames = append([]string(nil), s.OutputNames...)

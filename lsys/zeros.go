@@ -124,8 +124,8 @@ func invariantZeros(s *System, relTol float64) (zeroResult, int, float64, error)
 	}
 	f := &zsys{A: zTr(t.A), B: zTr(t.C), C: zTr(t.B), D: zTr(t.D), n: t.n, m: t.p, p: t.m}
 	nf, mf := f.n, f.m
-	// Compress the columns of [C D]: [C D] W = [0 D~]; the zeros are the
-	// generalized eigenvalues of ([A B] W1, [I 0] W1), W1 the first nf
+	// Compress the columns of [[C, D]]: [[C, D]] W = [[0, D~]]; the zeros are the
+	// generalized eigenvalues of ([[A, B]] W1, [[I, 0]] W1), W1 the first nf
 	// columns of W.
 	var W *mat.Dense
 	if f.p > 0 {
@@ -375,8 +375,8 @@ func zerosClose(a, b []complex128, rel float64) bool {
 // = 1e-4 next to stiffness entries k/m = 1e3 falls below a tolerance
 // relative to the whole pencil. The state scaling T is the balancing
 // iteration of Osborne (1960, On pre-conditioning of matrices, J. ACM 7)
-// and Parlett & Reinsch (1969) applied to the rows of [A B] and columns of
-// [A; C] together; each input column of [B; D] and output row of [C D] is
+// and Parlett & Reinsch (1969) applied to the rows of [[A, B]] and columns of
+// [[A], [C]] together; each input column of [[B], [D]] and output row of [[C, D]] is
 // then scaled to the root-mean-square column norm of A (1 if A = 0). All
 // factors are powers of two, so the scaling itself adds no rounding.
 func balancePencil(A, B, C, D *mat.Dense) (*mat.Dense, *mat.Dense, *mat.Dense, *mat.Dense) {

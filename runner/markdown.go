@@ -7,6 +7,7 @@ import (
 	"unicode"
 
 	"lsys/lang"
+	"lsys/lang/builtins"
 	"lsys/lang/syntax"
 )
 
@@ -143,7 +144,7 @@ func highlight(src string) string {
 			for j < len(rs) && rs[j] != '\n' {
 				j++
 			}
-			span(&b, "c", string(rs[i:j]))
+			span(&b, lang.TokComment, string(rs[i:j]))
 			i = j
 		case r == '"':
 			j := i + 1
@@ -154,7 +155,7 @@ func highlight(src string) string {
 				j++
 			}
 			j = min(j+1, len(rs))
-			span(&b, "s", string(rs[i:j]))
+			span(&b, lang.TokString, string(rs[i:j]))
 			i = j
 		case unicode.IsDigit(r) || (r == '.' && i+1 < len(rs) && unicode.IsDigit(rs[i+1])):
 			j := i
@@ -165,7 +166,7 @@ func highlight(src string) string {
 			if j < len(rs) && rs[j] == 'j' {
 				j++
 			}
-			span(&b, "m", string(rs[i:j]))
+			span(&b, lang.TokNumber, string(rs[i:j]))
 			i = j
 		case unicode.IsLetter(r) || r == '_':
 			j := i
@@ -173,12 +174,12 @@ func highlight(src string) string {
 				j++
 			}
 			word := string(rs[i:j])
-			_, builtin := lang.Lookup(word)
+			_, builtin := builtins.Registry().Lookup(word)
 			switch {
 			case syntax.IsKeyword(word):
-				span(&b, "k", word)
+				span(&b, lang.TokKeyword, word)
 			case builtin && j < len(rs) && rs[j] == '(':
-				span(&b, "b", word)
+				span(&b, lang.TokBuiltin, word)
 			default:
 				b.WriteString(html.EscapeString(word))
 			}
@@ -192,5 +193,5 @@ func highlight(src string) string {
 }
 
 func span(b *strings.Builder, class, text string) {
-	b.WriteString(`<span class="` + class + `">` + html.EscapeString(text) + `</span>`)
+	b.WriteString(`<span class="cm-` + class + `">` + html.EscapeString(text) + `</span>`)
 }

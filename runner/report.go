@@ -8,6 +8,8 @@ import (
 	"html"
 	"regexp"
 	"strings"
+
+	"lsys/lang"
 )
 
 // ReportInfo is what a report's header states besides the notebook.
@@ -51,7 +53,7 @@ func Report(nb *Notebook, res *Result, info ReportInfo) []byte {
 	b.WriteString("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n")
 	b.WriteString("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n")
 	fmt.Fprintf(&b, "<meta name=\"generator\" content=\"lsys %s\">\n", html.EscapeString(info.Version))
-	fmt.Fprintf(&b, "<title>%s</title>\n<style>%s</style>\n</head>\n<body>\n", html.EscapeString(title), reportCSS)
+	fmt.Fprintf(&b, "<title>%s</title>\n<style>%s%s</style>\n</head>\n<body>\n", html.EscapeString(title), reportCSS, lang.TokenCSS(""))
 	b.WriteString("<header class=\"run\">\n")
 	fmt.Fprintf(&b, "<div>Report by <b>lsys %s</b> (lsys run) &middot; inputs %s</div>\n", html.EscapeString(info.Version), html.EscapeString(info.Digest))
 	if res != nil && len(res.Params) > 0 {
@@ -156,7 +158,8 @@ func plainMath(s string) string {
 const reportCSS = `
 :root { --ink: #1a1a1a; --muted: #5a5a5a; --rule: #d0d0d0; --code-bg: #f6f6f4; }
 html { font-family: "DejaVu Sans", "Helvetica Neue", Arial, sans-serif; font-size: 14px; color: var(--ink); }
-body { max-width: 60rem; margin: 0 auto; padding: 1rem 1.5rem 3rem; line-height: 1.45; }
+body { max-width: 1040px; margin: 0 auto; padding: 1rem 1.5rem 3rem; line-height: 1.45; }
+section.md { max-width: 60rem; } /* prose at a reading width; outputs get the 960 px charts and diagrams are drawn for */
 header.run { border-bottom: 2px solid var(--ink); padding-bottom: .5rem; margin-bottom: 1rem; font-size: 12px; color: var(--muted); }
 header.run b { color: var(--ink); }
 table.params { border-collapse: collapse; margin: .5rem 0; font-size: 13px; color: var(--ink); }
@@ -177,7 +180,6 @@ pre.out.error { color: #b00020; border-left: 3px solid #b00020; padding-left: .5
 .notrun { color: var(--muted); font-style: italic; }
 code { font-family: "DejaVu Sans Mono", Menlo, Consolas, monospace; font-size: 92%; background: var(--code-bg); padding: 0 2px; }
 code.tex { display: block; white-space: pre-wrap; font-size: 11px; color: var(--muted); padding: .3rem; }
-.k { color: #7a1f6b; font-weight: bold; } .b { color: #0b4f8a; } .s { color: #2d6a12; } .m { color: #8a4b00; } .c { color: #6b6b6b; font-style: italic; }
 footer { margin-top: 2rem; border-top: 1px solid var(--rule); padding-top: .5rem; font-size: 11px; color: var(--muted); }
 @page { margin: 16mm 14mm; }
 @media print {

@@ -41,7 +41,7 @@ func TestReportStandsAlone(t *testing.T) {
 			i := strings.Index(rep, m)
 			t.Errorf("%s: external reference %q in the report: ...%s...", name, m, rep[max(0, i-60):min(len(rep), i+60)])
 		}
-		for _, want := range []string{"lsys v1.2.3", "sha256:", "@media print", "@page", `<span class="b">`, `<span class="m">`, "data:image/svg+xml;base64,", "<h1>"} {
+		for _, want := range []string{"lsys v1.2.3", "sha256:", "@media print", "@page", `<span class="cm-builtin">`, `<span class="cm-number">`, "data:image/svg+xml;base64,", "<h1>"} {
 			if want == "data:image/svg+xml;base64," && !strings.Contains(string(nb.Encode()), "image/svg+xml") {
 				continue
 			}

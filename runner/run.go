@@ -16,6 +16,7 @@ import (
 
 	"lsys/display"
 	"lsys/lang"
+	"lsys/lang/builtins"
 	"lsys/lang/syntax"
 )
 
@@ -27,6 +28,9 @@ type Options struct {
 	// Progress, when not nil, receives one line per code cell (the
 	// terminal's stderr): long notebooks show where they are.
 	Progress io.Writer
+	// Limits bound each cell (steps, depth, memory); zero values take the
+	// language's defaults.
+	Limits lang.Limits
 }
 
 // Result says what a run did.
@@ -81,7 +85,7 @@ const (
 // lose their stale outputs. err is for problems with the options (an
 // unknown parameter); failing cells are in the Result.
 func Run(ctx context.Context, nb *Notebook, opt Options) (*Result, error) {
-	s := lang.NewSession(lang.Options{Dir: opt.Dir, Text: display.TextOf})
+	s := lang.NewSession(lang.Options{Dir: opt.Dir, Text: display.TextOf, Builtins: builtins.Registry(), Limits: opt.Limits})
 	res := &Result{NotRun: map[int]bool{}}
 	sets, err := parseSets(opt.Set)
 	if err != nil {

@@ -1,9 +1,12 @@
-package lang
+package builtins_test
 
 import (
 	"context"
 	"strings"
 	"testing"
+
+	"lsys/lang"
+	"lsys/lang/builtins"
 )
 
 type pagerOut struct {
@@ -22,7 +25,7 @@ func (*discardOut) UpdateDisplay(any, string) {}
 func (*discardOut) ClearOutput(bool)          {}
 
 func TestHelpPagesOrPrints(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
 	p := &pagerOut{}
 	if _, err := s.Run(context.Background(), "help(modes)", p); err != nil {
 		t.Fatal(err)

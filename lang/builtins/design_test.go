@@ -1,4 +1,4 @@
-package lang
+package builtins_test
 
 import (
 	"math"
@@ -7,6 +7,9 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang"
+	"lsys/lang/builtins"
+	"lsys/lang/langtest"
 	"lsys/lsys"
 )
 
@@ -98,12 +101,12 @@ func TestBuiltinAssign(t *testing.T) {
 func TestBuiltinCovariance(t *testing.T) {
 	// x' = -2 x + 3 w, y = 0.5 x, W = 0.8: RMS = 0.5 * 3 * sqrt(0.8/4)
 	// (closed form, P = b^2 W / (2a)).
-	r := stRun(t, "covariance(system(-2, 3, 0.5), 0.8).rms").(*Record)
+	r := stRun(t, "covariance(system(-2, 3, 0.5), 0.8).rms").(*lang.Record)
 	if v := r.Values[0].(float64); math.Abs(v-1.5*math.Sqrt(0.2)) > 1e-15 {
 		t.Fatalf("RMS = %v", v)
 	}
-	s := NewSession(Options{Dir: t.TempDir()})
-	v, err := s.Run(t.Context(), "covariance(system(-2, 3, 0.5, 1), 0.8)", &recorder{})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	v, err := s.Run(t.Context(), "covariance(system(-2, 3, 0.5, 1), 0.8)", &langtest.Recorder{})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -1,4 +1,4 @@
-package lang
+package builtins
 
 // Built-ins of design and reduction: Lyapunov, Sylvester and Riccati
 // equations, gramians, Hankel singular values, balancing and reduction,
@@ -14,30 +14,28 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang"
 	"lsys/lsys"
 )
 
-// GroupDesign orders these built-ins in the language reference.
-const GroupDesign = "Design and reduction"
-
 func init() {
 	for _, b := range designBuiltins() {
-		Register(b)
+		register(b)
 	}
-	Register(simulateBuiltin())
+	register(simulateBuiltin())
 	registerDesignTypes()
 }
 
 // dsSystemParam is the system argument of every design built-in.
-var dsSystemParam = Param{Name: "system", Doc: "a system, transfer function or linear equation block"}
+var dsSystemParam = lang.Param{Name: "system", Doc: "a system, transfer function or linear equation block"}
 
 // dsWeight reads a weighting or intensity matrix: a number w means w
 // times the identity of size n; a matrix must be n x n.
-func dsWeight(c *Call, name string, n int, what string) (*mat.Dense, error) {
+func dsWeight(c *lang.Call, name string, n int, what string) (*mat.Dense, error) {
 	switch v := c.Value(name).(type) {
 	case float64:
 		if !(v >= 0) || math.IsInf(v, 0) {
-			return nil, c.Errorf(name, "", "%s: %s must be a number >= 0 or a matrix, not %s", c.Builtin.Name, name, FormatNumber(v))
+			return nil, c.Errorf(name, "", "%s: %s must be a number >= 0 or a matrix, not %s", c.Builtin.Name, name, lang.FormatNumber(v))
 		}
 		M := mat.NewDense(n, n, nil)
 		for i := 0; i < n; i++ {
@@ -61,7 +59,7 @@ func dsWeight(c *Call, name string, n int, what string) (*mat.Dense, error) {
 
 // dsPoles reads a list of poles: a real or complex vector, a number or a
 // list of numbers.
-func dsPoles(c *Call, name string) ([]complex128, error) {
+func dsPoles(c *lang.Call, name string) ([]complex128, error) {
 	v := c.Value(name)
 	var out []complex128
 	switch x := v.(type) {
@@ -89,7 +87,7 @@ func dsPoles(c *Call, name string) ([]complex128, error) {
 				out = append(out, x.At(i, j))
 			}
 		}
-	case *List:
+	case *lang.List:
 		for i, it := range x.Items {
 			switch z := it.(type) {
 			case float64:
@@ -121,7 +119,7 @@ func dsComplexList(v []complex128) any {
 		}
 	}
 	if len(v) == 0 {
-		return &List{}
+		return &lang.List{}
 	}
 	if allReal {
 		m := mat.NewDense(len(v), 1, nil)
@@ -137,7 +135,7 @@ func dsComplexList(v []complex128) any {
 	return m
 }
 
-func dsSquare(c *Call, name string) (*mat.Dense, error) {
+func dsSquare(c *lang.Call, name string) (*mat.Dense, error) {
 	M, err := c.Matrix(name)
 	if err != nil {
 		return nil, err
@@ -148,14 +146,15 @@ func dsSquare(c *Call, name string) (*mat.Dense, error) {
 	return M, nil
 }
 
-func designBuiltins() []*Builtin {
+func designBuiltins() []*lang.Builtin {
 	const msd = "G = system([[0, 1], [-4, -0.8]], [0, 0.5], [1, 0], states: [\"position\", \"velocity\"], inputs: [\"force\"], outputs: [\"position\"])\n"
 	const chain = "G = system([[-1, 1, 0, 0], [0, -2, 1, 0], [0, 0, -5, 1], [0, 0, 0, -20]], [0, 0, 0, 20], [1, 0, 0, 0])\n"
 	const dint = "G = system([[0, 1], [0, 0]], [0, 1], [1, 0], states: [\"position\", \"velocity\"], inputs: [\"force\"], outputs: [\"position\"])\n"
-	return []*Builtin{
+	return []*lang.Builtin{
 		{
-			Name: "lyapunov", Group: GroupDesign,
-			Params: []Param{
+			Name: "lyapunov", Group: lang.GroupDesign,
+			Returns: (*lsys.LyapunovSolution)(nil),
+			Params: []lang.Param{
 				{Name: "A", Doc: "a square matrix (or a system: its A)"},
 				{Name: "Q", Doc: "a matrix the size of A (usually symmetric)"},
 				{Name: "sampled", Default: false, Doc: "true: solve the sampled (Stein) form A X A' - X + Q = 0"},
@@ -170,7 +169,7 @@ func designBuiltins() []*Builtin {
 				"For a stable A and Q = B B', X is the reachability gramian.",
 			Examples: []string{"A = [[-1, 2], [0, -3]]\nlyapunov(A, [[1, 0], [0, 1]])",
 				"lyapunov([[0.5, 0.2], [0, -0.4]], identity(2), sampled: true)"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				var A *mat.Dense
 				var err error
 				if _, ok := c.Value("A").(float64); ok {
@@ -190,8 +189,9 @@ func designBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "sylvester", Group: GroupDesign,
-			Params: []Param{
+			Name: "sylvester", Group: lang.GroupDesign,
+			Returns: (*lsys.LyapunovSolution)(nil),
+			Params: []lang.Param{
 				{Name: "A", Doc: "a square matrix"},
 				{Name: "B", Doc: "a square matrix"},
 				{Name: "C", Doc: "a matrix with the rows of A and the columns of B"},
@@ -201,7 +201,7 @@ func designBuiltins() []*Builtin {
 			Doc: "Bartels & Stewart (1972) on the real Schur forms of A and B. The solution is unique unless A and -B " +
 				"share an eigenvalue (sampled: an eigenvalue of A is the reciprocal of one of B); the result then says so.",
 			Examples: []string{"sylvester([[-1, 1], [0, -2]], [[-3]], [[1], [2]])"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				var A, B, C *mat.Dense
 				var sampled bool
 				if err := c.Bind("A", &A, "B", &B, "C", &C, "sampled", &sampled); err != nil {
@@ -211,8 +211,9 @@ func designBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "riccati", Group: GroupDesign,
-			Params: []Param{
+			Name: "riccati", Group: lang.GroupDesign,
+			Returns: (*lsys.RiccatiSolution)(nil),
+			Params: []lang.Param{
 				{Name: "A", Doc: "a square matrix (n x n)"},
 				{Name: "B", Doc: "the input matrix (n x m)"},
 				{Name: "Q", Doc: "the state weight (n x n, symmetric, positive semidefinite); a number q means q times the identity"},
@@ -233,7 +234,7 @@ func designBuiltins() []*Builtin {
 				"There is no stabilizing solution when a mode on or beyond the stability boundary is not reachable, or " +
 				"an axis mode is not weighted by Q; the error says so.",
 			Examples: []string{"riccati([[0, 1], [0, 0]], [[0], [1]], identity(2), 1)"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				A, err := dsSquare(c, "A")
 				if err != nil {
 					return nil, err
@@ -267,9 +268,10 @@ func designBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "gramians", Group: GroupDesign,
-			Params: []Param{dsSystemParam},
-			Help:   "The reachability and observability gramians of a stable system, their conditions and the Hankel singular values.",
+			Name: "gramians", Group: lang.GroupDesign,
+			Returns: (*lsys.Gramians)(nil),
+			Params:  []lang.Param{dsSystemParam},
+			Help:    "The reachability and observability gramians of a stable system, their conditions and the Hankel singular values.",
 			Doc: "P solves A P + P A' + B B' = 0 and Q solves A'Q + Q A + C'C = 0 (sampled: A P A' - P + B B' = 0 and " +
 				"A'Q A - Q + C'C = 0), by Bartels & Stewart. P says how much input energy each direction of the state " +
 				"needs (a small eigenvalue: hard to reach), Q how much output energy a state gives (small: hard to see). " +
@@ -278,7 +280,7 @@ func designBuiltins() []*Builtin {
 				"so that small values keep their accuracy. An unstable system has no finite gramians: the error " +
 				"names the modes.",
 			Examples: []string{msd + "gramians(G)"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				g, err := c.System("system")
 				if err != nil {
 					return nil, err
@@ -287,15 +289,16 @@ func designBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "hankel", Group: GroupDesign,
-			Params: []Param{dsSystemParam},
-			Help:   "The Hankel singular values of a system's stable part, largest first, with a chart: how much each balanced state matters.",
+			Name: "hankel", Group: lang.GroupDesign,
+			Returns: (*lsys.HankelValues)(nil),
+			Params:  []lang.Param{dsSystemParam},
+			Help:    "The Hankel singular values of a system's stable part, largest first, with a chart: how much each balanced state matters.",
 			Doc: "The Hankel singular values measure how strongly each state of the balanced realization is both driven " +
 				"by the inputs and seen at the outputs; states with small values can be removed (reduce). Unstable " +
 				"modes have none (their energy is unbounded): they are split off (ordered Schur form and a Sylvester " +
 				"equation) and counted separately. Values below n u times the largest are zero to working precision.",
 			Examples: []string{chain + "hankel(G)"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				g, err := c.System("system")
 				if err != nil {
 					return nil, err
@@ -304,15 +307,16 @@ func designBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "balanced", Group: GroupDesign,
-			Params: []Param{dsSystemParam},
-			Help:   "The balanced realization of a stable minimal system (equal, diagonal gramians) with its transformation T.",
+			Name: "balanced", Group: lang.GroupDesign,
+			Returns: (*lsys.Balanced)(nil),
+			Params:  []lang.Param{dsSystemParam},
+			Help:    "The balanced realization of a stable minimal system (equal, diagonal gramians) with its transformation T.",
 			Doc: "The square-root method (Laub, Heath, Paige & Ward 1987): from the gramian factors, Lo'Lc = U S V', " +
 				"T = S^(-1/2) U' Lo' and T^-1 = Lc V S^(-1/2); the new states are xb = T x and both gramians of the " +
 				"balanced system equal diag(S). The condition of T and the achieved balance are shown. A nonminimal " +
 				"system (a Hankel singular value zero to working precision) is refused: reduce removes those states.",
 			Examples: []string{msd + "b = balanced(G)\nb.T"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				g, err := c.System("system")
 				if err != nil {
 					return nil, err
@@ -321,8 +325,9 @@ func designBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "reduce", Group: GroupDesign,
-			Params: []Param{
+			Name: "reduce", Group: lang.GroupDesign,
+			Returns: (*lsys.Reduction)(nil),
+			Params: []lang.Param{
 				dsSystemParam,
 				{Name: "order", Optional: true, Doc: "the number of states to keep (unstable modes included)"},
 				{Name: "tol", Optional: true, Doc: "the largest gain error allowed: the smallest order whose error bound is at most tol"},
@@ -338,7 +343,7 @@ func designBuiltins() []*Builtin {
 				"responses of the full and the reduced model. Unstable modes are split off first and kept whole; the " +
 				"display says how many. r.reduced is the reduced system.",
 			Examples: []string{chain + "reduce(G, order: 2)", chain + "r = reduce(G, tol: 0.01, steady: true)\nr.reduced"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				g, err := c.System("system")
 				if err != nil {
 					return nil, err
@@ -360,8 +365,9 @@ func designBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "norm", Group: GroupDesign,
-			Params: []Param{
+			Name: "norm", Group: lang.GroupDesign,
+			Returns: (*lsys.Norm)(nil),
+			Params: []lang.Param{
 				dsSystemParam,
 				{Name: "kind", Default: 2.0, Doc: "2 for the H2 norm, inf for the H-infinity norm"},
 			},
@@ -373,7 +379,7 @@ func designBuiltins() []*Builtin {
 				"sampled systems through the bilinear map, which keeps the norm. An unstable system has infinite norms, " +
 				"with the modes named. n.value is the number.",
 			Examples: []string{msd + "norm(G, inf)", msd + "norm(G, 2)"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				g, err := c.System("system")
 				if err != nil {
 					return nil, err
@@ -388,12 +394,13 @@ func designBuiltins() []*Builtin {
 				case math.IsInf(k, 1):
 					return lsys.HinfNorm(g)
 				}
-				return nil, c.Errorf("kind", "Write norm(G, 2) or norm(G, inf).", "norm: the kind must be 2 or inf, not %s", FormatNumber(k))
+				return nil, c.Errorf("kind", "Write norm(G, 2) or norm(G, inf).", "norm: the kind must be 2 or inf, not %s", lang.FormatNumber(k))
 			},
 		},
 		{
-			Name: "regulator", Group: GroupDesign,
-			Params: []Param{
+			Name: "regulator", Group: lang.GroupDesign,
+			Returns: (*lsys.Regulator)(nil),
+			Params: []lang.Param{
 				dsSystemParam,
 				{Name: "Q", Doc: "the state weight (n x n, symmetric, positive semidefinite); a number q means q times the identity"},
 				{Name: "R", Doc: "the input weight (m x m, symmetric, positive definite); a number r means r times the identity"},
@@ -405,7 +412,7 @@ func designBuiltins() []*Builtin {
 				"solution, and the modes of the closed loop x' = (A - B K) x. r.K is the gain, r.closed the closed-loop " +
 				"system (input: a reference added to -K x), r.X the Riccati solution.",
 			Examples: []string{dint + "regulator(G, identity(2), 1)", msd + "r = regulator(G, [[10, 0], [0, 1]], 0.1)\nr.K"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				g, err := c.System("system")
 				if err != nil {
 					return nil, err
@@ -429,8 +436,9 @@ func designBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "estimator", Group: GroupDesign,
-			Params: []Param{
+			Name: "estimator", Group: lang.GroupDesign,
+			Returns: (*lsys.Estimator)(nil),
+			Params: []lang.Param{
 				dsSystemParam,
 				{Name: "W", Doc: "the intensity of white noise on the inputs (m x m; a number w means w times the identity): the process noise enters where the inputs do"},
 				{Name: "V", Doc: "the intensity of white measurement noise on the outputs (p x p; a number v means v times the identity)"},
@@ -442,7 +450,7 @@ func designBuiltins() []*Builtin {
 				"The error modes are the eigenvalues of A - L C. To put noise on states the inputs do not reach, " +
 				"give the system an input for it. e.L is the gain, e.P the error covariance.",
 			Examples: []string{msd + "estimator(G, 1, 0.01)"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				g, err := c.System("system")
 				if err != nil {
 					return nil, err
@@ -462,8 +470,9 @@ func designBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "assign", Group: GroupDesign,
-			Params: []Param{
+			Name: "assign", Group: lang.GroupDesign,
+			Returns: (*lsys.Assignment)(nil),
+			Params: []lang.Param{
 				dsSystemParam,
 				{Name: "poles", Doc: "the closed-loop poles, one per state; complex ones in conjugate pairs"},
 				{Name: "observer", Default: false, Doc: "true: an observer gain L placing the eigenvalues of A - L C"},
@@ -476,7 +485,7 @@ func designBuiltins() []*Builtin {
 				"(the outputs cannot see, for an observer) is named in the error. A pole may repeat at most as many " +
 				"times as there are inputs. a.K is the gain (a.L for an observer).",
 			Examples: []string{msd + "assign(G, [-2 + 2j, -2 - 2j])", msd + "assign(G, [-10, -12], observer: true)"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				g, err := c.System("system")
 				if err != nil {
 					return nil, err
@@ -493,8 +502,9 @@ func designBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "covariance", Group: GroupDesign,
-			Params: []Param{
+			Name: "covariance", Group: lang.GroupDesign,
+			Returns: (*lsys.Covariance)(nil),
+			Params: []lang.Param{
 				dsSystemParam,
 				{Name: "intensity", Default: 1.0, Doc: "the intensity W of the white noise on the inputs (m x m; a number w means w times the identity)"},
 			},
@@ -508,7 +518,7 @@ func designBuiltins() []*Builtin {
 				"its integral over all frequencies. For a shaped disturbance (a road, wind, a sensor's drift), put " +
 				"the shaping filter in series in front: covariance(series(G, filter), w). c.rms lists the RMS values.",
 			Examples: []string{msd + "covariance(G, 0.2)"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				g, err := c.System("system")
 				if err != nil {
 					return nil, err
@@ -527,215 +537,120 @@ func designBuiltins() []*Builtin {
 }
 
 func registerDesignTypes() {
-	RegisterType((*lsys.LyapunovSolution)(nil), TypeInfo{Name: "a matrix-equation solution", Fields: []string{"X", "residual", "singular"},
-		Field: func(v any, name string) (any, bool) {
-			s := v.(*lsys.LyapunovSolution)
-			switch name {
-			case "X":
-				return s.X, true
-			case "residual":
-				return s.Residual, true
-			case "singular":
-				return s.Singular, true
+	registerType((*lsys.LyapunovSolution)(nil), lang.TypeInfo{Name: "a matrix-equation solution", Fields: []lang.Field{
+		lang.FieldOf("X", "the solution", func(s *lsys.LyapunovSolution) any { return s.X }),
+		lang.FieldOf("residual", "the backward error of X: near 1e-16 is as good as the data allow", func(s *lsys.LyapunovSolution) any { return s.Residual }),
+		lang.FieldOf("singular", "true when the equation is (nearly) singular and X is not to be trusted", func(s *lsys.LyapunovSolution) any { return s.Singular }),
+	}})
+	registerType((*lsys.RiccatiSolution)(nil), lang.TypeInfo{Name: "a Riccati solution", Fields: []lang.Field{
+		lang.FieldOf("X", "the stabilizing solution", func(s *lsys.RiccatiSolution) any { return s.X }),
+		lang.FieldOf("K", "the gain it gives, R^-1 (B' X + N')", func(s *lsys.RiccatiSolution) any { return s.K }),
+		lang.FieldOf("residual", "the backward error of X", func(s *lsys.RiccatiSolution) any { return s.Residual }),
+		lang.FieldOf("closed", "the closed-loop eigenvalues, of A - B K", func(s *lsys.RiccatiSolution) any { return dsComplexList(s.ClosedLoop) }),
+		lang.FieldOf("stable", "whether they are all strictly stable", func(s *lsys.RiccatiSolution) any { return s.Stable }),
+	}})
+	registerType((*lsys.Gramians)(nil), lang.TypeInfo{Name: "gramians", Fields: []lang.Field{
+		lang.FieldOf("P", "the controllability gramian", func(g *lsys.Gramians) any { return g.P }),
+		lang.FieldOf("Q", "the observability gramian", func(g *lsys.Gramians) any { return g.Q }),
+		lang.FieldOf("hsv", "the Hankel singular values, largest first", func(g *lsys.Gramians) any { return dsVector(g.HSV) }),
+	}})
+	registerType((*lsys.HankelValues)(nil), lang.TypeInfo{Name: "Hankel singular values", Fields: []lang.Field{
+		lang.FieldOf("values", "the Hankel singular values of the stable part, largest first", func(h *lsys.HankelValues) any {
+			if len(h.HSV) == 0 {
+				return &lang.List{}
 			}
-			return nil, false
-		}})
-	RegisterType((*lsys.RiccatiSolution)(nil), TypeInfo{Name: "a Riccati solution", Fields: []string{"X", "K", "residual", "closed", "stable"},
-		Field: func(v any, name string) (any, bool) {
-			s := v.(*lsys.RiccatiSolution)
-			switch name {
-			case "X":
-				return s.X, true
-			case "K":
-				return s.K, true
-			case "residual":
-				return s.Residual, true
-			case "closed":
-				return dsComplexList(s.ClosedLoop), true
-			case "stable":
-				return s.Stable, true
+			return dsVector(h.HSV)
+		}),
+		lang.FieldOf("unstable", "the number of unstable modes (they have none)", func(h *lsys.HankelValues) any { return float64(h.Unstable) }),
+	}})
+	registerType((*lsys.Balanced)(nil), lang.TypeInfo{Name: "a balanced realization", Fields: []lang.Field{
+		lang.FieldOf("system", "the balanced system", func(b *lsys.Balanced) any { return b.System }),
+		lang.FieldOf("T", "the transformation to balanced coordinates", func(b *lsys.Balanced) any { return b.T }),
+		lang.FieldOf("Tinv", "its inverse", func(b *lsys.Balanced) any { return b.Tinv }),
+		lang.FieldOf("hsv", "the Hankel singular values, largest first", func(b *lsys.Balanced) any { return dsVector(b.HSV) }),
+	}})
+	registerType((*lsys.Reduction)(nil), lang.TypeInfo{Name: "a model reduction", Fields: []lang.Field{
+		lang.FieldOf("reduced", "the reduced system", func(r *lsys.Reduction) any { return r.Reduced }),
+		lang.FieldOf("order", "its number of states", func(r *lsys.Reduction) any { return float64(r.Reduced.N()) }),
+		lang.FieldOf("bound", "2 x the sum of the discarded Hankel singular values: no frequency has a larger gain error", func(r *lsys.Reduction) any { return r.Bound }),
+		lang.FieldOf("error", "the H-infinity norm of the difference, the true largest gain error", func(r *lsys.Reduction) any { return r.Error }),
+		lang.FieldOf("hsv", "the Hankel singular values of the stable part, largest first", func(r *lsys.Reduction) any { return dsVector(r.HSV) }),
+	}})
+	registerType((*lsys.Norm)(nil), lang.TypeInfo{Name: "a system norm", Fields: []lang.Field{
+		lang.FieldOf("value", "the norm; inf when it is infinite", func(n *lsys.Norm) any { return n.Value }),
+		lang.FieldOf("peak", "rad/s where the H-infinity norm is reached (norm(G, inf) only)", func(n *lsys.Norm) any {
+			if n.Kind != "inf" {
+				return nil
 			}
-			return nil, false
-		}})
-	RegisterType((*lsys.Gramians)(nil), TypeInfo{Name: "gramians", Fields: []string{"P", "Q", "hsv"},
-		Field: func(v any, name string) (any, bool) {
-			g := v.(*lsys.Gramians)
-			switch name {
-			case "P":
-				return g.P, true
-			case "Q":
-				return g.Q, true
-			case "hsv":
-				return dsVector(g.HSV), true
+			return n.Peak
+		}),
+	}})
+	registerType((*lsys.Regulator)(nil), lang.TypeInfo{Name: "a regulator", Fields: []lang.Field{
+		lang.FieldOf("K", "the state-feedback gain, u = -K x", func(r *lsys.Regulator) any { return r.K }),
+		lang.FieldOf("X", "the Riccati solution", func(r *lsys.Regulator) any { return r.Riccati.X }),
+		lang.FieldOf("closed", "the closed-loop system", func(r *lsys.Regulator) any { return r.ClosedLoop }),
+		lang.FieldOf("modes", "the closed-loop modes", func(r *lsys.Regulator) any { return r.Modes }),
+	}})
+	registerType((*lsys.Estimator)(nil), lang.TypeInfo{Name: "an estimator", Fields: []lang.Field{
+		lang.FieldOf("L", "the estimator gain", func(e *lsys.Estimator) any { return e.L }),
+		lang.FieldOf("P", "the steady-state error covariance", func(e *lsys.Estimator) any { return e.P }),
+		lang.FieldOf("modes", "the modes of the estimation error", func(e *lsys.Estimator) any { return e.Modes }),
+	}})
+	registerType((*lsys.Assignment)(nil), lang.TypeInfo{Name: "a pole assignment", Fields: []lang.Field{
+		lang.FieldOf("K", "the state-feedback gain (not for an observer)", func(a *lsys.Assignment) any {
+			if a.Observer {
+				return nil
 			}
-			return nil, false
-		}})
-	RegisterType((*lsys.HankelValues)(nil), TypeInfo{Name: "Hankel singular values", Fields: []string{"values", "unstable"},
-		Field: func(v any, name string) (any, bool) {
-			h := v.(*lsys.HankelValues)
-			switch name {
-			case "values":
-				if len(h.HSV) == 0 {
-					return &List{}, true
-				}
-				return dsVector(h.HSV), true
-			case "unstable":
-				return float64(h.Unstable), true
+			return a.Gain
+		}),
+		lang.FieldOf("L", "the observer gain (observers only)", func(a *lsys.Assignment) any {
+			if !a.Observer {
+				return nil
 			}
-			return nil, false
-		}})
-	RegisterType((*lsys.Balanced)(nil), TypeInfo{Name: "a balanced realization", Fields: []string{"system", "T", "Tinv", "hsv"},
-		Field: func(v any, name string) (any, bool) {
-			b := v.(*lsys.Balanced)
-			switch name {
-			case "system":
-				return b.System, true
-			case "T":
-				return b.T, true
-			case "Tinv":
-				return b.Tinv, true
-			case "hsv":
-				return dsVector(b.HSV), true
+			return a.Gain
+		}),
+		lang.FieldOf("poles", "the poles achieved, in the order requested", func(a *lsys.Assignment) any { return dsComplexList(a.Achieved) }),
+		lang.FieldOf("cond", "the condition number of the closed-loop eigenvectors: small is robust", func(a *lsys.Assignment) any { return a.CondX }),
+	}})
+	rows := func(v [][]float64) any {
+		if len(v) == 0 || len(v[0]) == 0 {
+			return nil
+		}
+		m := mat.NewDense(len(v), len(v[0]), nil)
+		for k, r := range v {
+			m.SetRow(k, r)
+		}
+		return m
+	}
+	registerType((*lsys.Simulation)(nil), lang.TypeInfo{Name: "a simulation", Fields: []lang.Field{
+		lang.FieldOf("t", "the output times in s", func(s *lsys.Simulation) any { return dsVector(s.T) }),
+		lang.FieldOf("x", "the states, one row per time", func(s *lsys.Simulation) any { return rows(s.X) }),
+		lang.FieldOf("y", "the outputs, one row per time", func(s *lsys.Simulation) any { return rows(s.Y) }),
+		lang.FieldOf("linear", "the linear model's outputs on the same times (with linear: only)", func(s *lsys.Simulation) any {
+			if s.Linear == nil {
+				return nil
 			}
-			return nil, false
-		}})
-	RegisterType((*lsys.Reduction)(nil), TypeInfo{Name: "a model reduction", Fields: []string{"reduced", "order", "bound", "error", "hsv"},
-		Field: func(v any, name string) (any, bool) {
-			r := v.(*lsys.Reduction)
-			switch name {
-			case "reduced":
-				return r.Reduced, true
-			case "order":
-				return float64(r.Reduced.N()), true
-			case "bound":
-				return r.Bound, true
-			case "error":
-				return r.Error, true
-			case "hsv":
-				return dsVector(r.HSV), true
+			return rows(s.Linear)
+		}),
+	}})
+	registerType((*lsys.Covariance)(nil), lang.TypeInfo{Name: "a noise response", Fields: []lang.Field{
+		lang.FieldOf("rms", "the RMS value of each output, a record by output name", func(cv *lsys.Covariance) any { return numberRecord(cv.System.OutputNames, cv.RMS) }),
+		lang.FieldOf("outputs", "the covariance of the outputs", func(cv *lsys.Covariance) any { return cv.Outputs }),
+		lang.FieldOf("states", "the covariance of the states", func(cv *lsys.Covariance) any {
+			if cv.States == nil {
+				return &lang.List{}
 			}
-			return nil, false
-		}})
-	RegisterType((*lsys.Norm)(nil), TypeInfo{Name: "a system norm", Fields: []string{"value", "peak"},
-		Field: func(v any, name string) (any, bool) {
-			n := v.(*lsys.Norm)
-			switch name {
-			case "value":
-				return n.Value, true
-			case "peak":
-				if n.Kind != "inf" {
-					return nil, false
-				}
-				return n.Peak, true
-			}
-			return nil, false
-		}})
-	RegisterType((*lsys.Regulator)(nil), TypeInfo{Name: "a regulator", Fields: []string{"K", "X", "closed", "modes"},
-		Field: func(v any, name string) (any, bool) {
-			r := v.(*lsys.Regulator)
-			switch name {
-			case "K":
-				return r.K, true
-			case "X":
-				return r.Riccati.X, true
-			case "closed":
-				return r.ClosedLoop, true
-			case "modes":
-				return r.Modes, true
-			}
-			return nil, false
-		}})
-	RegisterType((*lsys.Estimator)(nil), TypeInfo{Name: "an estimator", Fields: []string{"L", "P", "modes"},
-		Field: func(v any, name string) (any, bool) {
-			e := v.(*lsys.Estimator)
-			switch name {
-			case "L":
-				return e.L, true
-			case "P":
-				return e.P, true
-			case "modes":
-				return e.Modes, true
-			}
-			return nil, false
-		}})
-	RegisterType((*lsys.Assignment)(nil), TypeInfo{Name: "a pole assignment", Fields: []string{"K", "L", "poles", "cond"},
-		FieldNames: func(v any) []string {
-			if v.(*lsys.Assignment).Observer {
-				return []string{"L", "poles", "cond"}
-			}
-			return []string{"K", "poles", "cond"}
-		},
-		Field: func(v any, name string) (any, bool) {
-			a := v.(*lsys.Assignment)
-			switch name {
-			case "K":
-				if a.Observer {
-					return nil, false
-				}
-				return a.Gain, true
-			case "L":
-				if !a.Observer {
-					return nil, false
-				}
-				return a.Gain, true
-			case "poles":
-				return dsComplexList(a.Achieved), true
-			case "cond":
-				return a.CondX, true
-			}
-			return nil, false
-		}})
-	RegisterType((*lsys.Simulation)(nil), TypeInfo{Name: "a simulation", Fields: []string{"t", "x", "y", "linear"},
-		Field: func(v any, name string) (any, bool) {
-			s := v.(*lsys.Simulation)
-			rows := func(v [][]float64) *mat.Dense {
-				if len(v) == 0 || len(v[0]) == 0 {
-					return nil
-				}
-				m := mat.NewDense(len(v), len(v[0]), nil)
-				for k, r := range v {
-					m.SetRow(k, r)
-				}
-				return m
-			}
-			switch name {
-			case "t":
-				return dsVector(s.T), true
-			case "x":
-				return rows(s.X), true
-			case "y":
-				return rows(s.Y), true
-			case "linear":
-				if s.Linear == nil {
-					return nil, false
-				}
-				return rows(s.Linear), true
-			}
-			return nil, false
-		}})
-	RegisterType((*lsys.Covariance)(nil), TypeInfo{Name: "a noise response", Fields: []string{"rms", "outputs", "states"},
-		Field: func(v any, name string) (any, bool) {
-			cv := v.(*lsys.Covariance)
-			switch name {
-			case "rms":
-				return numberRecord(cv.System.OutputNames, cv.RMS), true
-			case "outputs":
-				return cv.Outputs, true
-			case "states":
-				if cv.States == nil {
-					return &List{}, true
-				}
-				return cv.States, true
-			}
-			return nil, false
-		}})
+			return cv.States
+		}),
+	}})
 }
 
-func simulateBuiltin() *Builtin {
+func simulateBuiltin() *lang.Builtin {
 	const pend = "pendulum = system {\n  states angle, rate\n  inputs torque\n  outputs tip\n  g = 9.81\n  angle' = rate\n  rate' = -g * sin(angle) - 0.2 * rate + torque\n  tip = 0.5 * sin(angle)\n}\n"
-	return &Builtin{
-		Name: "simulate", Group: GroupDesign,
-		Params: []Param{
+	return &lang.Builtin{
+		Name: "simulate", Group: lang.GroupDesign,
+		Returns: (*lsys.Simulation)(nil),
+		Params: []lang.Param{
 			{Name: "model", Doc: "a nonlinear model (an equation block), or a system built from one"},
 			{Name: "until", Default: 10.0, Doc: "the end time in seconds"},
 			{Name: "initial", Optional: true, Doc: "a record with the initial states, e.g. {angle: 2.5}; states left out start at 0"},
@@ -766,8 +681,8 @@ func simulateBuiltin() *Builtin {
 
 // dsRecordValues reads a record of numbers (or functions, when funcs) by
 // name; names not in known are an error.
-func dsRecordValues(c *Call, name string, known []string, funcs bool) (map[string]any, error) {
-	rec, ok := c.Value(name).(*Record)
+func dsRecordValues(c *lang.Call, name string, known []string, funcs bool) (map[string]any, error) {
+	rec, ok := c.Value(name).(*lang.Record)
 	if !ok {
 		return nil, c.Errorf(name, "Write a record: {"+strings.Join(known, ": 0, ")+": 0}.", "simulate: %s must be a record of values by name", name)
 	}
@@ -796,8 +711,8 @@ func dsRecordValues(c *Call, name string, known []string, funcs bool) (map[strin
 	return out, nil
 }
 
-func simulateFn(c *Call) (any, error) {
-	me, ok := c.Model("model")
+func simulateFn(c *lang.Call) (any, error) {
+	me, ok := c.Block(c.Value("model"))
 	if !ok {
 		return nil, c.Errorf("model", "Define the model with an equation block: name = system { states: ... }. For a system in matrix form use response().", "simulate: the model must be an equation block (a nonlinear model or a system built from one)")
 	}
@@ -811,14 +726,14 @@ func simulateFn(c *Call) (any, error) {
 	if !(rtol > 0 && rtol < 1) || !(atol > 0) {
 		return nil, c.Errorf("rtol", "Typical values: rtol 1e-6, atol 1e-9.", "simulate: rtol must be between 0 and 1 and atol > 0")
 	}
-	n, m, p := len(me.States), len(me.Inputs), len(me.Outputs)
+	n, m, p := len(me.States()), len(me.Inputs()), len(me.Outputs())
 	x0 := make([]float64, n)
 	if c.Has("initial") {
-		vals, err := dsRecordValues(c, "initial", me.States, false)
+		vals, err := dsRecordValues(c, "initial", me.States(), false)
 		if err != nil {
 			return nil, err
 		}
-		for i, s := range me.States {
+		for i, s := range me.States() {
 			if v, ok := vals[s]; ok {
 				x0[i] = v.(float64)
 			}
@@ -826,11 +741,11 @@ func simulateFn(c *Call) (any, error) {
 	}
 	inputs := make([]any, m)
 	if c.Has("inputs") {
-		vals, err := dsRecordValues(c, "inputs", me.Inputs, true)
+		vals, err := dsRecordValues(c, "inputs", me.Inputs(), true)
 		if err != nil {
 			return nil, err
 		}
-		for j, s := range me.Inputs {
+		for j, s := range me.Inputs() {
 			inputs[j] = vals[s]
 		}
 	}
@@ -848,14 +763,14 @@ func simulateFn(c *Call) (any, error) {
 				}
 				x, ok := r.(float64)
 				if !ok {
-					return c.Errorf("inputs", "", "simulate: the input '%s' must give a real number at t = %s", me.Inputs[j], FormatNumber(t))
+					return c.Errorf("inputs", "", "simulate: the input '%s' must give a real number at t = %s", me.Inputs()[j], lang.FormatNumber(t))
 				}
 				u[j] = x
 			}
 		}
 		return nil
 	}
-	sampled := me.Ts > 0
+	sampled := me.Every() > 0
 	// The controller: a system from outputs to inputs.
 	var K *lsys.System
 	ctrlName := ""
@@ -865,7 +780,7 @@ func simulateFn(c *Call) (any, error) {
 			if r != m || cc != p {
 				return nil, c.Errorf("controller", "", "simulate: a gain controller must be %dx%d (inputs x outputs of the model), not %dx%d", m, p, r, cc)
 			}
-			g, err := lsys.NewSystem(0, p, m, nil, nil, nil, M, me.Ts)
+			g, err := lsys.NewSystem(0, p, m, nil, nil, nil, M, me.Every())
 			if err != nil {
 				return nil, err
 			}
@@ -878,7 +793,7 @@ func simulateFn(c *Call) (any, error) {
 			if g.M() != p || g.P() != m {
 				return nil, c.Errorf("controller", "", "simulate: the controller must take the model's %d outputs and give its %d inputs; it has %d inputs and %d outputs", p, m, g.M(), g.P())
 			}
-			if g.N() > 0 && g.Ts != me.Ts {
+			if g.N() > 0 && g.Ts != me.Every() {
 				return nil, c.Errorf("controller", "", "simulate: the controller and the model must both be continuous, or both sampled at the same rate")
 			}
 			K, ctrlName = g, fmt.Sprintf("a linear controller with %d states", g.N())
@@ -902,7 +817,7 @@ func simulateFn(c *Call) (any, error) {
 		if err != nil {
 			return nil, err
 		}
-		if g.N() != n || g.M() != m || g.P() != p || g.Ts != me.Ts {
+		if g.N() != n || g.M() != m || g.P() != p || g.Ts != me.Every() {
 			return nil, c.Errorf("linear", "Linearize the model: linearize(model, at: {...}).", "simulate: the linear model must have the model's %d states, %d inputs, %d outputs and sample time", n, m, p)
 		}
 		L = g
@@ -1006,8 +921,8 @@ func simulateFn(c *Call) (any, error) {
 	}
 	var T []float64
 	if sampled {
-		for k := 0; float64(k)*me.Ts <= until*(1+1e-12); k++ {
-			T = append(T, float64(k)*me.Ts)
+		for k := 0; float64(k)*me.Every() <= until*(1+1e-12); k++ {
+			T = append(T, float64(k)*me.Every())
 		}
 	} else {
 		if dt <= 0 {
@@ -1024,7 +939,7 @@ func simulateFn(c *Call) (any, error) {
 			T = append(T, math.Min(t, until))
 		}
 	}
-	sim := &lsys.Simulation{T: T, States: me.States, Outputs: me.Outputs, Sampled: sampled, RelTol: rtol, AbsTol: atol, Controller: ctrlName}
+	sim := &lsys.Simulation{T: T, States: me.States(), Outputs: me.Outputs(), Sampled: sampled, RelTol: rtol, AbsTol: atol, Controller: ctrlName}
 	var Xs [][]float64
 	if sampled {
 		sim.Method = "iterated sample by sample"

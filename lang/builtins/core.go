@@ -1,8 +1,8 @@
-package lang
+package builtins
 
 // Core built-ins of the language: output, constants, numbers and
 // elementary functions, matrix tools, grids, and building systems in
-// matrix form. Other files add theirs the same way (see registry.go).
+// matrix form. Other files add theirs the same way (see the package doc in registry.go).
 
 import (
 	"fmt"
@@ -13,57 +13,58 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang"
 	"lsys/lsys"
 )
 
 func init() {
 	for _, b := range coreBuiltins() {
-		Register(b)
+		register(b)
 	}
 }
 
-func coreBuiltins() []*Builtin {
-	bs := []*Builtin{
+func coreBuiltins() []*lang.Builtin {
+	bs := []*lang.Builtin{
 		{
-			Name: "print", Group: GroupOutput,
-			Params:   []Param{{Name: "values", Variadic: true, Doc: "values to write, separated by spaces"}},
+			Name: "print", Group: lang.GroupOutput,
+			Params:   []lang.Param{{Name: "values", Variadic: true, Doc: "values to write, separated by spaces"}},
 			Help:     "Write values as text to the cell's standard output.",
 			Doc:      "Strings are written as they are, other values in their text form. Several values are separated by spaces and the line ends with a newline.",
 			Examples: []string{`k = 3.1` + "\n" + `print("stiffness", k, "N m/rad")`},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				c.Out().Stdout(joinValues(c, c.Rest) + "\n")
 				return nil, nil
 			},
 		},
 		{
-			Name: "warn", Group: GroupOutput,
-			Params:   []Param{{Name: "values", Variadic: true, Doc: "values to write, separated by spaces"}},
+			Name: "warn", Group: lang.GroupOutput,
+			Params:   []lang.Param{{Name: "values", Variadic: true, Doc: "values to write, separated by spaces"}},
 			Help:     "Write values as text to the cell's error stream (shown highlighted).",
 			Doc:      "Like print, but on the error stream, for cautions that should stand out. The cell goes on running.",
 			Examples: []string{`warn("the model is not validated above 50 Hz")`},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				c.Out().Stderr(joinValues(c, c.Rest) + "\n")
 				return nil, nil
 			},
 		},
 		{
-			Name: "show", Group: GroupOutput,
-			Params:   []Param{{Name: "value", Doc: "any value"}},
+			Name: "show", Group: lang.GroupOutput,
+			Params:   []lang.Param{{Name: "value", Doc: "any value"}},
 			Help:     "Display a value now, with its rich display (tables, plots), besides the cell's result.",
 			Doc:      "Only the last expression of a cell is displayed as its result; show displays other values on the way.",
 			Examples: []string{"A = [[0, 1], [-4, -0.4]]\nshow(A)\nA * A"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				c.Out().Display(c.Value("value"), "")
 				return nil, nil
 			},
 		},
 		{
-			Name: "clear", Group: GroupOutput,
-			Params:   []Param{{Name: "wait", Default: false, Doc: "true: clear only when the next output arrives (no flicker)"}},
+			Name: "clear", Group: lang.GroupOutput,
+			Params:   []lang.Param{{Name: "wait", Default: false, Doc: "true: clear only when the next output arrives (no flicker)"}},
 			Help:     "Clear the cell's output shown so far.",
 			Doc:      "Useful in a cell that shows progress and then its result.",
 			Examples: []string{"print(\"working\")\nclear()\nprint(\"done\")"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				w, err := c.Bool("wait")
 				if err != nil {
 					return nil, err
@@ -73,18 +74,18 @@ func coreBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "pause", Group: GroupOutput,
-			Params:   []Param{{Name: "seconds", Doc: "how long to wait, at most 3600"}},
+			Name: "pause", Group: lang.GroupOutput,
+			Params:   []lang.Param{{Name: "seconds", Doc: "how long to wait, at most 3600"}},
 			Help:     "Wait for a number of seconds (an interrupt ends the wait).",
 			Doc:      "For demonstrations and for testing interrupts; analysis never needs it.",
 			Examples: []string{"pause(0.01)"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				sec, err := c.Float("seconds")
 				if err != nil {
 					return nil, err
 				}
 				if sec < 0 || sec > 3600 {
-					return nil, c.Errorf("seconds", "", "pause takes 0 to 3600 seconds, not %s", FormatNumber(sec))
+					return nil, c.Errorf("seconds", "", "pause takes 0 to 3600 seconds, not %s", lang.FormatNumber(sec))
 				}
 				t := time.NewTimer(time.Duration(sec * float64(time.Second)))
 				defer t.Stop()
@@ -97,23 +98,23 @@ func coreBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "pi", Group: GroupMath, Value: math.Pi,
+			Name: "pi", Group: lang.GroupMath, Value: math.Pi,
 			Help:     "The number pi = 3.14159...",
 			Examples: []string{"f = 50\n2*pi*f"},
 		},
 		{
-			Name: "inf", Group: GroupMath, Value: math.Inf(1),
+			Name: "inf", Group: lang.GroupMath, Value: math.Inf(1),
 			Help:     "Infinity, for bounds and norms (norm(G, inf)); matrices and systems refuse it.",
 			Examples: []string{"inf > 1e300"},
 		},
 		{
-			Name: "s", Group: GroupSystems, Value: lsys.Variable(0),
+			Name: "s", Group: lang.GroupSystems, Value: lsys.Variable(0),
 			Help:     "The Laplace variable: write transfer functions as rational expressions in s.",
 			Doc:      "`5 / (s^2 + 2*s + 5)` is a transfer function; a list of lists of them is a transfer matrix. Where a system is needed they are realized as state-space models. You may bind s to something else; the built-in comes back when the session restarts.",
 			Examples: []string{"H = 5 / (s^2 + 2*s + 5)\nH"},
 		},
 		{
-			Name: "z", Group: GroupSystems, Value: lsys.Variable(-1),
+			Name: "z", Group: lang.GroupSystems, Value: lsys.Variable(-1),
 			Help:     "The shift variable of sampled systems: rational expressions in z.",
 			Doc:      "A transfer function in z needs a sample time before it becomes a system: `system(0.1 / (z - 0.9), every: 0.01)`.",
 			Examples: []string{"H = 0.1 / (z - 0.9)\nH"},
@@ -125,7 +126,7 @@ func coreBuiltins() []*Builtin {
 	return bs
 }
 
-func joinValues(c *Call, vs []any) string {
+func joinValues(c *lang.Call, vs []any) string {
 	parts := make([]string, len(vs))
 	for i, v := range vs {
 		parts[i] = c.Format(v)
@@ -135,14 +136,14 @@ func joinValues(c *Call, vs []any) string {
 
 // elementary builds a built-in for a function of one number; real inputs
 // outside the real domain go to the complex one (sqrt(-1) is 1j).
-func elementary(name, help, example string, real func(float64) (float64, bool), cplx func(complex128) complex128, extra func(c *Call, v any) (any, bool, error)) *Builtin {
-	return &Builtin{
-		Name: name, Group: GroupMath,
-		Params:   []Param{{Name: "x", Doc: "a number"}},
+func elementary(name, help, example string, real func(float64) (float64, bool), cplx func(complex128) complex128, extra func(c *lang.Call, v any) (any, bool, error)) *lang.Builtin {
+	return &lang.Builtin{
+		Name: name, Group: lang.GroupMath,
+		Params:   []lang.Param{{Name: "x", Doc: "a number"}},
 		Help:     help,
 		Doc:      elementaryDoc(name),
 		Examples: []string{example},
-		Fn: func(c *Call) (any, error) {
+		Fn: func(c *lang.Call) (any, error) {
 			v := c.Value("x")
 			if extra != nil {
 				if r, ok, err := extra(c, v); ok || err != nil {
@@ -155,20 +156,20 @@ func elementary(name, help, example string, real func(float64) (float64, bool), 
 				if y, ok := real(x); ok {
 					r = y
 				} else if cplx != nil {
-					r = number(cplx(complex(x, 0)))
+					r = lang.Number(cplx(complex(x, 0)))
 				} else {
-					return nil, c.Errorf("x", "", "%s(%s) is not defined", name, FormatNumber(x))
+					return nil, c.Errorf("x", "", "%s(%s) is not defined", name, lang.FormatNumber(x))
 				}
 			case complex128:
 				if cplx == nil {
-					return nil, c.typeError("x", "a real number", v)
+					return nil, c.TypeError("x", "a real number", v)
 				}
-				r = number(cplx(x))
+				r = lang.Number(cplx(x))
 			default:
-				return nil, c.typeError("x", "a number", v)
+				return nil, c.TypeError("x", "a number", v)
 			}
-			if !finite(r) && finite(v) {
-				return nil, c.Errorf("x", "Rescale the quantities.", "%s(%s) is not a finite number", name, FormatValue(v))
+			if !lang.Finite(r) && lang.Finite(v) {
+				return nil, c.Errorf("x", "Rescale the quantities.", "%s(%s) is not a finite number", name, lang.FormatValue(v))
 			}
 			return r, nil
 		},
@@ -177,7 +178,7 @@ func elementary(name, help, example string, real func(float64) (float64, bool), 
 
 // entrywise applies abs, real, imag, phase and conjugate to every entry of
 // a real or complex matrix (handy on mode shapes and eigenvectors).
-func entrywise(c *Call, v any) (any, bool, error) {
+func entrywise(c *lang.Call, v any) (any, bool, error) {
 	var r, cc int
 	var at func(i, j int) complex128
 	switch m := v.(type) {
@@ -209,12 +210,12 @@ func entrywise(c *Call, v any) (any, bool, error) {
 			out.Set(i, j, f(at(i, j)))
 		}
 	}
-	return realIfPossible(out), true, nil
+	return lang.RealIfPossible(out), true, nil
 }
 
 func elementaryDoc(name string) string {
 	var parts []string
-	if equationFuncs[name] {
+	if lang.EquationFunction(name) {
 		parts = append(parts, "Also allowed on the right-hand sides of equation blocks, where it makes the model nonlinear when its argument depends on a state or an input.")
 	}
 	switch name {
@@ -226,17 +227,17 @@ func elementaryDoc(name string) string {
 	return strings.Join(parts, " ")
 }
 
-func mathBuiltins() []*Builtin {
+func mathBuiltins() []*lang.Builtin {
 	always := func(f func(float64) float64) func(float64) (float64, bool) {
 		return func(x float64) (float64, bool) { return f(x), true }
 	}
-	return []*Builtin{
+	return []*lang.Builtin{
 		elementary("sin", "Sine of an angle in radians.", "sin(pi/6)", always(math.Sin), cmplx.Sin, nil),
 		elementary("cos", "Cosine of an angle in radians.", "cos(pi/3)", always(math.Cos), cmplx.Cos, nil),
 		elementary("tan", "Tangent of an angle in radians.", "tan(pi/4)", always(math.Tan), cmplx.Tan, nil),
 		elementary("exp", "The exponential e^x of a number, or of a square matrix (e^(A t) is exp(t*A)).",
 			"exp(1)\nexp(0.1*[[0, 1], [-4, -0.4]])",
-			always(math.Exp), cmplx.Exp, func(c *Call, v any) (any, bool, error) {
+			always(math.Exp), cmplx.Exp, func(c *lang.Call, v any) (any, bool, error) {
 				m, ok := v.(*mat.Dense)
 				if !ok {
 					return nil, false, nil
@@ -269,7 +270,8 @@ func mathBuiltins() []*Builtin {
 	}
 }
 
-func (c *Call) squareMatrix(name string) (*mat.Dense, error) {
+// squareMatrix reads a square matrix argument.
+func squareMatrix(c *lang.Call, name string) (*mat.Dense, error) {
 	m, err := c.Matrix(name)
 	if err != nil {
 		return nil, err
@@ -280,20 +282,20 @@ func (c *Call) squareMatrix(name string) (*mat.Dense, error) {
 	return m, nil
 }
 
-func matrixBuiltins() []*Builtin {
-	return []*Builtin{
+func matrixBuiltins() []*lang.Builtin {
+	return []*lang.Builtin{
 		{
-			Name: "identity", Group: GroupMatrices,
-			Params:   []Param{{Name: "n", Doc: "the size"}},
+			Name: "identity", Group: lang.GroupMatrices,
+			Params:   []lang.Param{{Name: "n", Doc: "the size"}},
 			Help:     "The n x n identity matrix.",
 			Examples: []string{"identity(3)"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				n, err := c.Int("n")
 				if err != nil {
 					return nil, err
 				}
-				if n < 1 || n*n > MaxEntries {
-					return nil, c.Errorf("n", "", "identity(%d): the size must be between 1 and %d", n, int(math.Sqrt(MaxEntries)))
+				if n < 1 || n*n > lang.MaxEntries {
+					return nil, c.Errorf("n", "", "identity(%d): the size must be between 1 and %d", n, int(math.Sqrt(lang.MaxEntries)))
 				}
 				m := mat.NewDense(n, n, nil)
 				for i := 0; i < n; i++ {
@@ -303,11 +305,11 @@ func matrixBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "diagonal", Group: GroupMatrices,
-			Params:   []Param{{Name: "v", Doc: "a vector (or a square matrix)"}},
+			Name: "diagonal", Group: lang.GroupMatrices,
+			Params:   []lang.Param{{Name: "v", Doc: "a vector (or a square matrix)"}},
 			Help:     "The diagonal matrix with v on its diagonal; of a square matrix, its diagonal as a vector.",
 			Examples: []string{"diagonal([1, 2, 3])", "diagonal([[1, 2], [3, 4]])"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				m, err := c.Matrix("v")
 				if err != nil {
 					return nil, err
@@ -316,8 +318,8 @@ func matrixBuiltins() []*Builtin {
 				switch {
 				case cc == 1 || r == 1:
 					n := r * cc
-					if n*n > MaxEntries {
-						return nil, c.Errorf("v", "", "a %dx%d diagonal matrix is larger than the limit of %d entries", n, n, MaxEntries)
+					if n*n > lang.MaxEntries {
+						return nil, c.Errorf("v", "", "a %dx%d diagonal matrix is larger than the limit of %d entries", n, n, lang.MaxEntries)
 					}
 					d := mat.NewDense(n, n, nil)
 					for i := 0; i < n; i++ {
@@ -339,11 +341,11 @@ func matrixBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "transpose", Group: GroupMatrices,
-			Params:   []Param{{Name: "M", Doc: "a matrix or vector"}},
+			Name: "transpose", Group: lang.GroupMatrices,
+			Params:   []lang.Param{{Name: "M", Doc: "a matrix or vector"}},
 			Help:     "The transpose: rows become columns (a column vector becomes a row); complex entries are not conjugated.",
 			Examples: []string{"transpose([[1, 2], [3, 4]])", "transpose([1, 2, 3])"},
-			Fn: func(c *Call) (any, error) {
+			Fn: func(c *lang.Call) (any, error) {
 				if z, ok := c.Value("M").(*mat.CDense); ok {
 					r, cc := z.Dims()
 					t := mat.NewCDense(cc, r, nil)
@@ -362,13 +364,13 @@ func matrixBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "inverse", Group: GroupMatrices,
-			Params:   []Param{{Name: "M", Doc: "a square, non-singular matrix"}},
+			Name: "inverse", Group: lang.GroupMatrices,
+			Params:   []lang.Param{{Name: "M", Doc: "a square, non-singular matrix"}},
 			Help:     "The inverse of a square matrix, refused when it is singular or nearly so.",
 			Doc:      "Computed by LU factorization with partial pivoting. The matrix is refused when its condition number exceeds 1/eps (about 4.5e15), since the inverse would then carry no correct digits. Prefer solve(A, b) to inverse(A)*b.",
 			Examples: []string{"inverse([[2, 1], [1, 3]])"},
-			Fn: func(c *Call) (any, error) {
-				m, err := c.squareMatrix("M")
+			Fn: func(c *lang.Call) (any, error) {
+				m, err := squareMatrix(c, "M")
 				if err != nil {
 					return nil, err
 				}
@@ -380,12 +382,12 @@ func matrixBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "det", Group: GroupMatrices,
-			Params:   []Param{{Name: "M", Doc: "a square matrix"}},
+			Name: "det", Group: lang.GroupMatrices,
+			Params:   []lang.Param{{Name: "M", Doc: "a square matrix"}},
 			Help:     "The determinant of a square matrix (by LU factorization).",
 			Examples: []string{"det([[2, 1], [1, 3]])"},
-			Fn: func(c *Call) (any, error) {
-				m, err := c.squareMatrix("M")
+			Fn: func(c *lang.Call) (any, error) {
+				m, err := squareMatrix(c, "M")
 				if err != nil {
 					return nil, err
 				}
@@ -393,16 +395,16 @@ func matrixBuiltins() []*Builtin {
 			},
 		},
 		{
-			Name: "solve", Group: GroupMatrices,
-			Params: []Param{
+			Name: "solve", Group: lang.GroupMatrices,
+			Params: []lang.Param{
 				{Name: "A", Doc: "a square matrix"},
 				{Name: "b", Doc: "a vector or matrix with as many rows as A"},
 			},
 			Help:     "The solution x of A x = b.",
 			Doc:      "By LU factorization with partial pivoting; refused when A is singular or its condition number exceeds 1/eps.",
 			Examples: []string{"solve([[2, 1], [1, 3]], [3, 5])"},
-			Fn: func(c *Call) (any, error) {
-				a, err := c.squareMatrix("A")
+			Fn: func(c *lang.Call) (any, error) {
+				a, err := squareMatrix(c, "A")
 				if err != nil {
 					return nil, err
 				}
@@ -427,10 +429,10 @@ func matrixBuiltins() []*Builtin {
 	}
 }
 
-func gridBuiltin(name, help, example string, logScale bool) *Builtin {
-	return &Builtin{
-		Name: name, Group: GroupMatrices,
-		Params: []Param{
+func gridBuiltin(name, help, example string, logScale bool) *lang.Builtin {
+	return &lang.Builtin{
+		Name: name, Group: lang.GroupMatrices,
+		Params: []lang.Param{
 			{Name: "a", Doc: "first value"},
 			{Name: "b", Doc: "last value"},
 			{Name: "n", Default: 50.0, Doc: "how many values (at least 2)"},
@@ -438,15 +440,15 @@ func gridBuiltin(name, help, example string, logScale bool) *Builtin {
 		Help:     help,
 		Doc:      "Grids for sweeps such as locus(f, k: linear(1, 10)) and for frequency ranges.",
 		Examples: []string{example},
-		Fn: func(c *Call) (any, error) {
+		Fn: func(c *lang.Call) (any, error) {
 			var a, b float64
 			var n int
 			err := c.Bind("a", &a, "b", &b, "n", &n)
 			if err != nil {
 				return nil, err
 			}
-			if n < 2 || n > MaxEntries {
-				return nil, c.Errorf("n", "", "n must be between 2 and %d, not %d", MaxEntries, n)
+			if n < 2 || n > lang.MaxEntries {
+				return nil, c.Errorf("n", "", "n must be between 2 and %d, not %d", lang.MaxEntries, n)
 			}
 			if math.IsInf(a, 0) || math.IsInf(b, 0) {
 				return nil, c.Errorf("a", "", "the ends of a grid must be finite")
@@ -470,11 +472,11 @@ func gridBuiltin(name, help, example string, logScale bool) *Builtin {
 	}
 }
 
-func systemBuiltins() []*Builtin {
-	return []*Builtin{
+func systemBuiltins() []*lang.Builtin {
+	return []*lang.Builtin{
 		{
-			Name: "system", Group: GroupSystems,
-			Params: []Param{
+			Name: "system", Group: lang.GroupSystems,
+			Params: []lang.Param{
 				{Name: "A", Optional: true, Doc: "state matrix (n x n), or a transfer function / transfer matrix; leave out (with B and C) for a static gain D"},
 				{Name: "B", Optional: true, Doc: "input matrix (n x m); leave out for no inputs"},
 				{Name: "C", Optional: true, Doc: "output matrix (p x n); default: identity (every state is an output)"},
@@ -488,7 +490,7 @@ func systemBuiltins() []*Builtin {
 			Doc: "Matrices are written row by row: `[[0, 1], [-2, -3]]`. A plain list `[0, 1]` is a column; for C a plain list of n numbers is taken as one output row. " +
 				"With `every: T` the system is sampled: x[k+1] = A x[k] + B u[k]. " +
 				"Given a transfer function (a rational expression in s or z) or a list of lists of them, it returns a minimal state-space realization. " +
-				"Given D alone (`system(D: [[1, -1]])`) it is a static gain y = D u with no states, such as a summing junction for connect. " +
+				"Given D alone (`system(D: [[1, -1]])`) it is a static gain y = D u with no states, such as a summing junction for wire. " +
 				"A matrix of numbers next to a system in `*`, `+` or `-` is such a gain too: `[[1, -1]] * G` subtracts G's second output from its first. " +
 				"The equation form `system { ... }` (see lang/SPEC.md) is usually clearer.",
 			Examples: []string{
@@ -499,9 +501,10 @@ func systemBuiltins() []*Builtin {
 			Fn: systemFn,
 		},
 		{
-			Name: "modes", Group: GroupAnalysis,
-			Params: []Param{{Name: "system", Doc: "a system, transfer function or linear equation block"}, stTolParam},
-			Help:   "The mode table: eigenvalue, natural frequency, damping ratio and time constant of each mode.",
+			Name: "modes", Group: lang.GroupAnalysis,
+			Returns: (*lsys.ModeTable)(nil),
+			Params:  []lang.Param{{Name: "system", Doc: "a system, transfer function or linear equation block"}, stTolParam},
+			Help:    "The mode table: eigenvalue, natural frequency, damping ratio and time constant of each mode.",
 			Doc: "Conjugate pairs are one oscillatory mode. See the mode table's display for the columns. " +
 				"tol is the relative tolerance of the reached/seen (PBH) verdicts, decided on the system balanced for units.",
 			Examples: []string{"G = system([[0, 1], [-4, -0.4]], [0, 1], [1, 0])\nmodes(G)", "G = system([[0, 1], [-4, -0.4]], [0, 1], [1, 0])\nmodes(G, tol: 1e-6)"},
@@ -510,13 +513,13 @@ func systemBuiltins() []*Builtin {
 	}
 }
 
-func systemFn(c *Call) (any, error) {
+func systemFn(c *lang.Call) (any, error) {
 	ts, err := c.Float("every")
 	if err != nil {
 		return nil, err
 	}
 	if ts < 0 || math.IsInf(ts, 0) {
-		return nil, c.Errorf("every", "Give the sample time in seconds, or 0 for continuous time.", "the sample time must be finite and >= 0, not %s", FormatNumber(ts))
+		return nil, c.Errorf("every", "Give the sample time in seconds, or 0 for continuous time.", "the sample time must be finite and >= 0, not %s", lang.FormatNumber(ts))
 	}
 	var g *lsys.System
 	first := c.Value("A")
@@ -530,14 +533,16 @@ func systemFn(c *Call) (any, error) {
 		if err != nil {
 			return nil, err
 		}
-		if g, err = staticGain(D, ts); err != nil {
+		// A static gain: no states, D from the inputs to the outputs.
+		r, cc := D.Dims()
+		if g, err = lsys.NewSystem(0, cc, r, nil, nil, nil, D, ts); err != nil {
 			return nil, c.Errorf("D", "", "%v", err)
 		}
 	}
 	switch first.(type) {
 	case nil:
 		// the static gain above
-	case *lsys.Rational, *List, *lsys.System, *NonlinearModel:
+	case *lsys.Rational, *lang.List, *lsys.System, *lsys.Model:
 		if c.Given("B") || c.Given("C") || c.Given("D") {
 			return nil, c.Errorf("B", "Give either matrices or a transfer function.", "system(H) from a transfer function takes no B, C or D")
 		}
@@ -546,8 +551,8 @@ func systemFn(c *Call) (any, error) {
 			q2.Ts = ts
 			first = &q2
 		}
-		if l, ok := first.(*List); ok && ts > 0 {
-			if rows, ok := transferRows(l); ok {
+		if l, ok := first.(*lang.List); ok && ts > 0 {
+			if rows, ok := lang.TransferRows(l); ok {
 				for _, r := range rows {
 					for k, q := range r {
 						if q.Ts < 0 {
@@ -557,32 +562,32 @@ func systemFn(c *Call) (any, error) {
 						}
 					}
 				}
-				g, err = c.ev.realize(rows, c.ArgPos("A"))
+				g, err = c.Realize(rows, c.ArgPos("A"))
 				if err != nil {
 					return nil, err
 				}
 			}
 		}
 		if g == nil {
-			g, err = c.ev.toSystem(first, c.ArgPos("A"))
+			g, err = c.ToSystem(first, c.ArgPos("A"))
 			if err != nil {
 				return nil, err
 			}
 			if g == nil {
-				return nil, c.typeError("A", "a matrix or a transfer function", first)
+				return nil, c.TypeError("A", "a matrix or a transfer function", first)
 			}
 		}
 		if c.Given("every") && g.Ts != ts {
-			return nil, c.Errorf("every", "To sample a continuous system use sample(G, T).", "this system's sample time is %s, not %s", FormatNumber(g.Ts), FormatNumber(ts))
+			return nil, c.Errorf("every", "To sample a continuous system use sample(G, T).", "this system's sample time is %s, not %s", lang.FormatNumber(g.Ts), lang.FormatNumber(ts))
 		}
 	default:
 		if m, ok := first.(*mat.Dense); ok && !c.Given("B") && !c.Given("C") && !c.Given("D") {
 			if r, cc := m.Dims(); r != cc {
-				return nil, c.Errorf("A", fmt.Sprintf("For a static gain y = D u (no states) give D alone: system(D: M); here M is %dx%d, %s and %s.", r, cc, plural(cc, "input"), plural(r, "output")),
+				return nil, c.Errorf("A", fmt.Sprintf("For a static gain y = D u (no states) give D alone: system(D: M); here M is %dx%d, %s and %s.", r, cc, lang.Plural(cc, "input"), lang.Plural(r, "output")),
 					"system needs a square matrix, not a %dx%d one", r, cc)
 			}
 		}
-		A, err := c.squareMatrix("A")
+		A, err := squareMatrix(c, "A")
 		if err != nil {
 			return nil, err
 		}
@@ -616,7 +621,7 @@ func systemFn(c *Call) (any, error) {
 		}
 		g, err = lsys.FromMatrices(A, B, C, D, ts)
 		if err != nil {
-			return nil, c.Errorf("", "Matrices: A is n x n, B n x m, C p x n, D p x m. "+c.helpHint(), "%v", err)
+			return nil, c.Errorf("", "Matrices: A is n x n, B n x m, C p x n, D p x m. "+c.HelpHint(), "%v", err)
 		}
 	}
 	var names [3][]string
@@ -630,7 +635,7 @@ func systemFn(c *Call) (any, error) {
 		}
 		want := []int{g.N(), g.M(), g.P()}[i]
 		if len(l) != want {
-			return nil, c.Errorf(k, "", "%d %s names given for a system with %s", len(l), strings.TrimSuffix(k, "s"), plural(want, strings.TrimSuffix(k, "s")))
+			return nil, c.Errorf(k, "", "%d %s names given for a system with %s", len(l), strings.TrimSuffix(k, "s"), lang.Plural(want, strings.TrimSuffix(k, "s")))
 		}
 		if err := checkNames(l); err != nil {
 			return nil, c.Errorf(k, "", "%v", err)

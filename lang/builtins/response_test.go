@@ -1,4 +1,4 @@
-package lang
+package builtins_test
 
 import (
 	"context"
@@ -10,13 +10,16 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang"
+	"lsys/lang/builtins"
+	"lsys/lang/langtest"
 	"lsys/lsys"
 )
 
 func runOne(t *testing.T, dir, src string) any {
 	t.Helper()
-	s := NewSession(Options{Dir: dir})
-	v, err := s.Run(context.Background(), src, &recorder{})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: dir})
+	v, err := s.Run(context.Background(), src, &langtest.Recorder{})
 	if err != nil {
 		t.Fatalf("%s\n%v", src, err)
 	}
@@ -28,7 +31,7 @@ func wantNum(t *testing.T, src string, want, tol float64) {
 	v := runOne(t, t.TempDir(), src)
 	f, ok := v.(float64)
 	if !ok {
-		t.Fatalf("%s: got %s, want a number", src, typeName(v))
+		t.Fatalf("%s: got %s, want a number", src, builtins.Registry().TypeName(v))
 	}
 	if math.Abs(f-want) > tol {
 		t.Errorf("%s: got %.15g want %.15g", src, f, want)
@@ -52,7 +55,9 @@ func TestResponseBuiltinsNumbers(t *testing.T) {
 	// unity feedback around 2/(s(s+1)): T = 2/(s^2+s+2), gain 1
 	wantNum(t, "gain(closeloop(2 / (s*(s + 1))))", 1, 1e-14)
 	// positive feedback around 1/(s+2): 1/(s+1), gain 1
-	wantNum(t, "gain(closeloop(1/(s + 2), sign: 1))", 1, 1e-14)
+	wantNum(t, "gain(closeloop(1/(s + 2), sense: \"positive\"))", 1, 1e-14)
+	// a return path 2/(s + 3) (negative feedback): T(0) = (1/2)/(1 + (1/2)(2/3)) = 3/8 (by hand)
+	wantNum(t, "gain(closeloop(1/(s + 2), through: 2/(s + 3)))", 0.375, 1e-14)
 	// ZOH of 1/(s+1) with T = 0.1: Phi = e^-0.1 (Franklin, Powell & Workman)
 	wantNum(t, "Gd = sample(1/(s + 1), 0.1)\ngain(Gd)", 1, 1e-14)
 	// a delay approximant is all-pass
@@ -80,8 +85,9 @@ func TestResponseBuiltinsValues(t *testing.T) {
 		{"polar(1/(s + 1))", "*lsys.PolarChart"},
 		{"singular(stack(1/(s + 1), 2/(s + 3)))", "*lsys.SingularValues"},
 		{"polezero((s + 2)/(s^2 + s + 1))", "*lsys.PoleZeroMap"},
-		{"continuous(sample(1/(s + 1), 0.1, method: \"tustin\"), method: \"tustin\")", "*lsys.System"},
-		{"sample(1/(s + 1), 0.1, method: \"matched\")", "*lsys.System"},
+		{"continuous(sample(1/(s + 1), 0.1, by: \"bilinear\"), by: \"bilinear\")", "*lsys.System"},
+		{"sample(1/(s + 1), 0.1, by: \"matched pole-zero\")", "*lsys.System"},
+		{"sample(1/(s + 1), 0.1, by: \"first-order hold\")", "*lsys.System"},
 		{"delay(0.1)", "*lsys.Rational"},
 		{"table([0, 1], [0, 1])", "*lsys.Signal"},
 	}
@@ -92,7 +98,7 @@ func TestResponseBuiltinsValues(t *testing.T) {
 		}
 	}
 	// the loaded table drives the first-order lag: y(5) = 1 - ... > 0.9
-	v := runOne(t, dir, "r = response(1/(s + 1), load(\"run.csv\", hold: \"zoh\"), dt: 0.01)\nr.y")
+	v := runOne(t, dir, "r = response(1/(s + 1), load(\"run.csv\", hold: \"zero-order\"), dt: 0.01)\nr.y")
 	y := v.(interface{ At(int, int) float64 })
 	if got := y.At(500, 0); got < 0.9 || got > 1 {
 		t.Errorf("load-driven response at 5 s: %g", got)
@@ -130,41 +136,48 @@ func typeNameGo(v any) string {
 	case *lsys.Signal:
 		return "*lsys.Signal"
 	}
-	return typeName(v)
+	return builtins.Registry().TypeName(v)
 }
 
 func TestResponseBuiltinsErrors(t *testing.T) {
-	runCells(t, []cell{
-		{src: "response(1/(s + 1))", err: "nothing drives the system"},
-		{src: "response(1/(s + 1), 3)", err: "must be an input signal"},
-		{src: "gain(1/s)", err: "steady-state gain is infinite"},
-		{src: "load(\"../secret.csv\")", err: "outside the notebook's folder"},
-		{src: "load(\"missing.csv\")", err: "no file"},
-		{src: "closeloop(1/(s + 1), sign: 2)", err: "sign must be +1 or -1"},
-		{src: "polezero(1/(s + 1), within: -3)", err: "'within' must be a positive number"},
-		{src: "sample(1/(s + 1), 0.1, method: \"fast\")", err: "unknown method"},
-		{src: "response(1/(s + 1), step, by: \"pole\")", err: "by must be"},
-		{src: "connect(1/(s + 1), nope: 1)", err: "no argument named 'nope'"},
-		{src: "G = system([[0, 1], [-2, -3]], [0, 1], [1, 0])\nresponse(G, initial: [1])", err: "initial state has 1 entries"},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: "response(1/(s + 1))", Err: "nothing drives the system"},
+		{Src: "response(1/(s + 1), 3)", Err: "must be an input signal"},
+		{Src: "gain(1/s)", Err: "steady-state gain is infinite"},
+		{Src: "load(\"../secret.csv\")", Err: "outside the notebook's folder"},
+		{Src: "load(\"missing.csv\")", Err: "no file"},
+		{Src: "closeloop(1/(s + 1), sense: -1)", Err: "the sense of the feedback is \"negative\" or \"positive\", not -1"},
+		{Src: "closeloop(1/(s + 1), sign: -1)", Err: "no argument named 'sign' (it was renamed); did you mean 'sense'?"},
+		{Src: "closeloop(1/(s + 1), 2)", Err: "closeloop takes 'through' by name only"},
+		{Src: "polezero(1/(s + 1), within: -3)", Err: "'within' must be a positive number"},
+		{Src: "sample(1/(s + 1), 0.1, by: \"fast\")", Err: "unknown method"},
+		{Src: "sample(1/(s + 1), 0.1, by: \"zoh\")", Err: "did you mean \"zero-order hold\"?"},
+		{Src: "continuous(sample(1/(s + 1), 0.1), by: \"tustin\")", Err: "did you mean \"bilinear\"?"},
+		{Src: "sample(1/(s + 1), 0.1, method: \"zoh\")", Err: "no argument named 'method' (it was renamed); did you mean 'by'?"},
+		{Src: "response(1/(s + 1), step, by: \"pole\")", Err: "by must be"},
+		{Src: "table([0, 1], [0, 1], hold: \"zoh\")", Err: "did you mean \"zero-order\"?"},
+		{Src: "wire(1/(s + 1), nope: 1)", Err: "no argument named 'nope'"},
+		{Src: "connect(1/(s + 1))", Err: "'connect' was renamed; did you mean 'wire'?"},
+		{Src: "G = system([[0, 1], [-2, -3]], [0, 1], [1, 0])\nresponse(G, initial: [1])", Err: "initial state has 1 entries"},
 	})
 }
 
 func TestResponseProgress(t *testing.T) {
 	// a 200-state chain of first-order lags shows progress and then empties it
-	s := NewSession(Options{Dir: t.TempDir()})
-	rec := &recorder{}
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	rec := &langtest.Recorder{}
 	g, err := lsys.FromMatrices(negIdentity(200), unitCol(200), unitRow(200), nil, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
-	s.globals["G"] = g
+	s.Set("G", g)
 	if _, err := s.Run(context.Background(), "response(G, step, until: 5, dt: 0.001)", rec); err != nil {
 		t.Fatal(err)
 	}
-	if len(rec.displays) != 1 || len(rec.updates) < 2 {
-		t.Fatalf("displays %d, updates %d", len(rec.displays), len(rec.updates))
+	if len(rec.Displays) != 1 || len(rec.Updates) < 2 {
+		t.Fatalf("displays %d, updates %d", len(rec.Displays), len(rec.Updates))
 	}
-	if last := rec.updates[len(rec.updates)-1]; last != "" {
+	if last := rec.Updates[len(rec.Updates)-1]; last != "" {
 		t.Errorf("progress not emptied: %v", last)
 	}
 }

@@ -1,4 +1,4 @@
-package lang
+package builtins
 
 // Built-ins for equation models: linearize, equilibrium, sensitivity and
 // locus.
@@ -7,65 +7,57 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang"
 	"lsys/lsys"
 )
 
 func init() {
 	for _, b := range modelBuiltins() {
-		Register(b)
+		register(b)
 	}
-	RegisterType((*lsys.Sensitivity)(nil), TypeInfo{Name: "an eigenvalue sensitivity table",
-		Fields: []string{"eigenvalues", "parameters", "values", "derivatives", "relative", "condition"},
-		Field: func(v any, name string) (any, bool) {
-			s := v.(*lsys.Sensitivity)
-			switch name {
-			case "eigenvalues":
-				return complexList(s.Eigenvalues), true
-			case "parameters":
-				return namesList(s.Parameters), true
-			case "values":
-				return realVector(s.Values), true
-			case "derivatives", "relative":
-				if len(s.Eigenvalues) == 0 || len(s.Parameters) == 0 {
-					return nil, false
-				}
-				m := mat.NewCDense(len(s.Eigenvalues), len(s.Parameters), nil)
-				for k := range s.Eigenvalues {
-					for j := range s.Parameters {
-						if name == "relative" {
-							m.Set(k, j, s.Relative(k, j))
-						} else {
-							m.Set(k, j, s.D[k][j])
-						}
-					}
-				}
-				return m, true
-			case "condition":
-				return realVector(s.Cond), true
+	registerType((*lsys.Sensitivity)(nil), lang.TypeInfo{Name: "an eigenvalue sensitivity table", Fields: []lang.Field{
+		lang.FieldOf("eigenvalues", "the eigenvalues, a complex vector", func(s *lsys.Sensitivity) any { return complexList(s.Eigenvalues) }),
+		lang.FieldOf("parameters", "the parameter names", func(s *lsys.Sensitivity) any { return lang.NameList(s.Parameters) }),
+		lang.FieldOf("values", "the parameter values", func(s *lsys.Sensitivity) any { return lang.RealVector(s.Values) }),
+		lang.FieldOf("derivatives", "d eigenvalue / d parameter, one row per eigenvalue, one column per parameter", func(s *lsys.Sensitivity) any {
+			return sensitivityMatrix(s, func(k, j int) complex128 { return s.D[k][j] })
+		}),
+		lang.FieldOf("relative", "(p / eigenvalue) d eigenvalue / dp: the relative change per relative change of the parameter", func(s *lsys.Sensitivity) any {
+			return sensitivityMatrix(s, s.Relative)
+		}),
+		lang.FieldOf("condition", "the condition number of each eigenvalue", func(s *lsys.Sensitivity) any { return lang.RealVector(s.Cond) }),
+	}})
+	registerType((*lsys.Locus)(nil), lang.TypeInfo{Name: "a locus", Fields: []lang.Field{
+		lang.FieldOf("parameter", "the parameter's name", func(l *lsys.Locus) any { return l.Parameter }),
+		lang.FieldOf("values", "the parameter values", func(l *lsys.Locus) any { return lang.RealVector(l.Values) }),
+		lang.FieldOf("branches", "one complex vector of eigenvalues per parameter value", func(l *lsys.Locus) any {
+			out := &lang.List{}
+			for _, b := range l.Branches {
+				out.Items = append(out.Items, complexList(b))
 			}
-			return nil, false
-		}})
-	RegisterType((*lsys.Locus)(nil), TypeInfo{Name: "a locus", Fields: []string{"parameter", "values", "branches"},
-		Field: func(v any, name string) (any, bool) {
-			l := v.(*lsys.Locus)
-			switch name {
-			case "parameter":
-				return l.Parameter, true
-			case "values":
-				return realVector(l.Values), true
-			case "branches":
-				out := &List{}
-				for _, b := range l.Branches {
-					out.Items = append(out.Items, complexList(b))
-				}
-				return out, true
-			}
-			return nil, false
-		}})
+			return out
+		}),
+	}})
+}
+
+// sensitivityMatrix is a complex eigenvalue-by-parameter matrix; nil when
+// there are no eigenvalues or no parameters.
+func sensitivityMatrix(s *lsys.Sensitivity, at func(k, j int) complex128) any {
+	if len(s.Eigenvalues) == 0 || len(s.Parameters) == 0 {
+		return nil
+	}
+	m := mat.NewCDense(len(s.Eigenvalues), len(s.Parameters), nil)
+	for k := range s.Eigenvalues {
+		for j := range s.Parameters {
+			m.Set(k, j, at(k, j))
+		}
+	}
+	return m
 }
 
 func complexList(v []complex128) any {
@@ -87,11 +79,11 @@ pendulum = system {
 }
 `
 
-func modelBuiltins() []*Builtin {
-	return []*Builtin{
+func modelBuiltins() []*lang.Builtin {
+	return []*lang.Builtin{
 		{
-			Name: "linearize", Group: GroupModels,
-			Params: []Param{
+			Name: "linearize", Group: lang.GroupModels,
+			Params: []lang.Param{
 				{Name: "model", Doc: "a nonlinear model (an equation block)"},
 				{Name: "at", Optional: true, Doc: "the operating point: a record with a value for every state and input, or an equilibrium"},
 			},
@@ -103,8 +95,9 @@ func modelBuiltins() []*Builtin {
 			Fn:       linearizeFn,
 		},
 		{
-			Name: "equilibrium", Group: GroupModels,
-			Params: []Param{
+			Name: "equilibrium", Group: lang.GroupModels,
+			Returns: (*lsys.Equilibrium)(nil),
+			Params: []lang.Param{
 				{Name: "model", Doc: "an equation block (nonlinear model or linear system), or a system in matrix form"},
 				{Name: "inputs", Optional: true, Doc: "a record with the constant input values; inputs left out are 0"},
 				{Name: "guess", Optional: true, Doc: "a record with starting values for the states; states left out start at 0"},
@@ -122,8 +115,9 @@ func modelBuiltins() []*Builtin {
 			Fn:       equilibriumFn,
 		},
 		{
-			Name: "sensitivity", Group: GroupModels,
-			Params: []Param{
+			Name: "sensitivity", Group: lang.GroupModels,
+			Returns: (*lsys.Sensitivity)(nil),
+			Params: []lang.Param{
 				{Name: "model", Doc: "an equation block: a system built from one, or a nonlinear model"},
 				{Name: "parameters", Optional: true, Doc: `names of parameters used in the block, as strings: ["k", "b"]; left out: every parameter of the block`},
 				{Name: "at", Optional: true, Doc: "operating point (nonlinear models only)"},
@@ -141,9 +135,10 @@ func modelBuiltins() []*Builtin {
 			Fn: sensitivityFn,
 		},
 		{
-			Name: "locus", Group: GroupModels,
-			Params: []Param{
-				{Name: "family", Doc: "a function of one parameter that gives a system, e.g. f(k) = closeloop(G, k)"},
+			Name: "locus", Group: lang.GroupModels,
+			Returns: (*lsys.Locus)(nil),
+			Params: []lang.Param{
+				{Name: "family", Doc: "a function of one parameter that gives a system, e.g. f(k) = closeloop(G, through: k)"},
 			},
 			AnyNamed: true,
 			Help:     "How the modes of f(k) move as the parameter k runs over values: locus(f, k: linear(0, 10)).",
@@ -161,25 +156,25 @@ func modelBuiltins() []*Builtin {
 
 // operatingPoint reads the values of the states and inputs from a record
 // or an equilibrium.
-func operatingPoint(c *Call, name string, bs *blockSource, needAll bool) (x, u []float64, err error) {
+func operatingPoint(c *lang.Call, name string, bs *lang.Block, needAll bool) (x, u []float64, err error) {
 	v := c.Value(name)
-	var rec *Record
+	var rec *lang.Record
 	switch t := v.(type) {
-	case *Record:
+	case *lang.Record:
 		rec = t
 	case *lsys.Equilibrium:
 		rec = equilibriumPoint(t)
 	default:
-		return nil, nil, c.typeError(name, "a record such as {angle: 0, rate: 0, torque: 0}, or an equilibrium", v)
+		return nil, nil, c.TypeError(name, "a record such as {angle: 0, rate: 0, torque: 0}, or an equilibrium", v)
 	}
-	known := append(append([]string(nil), bs.states...), bs.inputs...)
+	known := append(append([]string(nil), bs.States()...), bs.Inputs()...)
 	for i, n := range rec.Names {
-		if !contains(known, n) {
+		if !slices.Contains(known, n) {
 			return nil, nil, c.Errorf(name, "Give values for the states and inputs only: "+strings.Join(known, ", ")+".",
-				"'%s' is not a state or input of this model%s", n, didYouMean(n, known))
+				"'%s' is not a state or input of this model%s", n, lang.DidYouMean(n, known))
 		}
 		if _, ok := rec.Values[i].(float64); !ok {
-			return nil, nil, c.Errorf(name, "", "the value of '%s' must be a real number, not %s", n, typeName(rec.Values[i]))
+			return nil, nil, c.Errorf(name, "", "the value of '%s' must be a real number, not %s", n, c.TypeName(rec.Values[i]))
 		}
 		if f := rec.Values[i].(float64); math.IsInf(f, 0) {
 			return nil, nil, c.Errorf(name, "", "the value of '%s' must be finite", n)
@@ -200,37 +195,37 @@ func operatingPoint(c *Call, name string, bs *blockSource, needAll bool) (x, u [
 		}
 		return out, nil
 	}
-	if x, err = get(bs.states, "state"); err != nil {
+	if x, err = get(bs.States(), "state"); err != nil {
 		return nil, nil, err
 	}
-	if u, err = get(bs.inputs, "input"); err != nil {
+	if u, err = get(bs.Inputs(), "input"); err != nil {
 		return nil, nil, err
 	}
 	return x, u, nil
 }
 
-func linearizeFn(c *Call) (any, error) {
+func linearizeFn(c *lang.Call) (any, error) {
 	v := c.Value("model")
 	if g, ok := v.(*lsys.System); ok {
 		return g, nil
 	}
-	bs, ok := c.ev.s.sourceOf(v)
+	bs, ok := c.Block(v)
 	if !ok {
-		return nil, c.typeError("model", "a nonlinear model (an equation block)", v)
+		return nil, c.TypeError("model", "a nonlinear model (an equation block)", v)
 	}
 	if !c.Has("at") {
-		return nil, c.Errorf("", "Write linearize(model, at: {"+strings.Join(append(append([]string(nil), bs.states...), bs.inputs...), ": 0, ")+": 0}).",
+		return nil, c.Errorf("", "Write linearize(model, at: {"+strings.Join(append(append([]string(nil), bs.States()...), bs.Inputs()...), ": 0, ")+": 0}).",
 			"linearize needs the operating point 'at'")
 	}
 	x, u, err := operatingPoint(c, "at", bs, true)
 	if err != nil {
 		return nil, err
 	}
-	A, B, C, D, err := bs.jacobians(c.ev, x, u, "", nil)
+	A, B, C, D, err := bs.Jacobians(x, u, "")
 	if err != nil {
 		return nil, err
 	}
-	g, err := bs.system(A, B, C, D)
+	g, err := bs.System(A, B, C, D)
 	if err != nil {
 		return nil, c.Errorf("at", "", "%v", err)
 	}
@@ -240,49 +235,32 @@ func linearizeFn(c *Call) (any, error) {
 // The equilibrium built-in hands out lsys's own *lsys.Equilibrium; its
 // fields are the states and inputs as records, the verdict, and each state
 // and input by name.
-var equilibriumFields = []string{"states", "inputs", "residual", "iterations", "unique", "free", "rank"}
-
 func init() {
-	RegisterType((*lsys.Equilibrium)(nil), TypeInfo{Name: "a steady state (equilibrium)",
-		Fields: equilibriumFields,
-		FieldNames: func(v any) []string {
-			e := v.(*lsys.Equilibrium)
-			out := append([]string(nil), equilibriumFields...)
-			out = append(out, e.StateNames...)
-			return append(out, e.InputNames...)
-		},
-		Field: func(v any, name string) (any, bool) {
-			e := v.(*lsys.Equilibrium)
-			switch name {
-			case "states":
-				return numberRecord(e.StateNames, e.X), true
-			case "inputs":
-				return numberRecord(e.InputNames, e.U), true
-			case "residual":
-				return e.Residual, true
-			case "iterations":
-				return float64(e.Iterations), true
-			case "unique":
-				return e.Free == nil, true
-			case "free":
-				// The free directions as columns, one row per state; [] when unique.
+	registerType((*lsys.Equilibrium)(nil), lang.TypeInfo{Name: "a steady state (equilibrium)",
+		Fields: []lang.Field{
+			lang.FieldOf("states", "the steady state, a record by state name", func(e *lsys.Equilibrium) any { return numberRecord(e.StateNames, e.X) }),
+			lang.FieldOf("inputs", "the constant inputs, a record by input name", func(e *lsys.Equilibrium) any { return numberRecord(e.InputNames, e.U) }),
+			lang.FieldOf("residual", "the largest |F| left at the result (F = f(x, u); f(x, u) - x when sampled)", func(e *lsys.Equilibrium) any { return e.Residual }),
+			lang.FieldOf("iterations", "the Newton steps taken", func(e *lsys.Equilibrium) any { return float64(e.Iterations) }),
+			lang.FieldOf("unique", "true when the steady state is isolated (the Jacobian has full rank)", func(e *lsys.Equilibrium) any { return e.Free == nil }),
+			lang.FieldOf("free", "the directions along which the steady state is not unique, as columns; [] when unique", func(e *lsys.Equilibrium) any {
 				if e.Free == nil {
-					return &List{}, true
+					return &lang.List{}
 				}
-				return mat.DenseCopyOf(e.Free), true
-			case "rank":
-				return float64(e.Rank), true
-			}
-			if x, ok := e.State(name); ok {
-				return x, true
-			}
-			return nil, false
+				return mat.DenseCopyOf(e.Free)
+			}),
+			lang.FieldOf("rank", "the numerical rank of the Jacobian", func(e *lsys.Equilibrium) any { return float64(e.Rank) }),
+		},
+		ByName: func(v any) ([]string, func(string) (any, bool)) {
+			e := v.(*lsys.Equilibrium)
+			names := append(append([]string(nil), e.StateNames...), e.InputNames...)
+			return names, func(name string) (any, bool) { return e.State(name) }
 		}})
 }
 
 // numberRecord is {name: value, ...}.
-func numberRecord(names []string, vals []float64) *Record {
-	r := &Record{Names: append([]string(nil), names...), Values: make([]any, len(vals))}
+func numberRecord(names []string, vals []float64) *lang.Record {
+	r := &lang.Record{Names: append([]string(nil), names...), Values: make([]any, len(vals))}
 	for i, v := range vals {
 		r.Values[i] = v
 	}
@@ -290,44 +268,42 @@ func numberRecord(names []string, vals []float64) *Record {
 }
 
 // equilibriumPoint is the record of states and inputs linearize reads.
-func equilibriumPoint(e *lsys.Equilibrium) *Record {
+func equilibriumPoint(e *lsys.Equilibrium) *lang.Record {
 	return numberRecord(append(append([]string(nil), e.StateNames...), e.InputNames...), append(append([]float64(nil), e.X...), e.U...))
 }
 
-func equilibriumFn(c *Call) (any, error) {
+func equilibriumFn(c *lang.Call) (any, error) {
 	v := c.Value("model")
-	bs, ok := c.ev.s.sourceOf(v)
+	bs, ok := c.Block(v)
 	if !ok {
 		if g, isSys := v.(*lsys.System); isSys {
 			return linearEquilibrium(c, g)
 		}
-		if g, err := c.ev.toSystem(v, c.ArgPos("model")); err == nil && g != nil {
+		if g, err := c.ToSystem(v, c.ArgPos("model")); err == nil && g != nil {
 			return linearEquilibrium(c, g)
 		}
-		return nil, c.typeError("model", "a model or a system", v)
+		return nil, c.TypeError("model", "a model or a system", v)
 	}
-	n := len(bs.states)
+	n := len(bs.States())
 	if n == 0 {
 		return nil, c.Errorf("model", "", "the model has no states")
 	}
-	u := make([]float64, len(bs.inputs))
-	if err := recordInto(c, "inputs", bs.inputs, "an input of this model", "a record such as {torque: 0}", u); err != nil {
+	u := make([]float64, len(bs.Inputs()))
+	if err := recordInto(c, "inputs", bs.Inputs(), "an input of this model", "a record such as {torque: 0}", u); err != nil {
 		return nil, err
 	}
 	x := make([]float64, n)
-	if err := recordInto(c, "guess", bs.states, "a state of this model", "a record such as {angle: 3}", x); err != nil {
+	if err := recordInto(c, "guess", bs.States(), "a state of this model", "a record such as {angle: 3}", x); err != nil {
 		return nil, err
 	}
-	sampled := bs.ts > 0
+	sampled := bs.Every() > 0
 	// residual and Jacobian of F(x) = f(x, u) (- x when sampled).
 	eval := func(x []float64, jac bool) ([]float64, *mat.Dense, error) {
-		f, _, err := bs.evalAt(c.ev, x, u, -1, "", nil)
+		F, _, err := bs.Eval(x, u)
 		if err != nil {
 			return nil, nil, err
 		}
-		F := make([]float64, n)
 		for i := range F {
-			F[i] = f[i].V
 			if sampled {
 				F[i] -= x[i]
 			}
@@ -335,7 +311,7 @@ func equilibriumFn(c *Call) (any, error) {
 		if !jac {
 			return F, nil, nil
 		}
-		A, _, _, _, err := bs.jacobians(c.ev, x, u, "", nil)
+		A, _, _, _, err := bs.Jacobians(x, u, "")
 		if err != nil {
 			return nil, nil, err
 		}
@@ -358,12 +334,12 @@ func equilibriumFn(c *Call) (any, error) {
 	if err != nil {
 		return nil, err
 	}
-	return lsys.NewEquilibrium(bs.states, bs.inputs, x, u, res, iter, J, false), nil
+	return lsys.NewEquilibrium(bs.States(), bs.Inputs(), x, u, res, iter, J, false), nil
 }
 
 // linearEquilibrium solves A x + B u = 0 (continuous) or A x + B u = x
 // (sampled) for a system given by its matrices.
-func linearEquilibrium(c *Call, g *lsys.System) (any, error) {
+func linearEquilibrium(c *lang.Call, g *lsys.System) (any, error) {
 	n, m := g.N(), g.M()
 	if n == 0 {
 		return nil, c.Errorf("model", "", "the system has no states")
@@ -380,15 +356,15 @@ func linearEquilibrium(c *Call, g *lsys.System) (any, error) {
 	return e, err
 }
 
-func sensitivityFn(c *Call) (any, error) {
+func sensitivityFn(c *lang.Call) (any, error) {
 	v := c.Value("model")
-	bs, ok := c.ev.s.sourceOf(v)
+	bs, ok := c.Block(v)
 	if !ok {
 		if _, isSys := v.(*lsys.System); isSys {
 			return nil, c.Errorf("model", "Write the model as an equation block, system { ... }, using named parameters bound before it.",
 				"sensitivity needs a system written as an equation block, so that its parameters are known; this one was built from matrices")
 		}
-		if f, isFn := v.(*Function); isFn {
+		if f, isFn := v.(*lang.Function); isFn {
 			ex := f.Name + "(...)"
 			if len(f.Params) == 1 {
 				ex = f.Name + "(5)"
@@ -396,7 +372,7 @@ func sensitivityFn(c *Call) (any, error) {
 			return nil, c.Errorf("model", fmt.Sprintf("Evaluate the family at the parameter values you want: sensitivity(%s, [\"%s\"]); the function's parameters count as parameters of its block.", ex, strings.Join(f.Params, "\", \"")),
 				"sensitivity needs a model, not the function %s; sensitivities are taken at one value of the parameters", f.Name)
 		}
-		return nil, c.typeError("model", "an equation block", v)
+		return nil, c.TypeError("model", "an equation block", v)
 	}
 	var names []string
 	if c.Has("parameters") {
@@ -408,24 +384,24 @@ func sensitivityFn(c *Call) (any, error) {
 			return nil, c.Errorf("parameters", "Leave the list out to take every parameter of the model.", "give at least one parameter name")
 		}
 	} else {
-		names = append(names, bs.paramOrder...)
+		names = append(names, bs.Parameters()...)
 		if len(names) == 0 {
 			return nil, c.Errorf("model", "Write the coefficients as named parameters bound before the block (k = 4), or as parameters of a function: family(k) = system { ... }.",
 				"this model uses no named parameters: its equations have numbers only")
 		}
 	}
 	for _, p := range names {
-		if _, ok := bs.params[p]; !ok {
-			hint := "The parameters of this model are: " + strings.Join(bs.paramOrder, ", ") + "."
-			if len(bs.paramOrder) == 0 {
+		if _, ok := bs.Parameter(p); !ok {
+			hint := "The parameters of this model are: " + strings.Join(bs.Parameters(), ", ") + "."
+			if len(bs.Parameters()) == 0 {
 				hint = "This model uses no named parameters: its equations have numbers only."
 			}
-			return nil, c.Errorf("parameters", hint, "'%s' is not a parameter of this model%s", p, didYouMean(p, bs.paramOrder))
+			return nil, c.Errorf("parameters", hint, "'%s' is not a parameter of this model%s", p, lang.DidYouMean(p, bs.Parameters()))
 		}
 	}
-	x := make([]float64, len(bs.states))
-	u := make([]float64, len(bs.inputs))
-	if bs.firstNL != nil {
+	x := make([]float64, len(bs.States()))
+	u := make([]float64, len(bs.Inputs()))
+	if !bs.Linear() {
 		if !c.Has("at") {
 			return nil, c.Errorf("", "Give the operating point: sensitivity(model, [...], at: {...}).",
 				"a nonlinear model needs the operating point 'at'")
@@ -435,7 +411,7 @@ func sensitivityFn(c *Call) (any, error) {
 			return nil, err
 		}
 	}
-	A, _, _, _, err := bs.jacobians(c.ev, x, u, "", nil)
+	A, _, _, _, err := bs.Jacobians(x, u, "")
 	if err != nil {
 		return nil, err
 	}
@@ -445,29 +421,30 @@ func sensitivityFn(c *Call) (any, error) {
 	var dA []*mat.Dense
 	var vals []float64
 	for _, p := range names {
-		d, _, _, _, err := bs.jacobians(c.ev, x, u, p, nil)
+		d, _, _, _, err := bs.Jacobians(x, u, p)
 		if err != nil {
 			return nil, err
 		}
 		dA = append(dA, d)
-		vals = append(vals, bs.params[p])
+		v, _ := bs.Parameter(p)
+		vals = append(vals, v)
 	}
-	return lsys.EigenvalueSensitivity(A, dA, names, vals, bs.ts)
+	return lsys.EigenvalueSensitivity(A, dA, names, vals, bs.Every())
 }
 
 // MaxLocusSteps bounds the number of parameter values of one locus.
 const MaxLocusSteps = 100_000
 
-func locusFn(c *Call) (any, error) {
+func locusFn(c *lang.Call) (any, error) {
 	f := c.Value("family")
 	var params []string
 	switch t := f.(type) {
-	case *Function:
+	case *lang.Function:
 		params = t.Params
-	case *Builtin:
+	case *lang.Builtin:
 		return nil, c.Errorf("family", "Define a function first: f(k) = ..., then locus(f, k: values).", "locus needs a function of your own, not the built-in %s", t.Name)
 	default:
-		return nil, c.typeError("family", "a function such as f(k) = system(...)", f)
+		return nil, c.TypeError("family", "a function such as f(k) = system(...)", f)
 	}
 	if len(params) != 1 {
 		return nil, c.Errorf("family", "", "the function must have exactly one parameter; it has %d", len(params))
@@ -478,8 +455,7 @@ func locusFn(c *Call) (any, error) {
 	}
 	nv := c.Extra[0]
 	if nv.Name != params[0] {
-		return nil, c.ev.errorAt(nv.Pos, fmt.Sprintf("the function's parameter is '%s', not '%s'", params[0], nv.Name),
-			fmt.Sprintf("Write locus(f, %s: values).", params[0]))
+		return nil, c.ErrorAt(nv.Pos, fmt.Sprintf("Write locus(f, %s: values).", params[0]), "the function's parameter is '%s', not '%s'", params[0], nv.Name)
 	}
 	var values []float64
 	switch t := nv.Value.(type) {
@@ -493,11 +469,10 @@ func locusFn(c *Call) (any, error) {
 	case float64:
 		values = []float64{t}
 	default:
-		return nil, c.ev.errorAt(nv.Pos, fmt.Sprintf("the values of '%s' must be a vector of numbers, not %s", nv.Name, typeName(nv.Value)),
-			"Use linear(a, b, n: 50) or logarithmic(a, b).")
+		return nil, c.ErrorAt(nv.Pos, "Use linear(a, b, n: 50) or logarithmic(a, b).", "the values of '%s' must be a vector of numbers, not %s", nv.Name, c.TypeName(nv.Value))
 	}
 	if len(values) > MaxLocusSteps {
-		return nil, c.ev.errorAt(nv.Pos, fmt.Sprintf("%d values are more than the limit of %d", len(values), MaxLocusSteps), "Use fewer values: linear(a, b, n: 200) is usually enough.")
+		return nil, c.ErrorAt(nv.Pos, "Use fewer values: linear(a, b, n: 200) is usually enough.", "%d values are more than the limit of %d", len(values), MaxLocusSteps)
 	}
 	progress := len(values) >= 50
 	const id = "locus-progress"
@@ -515,23 +490,23 @@ func locusFn(c *Call) (any, error) {
 		if err != nil {
 			return nil, err
 		}
-		g, err := c.ev.toSystem(r, c.pos)
+		g, err := c.ToSystem(r, c.Pos())
 		if err != nil {
 			return nil, err
 		}
 		if g == nil {
-			return nil, c.Errorf("family", "", "at %s = %s the function gives %s, not a system", nv.Name, FormatNumber(p), typeName(r))
+			return nil, c.Errorf("family", "", "at %s = %s the function gives %s, not a system", nv.Name, lang.FormatNumber(p), c.TypeName(r))
 		}
 		if g.N() == 0 {
-			return nil, c.Errorf("family", "", "at %s = %s the system has no states, so no modes", nv.Name, FormatNumber(p))
+			return nil, c.Errorf("family", "", "at %s = %s the system has no states, so no modes", nv.Name, lang.FormatNumber(p))
 		}
 		if k > 0 && g.N() != len(eig[0]) {
 			return nil, c.Errorf("family", "A locus follows a fixed number of modes.",
-				"at %s = %s the system has %s, but %d at the first value", nv.Name, FormatNumber(p), plural(g.N(), "state"), len(eig[0]))
+				"at %s = %s the system has %s, but %d at the first value", nv.Name, lang.FormatNumber(p), lang.Plural(g.N(), "state"), len(eig[0]))
 		}
 		es, err := lsys.Eigen(g.A)
 		if err != nil {
-			return nil, c.Errorf("family", "", "at %s = %s: %v", nv.Name, FormatNumber(p), err)
+			return nil, c.Errorf("family", "", "at %s = %s: %v", nv.Name, lang.FormatNumber(p), err)
 		}
 		eig = append(eig, es.Values)
 		ts = g.Ts
@@ -549,13 +524,13 @@ func locusFn(c *Call) (any, error) {
 // entries are named by names: each field must be one of names and a finite
 // real number. what names an entry in messages ("an input of this model");
 // example shows the expected form.
-func recordInto(c *Call, param string, names []string, what, example string, dst []float64) error {
+func recordInto(c *lang.Call, param string, names []string, what, example string, dst []float64) error {
 	if !c.Has(param) {
 		return nil
 	}
-	r, ok := c.Value(param).(*Record)
+	r, ok := c.Value(param).(*lang.Record)
 	if !ok {
-		return c.typeError(param, example, c.Value(param))
+		return c.TypeError(param, example, c.Value(param))
 	}
 	for i, name := range r.Names {
 		j := -1
@@ -565,7 +540,7 @@ func recordInto(c *Call, param string, names []string, what, example string, dst
 			}
 		}
 		if j < 0 {
-			return c.Errorf(param, "", "'%s' is not %s%s", name, what, didYouMean(name, names))
+			return c.Errorf(param, "", "'%s' is not %s%s", name, what, lang.DidYouMean(name, names))
 		}
 		f, ok := r.Values[i].(float64)
 		if !ok || math.IsInf(f, 0) {

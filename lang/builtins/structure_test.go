@@ -1,4 +1,4 @@
-package lang
+package builtins_test
 
 import (
 	"context"
@@ -9,13 +9,16 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang"
+	"lsys/lang/builtins"
+	"lsys/lang/langtest"
 	"lsys/lsys"
 )
 
 func stRun(t *testing.T, src string) any {
 	t.Helper()
-	s := NewSession(Options{Dir: t.TempDir()})
-	v, err := s.Run(context.Background(), src, &recorder{})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	v, err := s.Run(context.Background(), src, &langtest.Recorder{})
 	if err != nil {
 		t.Fatalf("%s\n%v", src, err)
 	}
@@ -24,8 +27,8 @@ func stRun(t *testing.T, src string) any {
 
 func stRunErr(t *testing.T, src, frag string) {
 	t.Helper()
-	s := NewSession(Options{Dir: t.TempDir()})
-	_, err := s.Run(context.Background(), src, &recorder{})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	_, err := s.Run(context.Background(), src, &langtest.Recorder{})
 	if err == nil || !strings.Contains(err.Error(), frag) {
 		t.Errorf("%s: want an error containing %q, got %v", src, frag, err)
 	}
@@ -56,7 +59,7 @@ func TestBuiltinZeros(t *testing.T) {
 	v := stRun(t, "zeros(system([[0, 1], [-3, -4]], [0, 1], [2, 1])).invariant")
 	m, ok := v.(*mat.Dense)
 	if !ok || math.Abs(m.At(0, 0)+2) > 1e-12 {
-		t.Fatalf("zeros: %v", FormatValue(v))
+		t.Fatalf("zeros: %v", lang.FormatValue(v))
 	}
 	if _, ok := stRun(t, stMSD+"zeros(G)").(*lsys.ZeroSet); !ok {
 		t.Error("zeros should give a zero set")
@@ -142,19 +145,6 @@ func TestBuiltinModeTableFields(t *testing.T) {
 	}
 }
 
-func TestModalBuiltinReady(t *testing.T) {
-	// Not registered yet (see stModalBuiltin); its function must work.
-	b := stModalBuiltin()
-	if b.Name != "modal" || b.Fn == nil || len(b.Examples) == 0 {
-		t.Fatal("modal built-in malformed")
-	}
-	g, _ := lsys.FromMatrices(mat.NewDense(2, 2, []float64{0, 1, -4, -0.8}), mat.NewDense(2, 1, []float64{0, 0.5}), nil, nil, 0)
-	mf, err := lsys.Modal(g)
-	if err != nil || mf.System == nil {
-		t.Fatal(err)
-	}
-}
-
 func TestBuiltinTransfer(t *testing.T) {
 	// Controllable canonical form of (s + 2)/(s^2 + 4s + 3) read back.
 	v := stRun(t, "transfer(system([[0, 1], [-3, -4]], [0, 1], [2, 1]))")
@@ -168,7 +158,7 @@ func TestBuiltinTransfer(t *testing.T) {
 			t.Errorf("G(%v) = %v, want %v", x, r.Eval(x), want)
 		}
 	}
-	if l, ok := stRun(t, "transfer(system([[-1, 0], [0, -2]], [[1, 0], [0, 1]], [[1, 1]]))").(*List); !ok || len(l.Items) != 1 {
+	if l, ok := stRun(t, "transfer(system([[-1, 0], [0, -2]], [[1, 0], [0, 1]], [[1, 1]]))").(*lang.List); !ok || len(l.Items) != 1 {
 		t.Errorf("MIMO transfer: %v", l)
 	}
 }

@@ -1,4 +1,4 @@
-package lang
+package builtins_test
 
 import (
 	"context"
@@ -9,18 +9,12 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"lsys/lang"
+	"lsys/lang/builtins"
+	"lsys/lang/langtest"
 	"lsys/lang/syntax"
 	"lsys/lsys"
 )
-
-func run(t *testing.T, s *Session, src string) any {
-	t.Helper()
-	v, err := s.Run(context.Background(), src, &recorder{})
-	if err != nil {
-		t.Fatalf("%s\n%v", src, err)
-	}
-	return v
-}
 
 func matNear(t *testing.T, what string, got, want *mat.Dense, tol float64) {
 	t.Helper()
@@ -45,25 +39,12 @@ func matNear(t *testing.T, what string, got, want *mat.Dense, tol float64) {
 	}
 }
 
-const gimbalCell = `Jm = 2e-4; Jl = 6e-4; k = 3.1; b = 0.004
-gimbal = system {
-  states  motor_angle, motor_rate, payload_angle, payload_rate
-  inputs  torque
-  outputs speed
-  motor_angle'   = motor_rate
-  motor_rate'    = (torque - k*(motor_angle - payload_angle) - b*(motor_rate - payload_rate)) / Jm
-  payload_angle' = payload_rate
-  payload_rate'  = (k*(motor_angle - payload_angle) + b*(motor_rate - payload_rate)) / Jl
-  speed = payload_rate
-}
-gimbal`
-
 // The two-inertia drive (motor and payload coupled by a spring k and a
 // damper b) in equation form against its matrix form written from Newton's
 // second law by hand (common practice).
 func TestEquationFormMatchesMatrixForm(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
-	g := run(t, s, gimbalCell).(*lsys.System)
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	g := langtest.Run(t, s, langtest.Gimbal).(*lsys.System)
 	Jm, Jl, k, b := 2e-4, 6e-4, 3.1, 0.004
 	A := mat.NewDense(4, 4, []float64{
 		0, 1, 0, 0,
@@ -83,13 +64,13 @@ func TestEquationFormMatchesMatrixForm(t *testing.T) {
 		t.Errorf("names %v %v %v", g.StateNames, g.InputNames, g.OutputNames)
 	}
 	// The same in matrix form through the language.
-	m := run(t, s, `system([[0, 1, 0, 0], [-k/Jm, -b/Jm, k/Jm, b/Jm], [0, 0, 0, 1], [k/Jl, b/Jl, -k/Jl, -b/Jl]], [0, 1/Jm, 0, 0], [0, 0, 0, 1])`).(*lsys.System)
+	m := langtest.Run(t, s, `system([[0, 1, 0, 0], [-k/Jm, -b/Jm, k/Jm, b/Jm], [0, 0, 0, 1], [k/Jl, b/Jl, -k/Jl, -b/Jl]], [0, 1/Jm, 0, 0], [0, 0, 0, 1])`).(*lsys.System)
 	matNear(t, "A (matrix form)", m.A, g.A, 0)
 	matNear(t, "B (matrix form)", m.B, g.B, 0)
 	matNear(t, "C (matrix form)", m.C, g.C, 0)
 	// Parameters are copied when the block is evaluated.
-	run(t, s, "k = 100")
-	if got := run(t, s, "gimbal.A[2, 1]").(float64); got != -3.1/2e-4 {
+	langtest.Run(t, s, "k = 100")
+	if got := langtest.Run(t, s, "gimbal.A[2, 1]").(float64); got != -3.1/2e-4 {
 		t.Errorf("rebinding k changed the model: %v", got)
 	}
 }
@@ -97,8 +78,8 @@ func TestEquationFormMatchesMatrixForm(t *testing.T) {
 // A sampled first-order tank, x[k+1] = a x[k] + (1 - a) u[k], in both forms;
 // a feedthrough output and a helper definition.
 func TestSampledBlockAndHelpers(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
-	g := run(t, s, `a = 0.9
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	g := langtest.Run(t, s, `a = 0.9
 tank = system every 0.5 {
   states level
   inputs inflow
@@ -118,39 +99,28 @@ tank`).(*lsys.System)
 	matNear(t, "C", g.C, mat.NewDense(2, 1, []float64{2, 1}), 0)
 	matNear(t, "D", g.D, mat.NewDense(2, 1, []float64{0, 0.1}), 0)
 	// No outputs declared: every state is an output (C = I).
-	h := run(t, s, "system { states p, q; p' = q; q' = -p }").(*lsys.System)
+	h := langtest.Run(t, s, "system { states p, q; p' = q; q' = -p }").(*lsys.System)
 	matNear(t, "C", h.C, mat.NewDense(2, 2, []float64{1, 0, 0, 1}), 0)
 	if h.M() != 0 || strings.Join(h.OutputNames, ",") != "p,q" {
 		t.Errorf("inputs %d, outputs %v", h.M(), h.OutputNames)
 	}
 	// Fields select signals.
-	sp := run(t, s, "tank.total").(*lsys.System)
+	sp := langtest.Run(t, s, "tank.total").(*lsys.System)
 	if sp.P() != 1 || sp.D.At(0, 0) != 0.1 {
-		t.Errorf("tank.total: %v", FormatValue(sp))
+		t.Errorf("tank.total: %v", lang.FormatValue(sp))
 	}
 }
-
-const pendulumCell = `g = 9.81; len = 0.5; damping = 0.2
-pendulum = system {
-  states angle, rate
-  inputs torque
-  outputs tip
-  angle' = rate
-  rate' = -g/len*sin(angle) - damping*rate + torque
-  tip = len*sin(angle)
-}
-`
 
 // The pendulum angle” = -(g/L) sin(angle) - c angle' + torque linearized by
 // hand: A = [[0, 1], [-(g/L) cos(a0), -c]], B = [0; 1], C = [L cos(a0), 0]
 // (Taylor expansion to first order, common practice).
 func TestLinearizePendulum(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
-	run(t, s, pendulumCell)
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	langtest.Run(t, s, langtest.Pendulum)
 	g, L, c := 9.81, 0.5, 0.2
 	for _, a0 := range []float64{0, 0.3, math.Pi} {
-		s.bind("a0", a0)
-		lin := run(t, s, "linearize(pendulum, at: {angle: a0, rate: 0.7, torque: 2})").(*lsys.System)
+		s.Set("a0", a0)
+		lin := langtest.Run(t, s, "linearize(pendulum, at: {angle: a0, rate: 0.7, torque: 2})").(*lsys.System)
 		matNear(t, "A", lin.A, mat.NewDense(2, 2, []float64{0, 1, -g / L * math.Cos(a0), -c}), 1e-15)
 		matNear(t, "B", lin.B, mat.NewDense(2, 1, []float64{0, 1}), 0)
 		matNear(t, "C", lin.C, mat.NewDense(1, 2, []float64{L * math.Cos(a0), 0}), 1e-15)
@@ -169,9 +139,9 @@ func TestLinearizePendulum(t *testing.T) {
 // level' = (inflow - k sqrt(level)) / area, level = (inflow/k)^2
 // (Torricelli's law, common practice).
 func TestEquilibrium(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
-	run(t, s, pendulumCell)
-	e := run(t, s, "equilibrium(pendulum, inputs: {torque: 1}, guess: {angle: 0.1})").(*lsys.Equilibrium)
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	langtest.Run(t, s, langtest.Pendulum)
+	e := langtest.Run(t, s, "equilibrium(pendulum, inputs: {torque: 1}, guess: {angle: 0.1})").(*lsys.Equilibrium)
 	want := math.Asin(1 * 0.5 / 9.81)
 	if a, _ := e.State("angle"); math.Abs(a-want) > 1e-12 {
 		t.Errorf("angle %v, want %v", a, want)
@@ -180,25 +150,25 @@ func TestEquilibrium(t *testing.T) {
 		t.Errorf("residual %v", e.Residual)
 	}
 	// The inverted branch from a guess near pi.
-	e2 := run(t, s, "equilibrium(pendulum, inputs: {torque: 1}, guess: {angle: 3})").(*lsys.Equilibrium)
+	e2 := langtest.Run(t, s, "equilibrium(pendulum, inputs: {torque: 1}, guess: {angle: 3})").(*lsys.Equilibrium)
 	if a, _ := e2.State("angle"); math.Abs(a-(math.Pi-want)) > 1e-12 || e2.Residual >= 1e-10 {
 		t.Errorf("angle %v, want %v (residual %v)", a, math.Pi-want, e2.Residual)
 	}
 	// linearize accepts the equilibrium.
-	lin := run(t, s, "e = equilibrium(pendulum, inputs: {torque: 1}, guess: {angle: 0.1})\nlinearize(pendulum, at: e)").(*lsys.System)
+	lin := langtest.Run(t, s, "e = equilibrium(pendulum, inputs: {torque: 1}, guess: {angle: 0.1})\nlinearize(pendulum, at: e)").(*lsys.System)
 	if got := lin.A.At(1, 0); math.Abs(got-(-9.81/0.5*math.Cos(want))) > 1e-12 {
 		t.Errorf("A[2,1] at the equilibrium %v", got)
 	}
-	if r := run(t, s, "e.residual").(float64); r >= 1e-10 {
+	if r := langtest.Run(t, s, "e.residual").(float64); r >= 1e-10 {
 		t.Errorf("e.residual %v", r)
 	}
-	run(t, s, `k = 0.5; area = 2
+	langtest.Run(t, s, `k = 0.5; area = 2
 tank = system {
   states level
   inputs inflow
   level' = (inflow - k*sqrt(level)) / area
 }`)
-	e3 := run(t, s, "equilibrium(tank, inputs: {inflow: 0.3}, guess: {level: 1})").(*lsys.Equilibrium)
+	e3 := langtest.Run(t, s, "equilibrium(tank, inputs: {inflow: 0.3}, guess: {level: 1})").(*lsys.Equilibrium)
 	if l, _ := e3.State("level"); math.Abs(l-0.36) > 1e-12 || e3.Residual >= 1e-10 {
 		t.Errorf("tank level %v, want 0.36 (residual %v)", l, e3.Residual)
 	}
@@ -216,9 +186,9 @@ tank = system {
 // lambda = (-b + j sqrt(4km - b^2)) / (2m), so d lambda/dk = j/sqrt(4km - b^2)
 // and d lambda/db = -1/(2m) - j b/(2m sqrt(4km - b^2)) (differentiating the
 // quadratic formula, common practice). Also checked against a central
-// finite difference of the eigenvalues (test only).
+// Finite difference of the eigenvalues (test only).
 func TestSensitivity(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
 	src := `k = 4; b = 0.4; mass = 1
 axis = system {
   states position, velocity
@@ -227,8 +197,8 @@ axis = system {
   velocity' = (force - k*position - b*velocity) / mass
 }
 `
-	run(t, s, src)
-	sens := run(t, s, `sensitivity(axis, ["k", "b"])`).(*lsys.Sensitivity)
+	langtest.Run(t, s, src)
+	sens := langtest.Run(t, s, `sensitivity(axis, ["k", "b"])`).(*lsys.Sensitivity)
 	if len(sens.Eigenvalues) != 1 {
 		t.Fatalf("one oscillatory mode expected, got %v", sens.Eigenvalues)
 	}
@@ -243,10 +213,10 @@ axis = system {
 	}
 	// Finite differences on the rebuilt block.
 	eig := func(k, b float64) complex128 {
-		s2 := NewSession(Options{Dir: t.TempDir()})
-		s2.bind("k", k)
-		s2.bind("b", b)
-		run(t, s2, strings.Replace(src, "k = 4; b = 0.4; ", "", 1))
+		s2 := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+		s2.Set("k", k)
+		s2.Set("b", b)
+		langtest.Run(t, s2, strings.Replace(src, "k = 4; b = 0.4; ", "", 1))
 		g, _ := s2.Get("axis")
 		p, err := lsys.Poles(g.(*lsys.System))
 		if err != nil {
@@ -272,8 +242,8 @@ axis = system {
 	// A nonlinear model at an operating point: the pendulum's small-swing
 	// pair lambda^2 + c lambda + (g/L) cos(a0) = 0 at a0 = 0;
 	// d lambda/dg = (1/L) / (-(2 lambda + c)) (implicit differentiation).
-	run(t, s, pendulumCell)
-	ps := run(t, s, `sensitivity(pendulum, ["g"], at: {angle: 0, rate: 0, torque: 0})`).(*lsys.Sensitivity)
+	langtest.Run(t, s, langtest.Pendulum)
+	ps := langtest.Run(t, s, `sensitivity(pendulum, ["g"], at: {angle: 0, rate: 0, torque: 0})`).(*lsys.Sensitivity)
 	l := ps.Eigenvalues[0]
 	want := complex(-1/0.5, 0) / (2*l + complex(0.2, 0))
 	if d := cmplx.Abs(ps.D[0][0] - want); d > 1e-12 {
@@ -284,8 +254,8 @@ axis = system {
 // Mode matching against sorting: two real modes -k and -(11 - k) cross at
 // k = 5.5; each branch must keep its own mode (facts of the construction).
 func TestLocus(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
-	r := &recorder{}
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	r := &langtest.Recorder{}
 	v, err := s.Run(context.Background(), "crossing(k) = system([[-k, 0.001], [0, -(11 - k)]])\nlocus(crossing, k: linear(1, 10, n: 91))", r)
 	if err != nil {
 		t.Fatal(err)
@@ -297,8 +267,8 @@ func TestLocus(t *testing.T) {
 			t.Errorf("branch from %v to %v: modes were swapped at the crossing", start, end)
 		}
 	}
-	if len(r.displays) != 1 || len(r.updates) == 0 || r.updates[len(r.updates)-1] != "locus: 91 values done" {
-		t.Errorf("progress: displays %v, updates %v", r.displays, r.updates)
+	if len(r.Displays) != 1 || len(r.Updates) == 0 || r.Updates[len(r.Updates)-1] != "locus: 91 values done" {
+		t.Errorf("progress: displays %v, updates %v", r.Displays, r.Updates)
 	}
 	// Errors.
 	for _, c := range []struct{ src, err string }{
@@ -321,40 +291,40 @@ func TestLocus(t *testing.T) {
 // The pointed errors of equation blocks: message, line and column.
 func TestBlockErrors(t *testing.T) {
 	pre := "torque_gain = 2\n"
-	runCells(t, []cell{
-		{src: "system {\n  states x\n  inputs torque\n  x' = -x + torqe\n}", err: "'torqe' is not a state, input or parameter of this system; did you mean 'torque' (an input)?", line: 4, col: 13},
-		{src: "system {\n  states x, v\n  x' = v\n}", err: "the state 'v' has no equation", line: 2, col: 13},
-		{src: "system {\n  states x\n  x' = -x\n  x' = -2*x\n}", err: "a second equation for the state 'x' (the first is at line 3)", line: 4, col: 3},
-		{src: "system {\n  states x\n  outputs y\n  x' = -x\n}", err: "the output 'y' is never defined", line: 3, col: 11},
-		{src: "system {\n  states x\n  outputs y\n  x' = -x\n  yy = x\n}", err: "the output 'y' is never defined; did you mean 'yy'?", line: 3, col: 11},
-		{src: "system {\n  states x\n  inputs x\n  x' = -x\n}", err: "'x' is declared as a state and as an input (first at line 2, column 10)", line: 3, col: 10},
-		{src: "system {\n  states x, x\n  x' = -x\n}", err: "'x' is declared twice", line: 2, col: 13},
-		{src: "system {\n  states x, y\n  x' = y\n  next y = x\n}", err: "continuous (x' = ...) and sampled (next x = ...) equations are mixed", line: 4, col: 3},
-		{src: "system every 0.1 {\n  states x\n  x' = -x\n}", err: "is a continuous-time equation, but this system is sampled", line: 3, col: 3},
-		{src: "system {\n  states x\n  next x = x\n}", err: "next x = ... is a sampled equation, but this system is continuous", line: 3, col: 3},
-		{src: "system {\n  states x\n  inputs u\n  u' = x\n  x' = u\n}", err: "'u' is an input; inputs come from outside", line: 4, col: 3},
-		{src: "system {\n  states x\n  z' = -x\n}", err: "'z' is not a declared state", line: 3, col: 3},
-		{src: "system {\n  states x\n  x = 1\n}", err: "'x' is a state; its equation is written x' = ...", line: 3, col: 3},
-		{src: "system {\n  states x\n  x' = -x + 5\n}", err: "has a constant part (5)", line: 3, col: 8},
-		{src: "system every -1 {\n  states x\n  next x = x\n}", err: "the sample time must be a positive number", line: 1, col: 14},
-		{src: "system {\n  states x\n  h = 2*w\n  w = x\n  x' = -h\n}", err: "'w' is used before its equation (line 4)", line: 3, col: 9},
-		{src: "system {\n  states sin\n  sin' = 1\n}", err: "'sin' is a function that equations use", line: 2, col: 10},
-		{src: "system {\n  states x\n  x' = modes(x)\n}", err: "'modes' cannot be used in an equation", line: 3, col: 8},
-		{src: "system {\n  states x\n  x' = [1, 2]\n}", err: "cannot appear in an equation", line: 3, col: 8},
-		{src: "system {\n  states x\n  x' = 2j*x\n}", err: "complex numbers cannot appear in equations", line: 3, col: 8},
-		{src: pre + "system {\n  states x\n  x' = -x*torque_gainn\n}", err: "did you mean 'torque_gain' (a parameter)?", line: 4, col: 11},
-		{src: "r = \"text\"\nsystem {\n  states x\n  x' = -r*x\n}", err: "'r' is a string; a parameter in an equation must be a real number", line: 4, col: 9},
-		{src: "system {\n  states x\n  x' = -x\n  y' = 1", err: "expected '}' to close the system block", line: 4, col: 9},
-		{src: "system {\n  states x y\n}", err: "expected ',' between names in the states list", line: 2, col: 12},
-		{src: "system {\n  x' -x\n}", err: "expected '=' in the equation for 'x'", line: 2, col: 6},
-		{src: "system {\n  states x\n  next x' = x\n}", err: "either 'next x = ...' (sampled) or", line: 3, col: 9},
-		{src: "system {\n}", err: "the system has no states and no outputs", line: 1, col: 1},
-		{src: "m = system {\n  states x\n  inputs u\n  x' = -x*u\n}\nmodes(m)", err: "first nonlinear term is -x*u (line 4, column 8", line: 6, col: 7},
-		{src: "m = system {\n  states x\n  inputs u\n  x' = -x*u\n}\nlinearize(m, at: {x: 1})", err: "at gives no value for the input 'u'", line: 6, col: 18},
-		{src: "m = system {\n  states x\n  inputs u\n  x' = -x*u\n}\nlinearize(m, at: {x: 1, u: 0, w: 2})", err: "'w' is not a state or input of this model", line: 6, col: 18},
-		{src: "m = system {\n  states x\n  x' = -log(x)\n}\nlinearize(m, at: {x: -1})", err: "log of -1 at this operating point", line: 3, col: 9},
-		{src: "m = system {\n  states x\n  x' = -x\n}\nsensitivity(m, [\"k\"])", err: "'k' is not a parameter of this model", line: 5, col: 16},
-		{src: "sensitivity(system([[-1]]), [\"k\"])", err: "this one was built from matrices", line: 1, col: 13},
+	langtest.RunCells(t, []langtest.Cell{
+		{Src: "system {\n  states x\n  inputs torque\n  x' = -x + torqe\n}", Err: "'torqe' is not a state, input or parameter of this system; did you mean 'torque' (an input)?", Line: 4, Col: 13},
+		{Src: "system {\n  states x, v\n  x' = v\n}", Err: "the state 'v' has no equation", Line: 2, Col: 13},
+		{Src: "system {\n  states x\n  x' = -x\n  x' = -2*x\n}", Err: "a second equation for the state 'x' (the first is at line 3)", Line: 4, Col: 3},
+		{Src: "system {\n  states x\n  outputs y\n  x' = -x\n}", Err: "the output 'y' is never defined", Line: 3, Col: 11},
+		{Src: "system {\n  states x\n  outputs y\n  x' = -x\n  yy = x\n}", Err: "the output 'y' is never defined; did you mean 'yy'?", Line: 3, Col: 11},
+		{Src: "system {\n  states x\n  inputs x\n  x' = -x\n}", Err: "'x' is declared as a state and as an input (first at line 2, column 10)", Line: 3, Col: 10},
+		{Src: "system {\n  states x, x\n  x' = -x\n}", Err: "'x' is declared twice", Line: 2, Col: 13},
+		{Src: "system {\n  states x, y\n  x' = y\n  next y = x\n}", Err: "continuous (x' = ...) and sampled (next x = ...) equations are mixed", Line: 4, Col: 3},
+		{Src: "system every 0.1 {\n  states x\n  x' = -x\n}", Err: "is a continuous-time equation, but this system is sampled", Line: 3, Col: 3},
+		{Src: "system {\n  states x\n  next x = x\n}", Err: "next x = ... is a sampled equation, but this system is continuous", Line: 3, Col: 3},
+		{Src: "system {\n  states x\n  inputs u\n  u' = x\n  x' = u\n}", Err: "'u' is an input; inputs come from outside", Line: 4, Col: 3},
+		{Src: "system {\n  states x\n  z' = -x\n}", Err: "'z' is not a declared state", Line: 3, Col: 3},
+		{Src: "system {\n  states x\n  x = 1\n}", Err: "'x' is a state; its equation is written x' = ...", Line: 3, Col: 3},
+		{Src: "system {\n  states x\n  x' = -x + 5\n}", Err: "has a constant part (5)", Line: 3, Col: 8},
+		{Src: "system every -1 {\n  states x\n  next x = x\n}", Err: "the sample time must be a positive number", Line: 1, Col: 14},
+		{Src: "system {\n  states x\n  h = 2*w\n  w = x\n  x' = -h\n}", Err: "'w' is used before its equation (line 4)", Line: 3, Col: 9},
+		{Src: "system {\n  states sin\n  sin' = 1\n}", Err: "'sin' is a function that equations use", Line: 2, Col: 10},
+		{Src: "system {\n  states x\n  x' = modes(x)\n}", Err: "'modes' cannot be used in an equation", Line: 3, Col: 8},
+		{Src: "system {\n  states x\n  x' = [1, 2]\n}", Err: "cannot appear in an equation", Line: 3, Col: 8},
+		{Src: "system {\n  states x\n  x' = 2j*x\n}", Err: "complex numbers cannot appear in equations", Line: 3, Col: 8},
+		{Src: pre + "system {\n  states x\n  x' = -x*torque_gainn\n}", Err: "did you mean 'torque_gain' (a parameter)?", Line: 4, Col: 11},
+		{Src: "r = \"text\"\nsystem {\n  states x\n  x' = -r*x\n}", Err: "'r' is a string; a parameter in an equation must be a real number", Line: 4, Col: 9},
+		{Src: "system {\n  states x\n  x' = -x\n  y' = 1", Err: "expected '}' to close the system block", Line: 4, Col: 9},
+		{Src: "system {\n  states x y\n}", Err: "expected ',' between names in the states list", Line: 2, Col: 12},
+		{Src: "system {\n  x' -x\n}", Err: "expected '=' in the equation for 'x'", Line: 2, Col: 6},
+		{Src: "system {\n  states x\n  next x' = x\n}", Err: "either 'next x = ...' (sampled) or", Line: 3, Col: 9},
+		{Src: "system {\n}", Err: "the system has no states and no outputs", Line: 1, Col: 1},
+		{Src: "m = system {\n  states x\n  inputs u\n  x' = -x*u\n}\nmodes(m)", Err: "first nonlinear term is -x*u (line 4, column 8", Line: 6, Col: 7},
+		{Src: "m = system {\n  states x\n  inputs u\n  x' = -x*u\n}\nlinearize(m, at: {x: 1})", Err: "at gives no value for the input 'u'", Line: 6, Col: 18},
+		{Src: "m = system {\n  states x\n  inputs u\n  x' = -x*u\n}\nlinearize(m, at: {x: 1, u: 0, w: 2})", Err: "'w' is not a state or input of this model", Line: 6, Col: 18},
+		{Src: "m = system {\n  states x\n  x' = -log(x)\n}\nlinearize(m, at: {x: -1})", Err: "log of -1 at this operating point", Line: 3, Col: 9},
+		{Src: "m = system {\n  states x\n  x' = -x\n}\nsensitivity(m, [\"k\"])", Err: "'k' is not a parameter of this model", Line: 5, Col: 16},
+		{Src: "sensitivity(system([[-1]]), [\"k\"])", Err: "this one was built from matrices", Line: 1, Col: 13},
 	})
 }
 
@@ -381,28 +351,28 @@ func TestNonlinearDetection(t *testing.T) {
 		{"-x*u", "-x*u"},
 		{"if x > 0 then -x else -2*x", "if x > 0 then -x else -2*x"},
 	} {
-		s := NewSession(Options{Dir: t.TempDir()})
+		s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
 		v, err := s.Run(context.Background(), "system {\n  states x\n  inputs u\n  x' = "+c.rhs+"\n}", nil)
 		if err != nil {
 			t.Errorf("%s: %v", c.rhs, err)
 			continue
 		}
-		m, nl := v.(*NonlinearModel)
+		m, nl := v.(*lsys.Model)
 		switch {
 		case c.term == "" && nl:
-			t.Errorf("%s: linear, but a nonlinear model (%s)", c.rhs, syntax.ExprString(m.bs.firstNL))
+			t.Errorf("%s: linear, but a nonlinear model (%s)", c.rhs, m.FirstNonlinear)
 		case c.term != "" && !nl:
-			t.Errorf("%s: nonlinear, but %s", c.rhs, typeName(v))
-		case nl && syntax.ExprString(m.bs.firstNL) != c.term:
-			t.Errorf("%s: first nonlinear term %s, want %s", c.rhs, syntax.ExprString(m.bs.firstNL), c.term)
+			t.Errorf("%s: nonlinear, but %s", c.rhs, builtins.Registry().TypeName(v))
+		case nl && m.FirstNonlinear != c.term:
+			t.Errorf("%s: first nonlinear term %s, want %s", c.rhs, m.FirstNonlinear, c.term)
 		}
 	}
 }
 
 // A user function inside equations, and a record field as a parameter.
 func TestEquationsWithFunctionsAndRecords(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
-	g := run(t, s, `spring(d) = p.k*d
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	g := langtest.Run(t, s, `spring(d) = p.k*d
 p = {k: 3, c: 0.5}
 system {
   states x, v
@@ -410,7 +380,7 @@ system {
   v' = -spring(x) - p.c*v
 }`).(*lsys.System)
 	matNear(t, "A", g.A, mat.NewDense(2, 2, []float64{0, 1, -3, -0.5}), 0)
-	sens := run(t, s, `sensitivity(system {
+	sens := langtest.Run(t, s, `sensitivity(system {
   states x, v
   x' = v
   v' = -spring(x) - p.c*v
@@ -426,35 +396,35 @@ system {
 // steady state for u = 0 is x = K, where the linearization is
 // 1 + r - 2 r x/K = 1 - r (logistic map, common practice).
 func TestSampledNonlinearModel(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
-	run(t, s, `r = 0.3; K = 50
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	langtest.Run(t, s, `r = 0.3; K = 50
 growth = system every 1 {
   states x
   inputs u
   next x = x + r*x*(1 - x/K) + u
 }`)
-	e := run(t, s, "equilibrium(growth, inputs: {u: 0}, guess: {x: 40})").(*lsys.Equilibrium)
+	e := langtest.Run(t, s, "equilibrium(growth, inputs: {u: 0}, guess: {x: 40})").(*lsys.Equilibrium)
 	if x, _ := e.State("x"); math.Abs(x-50) > 1e-10 || e.Residual >= 1e-10 {
 		t.Errorf("x = %v, want 50 (residual %v)", x, e.Residual)
 	}
-	lin := run(t, s, "linearize(growth, at: equilibrium(growth, inputs: {u: 0}, guess: {x: 40}))").(*lsys.System)
+	lin := langtest.Run(t, s, "linearize(growth, at: equilibrium(growth, inputs: {u: 0}, guess: {x: 40}))").(*lsys.System)
 	if lin.Ts != 1 || math.Abs(lin.A.At(0, 0)-0.7) > 1e-14 || lin.B.At(0, 0) != 1 {
 		t.Errorf("linearized: Ts %v A %v B %v", lin.Ts, lin.A.At(0, 0), lin.B.At(0, 0))
 	}
-	m := run(t, s, "growth").(*NonlinearModel)
-	if !strings.Contains(m.String(), "sampled every 1 s") || !strings.Contains(m.String(), "next x = x + r*x*(1 - x/K) + u") {
-		t.Errorf("model text:\n%s", m)
+	m := langtest.Run(t, s, "growth").(*lsys.Model)
+	if want := (lsys.ModelEquation{Kind: "next", Name: "x", Rhs: "x + r*x*(1 - x/K) + u"}); m.Ts != 1 || len(m.Equations) != 1 || m.Equations[0] != want {
+		t.Errorf("model: every %v, equations %+v", m.Ts, m.Equations)
 	}
-	if p := run(t, s, "growth.parameters").(*Record); FormatValue(p) != "{r: 0.3, K: 50}" {
-		t.Errorf("parameters %s", FormatValue(p))
+	if p := langtest.Run(t, s, "growth.parameters").(*lang.Record); lang.FormatValue(p) != "{r: 0.3, K: 50}" {
+		t.Errorf("parameters %s", lang.FormatValue(p))
 	}
 }
 
 // A signal named like a session number is a signal inside the block, and
 // the cell says so on stderr.
 func TestSignalHidesSessionNumber(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
-	r := &recorder{}
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	r := &langtest.Recorder{}
 	v, err := s.Run(context.Background(), "x = 5\nsystem {\n  states x\n  x' = -2*x\n}", r)
 	if err != nil {
 		t.Fatal(err)
@@ -462,8 +432,8 @@ func TestSignalHidesSessionNumber(t *testing.T) {
 	if g := v.(*lsys.System); g.A.At(0, 0) != -2 {
 		t.Errorf("A = %v", g.A.At(0, 0))
 	}
-	if !strings.Contains(r.stderr.String(), "note (line 2): inside this system block the signal names 'x' (= 5) hide numbers bound in the session") {
-		t.Errorf("stderr %q", r.stderr.String())
+	if !strings.Contains(r.Err.String(), "note (line 2): inside this system block the signal names 'x' (= 5) hide numbers bound in the session") {
+		t.Errorf("stderr %q", r.Err.String())
 	}
 }
 
@@ -471,13 +441,13 @@ func TestSignalHidesSessionNumber(t *testing.T) {
 // x = -A^-1 B u; with A = [[0, 1], [-4, -0.4]], B = [0, 4], u = 2 the
 // position settles at 2 (static gain 1, second-order form, common practice).
 func TestLinearEquilibrium(t *testing.T) {
-	s := NewSession(Options{Dir: t.TempDir()})
-	e := run(t, s, "G = system([[0, 1], [-4, -0.4]], [0, 4], [1, 0])\nequilibrium(G, inputs: {u1: 2})").(*lsys.Equilibrium)
+	s := lang.NewSession(lang.Options{Builtins: builtins.Registry(), Dir: t.TempDir()})
+	e := langtest.Run(t, s, "G = system([[0, 1], [-4, -0.4]], [0, 4], [1, 0])\nequilibrium(G, inputs: {u1: 2})").(*lsys.Equilibrium)
 	if x, _ := e.State("x1"); math.Abs(x-2) > 1e-14 {
 		t.Errorf("x1 = %v, want 2", x)
 	}
 	// Sampled: x = a x + (1 - a) u settles at x = u.
-	d := run(t, s, "equilibrium(system([[0.9]], [0.1], every: 1), inputs: {u1: 3})").(*lsys.Equilibrium)
+	d := langtest.Run(t, s, "equilibrium(system([[0.9]], [0.1], every: 1), inputs: {u1: 3})").(*lsys.Equilibrium)
 	if x, _ := d.State("x1"); math.Abs(x-3) > 1e-13 {
 		t.Errorf("sampled x1 = %v, want 3", x)
 	}
