@@ -1011,6 +1011,10 @@ func (ev *evaluator) toSystem(v any, pos syntax.Pos) (*lsys.System, error) {
 	switch t := v.(type) {
 	case *lsys.System:
 		return t, nil
+	case lsys.FirstOrder:
+		// Models kept in another form (second-order structures, modal
+		// models) give their first-order system where one is needed.
+		return t.System()
 	case *lsys.Model:
 		return nil, needLinearize(t, ev, pos)
 	case *lsys.Rational:

@@ -106,6 +106,17 @@ func (ev *evaluator) binary(op syntax.Token, a, b any, pos syntax.Pos, node *syn
 			return sa + sb, nil
 		}
 	}
+	// Models kept in another form (second-order structures, modal models)
+	// connect as their first-order systems.
+	for _, x := range []*any{&a, &b} {
+		if f, ok := (*x).(lsys.FirstOrder); ok {
+			g, err := f.System()
+			if err != nil {
+				return nil, ev.errorAt(pos, err.Error(), "")
+			}
+			*x = g
+		}
+	}
 	// Systems: series and parallel connections.
 	if _, ok := a.(*lsys.System); ok {
 		return ev.systemOp(op, a, b, pos)
