@@ -17,6 +17,8 @@ import (
 	"sort"
 	"strings"
 	"sync"
+
+	"lsys/lsys"
 )
 
 // Bundle is a MIME bundle: data keyed by MIME type, plus per-type metadata.
@@ -49,6 +51,8 @@ type Renderer func(v any, opt Options) Bundle
 // Options tune rendering; the zero value is the default.
 type Options struct {
 	PNG bool // add a PNG beside SVG plots
+
+	chart *lsys.Chart // chart options of a chart(...) value, applied by rpBundle
 }
 
 var (
@@ -147,6 +151,9 @@ func embedChart(b *Bundle) {
 	svg, ok := b.Data[SVG].(string)
 	if !ok || svg == "" {
 		return
+	}
+	if h, _ := b.Data[HTML].(string); strings.HasPrefix(h, `<div class="lsys-chart">`) {
+		return // embedded already (a chart(...) renders its value through Render)
 	}
 	alt, _ := b.Data[Text].(string)
 	if i := strings.IndexByte(alt, '\n'); i >= 0 {

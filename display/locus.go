@@ -109,10 +109,23 @@ func lcTable(l *lsys.Locus) (title string, head []string, rows [][]string, notes
 	if l.Ts > 0 {
 		kind = "sampled every " + fmtNum(l.Ts) + " s"
 	}
-	title = fmt.Sprintf("locus of %d mode(s) as %s runs from %s to %s (%d values), %s",
-		len(l.Branches), p, fmtNum(l.Values[0]), fmtNum(l.Values[last]), len(l.Values), kind)
+	// A conjugate pair is one mode, as in the mode table; the branches
+	// are eigenvalues, so say both when they differ.
+	pairs := 0
+	for _, br := range l.Branches {
+		if imag(br[0]) < -1e-12*math.Max(1, cmplx.Abs(br[0])) {
+			pairs++
+		}
+	}
+	what := fmt.Sprintf("%d %s", len(l.Branches), plural(len(l.Branches), "mode", "modes"))
+	if pairs > 0 {
+		what = fmt.Sprintf("%d eigenvalues (%d %s at %s = %s: a conjugate pair is one mode)", len(l.Branches), len(l.Branches)-pairs,
+			plural(len(l.Branches)-pairs, "mode", "modes"), p, fmtNum(l.Values[0]))
+	}
+	title = fmt.Sprintf("locus of %s as %s runs from %s to %s (%d values), %s",
+		what, p, fmtNum(l.Values[0]), fmtNum(l.Values[last]), len(l.Values), kind)
 	a, b := fmtNum(l.Values[0]), fmtNum(l.Values[last])
-	head = []string{"mode", "at " + p + " = " + a, "at " + p + " = " + b,
+	head = []string{"branch", "at " + p + " = " + a, "at " + p + " = " + b,
 		"ωn (rad/s) at " + a, "ωn (rad/s) at " + b, "ζ at " + a, "ζ at " + b}
 	for i, br := range l.Branches {
 		w0, z0 := lcFreqCell(br[0], l.Ts)
@@ -124,7 +137,7 @@ func lcTable(l *lsys.Locus) (title string, head []string, rows [][]string, notes
 		if !c.Unstable {
 			verb = "becomes stable"
 		}
-		notes = append(notes, fmt.Sprintf("mode %d %s near %s = %s (interpolated between neighbouring values)", c.Mode, verb, p, fmtNum(c.At)))
+		notes = append(notes, fmt.Sprintf("branch %d %s near %s = %s (interpolated between neighbouring values)", c.Mode, verb, p, fmtNum(c.At)))
 	}
 	if len(notes) == 0 {
 		st := 0
@@ -142,7 +155,7 @@ func lcTable(l *lsys.Locus) (title string, head []string, rows [][]string, notes
 			notes = append(notes, "no mode crosses the stability boundary at the values computed")
 		}
 	}
-	notes = append(notes, "modes are followed by matching eigenvalues between neighbouring values (not by sorting)")
+	notes = append(notes, "each branch is one eigenvalue, followed by matching eigenvalues between neighbouring values (not by sorting)")
 	return title, head, rows, notes
 }
 
@@ -225,7 +238,7 @@ func lcFigure(l *lsys.Locus) *rpFigure {
 	// branches, thinned to 1/2000 of the extent
 	for i, br := range l.Branches {
 		x, y := lcThin(br, span/2000)
-		pn.Series = append(pn.Series, rpSeries{Name: fmt.Sprintf("mode %d", i+1), X: x, Y: y, Style: i})
+		pn.Series = append(pn.Series, rpSeries{Name: fmt.Sprintf("branch %d", i+1), X: x, Y: y, Style: i})
 	}
 	// direction: an arrowhead in the branch's colour 40 % of the way along
 	// each branch (by arc length), pointing the way the parameter runs

@@ -70,7 +70,7 @@ func TestLocusDisplayClosedForm(t *testing.T) {
 		t.Errorf("stability note missing:\n%s", text)
 	}
 	svg, _ := b.Data[SVG].(string)
-	if !strings.HasPrefix(svg, "<?xml") || !strings.Contains(svg, "k = 10") || !strings.Contains(svg, "mode 2") {
+	if !strings.HasPrefix(svg, "<?xml") || !strings.Contains(svg, "k = 10") || !strings.Contains(svg, "branch 2") {
 		t.Errorf("SVG missing or without labels (%d bytes)", len(svg))
 	}
 }
@@ -104,7 +104,7 @@ func TestLocusDisplayCrossing(t *testing.T) {
 		}
 	}
 	text := Render(l, Options{}).Data[Text].(string)
-	if !strings.Contains(text, "mode 1 becomes unstable near a = 1") {
+	if !strings.Contains(text, "branch 1 becomes unstable near a = 1") {
 		t.Errorf("crossing note missing:\n%s", text)
 	}
 }

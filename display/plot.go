@@ -96,10 +96,13 @@ type rpText struct {
 type rpPanel struct {
 	Title, XLabel, YLabel string
 	LogX                  bool
-	Series                []rpSeries
-	Lines                 []rpLine
-	Texts                 []rpText
-	Legend                bool
+	// LogY draws the y axis on a log scale; points at y <= 0 are left
+	// out (applyChart sets it; the chart's own tick styles give way).
+	LogY   bool
+	Series []rpSeries
+	Lines  []rpLine
+	Texts  []rpText
+	Legend bool
 	// Fixed ranges (both ends set) or NaN for automatic.
 	XMin, XMax, YMin, YMax float64
 	Equal                  bool // equal scales on both axes (pole-zero and polar charts)
@@ -398,6 +401,10 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 	if pn.DBTicks {
 		p.Y.Tick.Marker = rpDBTicker
 	}
+	if pn.LogY {
+		p.Y.Scale = plot.LogScale{}
+		p.Y.Tick.Marker = rpLogTicks{}
+	}
 	// data range, for reference lines and fixed ranges
 	xmin, xmax, ymin, ymax := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
 	pn.below = nil
@@ -547,7 +554,15 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 			ymin, ymax = math.Min(ymin, l.At), math.Max(ymax, l.At)
 		}
 	}
-	if ymax-ymin <= 1e-12*math.Max(1, math.Abs(ymax)) {
+	if pn.LogY {
+		// a log axis needs positive ends and some span: a decade at least
+		if !(ymax > 0) {
+			ymax = 1
+		}
+		if !(ymin > 0) || ymin > ymax/10 {
+			ymin = math.Min(math.Max(ymin, ymax*1e-6), ymax/10)
+		}
+	} else if ymax-ymin <= 1e-12*math.Max(1, math.Abs(ymax)) {
 		d := math.Max(1, math.Abs(ymax)) * 0.1
 		ymin, ymax = ymin-d, ymax+d
 	}
@@ -574,7 +589,11 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 	texts := append([]rpText(nil), pn.Texts...)
 	for _, l := range pn.Lines {
 		if l.Label != "" && l.Vertical {
-			texts = append(texts, rpText{X: l.At, Y: ymax - 0.08*(ymax-ymin), Text: l.Label})
+			y := ymax - 0.08*(ymax-ymin)
+			if pn.LogY {
+				y = ymax * math.Pow(ymin/ymax, 0.08)
+			}
+			texts = append(texts, rpText{X: l.At, Y: y, Text: l.Label})
 		}
 	}
 	if len(texts) > 0 {
@@ -588,7 +607,7 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 		}
 		var left, right plotter.XYLabels
 		for _, t := range texts {
-			if !ok(t.X) || !ok(t.Y) || (pn.LogX && t.X <= 0) {
+			if !ok(t.X) || !ok(t.Y) || (pn.LogX && t.X <= 0) || (pn.LogY && t.Y <= 0) {
 				continue
 			}
 			side := &left
@@ -638,7 +657,10 @@ func (pn *rpPanel) build(buckets int) *plot.Plot {
 	}
 	p.X.Min, p.X.Max = xmin, xmax
 	p.Y.Min, p.Y.Max = ymin, ymax
-	if !pn.Equal && !pn.Exact {
+	if pn.LogY {
+		f := math.Pow(ymax/ymin, 0.04)
+		p.Y.Min, p.Y.Max = ymin/f, ymax*f
+	} else if !pn.Equal && !pn.Exact {
 		pad := 0.04 * (ymax - ymin)
 		p.Y.Min, p.Y.Max = ymin-pad, ymax+pad
 	}
@@ -939,6 +961,7 @@ func rpBundle(text string, f *rpFigure, opt Options) (b Bundle) {
 			b.Data[Text] = text + "\n(chart not drawn: the data could not be plotted)"
 		}
 	}()
+	applyChart(f, opt.chart)
 	b.Data[SVG] = string(f.SVG())
 	if opt.PNG {
 		b.Data[PNG] = base64.StdEncoding.EncodeToString(f.PNG())

@@ -69,7 +69,7 @@ func TestSystemCardUnstableSampled(t *testing.T) {
 		t.Fatal(err)
 	}
 	txt := Render(s, Options{}).Data[Text].(string)
-	if !strings.Contains(txt, "sampled system, every 0.1 s") || !strings.Contains(txt, "unstable: 1 pole beyond the boundary") {
+	if !strings.Contains(txt, "sampled system, every 0.1 s") || !strings.Contains(txt, "unstable: 1 pole outside the unit circle") {
 		t.Errorf("got:\n%s", txt)
 	}
 }

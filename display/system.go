@@ -34,7 +34,39 @@ func sxStability(s *lsys.System) string {
 	if st.Marginal {
 		return fmt.Sprintf("marginally stable: %d %s on the boundary (%s within %s of it), none defective", st.Boundary, plural(st.Boundary, "pole", "poles"), where, fmtNum(st.Tol))
 	}
-	return fmt.Sprintf("unstable: %d %s beyond the boundary or defective on it", st.Unstable, plural(st.Unstable, "pole", "poles"))
+	return "unstable: " + sxUnstable(st, s.Sampled())
+}
+
+// sxUnstable says plainly where the unstable poles are: how many beyond
+// the boundary, how many on it, and which of those are in Jordan blocks.
+func sxUnstable(st lsys.Stability, sampled bool) string {
+	beyond, on := "in the right half-plane", "on the imaginary axis"
+	if sampled {
+		beyond, on = "outside the unit circle", "on the unit circle"
+	}
+	var parts []string
+	if st.Beyond > 0 {
+		parts = append(parts, fmt.Sprintf("%d %s %s", st.Beyond, plural(st.Beyond, "pole", "poles"), beyond))
+	}
+	if st.Boundary > 0 {
+		p := fmt.Sprintf("%d %s", st.Boundary, on)
+		if len(parts) == 0 {
+			p = fmt.Sprintf("%d %s %s", st.Boundary, plural(st.Boundary, "pole", "poles"), on)
+		}
+		if st.Defective > 0 {
+			var at []string
+			for i, v := range st.DefectiveAt[:st.Listed] {
+				z := fmtComplex(v, imag(v) != 0)
+				at = append(at, fmt.Sprintf("%s (block of %d)", z, st.DefectiveBlocks[i]))
+			}
+			if st.MoreDefective {
+				at = append(at, "...")
+			}
+			p += fmt.Sprintf(", %d of them in Jordan blocks, which grow like a power of time: %s", st.Defective, strings.Join(at, ", "))
+		}
+		parts = append(parts, p)
+	}
+	return strings.Join(parts, "; ")
 }
 
 // sxHeadline is e.g. "continuous-time system: 2 states, 1 input, 1 output; stable".

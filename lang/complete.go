@@ -62,7 +62,10 @@ type openContext struct {
 	block    bool         // a system block
 	declared []string
 	given    []string // named arguments already written in the call
-	recordIn string   // inside a record that is an argument of a call whose first argument is this name
+	// positional counts the arguments written by position before the
+	// one at the point: they fill the first parameters.
+	positional int
+	recordIn   string // inside a record that is an argument of a call whose first argument is this name
 }
 
 // contextAt scans src[:off] (byte offset) for the innermost open bracket.
@@ -76,6 +79,10 @@ func contextAt(src string) openContext {
 		declared []string
 		given    []string
 		firstArg string // a name written as the first argument of a call
+		// the argument being scanned: written yet, named; and how many
+		// finished arguments were positional
+		argSeen, argNamed bool
+		positional        int
 	}
 	var stack []*frame
 	prev, prevLit := syntax.EOF, ""
@@ -90,7 +97,17 @@ func contextAt(src string) openContext {
 		if len(stack) > 0 {
 			top = stack[len(stack)-1]
 		}
+		if top != nil && tok != syntax.COMMA && tok != syntax.NEWLINE {
+			top.argSeen = true
+		}
 		switch tok {
+		case syntax.COMMA:
+			if top != nil && top.tok == syntax.LPAREN {
+				if top.argSeen && !top.argNamed {
+					top.positional++
+				}
+				top.argSeen, top.argNamed = false, false
+			}
 		case syntax.LPAREN, syntax.LBRACK, syntax.LBRACE:
 			f := &frame{tok: tok}
 			if tok == syntax.LPAREN && prev == syntax.IDENT {
@@ -108,6 +125,7 @@ func contextAt(src string) openContext {
 		case syntax.COLON:
 			if top != nil && top.tok == syntax.LPAREN && prev == syntax.IDENT {
 				top.given = append(top.given, prevLit)
+				top.argNamed = true
 			}
 		case syntax.IDENT:
 			if top != nil && top.tok == syntax.LPAREN && prev == syntax.LPAREN {
@@ -133,7 +151,7 @@ func contextAt(src string) openContext {
 		return openContext{tok: syntax.EOF}
 	}
 	f := stack[len(stack)-1]
-	oc := openContext{tok: f.tok, callee: f.callee, block: f.block, given: f.given}
+	oc := openContext{tok: f.tok, callee: f.callee, block: f.block, given: f.given, positional: f.positional}
 	if len(stack) > 1 && f.tok == syntax.LBRACE && !f.block {
 		if p := stack[len(stack)-2]; p.tok == syntax.LPAREN {
 			oc.recordIn = p.firstArg
@@ -197,15 +215,15 @@ func (s *Session) Complete(src string, cursor int) (matches []string, start, end
 			given[g] = true
 		}
 		if b, ok := s.reg.Lookup(oc.callee); ok && b.Fn != nil {
-			for _, p := range b.Params {
-				if !p.Variadic && !given[p.Name] {
+			for i, p := range b.Params {
+				if !p.Variadic && !given[p.Name] && i >= oc.positional {
 					params = append(params, p.Name)
 				}
 			}
 		} else if v, ok := s.Get(oc.callee); ok {
 			if f, ok := v.(*Function); ok {
-				for _, p := range f.Params {
-					if !given[p] {
+				for i, p := range f.Params {
+					if !given[p] && i >= oc.positional {
 						params = append(params, p)
 					}
 				}

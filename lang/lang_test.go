@@ -158,7 +158,7 @@ func TestOutputStreams(t *testing.T) {
 	if v != 1.5 {
 		t.Errorf("value %v, want 1.5", v)
 	}
-	if got := r.Out.String(); got != "x is 1.5 1\n2\n" {
+	if got := r.Out.String(); got != "x is 1.5 1\n         2\n" { // a matrix keeps its rows aligned after a label
 		t.Errorf("stdout %q", got)
 	}
 	if got := r.Err.String(); got != "careful\n" {

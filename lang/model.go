@@ -637,15 +637,28 @@ func (ev *evaluator) compileBlock(b *syntax.SystemBlock) (*blockSource, error) {
 	}
 	kindOf := map[string]string{}
 	declPos := map[string]syntax.Pos{}
+	stateOut := map[string]bool{} // outputs that are states of the same name
 	var eqs []*syntax.Equation
 	for _, it := range b.Items {
 		switch d := it.(type) {
 		case *syntax.Decl:
 			for _, id := range d.Names {
 				kind := strings.TrimSuffix(d.Kind, "s")
+				// An output named like a state is that state (y = x), as
+				// the matrix form names outputs after the states it reads.
+				if prev := kindOf[id.Name]; prev == "state" && kind == "output" && !stateOut[id.Name] {
+					stateOut[id.Name] = true
+					bs.outputs = append(bs.outputs, id.Name)
+					continue
+				} else if prev == "output" && kind == "state" && !stateOut[id.Name] {
+					stateOut[id.Name] = true
+					kindOf[id.Name] = "state"
+					bs.states = append(bs.states, id.Name)
+					continue
+				}
 				if prev, dup := kindOf[id.Name]; dup {
 					what := "twice"
-					if prev != kind {
+					if prev != kind && !stateOut[id.Name] {
 						what = fmt.Sprintf("as %s and as %s", article(prev), article(kind))
 					}
 					return nil, ev.errorAt(id.NamePos, fmt.Sprintf("'%s' is declared %s (first at line %d, column %d)", id.Name, what, declPos[id.Name].Line, declPos[id.Name].Column),
@@ -717,7 +730,11 @@ func (ev *evaluator) compileBlock(b *syntax.SystemBlock) (*blockSource, error) {
 				if bs.ts > 0 {
 					d = "next " + name + " = ..."
 				}
-				return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is a state; its equation is written %s", name, d), "To output a state, declare an output with another name: outputs measured; measured = "+name+".")
+				hint := "To output a state, declare it as an output too (outputs " + name + "): the output is the state itself."
+				if stateOut[name] {
+					hint = "The output '" + name + "' is the state itself and needs no equation; to output something else, give that output another name."
+				}
+				return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is a state; its equation is written %s", name, d), hint)
 			case "input":
 				return nil, ev.errorAt(eq.Name.NamePos, fmt.Sprintf("'%s' is an input; inputs come from outside and have no equation", name), "Declare it as a state or a helper if the system computes it.")
 			}
@@ -744,7 +761,7 @@ func (ev *evaluator) compileBlock(b *syntax.SystemBlock) (*blockSource, error) {
 		}
 	}
 	for i, o := range bs.outputs {
-		if bs.outEq[i] == nil {
+		if bs.outEq[i] == nil && !stateOut[o] {
 			var defined []string
 			for _, e := range bs.plain {
 				defined = append(defined, e.Name.Name)

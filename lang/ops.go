@@ -465,12 +465,18 @@ func simplifyRational(r *lsys.Rational) any {
 // systemOp: G*K is the series connection (K feeds G), G+H and G-H the
 // parallel ones. Numbers and transfer functions are turned into systems.
 func (ev *evaluator) systemOp(op syntax.Token, a, b any, pos syntax.Pos) (any, error) {
-	if op != syntax.ADD && op != syntax.SUB && op != syntax.MUL {
-		hint := "Between systems, * is the series connection and + and - the parallel ones."
-		if op == syntax.DIV {
-			hint = "To close a loop use closeloop(G, through: K); there is no division of systems."
+	if op == syntax.DIV {
+		// G / k and G / r(s) are G * (1/k) and G * (1/r) when 1/r is
+		// proper: so P * 3000/(0.005*s + 1), read (P*3000)/(0.005*s + 1),
+		// is what was meant
+		var err error
+		if b, err = ev.divisorAsFactor(a, b, pos); err != nil {
+			return nil, err
 		}
-		return nil, ev.opError(op, a, b, pos, hint)
+		op = syntax.MUL
+	}
+	if op != syntax.ADD && op != syntax.SUB && op != syntax.MUL {
+		return nil, ev.opError(op, a, b, pos, "Between systems, * is the series connection and + and - the parallel ones.")
 	}
 	// A transfer function in z with no sample time yet takes the one of
 	// the system it is combined with (SPEC section 8); a matrix of numbers
@@ -554,6 +560,53 @@ func (ev *evaluator) systemOp(op syntax.Token, a, b any, pos syntax.Pos) (any, e
 		return nil, ev.errorAt(pos, err.Error(), "Check the operands of this operator.")
 	}
 	return g, nil
+}
+
+// divisorAsFactor turns the divisor of G / b into the factor 1/b: a
+// nonzero number, or a SISO transfer function whose reciprocal is proper
+// (on each of G's inputs when G has several). Anything else is an error
+// that says how * and / group.
+func (ev *evaluator) divisorAsFactor(a, b any, pos syntax.Pos) (any, error) {
+	g, ok := a.(*lsys.System)
+	const grouping = "* and / group left to right: P * a/b is (P*a)/b. Write P * (a/b) if that was meant; to close a loop use closeloop(G, through: K)."
+	switch d := b.(type) {
+	case float64:
+		if ok && d != 0 {
+			return 1 / d, nil
+		}
+		if ok {
+			return nil, ev.errorAt(pos, "division of a system by zero", "Check the divisor.")
+		}
+	case *lsys.Rational:
+		if !ok {
+			break
+		}
+		inv, err := lsys.Constant(1).Div(d)
+		if err == nil {
+			inv, err = inv.Normalize()
+		}
+		if err != nil || !inv.Proper() {
+			return nil, ev.errorAt(pos, fmt.Sprintf("cannot divide a system by %s: its reciprocal is not proper (more zeros than poles)", d), grouping)
+		}
+		f, err := ev.toSystem(inv, pos)
+		if err != nil || f == nil {
+			return nil, ev.errorAt(pos, "cannot divide a system by a transfer function here", grouping)
+		}
+		if g.M() > 1 {
+			copies := make([]*lsys.System, g.M())
+			for i := range copies {
+				copies[i] = f
+			}
+			if f, err = lsys.Stack(copies...); err == nil {
+				f, err = f.WithNames(nil, g.InputNames, g.InputNames)
+			}
+			if err != nil {
+				return nil, ev.errorAt(pos, err.Error(), grouping)
+			}
+		}
+		return f, nil
+	}
+	return nil, ev.opError(syntax.DIV, a, b, pos, "There is no division by a system. "+grouping)
 }
 
 // matrixGain turns a real matrix combined with a system into the static

@@ -26,6 +26,8 @@ type FrequencyResponse struct {
 	// InfiniteDC is set when the gain at zero frequency is infinite (an
 	// integrator): polar charts then frame the finite part of the curve.
 	InfiniteDC bool
+	// Delay is the dead time (s) included exactly as e^(-jwT) in G; 0 if none.
+	Delay float64
 }
 
 // FrequencyOptions choose the grid; zero values choose it from the modes
@@ -35,6 +37,10 @@ type FrequencyOptions struct {
 	Points   int       // points of the base grid (default 20 per decade)
 	Grid     []float64 // explicit grid (rad/s, increasing); no refinement
 	Hz       bool
+	// Delay is a dead time T in seconds in series with every channel,
+	// applied exactly: G(jw) e^(-jwT). It holds for sampled systems too
+	// (the delay then need not be a whole number of samples).
+	Delay float64
 	// Progress, when set, is called with the fraction of an explicit grid
 	// done (0 to 1) about every 64 frequencies.
 	Progress func(done float64)
@@ -76,7 +82,11 @@ func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) 
 	if _, finite := DCGain(g); !finite {
 		f.InfiniteDC = true
 	}
+	if err := checkDelay(opt.Delay); err != nil {
+		return nil, err
+	}
 	ev := newFreqEval(g)
+	ev.delay, f.Delay = opt.Delay, opt.Delay
 	if opt.Grid != nil {
 		for i, w := range opt.Grid {
 			if !(w >= 0) || math.IsInf(w, 0) || i > 0 && !(w > opt.Grid[i-1]) {
@@ -109,9 +119,24 @@ func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) 
 		if loop {
 			maxDec = 6
 		}
+		// With a dead time the range stops where it has turned the phase
+		// by delayTop rad (about 5 turns): beyond, the grid would need
+		// ever more points to follow it, and nothing of the loop is left
+		// to see. Widening stops there too, as at the Nyquist frequency.
+		limit, top := f.Nyquist, 0.0
+		if opt.Delay > 0 {
+			top = math.Max(delayTop/opt.Delay, lo*10)
+			if limit == 0 || top < limit {
+				limit = top
+			}
+		}
 		var down, up int
-		lo, hi, down, up = bracketRange(ev, lo, hi, f.Nyquist, loop, maxDec)
+		lo, hi, down, up = bracketRange(ev, lo, hi, limit, loop, maxDec)
 		rule += widenedRule(down, up, loop)
+		if top > 0 && hi >= top*(1-1e-12) && (f.Nyquist == 0 || top < f.Nyquist) {
+			hi = top
+			rule += fmt.Sprintf("; stopped at %.4g rad/s, where the dead time has turned the phase by %.3g rad", hi, hi*opt.Delay)
+		}
 	}
 	if opt.From != 0 || opt.To != 0 {
 		if opt.From > 0 {
@@ -204,6 +229,9 @@ func frequency(ctx context.Context, g *System, opt FrequencyOptions, loop bool) 
 		f.G[k] = pts[w]
 	}
 	f.Rule = rule + "; 20 points per decade, refined where the magnitude moves more than 1 dB or the phase more than 5 degrees between points"
+	if opt.Delay > 0 {
+		f.Rule += fmt.Sprintf("; dead time %.6g s included exactly as e^(-jwT)", opt.Delay)
+	}
 	return f, nil
 }
 
@@ -393,8 +421,19 @@ func beyondEdge(ev *freqEval, w float64, dir float64, phase bool) bool {
 
 // freqEval evaluates G at angular frequencies through the Hessenberg form.
 type freqEval struct {
-	h  *hessenberg
-	ts float64
+	h     *hessenberg
+	ts    float64
+	delay float64 // dead time in s, applied exactly as e^(-jw delay)
+}
+
+// delayTop is w*T at the upper end of an automatic range with a dead time T.
+const delayTop = 30
+
+func checkDelay(T float64) error {
+	if !(T >= 0) || math.IsInf(T, 0) {
+		return fmt.Errorf("the dead time must be a finite number >= 0 s, got %v", T)
+	}
+	return nil
 }
 
 func newFreqEval(g *System) *freqEval { return &freqEval{h: newHessenberg(g), ts: g.Ts} }
@@ -410,6 +449,12 @@ func (e *freqEval) at(w float64) ([]complex128, error) {
 	out := make([]complex128, e.h.p*e.h.m)
 	if err := e.h.at(e.point(w), out); err != nil {
 		return nil, err
+	}
+	if e.delay > 0 {
+		d := cmplx.Exp(complex(0, -w*e.delay))
+		for i := range out {
+			out[i] *= d
+		}
 	}
 	return out, nil
 }

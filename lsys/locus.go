@@ -158,7 +158,7 @@ func hungarian(a [][]float64) []int {
 func (l *Locus) String() string {
 	var b strings.Builder
 	last := len(l.Values) - 1
-	fmt.Fprintf(&b, "locus over %s from %.6g to %.6g (%d values), %d modes", l.Parameter, l.Values[0], l.Values[last], len(l.Values), len(l.Branches))
+	fmt.Fprintf(&b, "locus over %s from %.6g to %.6g (%d values), %d eigenvalues", l.Parameter, l.Values[0], l.Values[last], len(l.Values), len(l.Branches))
 	for i, br := range l.Branches {
 		fmt.Fprintf(&b, "\n  mode %d: %s -> %s", i+1, fmtC(br[0]), fmtC(br[last]))
 	}

@@ -94,6 +94,7 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 		return nil, err
 	}
 	ev := newFreqEval(L)
+	ev.delay = opt.Delay
 	var notes []string
 	unit := func(w float64) string { return fmt.Sprintf("%.4g rad/s", w) }
 	if len(f.W) > 0 && (opt.Grid != nil || opt.From != 0 || opt.To != 0) {
@@ -308,11 +309,17 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 	one, err := NewSystem(0, 1, 1, nil, nil, nil, nil, L.Ts)
 	if err == nil {
 		one.D.Set(0, 0, 1)
-		if cl, err := CloseLoop(L, one, -1); err == nil {
-			mg.ClosedChecked = true
-			mg.ClosedStable = Stable(cl)
-			if st, err := StabilityOf(cl); err == nil && !mg.ClosedStable && st.Marginal {
-				mg.ClosedBoundary = st.Boundary
+		Lc, note, err := withDeadTime(L, opt.Delay, mg.GainCrossovers)
+		if note != "" {
+			notes = append(notes, note)
+		}
+		if err == nil {
+			if cl, err := CloseLoop(Lc, one, -1); err == nil {
+				mg.ClosedChecked = true
+				mg.ClosedStable = Stable(cl)
+				if st, err := StabilityOf(cl); err == nil && !mg.ClosedStable && st.Marginal {
+					mg.ClosedBoundary = st.Boundary
+				}
 			}
 		}
 	}

@@ -105,6 +105,17 @@ type Stability struct {
 	Unstable int // eigenvalues beyond the boundary, or on it in a Jordan block larger than 1
 	Boundary int // eigenvalues on the boundary (|Re s| <= Tol, or ||z| - 1| <= Tol)
 	Tol      float64
+	// Beyond counts the eigenvalues beyond the boundary (right half-plane,
+	// outside the unit circle); Defective those on it in Jordan blocks
+	// larger than 1. The first Listed of those eigenvalues (at most 4; a
+	// conjugate pair once, by its upper member) are in DefectiveAt with
+	// the largest block of each in DefectiveBlocks: arrays, so that a
+	// Stability stays comparable with ==. Unstable = Beyond + Defective.
+	Beyond, Defective int
+	Listed            int
+	MoreDefective     bool // more defective eigenvalues than listed
+	DefectiveAt       [4]complex128
+	DefectiveBlocks   [4]int
 }
 
 // StabilityOf reports the stability of s from its poles (Lyapunov's
@@ -141,10 +152,18 @@ func StabilityOf(s *System) (Stability, error) {
 		switch {
 		case d > tol:
 			st.Unstable += w
+			st.Beyond += w
 		case d >= -tol:
 			st.Boundary += w
 			if c.Defective() {
 				st.Unstable += w
+				st.Defective += w
+				if st.Listed < len(st.DefectiveAt) {
+					st.DefectiveAt[st.Listed], st.DefectiveBlocks[st.Listed] = c.Value, c.Blocks[0]
+					st.Listed++
+				} else {
+					st.MoreDefective = true
+				}
 			}
 		}
 	}

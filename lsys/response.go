@@ -386,6 +386,13 @@ func (o ResponseOptions) grid(g *System) ([]float64, float64, string, error) {
 		}
 		return nil, 0, "", fmt.Errorf("horizon %g s at %g s a sample gives %.3g samples, over the limit of %d; use %s", until, step, until/step, MaxResponseSamples, hint)
 	}
+	if o.Until != 0 && o.Step == 0 {
+		// the step we chose for a horizon given; a step given is the
+		// user's own choice, and the automatic rule says it already
+		if note := unresolvedNote(g, step); note != "" {
+			rule += "; warning: " + note
+		}
+	}
 	N := int(math.Round(until / step))
 	if N < 1 {
 		N = 1

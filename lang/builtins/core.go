@@ -10,6 +10,7 @@ import (
 	"math/cmplx"
 	"strings"
 	"time"
+	"unicode/utf8"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -131,7 +132,28 @@ func joinValues(c *lang.Call, vs []any) string {
 	for i, v := range vs {
 		parts[i] = c.Format(v)
 	}
-	return strings.Join(parts, " ")
+	return joinBlocks(parts)
+}
+
+// joinBlocks joins texts with spaces; a text of several lines (a matrix)
+// is set as a block, its later lines indented to where its first began,
+// so that print("A =", A) keeps the rows of A aligned.
+func joinBlocks(parts []string) string {
+	var lines []string
+	for i, p := range parts {
+		pl := strings.Split(p, "\n")
+		if i == 0 {
+			lines = pl
+			continue
+		}
+		last := lines[len(lines)-1] + " "
+		pad := strings.Repeat(" ", utf8.RuneCountInString(last))
+		lines[len(lines)-1] = last + pl[0]
+		for _, l := range pl[1:] {
+			lines = append(lines, pad+l)
+		}
+	}
+	return strings.Join(lines, "\n")
 }
 
 // elementary builds a built-in for a function of one number; real inputs

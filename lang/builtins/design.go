@@ -369,17 +369,22 @@ func designBuiltins() []*lang.Builtin {
 			Returns: (*lsys.Norm)(nil),
 			Params: []lang.Param{
 				dsSystemParam,
-				{Name: "kind", Default: 2.0, Doc: "2 for the H2 norm, inf for the H-infinity norm"},
+				{Name: "kind", Default: 2.0, Doc: "2 for the H2 norm, inf for the H-infinity norm; of a matrix also 1 or \"fro\""},
 			},
-			Help: "The H2 norm (RMS output under unit white noise) or the H-infinity norm (the peak gain, with its frequency) of a system.",
+			Help: "The H2 norm (RMS output under unit white noise) or the H-infinity norm (the peak gain, with its frequency) of a system; of a matrix or vector, its 1, 2, inf or Frobenius norm.",
 			Doc: "norm(G, 2) is sqrt(trace(C P C')) with P the reachability gramian (sampled: plus D D'); a continuous " +
 				"system with feedthrough D has an infinite H2 norm, and the result says why. norm(G, inf) is the " +
 				"largest singular value of G over all frequencies, by the Hamiltonian iteration of Boyd & Balakrishnan " +
 				"(1990) and Bruinsma & Steinbuch (1990) to a relative accuracy of 1e-9, with the frequency of the peak; " +
 				"sampled systems through the bilinear map, which keeps the norm. An unstable system has infinite norms, " +
-				"with the modes named. n.value is the number.",
-			Examples: []string{msd + "norm(G, inf)", msd + "norm(G, 2)"},
+				"with the modes named. n.value is the number. " +
+				"Of a number, vector or matrix, norm(M, kind) is a matrix norm: 1 (largest column sum), 2 (largest singular value), inf (largest row sum) " +
+				"or \"fro\" (Frobenius); of a vector, the vector norms (sum of moduli, Euclidean length, largest modulus).",
+			Examples: []string{msd + "norm(G, inf)", msd + "norm(G, 2)", "norm([3, 4])\nnorm([[1, 2], [3, 4]], inf)\nnorm([[1, 2], [3, 4]], \"fro\")"},
 			Fn: func(c *lang.Call) (any, error) {
+				if v, ok, err := matrixNorm(c); ok {
+					return v, err
+				}
 				g, err := c.System("system")
 				if err != nil {
 					return nil, err

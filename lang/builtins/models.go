@@ -9,6 +9,7 @@ import (
 	"math"
 	"slices"
 	"strings"
+	"time"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -474,17 +475,31 @@ func locusFn(c *lang.Call) (any, error) {
 	if len(values) > MaxLocusSteps {
 		return nil, c.ErrorAt(nv.Pos, "Use fewer values: linear(a, b, n: 200) is usually enough.", "%d values are more than the limit of %d", len(values), MaxLocusSteps)
 	}
-	progress := len(values) >= 50
+	// Progress for sweeps of 50 values or more (so whether it shows does
+	// not depend on timing), updated every quarter second; an interrupted
+	// or failed sweep says where it stopped instead of leaving its last
+	// count standing, and a finished one ends with the same text always.
 	const id = "locus-progress"
+	progress := len(values) >= 50
+	last := time.Now()
+	done := 0
 	if progress {
 		c.Progress(id, fmt.Sprintf("locus: 0 of %d values", len(values)), true)
+		defer func() {
+			if done < len(values) {
+				c.Progress(id, fmt.Sprintf("locus: stopped after %d of %d values", done, len(values)), false)
+			}
+		}()
 	}
 	var eig [][]complex128
 	ts := 0.0
-	every := max(1, len(values)/10)
 	for k, p := range values {
 		if err := c.Check(); err != nil {
 			return nil, err
+		}
+		if now := time.Now(); progress && now.Sub(last) >= 250*time.Millisecond {
+			c.Progress(id, fmt.Sprintf("locus: %d of %d values", k, len(values)), false)
+			last = now
 		}
 		r, err := c.Apply(f, p)
 		if err != nil {
@@ -510,9 +525,7 @@ func locusFn(c *lang.Call) (any, error) {
 		}
 		eig = append(eig, es.Values)
 		ts = g.Ts
-		if progress && (k+1)%every == 0 && k+1 < len(values) {
-			c.Progress(id, fmt.Sprintf("locus: %d of %d values", k+1, len(values)), false)
-		}
+		done = k + 1
 	}
 	if progress {
 		c.Progress(id, fmt.Sprintf("locus: %d values done", len(values)), false)

@@ -215,6 +215,14 @@ func freqOptions(c *lang.Call) (lsys.FrequencyOptions, error) {
 		o.From *= 2 * math.Pi
 		o.To *= 2 * math.Pi
 	}
+	if c.Has("delay") {
+		if o.Delay, err = optFloat(c, "delay"); err != nil {
+			return o, err
+		}
+		if o.Delay < 0 {
+			return o, c.Errorf("delay", "Give the dead time in seconds, e.g. delay: 0.01.", "%s: 'delay' must be >= 0 s, not %s", c.Builtin.Name, lang.FormatNumber(o.Delay))
+		}
+	}
 	return o, nil
 }
 
@@ -222,6 +230,7 @@ var freqParams = []lang.Param{
 	{Name: "from", Optional: true, Doc: "lowest frequency (rad/s, or Hz with hz: true); default from the modes"},
 	{Name: "to", Optional: true, Doc: "highest frequency; default from the modes (sampled: the Nyquist frequency)"},
 	{Name: "hz", Default: false, Doc: "true: the chart and tables in Hz instead of rad/s; the fields stay .w in rad/s and .f in Hz either way"},
+	{Name: "delay", Optional: true, Doc: "a dead time T in s in series, applied exactly as e^(-jwT) (no Padé approximation)"},
 }
 
 // signalOf turns a value into an input signal: a signal, or a user
@@ -443,6 +452,10 @@ func responseBuiltins() []*lang.Builtin {
 				} else if x0 == nil {
 					return nil, c.Errorf("", "Give an input (step, impulse, ramp, sine(w), a table) or an initial state: response(G, initial: [1, 0]).",
 						"response: nothing drives the system")
+				}
+				if note := lsys.ResolutionWarning(g, opt); note != "" {
+					// the rule says it too, but a chart shows no rule
+					c.Out().Stderr("response: " + note + "\n")
 				}
 				if byMode {
 					return lsys.ByMode(ctx, g, kind, x0, sig, opt)
@@ -782,8 +795,10 @@ func responseBuiltins() []*lang.Builtin {
 				{Name: "T", Doc: "dead time in s"},
 				{Name: "order", Default: 3.0, Doc: "order of the Pade approximant, 1 to 10"},
 			},
-			Help:     "A rational (Pade) approximant of the dead time e^(-sT), as a transfer function.",
-			Doc:      "The diagonal [n/n] Pade approximant (Golub & Van Loan, Matrix Computations, Section 9.3.1): all-pass, phase exact to order (wT)^(2n+1).",
+			Help: "A rational (Pade) approximant of the dead time e^(-sT), as a transfer function.",
+			Doc: "The diagonal [n/n] Pade approximant (Golub & Van Loan, Matrix Computations, Section 9.3.1): all-pass, phase exact to order (wT)^(2n+1). " +
+				"Use it where a finite state model is needed (time responses, closed-loop poles). For frequency analysis give the dead time itself instead: " +
+				"frequency(G, delay: T), polar(L, delay: T) and margins(L, delay: T) use e^(-jwT) exactly.",
 			Examples: []string{"P = 1/(s + 1) * delay(0.2, order: 3)\nresponse(P, step)"},
 			Fn: func(c *lang.Call) (any, error) {
 				var T float64
