@@ -160,7 +160,7 @@ func balanceUnits(A, B, C *mat.Dense) *unitScaling {
 		return in, out
 	}
 	refOf := func() float64 {
-		r := frobenius(A) / math.Sqrt(float64(n))
+		r := frobeniusFast(A) / math.Sqrt(float64(n))
 		if r == 0 {
 			return 1
 		}
@@ -493,10 +493,10 @@ func safeSquares(s float64) bool {
 	return s == 0 || s > 0x1p-900 && s < 0x1p900
 }
 
-// frobenius is mat.Norm(A, 2) by a plain sum of squares, which is several
+// frobeniusFast is mat.Norm(A, 2) by a plain sum of squares, which is several
 // times faster than its overflow-safe scaled sum (Dlassq) and is used
 // when the sum is safe (balancing recomputes it every sweep).
-func frobenius(A *mat.Dense) float64 {
+func frobeniusFast(A *mat.Dense) float64 {
 	raw := A.RawMatrix()
 	var s float64
 	for i := 0; i < raw.Rows; i++ {
