@@ -5,6 +5,7 @@ go 1.26.8
 require (
 	github.com/go-zeromq/zmq4 v0.17.0
 	gonum.org/v1/gonum v0.17.0
+	gonum.org/v1/netlib v0.0.0-20190313105609-8cb42192e0e0
 	gonum.org/v1/plot v0.17.0
 )
 
@@ -15,8 +16,9 @@ require (
 	git.sr.ht/~sbinet/gg v0.7.0 // indirect
 	github.com/ajstarks/svgo v0.0.0-20211024235047-1546f124cd8b // indirect
 	github.com/golang/freetype v0.0.0-20170609003504-e2365dfdc4a0 // indirect
+	golang.org/x/exp v0.0.0-20261113113407-e3970619a1a4 // indirect
 	golang.org/x/image v0.30.0 // indirect
-	golang.org/x/sync v0.16.0 // indirect
+	golang.org/x/sync v0.24.0 // indirect
 	golang.org/x/text v0.28.0 // indirect
 )
 

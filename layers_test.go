@@ -14,11 +14,12 @@ import (
 // point one way: front ends -> {language, display} -> lsys -> gonum. A new
 // package must be added here, at its layer, before this test passes.
 var layers = map[string][]string{
-	"lsys/lsys":        {},
-	"lsys/lsys/numfmt": {},
-	"lsys/display":     {"lsys/lsys", "lsys/lsys/numfmt"},
-	"lsys/lang/syntax": {},
-	"lsys/lang":        {"lsys/lang/syntax", "lsys/lsys", "lsys/lsys/numfmt"},
+	"lsys/lsys":           {"lsys/lsys/cgolapack"},
+	"lsys/lsys/cgolapack": {},
+	"lsys/lsys/numfmt":    {},
+	"lsys/display":        {"lsys/lsys", "lsys/lsys/numfmt"},
+	"lsys/lang/syntax":    {},
+	"lsys/lang":           {"lsys/lang/syntax", "lsys/lsys", "lsys/lsys/numfmt"},
 	// The built-ins see the language only through its public API (the
 	// compiler keeps them from the evaluator's internals) and lsys.
 	"lsys/lang/builtins": {"lsys/lang", "lsys/lsys"},
@@ -26,6 +27,7 @@ var layers = map[string][]string{
 	"lsys/lang/langtest": {"lsys/lang", "lsys/lang/builtins", "lsys/lang/syntax"},
 	"lsys/kernel":        {"lsys/lang", "lsys/lang/builtins", "lsys/lang/syntax", "lsys/display", "lsys/lsys"},
 	"lsys/runner":        {"lsys/lang", "lsys/lang/builtins", "lsys/lang/syntax", "lsys/display", "lsys/lsys"},
+	"lsys/bench/inproc":  {"lsys/lsys"},
 	"lsys":               {"lsys/kernel", "lsys/runner", "lsys/lang", "lsys/lang/builtins", "lsys/lang/syntax", "lsys/display", "lsys/lsys"},
 }
 

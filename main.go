@@ -22,6 +22,7 @@ import (
 
 	"lsys/kernel"
 	"lsys/lang"
+	"lsys/lsys"
 )
 
 // version is set by ./install through -ldflags "-X main.version=...".
@@ -47,7 +48,7 @@ func main() {
 			os.Exit(1) // the failing cells are already named on stderr
 		}
 	case "version", "--version":
-		fmt.Println("lsys", version)
+		fmt.Printf("lsys %s (dense linear algebra: %s)\n", version, lsys.Backend)
 	case "help", "-h", "--help":
 		usage()
 	default:

@@ -344,7 +344,15 @@ func negligible(A *mat.Dense) float64 {
 }
 
 func (o ResponseOptions) grid(g *System) ([]float64, float64, string, error) {
-	until, step, rule := AutoHorizon(g)
+	// The modes are needed only for what is not given (an eigenvalue
+	// computation costs as much as the rest of a large response).
+	var until, step float64
+	var rule string
+	if o.Until == 0 || o.Step == 0 && !g.Sampled() {
+		until, step, rule = AutoHorizon(g)
+	} else if g.Sampled() {
+		step = g.Ts
+	}
 	if o.Until != 0 {
 		if !(o.Until > 0) || math.IsInf(o.Until, 0) {
 			return nil, 0, "", fmt.Errorf("the horizon must be a finite number > 0 s, got %v", o.Until)
@@ -439,11 +447,6 @@ func freeOrForced(ctx context.Context, g *System, kind string, x0 []float64, opt
 	}
 	n, m, p := g.N(), g.M(), g.P()
 	r := &Response{System: g, Kind: kind, T: t, Outputs: append([]string(nil), g.OutputNames...), Rule: rule, Sampled: g.Sampled()}
-	if kind == "step" && Stable(g) {
-		if G, ok := DCGain(g); ok && G != nil {
-			r.Final = G
-		}
-	}
 	nch := m
 	if kind == "initial" {
 		nch = 1
@@ -465,6 +468,16 @@ func freeOrForced(ctx context.Context, g *System, kind string, x0 []float64, opt
 	if p == 0 {
 		return r, nil
 	}
+	if n >= modalMinStates && !g.Sampled() {
+		if vals, err := modalResponse(ctx, g, kind, x0, h, r, opt); err != nil {
+			return nil, err
+		} else if vals != nil {
+			// The decomposition's eigenvalues decide stability too.
+			r.final(g, stableValues(g, vals))
+			return r, checkFiniteResponse(r)
+		}
+	}
+	r.final(g, Stable(g))
 	// X: n x nch states, one column per channel.
 	var Phi, Gam *mat.Dense
 	if n > 0 {
@@ -722,6 +735,15 @@ func DCGain(g *System) (*mat.Dense, bool) {
 	return add(g.D, mul(g.C, &x)), true
 }
 
+// final sets the values a step response settles at, when it does.
+func (r *Response) final(g *System, stable bool) {
+	if r.Kind == "step" && stable {
+		if G, ok := DCGain(g); ok && G != nil {
+			r.Final = G
+		}
+	}
+}
+
 // Stable reports whether every pole lies strictly in the stable region
 // (Re s < 0, or |z| < 1), by more than 1000 u ||A||_1 so that a rigid-body
 // mode computed as -1e-17 does not pass for a stable one.
@@ -733,8 +755,13 @@ func Stable(g *System) bool {
 	if !ev.Factorize(g.A, mat.EigenNone) {
 		return false
 	}
+	return stableValues(g, ev.Values(nil))
+}
+
+// stableValues is Stable on eigenvalues already computed.
+func stableValues(g *System, vals []complex128) bool {
 	thr := negligible(g.A)
-	for _, l := range ev.Values(nil) {
+	for _, l := range vals {
 		if g.Sampled() && cmplx.Abs(l) >= 1-thr || !g.Sampled() && real(l) >= -thr {
 			return false
 		}

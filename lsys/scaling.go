@@ -160,7 +160,7 @@ func balanceUnits(A, B, C *mat.Dense) *unitScaling {
 		return in, out
 	}
 	refOf := func() float64 {
-		r := mat.Norm(A, 2) / math.Sqrt(float64(n))
+		r := frobeniusFast(A) / math.Sqrt(float64(n))
 		if r == 0 {
 			return 1
 		}
@@ -173,16 +173,36 @@ func balanceUnits(A, B, C *mat.Dense) *unitScaling {
 		// reduces in + out noticeably, as in Parlett & Reinsch, so the
 		// sweeps end.
 		for i := 0; i < n; i++ {
-			var r, c float64
+			// Sums of squares (math.Hypot per entry was most of the time
+			// of modes at n = 500); the rare sum that over- or underflows
+			// is redone entry by entry.
+			var r2, c2 float64
 			for j := 0; j < n; j++ {
 				if part[j] != part[i] {
 					continue
 				}
 				if link(i, j) {
-					r = math.Hypot(r, A.At(i, j))
+					x := A.At(i, j)
+					r2 += x * x
 				}
 				if link(j, i) {
-					c = math.Hypot(c, A.At(j, i))
+					x := A.At(j, i)
+					c2 += x * x
+				}
+			}
+			r, c := math.Sqrt(r2), math.Sqrt(c2)
+			if !safeSquares(r2) || !safeSquares(c2) {
+				r, c = 0, 0
+				for j := 0; j < n; j++ {
+					if part[j] != part[i] {
+						continue
+					}
+					if link(i, j) {
+						r = math.Hypot(r, A.At(i, j))
+					}
+					if link(j, i) {
+						c = math.Hypot(c, A.At(j, i))
+					}
 				}
 			}
 			if r == 0 || c == 0 {
@@ -465,4 +485,27 @@ func partEigenvalues(us *unitScaling, es *EigenStructure) error {
 		es.Values[p.i], es.decide[p.i] = vals[p.j], conds[p.j]
 	}
 	return nil
+}
+
+// safeSquares reports whether a sum of squares is free of overflow and of
+// underflow that would matter (zero is exact).
+func safeSquares(s float64) bool {
+	return s == 0 || s > 0x1p-900 && s < 0x1p900
+}
+
+// frobeniusFast is mat.Norm(A, 2) by a plain sum of squares, which is several
+// times faster than its overflow-safe scaled sum (Dlassq) and is used
+// when the sum is safe (balancing recomputes it every sweep).
+func frobeniusFast(A *mat.Dense) float64 {
+	raw := A.RawMatrix()
+	var s float64
+	for i := 0; i < raw.Rows; i++ {
+		for _, x := range raw.Data[i*raw.Stride : i*raw.Stride+raw.Cols] {
+			s += x * x
+		}
+	}
+	if !safeSquares(s) {
+		return mat.Norm(A, 2)
+	}
+	return math.Sqrt(s)
 }

@@ -21,8 +21,8 @@ type SchurForm struct {
 }
 
 // Schur computes the real Schur form by Householder reduction to Hessenberg
-// form and the Francis double-shift QR algorithm (Francis 1961; gonum's
-// Dgehrd, Dorghr and Dhseqr). No scaling is applied, so Z stays orthogonal.
+// form and the Francis double-shift QR algorithm (Francis 1961; Dgehrd, Dorghr and
+// Dhseqr of the dense backend). No scaling is applied, so Z stays orthogonal.
 func Schur(A *mat.Dense) (*SchurForm, error) {
 	if A == nil {
 		return &SchurForm{}, nil
@@ -37,7 +37,7 @@ func Schur(A *mat.Dense) (*SchurForm, error) {
 	if n == 1 {
 		return &SchurForm{T: mat.DenseCopyOf(A), Z: identity(1), Values: []complex128{complex(A.At(0, 0), 0)}}, nil
 	}
-	impl := gonum.Implementation{}
+	impl := denseImpl
 	h := mat.DenseCopyOf(A)
 	hr := h.RawMatrix()
 	tau := make([]float64, max(n-1, 1))
