@@ -132,6 +132,10 @@ async function main() {
   const nbDir = path.join(tmp, "nb");
   fs.mkdirSync(nbDir);
   for (const d of demos) fs.writeFileSync(path.join(nbDir, d), JSON.stringify(cleared(path.join(top, "notebooks", d))));
+  // data files the notebooks read (load, readmtx) go beside them
+  for (const f of fs.readdirSync(path.join(top, "notebooks"))) {
+    if (!f.endsWith(".ipynb")) fs.copyFileSync(path.join(top, "notebooks", f), path.join(nbDir, f));
+  }
   fs.writeFileSync(path.join(nbDir, "thirty-cells.ipynb"), JSON.stringify(thirtyCells()));
   fs.mkdirSync(outDir, { recursive: true });
 
