@@ -12,7 +12,6 @@ package display
 import (
 	"fmt"
 	"html"
-	"math"
 	"strconv"
 	"strings"
 
@@ -126,39 +125,13 @@ func htmlNum(s string) string {
 // htmlPoly writes p in descending powers of v with 6 significant digits,
 // as latexPoly does.
 func htmlPoly(p lsys.Poly, v string) string {
-	t := p.Trim()
-	if len(t) == 0 {
-		return "0"
-	}
-	var b strings.Builder
-	for i := len(t) - 1; i >= 0; i-- {
-		c := t[i]
-		if c == 0 {
-			continue
+	iv := "<i>" + html.EscapeString(v) + "</i>"
+	return writePoly(p, polyStyle{minus: "−", num: htmlNum, sep: " ", power: func(k int) string {
+		if k == 1 {
+			return iv
 		}
-		switch {
-		case b.Len() == 0 && c < 0:
-			b.WriteString("−")
-		case b.Len() > 0 && c < 0:
-			b.WriteString(" − ")
-		case b.Len() > 0:
-			b.WriteString(" + ")
-		}
-		a := math.Abs(c)
-		if a != 1 || i == 0 {
-			b.WriteString(htmlNum(numfmt.Digits(a, 6)))
-			if i > 0 {
-				b.WriteString(" ")
-			}
-		}
-		switch {
-		case i == 1:
-			b.WriteString("<i>" + html.EscapeString(v) + "</i>")
-		case i > 1:
-			b.WriteString("<i>" + html.EscapeString(v) + "</i><sup>" + strconv.Itoa(i) + "</sup>")
-		}
-	}
-	return b.String()
+		return iv + "<sup>" + strconv.Itoa(k) + "</sup>"
+	}})
 }
 
 // rationalHTML is a transfer function as a fraction, typeset without

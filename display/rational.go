@@ -42,6 +42,25 @@ func init() {
 
 // latexPoly writes p in descending powers of v with 6 significant digits.
 func latexPoly(p lsys.Poly, v string) string {
+	return writePoly(p, polyStyle{minus: "-", num: latexNum, sep: `\,`, power: func(k int) string {
+		if k == 1 {
+			return v
+		}
+		return v + "^{" + strconv.Itoa(k) + "}"
+	}})
+}
+
+// polyStyle is how one markup writes a polynomial: its minus sign, its
+// numbers, the space between a coefficient and a power, and the powers.
+type polyStyle struct {
+	minus, sep string
+	num        func(string) string
+	power      func(k int) string
+}
+
+// writePoly writes p in descending powers with 6 significant digits, in
+// the markup st gives (LaTeX and HTML share it).
+func writePoly(p lsys.Poly, st polyStyle) string {
 	t := p.Trim()
 	if len(t) == 0 {
 		return "0"
@@ -54,24 +73,21 @@ func latexPoly(p lsys.Poly, v string) string {
 		}
 		switch {
 		case b.Len() == 0 && c < 0:
-			b.WriteString("-")
+			b.WriteString(st.minus)
 		case b.Len() > 0 && c < 0:
-			b.WriteString(" - ")
+			b.WriteString(" " + st.minus + " ")
 		case b.Len() > 0:
 			b.WriteString(" + ")
 		}
 		a := math.Abs(c)
 		if a != 1 || i == 0 {
-			b.WriteString(latexNum(numfmt.Digits(a, 6)))
+			b.WriteString(st.num(numfmt.Digits(a, 6)))
 			if i > 0 {
-				b.WriteString(`\,`)
+				b.WriteString(st.sep)
 			}
 		}
-		switch {
-		case i == 1:
-			b.WriteString(v)
-		case i > 1:
-			b.WriteString(v + "^{" + strconv.Itoa(i) + "}")
+		if i > 0 {
+			b.WriteString(st.power(i))
 		}
 	}
 	return b.String()

@@ -1,8 +1,6 @@
 package builtins
 
 import (
-	"math"
-
 	"gonum.org/v1/gonum/mat"
 
 	"lsys/lang"
@@ -32,20 +30,7 @@ func init() {
 			"so use it to understand a model, and modes or the modal form to compute with it. At most 200 states.",
 		Examples: []string{"jordanform([[-1, 1, 0], [0, -1, 0], [0, 0, -2]])", "F = jordanform([[2, 1], [-1, 4]])\nF.T * F.J * inverse(F.T)"},
 		Fn: func(c *lang.Call) (any, error) {
-			A, err := stMatrixOrSystem(c, "M")
-			if err != nil {
-				return nil, err
-			}
-			abs := 0.0
-			if c.Given("cluster") {
-				if abs, err = c.Float("cluster"); err != nil {
-					return nil, err
-				}
-				if abs < 0 || math.IsInf(abs, 0) {
-					return nil, c.Errorf("cluster", "", "cluster must be a finite distance >= 0")
-				}
-			}
-			tol, err := stTol(c)
+			A, abs, tol, err := jordanArgs(c)
 			if err != nil {
 				return nil, err
 			}

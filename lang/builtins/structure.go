@@ -201,20 +201,7 @@ func structureBuiltins() []*lang.Builtin {
 				"numerical judgement: every cluster shows its tolerance.",
 			Examples: []string{"jordan([[-1, 1], [0, -1]])", "jordan([[-2, 0], [2, -2]])"},
 			Fn: func(c *lang.Call) (any, error) {
-				A, err := stMatrixOrSystem(c, "M")
-				if err != nil {
-					return nil, err
-				}
-				abs := 0.0
-				if c.Given("cluster") {
-					if abs, err = c.Float("cluster"); err != nil {
-						return nil, err
-					}
-					if abs < 0 || math.IsInf(abs, 0) {
-						return nil, c.Errorf("cluster", "", "cluster must be a finite distance >= 0")
-					}
-				}
-				tol, err := stTol(c)
+				A, abs, tol, err := jordanArgs(c)
 				if err != nil {
 					return nil, err
 				}
@@ -541,4 +528,23 @@ func stSystemTol[T any](f func(*lsys.System, float64) (T, error)) func(*lang.Cal
 		}
 		return r, nil
 	}
+}
+
+// jordanArgs reads the arguments jordan and jordanform share: the matrix
+// (or a system's A), the absolute clustering distance and the relative
+// rank tolerance.
+func jordanArgs(c *lang.Call) (A *mat.Dense, abs, tol float64, err error) {
+	if A, err = stMatrixOrSystem(c, "M"); err != nil {
+		return nil, 0, 0, err
+	}
+	if c.Given("cluster") {
+		if abs, err = c.Float("cluster"); err != nil {
+			return nil, 0, 0, err
+		}
+		if abs < 0 || math.IsInf(abs, 0) {
+			return nil, 0, 0, c.Errorf("cluster", "", "cluster must be a finite distance >= 0")
+		}
+	}
+	tol, err = stTol(c)
+	return A, abs, tol, err
 }
