@@ -251,23 +251,8 @@ func LoopMargins(ctx context.Context, L *System, opt FrequencyOptions) (*Margins
 	}
 	if kPeak > 0 && kPeak < len(f.W)-1 {
 		// golden-section search for the peak between the grid neighbours
-		a, b := math.Log(f.W[kPeak-1]), math.Log(f.W[kPeak+1])
-		g := (math.Sqrt(5) - 1) / 2
-		c, d := b-g*(b-a), a+g*(b-a)
-		fc, fd := tAt(math.Exp(c)), tAt(math.Exp(d))
-		for i := 0; i < 60; i++ {
-			if fc > fd {
-				b, d, fd = d, c, fc
-				c = b - g*(b-a)
-				fc = tAt(math.Exp(c))
-			} else {
-				a, c, fc = c, d, fd
-				d = a + g*(b-a)
-				fd = tAt(math.Exp(d))
-			}
-		}
-		w := math.Exp((a + b) / 2)
-		if db := 20 * math.Log10(tAt(w)); db > mg.ResonantPeak {
+		w, tw := goldenMax(tAt, f.W[kPeak-1], f.W[kPeak+1])
+		if db := 20 * math.Log10(tw); db > mg.ResonantPeak {
 			mg.ResonantPeak, mg.ResonantFreq = db, w
 		}
 	}
