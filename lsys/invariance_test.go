@@ -411,7 +411,7 @@ func TestVerdictsInvariant(t *testing.T) {
 			if why != "" {
 				failed++
 				bad = true
-				if failed <= 10 {
+				if failed <= 30 {
 					t.Errorf("system %d (%s), change %d (%s): %s\nA = %v", k, g.what, trial, []string{"units", "coordinates", "both"}[trial], why, mat.Formatted(g.s.A, mat.Squeeze()))
 				}
 			}
@@ -551,7 +551,7 @@ func TestVerdictsSameWhateverTheEntry(t *testing.T) {
 				continue
 			}
 			failed++
-			if failed <= 10 {
+			if failed <= 30 {
 				t.Errorf("system %d (%s): as matrices (minimal part)\n%s---- as a transfer function\n%s", k, g.what, a.decisions, b.decisions)
 			}
 			continue

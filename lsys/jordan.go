@@ -229,8 +229,10 @@ func clusterEigenvalues(vals []complex128, cond []float64, normA, capTol, absTol
 				tols[i] = math.Max(tols[i], t)
 				tols[j] = math.Max(tols[j], t)
 			}
-			// The two members of a conjugate pair are one mode.
-			if t > 0 && d >= 0.1*t && d <= 10*t && vals[i] != cmplx.Conj(vals[j]) {
+			// The two members of a conjugate pair count too: whether
+			// they are one oscillatory mode or a double real (or
+			// defective) eigenvalue is the same call.
+			if t > 0 && d >= 0.1*t && d <= 10*t {
 				setNear(i, d/t)
 				setNear(j, d/t)
 			}

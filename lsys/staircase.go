@@ -39,6 +39,12 @@ type Staircase struct {
 	// system, not that distance: the PBH margins of the mode table measure
 	// each mode.
 	StepKept []float64
+	// Absorbed, when not 0, is the size of the last step: directions of
+	// modes the PBH test finds reached that the staircase left in its
+	// uncontrollable block, behind a step that rounding made exactly zero
+	// or that was dropped for an unreached mode before them (see
+	// absorbReached); its StepKept is 0.
+	Absorbed int
 	// Scale, when not nil, is the diagonal state scaling the staircase was
 	// computed in (see StaircasesOf): A, B and Z belong to the balanced
 	// system with x = diag(Scale) x~. Use LeadingBasis and TrailingBasis for
@@ -151,7 +157,10 @@ func pbhRefused(s *System, relTol float64) (unreached, unseen []complex128, err 
 // missing the rank tolerance is raised to the smallest singular value kept
 // above it; when the block holds a mode the PBH test finds reached, it is
 // lowered below the largest singular value dropped; then the staircase runs
-// again (raised at most until a lowering is needed, so it ends). The PBH
+// again (raised at most until a lowering is needed, so it ends). A raise
+// drops every step after the weak one, reached modes' steps too, so after a
+// raise, and when the step dropped is exactly 0, the reached modes are
+// instead taken back from the uncontrollable block (absorbReached). The PBH
 // verdicts decide; the staircase supplies the subspaces. RaisedFrom records
 // the tolerance it started from.
 func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual bool) (*Staircase, error) {
@@ -182,7 +191,7 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 		return cmplx.Abs(a-b) <= math.Max(1e-4*math.Max(scale, cmplx.Abs(a)), 10*st.Tol)
 	}
 	start := st.Tol
-	lowered := false
+	lowered, raised := false, false
 	for iter := 0; iter < n; iter++ {
 		k := st.Dim
 		var rest []complex128
@@ -219,9 +228,15 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 				return st, nil
 			}
 			next *= 1 + 1e-9
+			raised = true
 		case extra && !missing:
-			if st.Dropped == 0 {
-				return st, nil
+			if st.Dropped == 0 || raised {
+				// Rounding left an exact zero step, or the raise that
+				// dropped an unreached mode's step dropped reached
+				// modes' later steps with it (one tolerance cannot
+				// split a staircase out of Krylov order): take the
+				// reached ones back from the uncontrollable block.
+				return absorbReached(st, must, near)
 			}
 			next = st.Dropped * (1 - 1e-9)
 			lowered = true
@@ -235,6 +250,55 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 		st = again
 		st.RaisedFrom = start
 	}
+	return st, nil
+}
+
+// absorbReached takes into the reachable part of st the eigenvalues of its
+// uncontrollable block that match no mode in must (the modes the PBH test
+// finds unreached): the block's real Schur form is reordered to put them
+// first (Bai & Demmel 1993), which keeps the form block triangular, so the
+// enlarged leading subspace is still invariant and holds the range of B.
+// Used when a step came out exactly zero by rounding (a weakly reached
+// Jordan chain), where lowering the tolerance cannot help, and when a raised
+// tolerance dropped reached modes' steps after an unreached mode's.
+func absorbReached(st *Staircase, must []complex128, near func(a, b complex128) bool) (*Staircase, error) {
+	n, _ := st.A.Dims()
+	k := st.Dim
+	sf, err := Schur(mat.DenseCopyOf(st.A.Slice(k, n, k, n)))
+	if err != nil {
+		return nil, err
+	}
+	add, err := sf.Reorder(func(v complex128) bool {
+		for _, lam := range must {
+			if near(v, lam) || near(cmplx.Conj(v), lam) {
+				return false
+			}
+		}
+		return true
+	})
+	if err != nil || add == 0 {
+		return st, err
+	}
+	// A <- diag(I, Q)^T A diag(I, Q), B and Z alike; A[k:, :k] is zero and
+	// stays so.
+	var t mat.Dense
+	top := mat.DenseCopyOf(st.A.Slice(0, k, k, n))
+	t.Mul(top, sf.Z)
+	st.A.Slice(0, k, k, n).(*mat.Dense).Copy(&t)
+	st.A.Slice(k, n, k, n).(*mat.Dense).Copy(sf.T)
+	if st.B != nil {
+		_, m := st.B.Dims()
+		var tb mat.Dense
+		tb.Mul(sf.Z.T(), st.B.Slice(k, n, 0, m))
+		st.B.Slice(k, n, 0, m).(*mat.Dense).Copy(&tb)
+	}
+	var tz mat.Dense
+	tz.Mul(st.Z.Slice(0, n, k, n), sf.Z)
+	st.Z.Slice(0, n, k, n).(*mat.Dense).Copy(&tz)
+	st.Dim += add
+	st.Steps = append(st.Steps, add)
+	st.StepKept = append(st.StepKept, 0)
+	st.Absorbed = add
 	return st, nil
 }
 

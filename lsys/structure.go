@@ -443,7 +443,7 @@ func Reachable(s *System, relTol float64) (*Subspace, error) {
 	}
 	V := rs.LeadingBasis()
 	sub := newSubspace("reachable subspace", s, s.A, V, math.Max(1e3*float64(s.N())*dlamchE, rs.Tol/math.Max(1, mat.Norm(rs.A, 2))))
-	sub.Note = fmt.Sprintf("controllability staircase of (A, B) balanced together, steps %v, rank tolerance %.3g = %.3g x the norm of the balanced [[A, B]] (smallest kept singular value per step %s, largest dropped %.3g)", rs.Steps, rs.Tol, rs.Tol/stackedNorm(rs.A, rs.B), fmtFloats(rs.StepKept), rs.Dropped)
+	sub.Note = fmt.Sprintf("controllability staircase of (A, B) balanced together, steps %v, rank tolerance %.3g = %.3g x the norm of the balanced [[A, B]] (smallest kept singular value per step %s, largest dropped %.3g)", rs.Steps, rs.Tol, rs.Tol/stackedNorm(rs.A, rs.B), fmtFloats(rs.StepKept), rs.Dropped) + absorbedNote(rs)
 	return sub, nil
 }
 
@@ -460,8 +460,17 @@ func Unobservable(s *System, relTol float64) (*Subspace, error) {
 	n := s.N()
 	V := os.TrailingBasis()
 	sub := newSubspace("unobservable subspace", s, s.A, V, math.Max(1e3*float64(n)*dlamchE, os.Tol/math.Max(1, mat.Norm(os.A, 2))))
-	sub.Note = fmt.Sprintf("observability staircase of (A, C) balanced together, steps %v, rank tolerance %.3g = %.3g x the norm of the balanced [[A], [C]] (smallest kept singular value per step %s, largest dropped %.3g)", os.Steps, os.Tol, os.Tol/stackedNorm(os.A, os.B), fmtFloats(os.StepKept), os.Dropped)
+	sub.Note = fmt.Sprintf("observability staircase of (A, C) balanced together, steps %v, rank tolerance %.3g = %.3g x the norm of the balanced [[A], [C]] (smallest kept singular value per step %s, largest dropped %.3g)", os.Steps, os.Tol, os.Tol/stackedNorm(os.A, os.B), fmtFloats(os.StepKept), os.Dropped) + absorbedNote(os)
 	return sub, nil
+}
+
+// absorbedNote says when the last step of a staircase came from the PBH
+// test (see absorbReached).
+func absorbedNote(st *Staircase) string {
+	if st.Absorbed == 0 {
+		return ""
+	}
+	return fmt.Sprintf("; the last %d directions (a reordered Schur block, no staircase step) belong to modes the PBH test finds reached that the staircase left behind a step of 0 or of an unreached mode", st.Absorbed)
 }
 
 // eigOrdered returns the eigenvalues of a in mode-table order (values only:
