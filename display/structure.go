@@ -202,9 +202,14 @@ func renderJordan(v any, _ Options) Bundle {
 				defective++
 			}
 		}
-		if c.Close > 0 {
+		if c.IsClose() {
 			verdict += " (close)"
+		}
+		if c.Close > 0 {
 			close = append(close, fmt.Sprintf("%s (distance %s x the tolerance)", fmtComplex(c.Value, pair), fmtNum(c.Close)))
+		}
+		if c.Entered != "" {
+			close = append(close, fmt.Sprintf("%s (at the scale of A as entered, rounding could make it %s)", fmtComplex(c.Value, pair), c.Entered))
 		}
 		ranks := "-"
 		if len(c.Ranks) > 0 {

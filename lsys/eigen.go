@@ -31,6 +31,11 @@ type EigenStructure struct {
 	// the clustering decides with: those of each eigenvalue in its own
 	// irreducible block. Cond stays that of the whole balanced matrix.
 	decide []float64
+	// entered is the matrix as entered, when balancing changed it, and
+	// enteredCond the condition numbers there: the second opinion of
+	// JordanCluster.Entered.
+	entered     *mat.Dense
+	enteredCond []float64
 }
 
 // Eigen computes the eigen-structure of the square matrix a by balancing,

@@ -298,7 +298,7 @@ func verdictsOf(s *System) (v verdicts, err error) {
 	}
 	for _, c := range js.Clusters {
 		fmt.Fprintf(&b, "cluster alg %d blocks %v\n", c.Algebraic, c.Blocks)
-		v.close = v.close || c.Close > 0
+		v.close = v.close || c.IsClose()
 	}
 	mt, err := Modes(s)
 	if err != nil {
@@ -508,10 +508,15 @@ func TestUnitFreeRegressions(t *testing.T) {
 // hold a k-fold pole only to about u^(1/k), so poles are compared to 1e-4
 // of the largest. An equation block yields the same matrices exactly (the
 // language builds A, B, C, D by dual numbers), so its verdicts are those of
-// the matrices. Not yet part of the quick run: about 1 system in 30 still
-// differs, a rigid-body mode or Jordan chain reached weakly (through 1e-6),
-// where the minimal realization's rounding splits the multiple pole beyond
-// the clustering threshold; run it with -invariance N.
+// the matrices. Not yet part of the quick run: 11 of 483 systems still
+// differ (seed 2026/13, -invariance 2000). Most are sampled models whose
+// poles crowd near z = 1: the coefficients of a 7th-order polynomial there
+// fix its roots only to about 1e-2, so the realized transfer function has
+// other poles (an outside limit of the coefficient form, which Realize
+// does not yet detect and say); the others are weakly reached (1e-6,
+// 1e-12) defective poles decided otherwise in the companion form. Two
+// systems' transfer functions are refused by TransferFunctions. Run it
+// with -invariance N.
 func TestVerdictsSameWhateverTheEntry(t *testing.T) {
 	count := *invarianceCount
 	if count == 0 {
@@ -533,7 +538,7 @@ func TestVerdictsSameWhateverTheEntry(t *testing.T) {
 			t.Errorf("system %d (%s): %v", k, g.what, err)
 			continue
 		}
-		re, err := Realize(tf, g.s.Ts)
+		re, info, err := RealizeChecked(tf, g.s.Ts, 0)
 		if err != nil {
 			t.Errorf("system %d (%s): realizing its transfer function: %v", k, g.what, err)
 			continue
@@ -552,7 +557,7 @@ func TestVerdictsSameWhateverTheEntry(t *testing.T) {
 			}
 			failed++
 			if failed <= 30 {
-				t.Errorf("system %d (%s): as matrices (minimal part)\n%s---- as a transfer function\n%s", k, g.what, a.decisions, b.decisions)
+				t.Errorf("system %d (%s): as matrices (minimal part, %d states)\n%s---- as a transfer function (%d states; %s)\n%s", k, g.what, min.N(), a.decisions, re.N(), info.Warning, b.decisions)
 			}
 			continue
 		}
@@ -588,11 +593,66 @@ func entryVerdicts(s *System) (v verdicts, err error) {
 	var lines []string
 	for _, c := range js.Clusters {
 		lines = append(lines, fmt.Sprintf("cluster alg %d blocks %v", c.Algebraic, c.Blocks))
-		v.close = v.close || c.Close > 0
+		v.close = v.close || c.IsClose()
 	}
 	sort.Strings(lines)
 	b.WriteString(strings.Join(lines, "\n") + "\n")
 	v.poles, err = Poles(s)
 	v.decisions = b.String()
 	return v, err
+}
+
+// TestRoundingLevelCouplingsSaidClose: decisions that rest on entries at
+// rounding level in the units entered are marked close, and a weakly
+// reached Jordan chain whose staircase step rounds to zero is still found
+// reached, as its PBH test says.
+func TestRoundingLevelCouplingsSaidClose(t *testing.T) {
+	// [[1, 0], [c, 1]] with any c != 0 is diagonally similar to [[1, 0],
+	// [1, 1]]: one Jordan block of size 2 (Golub & Wilkinson 1976, sec. 1).
+	// c = 3.5e-18 is below the rounding of the entries, so the call is
+	// close: rounding in those units would have given a semisimple
+	// double eigenvalue.
+	A := mat.NewDense(2, 2, []float64{1, 0, 3.5e-18, 1})
+	js, err := Jordan(A, 0, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(js.Clusters) != 1 || fmt.Sprint(js.Clusters[0].Blocks) != "[2]" {
+		t.Fatalf("clusters %+v, want one block of size 2", js.Clusters)
+	}
+	if c := js.Clusters[0]; !c.IsClose() || c.Entered != "blocks [1 1]" {
+		t.Errorf("the call is not marked close at the entered scale: Entered %q", c.Entered)
+	}
+	// In balanced units the same decision is not close.
+	js, err = Jordan(mat.NewDense(2, 2, []float64{1, 0, 1, 1}), 0, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if js.Clusters[0].IsClose() {
+		t.Errorf("[[1, 0], [1, 1]] marked close: %+v", js.Clusters[0])
+	}
+
+	// A Jordan chain of 3 at -2 reached only through its last state,
+	// with weight 1e-6, plus a simple mode at -5: in exact arithmetic
+	// [B, AB, A^2B, A^3B] has full rank 4 (Kalman 1960 rank condition;
+	// the chain's last state feeds the others), so all 4 states are
+	// reached.
+	A = mat.NewDense(4, 4, []float64{-2, 1, 0, 0, 0, -2, 1, 0, 0, 0, -2, 0, 0, 0, 0, -5})
+	B := mat.NewDense(4, 1, []float64{1, 1, 1e-6, 1})
+	C := mat.NewDense(1, 4, []float64{1, 1, 1, 1})
+	rng := rand.New(rand.NewPCG(7, 7))
+	for trial := 0; trial < 20; trial++ {
+		s, err := FromMatrices(A, B, C, nil, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		s = similar(rng, s)
+		str, err := StructureOf(s, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if str.Reach.Dim != 4 {
+			t.Errorf("trial %d: reachable dimension %d, want 4", trial, str.Reach.Dim)
+		}
+	}
 }

@@ -38,6 +38,14 @@ type JordanCluster struct {
 	// kept apart) is genuinely close, and another realization of the same
 	// model may decide it the other way; the display says so.
 	Close float64
+	// Entered, when not empty, is the call the same rules make at the
+	// scale of the matrix as entered (its norm and its eigenvalue
+	// conditions in those coordinates), when that differs: the decision
+	// rests on entries that are at rounding level in the units entered
+	// (a one-way coupling of 1e-17, or a realization computed at a scale
+	// far above its balanced size), so rounding in any computation that
+	// produced the matrix in those units can turn it. The display says so.
+	Entered string
 	// BoundaryTol = ZeroTol x max(1, condition) for a simple eigenvalue,
 	// ZeroTol for a cluster: a value closer than this to the stability
 	// boundary is on it.
@@ -45,6 +53,10 @@ type JordanCluster struct {
 
 	idx []int // indices of the members in the EigenStructure
 }
+
+// IsClose reports whether the call is close: near the clustering threshold,
+// or made otherwise at the entered scale.
+func (c JordanCluster) IsClose() bool { return c.Close > 0 || c.Entered != "" }
 
 // Defective reports whether the eigenvalue has fewer eigenvectors than its
 // multiplicity.
@@ -175,6 +187,11 @@ func jordanFrom(A *mat.Dense, es *EigenStructure, absTol, relTol, ts float64) (*
 		}
 		js.Clusters = append(js.Clusters, jc)
 	}
+	if es.entered != nil {
+		if err := secondOpinion(js, es, absTol, relTol); err != nil {
+			return nil, err
+		}
+	}
 	// Mode-table order.
 	vals := make([]complex128, len(js.Clusters))
 	for i, c := range js.Clusters {
@@ -187,6 +204,55 @@ func jordanFrom(A *mat.Dense, es *EigenStructure, absTol, relTol, ts float64) (*
 	}
 	js.Clusters = out
 	return js, nil
+}
+
+// secondOpinion makes the clustering and block decisions again on the
+// matrix as entered, with its norm and the eigenvalue conditions in its
+// coordinates (the cap on the clustering tolerance stays the balanced one:
+// bad units must not merge a whole spectrum), and records in
+// JordanCluster.Entered every cluster decided otherwise there. Decisions
+// stay those of the balanced matrix, the same in any units; the second
+// opinion only says which of them the units entered put within rounding.
+func secondOpinion(js *JordanStructure, es *EigenStructure, absTol, relTol float64) error {
+	A := es.entered
+	normE := mat.Norm(A, 2)
+	groups := clusterEigenvalues(es.Values, es.enteredCond, normE, js.CapTol, absTol)
+	groupOf := make([]int, len(es.Values))
+	for gi, g := range groups {
+		for _, k := range g.idx {
+			groupOf[k] = gi
+		}
+	}
+	for ci := range js.Clusters {
+		c := &js.Clusters[ci]
+		g := groups[groupOf[c.idx[0]]]
+		same := len(g.idx) == len(c.idx)
+		for _, k := range c.idx {
+			same = same && groupOf[k] == groupOf[c.idx[0]]
+		}
+		if !same {
+			c.Entered = fmt.Sprintf("one eigenvalue of multiplicity %d", len(g.idx))
+			if len(g.idx) < len(c.idx) {
+				c.Entered = "split"
+			}
+			continue
+		}
+		if c.Algebraic == 1 {
+			continue
+		}
+		spread := 0.0
+		for _, k := range c.idx {
+			spread = math.Max(spread, cmplx.Abs(es.Values[k]-c.Value))
+		}
+		_, blocks, err := jordanBlocks(A, c.Value, c.Algebraic, relTol, jordanSpreadTol(c.Value, spread))
+		if err != nil {
+			return err
+		}
+		if fmt.Sprint(blocks) != fmt.Sprint(c.Blocks) {
+			c.Entered = fmt.Sprintf("blocks %v", blocks)
+		}
+	}
+	return nil
 }
 
 type eigGroup struct {

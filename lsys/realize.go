@@ -103,11 +103,12 @@ func RealizeChecked(tf [][]*Rational, ts float64, tol float64) (*System, *Realiz
 //     A = w*A_sigma, B = w*B_sigma. The columns are stacked block-diagonally,
 //     so the realization is controllable by construction.
 //  3. Unobservable states (pole-zero cancellations, poles shared between
-//     columns) are removed by the orthogonal staircase reduction of
-//     (A^T, C^T) (Van Dooren 1981, "The generalized eigenstructure problem
-//     in linear system theory", IEEE TAC 26(1)), a singular value at or
-//     below tol*||A||_F counting as zero (tol <= 0 selects 1e-10). A single
-//     entry with a constant numerator cannot cancel and is not reduced.
+//     columns) are removed by Minimal: orthogonal staircases (Van Dooren
+//     1981, "The generalized eigenstructure problem in linear system
+//     theory", IEEE TAC 26(1)) on balanced pairs, made to agree with the PBH
+//     test of every mode, a relative tolerance tol (<= 0 selects 1e-10), so
+//     the modes kept are those the matrices would keep. A single entry with
+//     a constant numerator cannot cancel and is not reduced.
 //  4. The reduced and the unreduced realizations are checked against direct
 //     evaluation of the entries at points on circles through every pole
 //     magnitude. A reduction that changes the transfer function by more than
@@ -290,8 +291,19 @@ func RealizeWithInfo(tf [][]*Rational, ts float64, tol float64) (*System, *Reali
 	// cancel; the companion form is minimal.
 	reducible := p > 1 || m > 1 || len(ent[0][0].num) > 1
 	if reducible {
-		red := observablePart(A, B, C, D, tol, ts)
+		// The reduction is Minimal's: staircases made to agree with the
+		// PBH test of every mode, so a transfer function and the
+		// matrices it came from keep the same modes (a weakly reached
+		// defective pole drops a staircase step far below its PBH
+		// margin; see agreeingStaircase).
+		red, err := Minimal(full, tol)
+		if err != nil {
+			return nil, nil, fmt.Errorf("realize: %w", err)
+		}
 		if red.N() < n {
+			if red, err = red.WithNames(defaultNames("x", red.N()), nil, nil); err != nil {
+				return nil, nil, err
+			}
 			chk := realizeCheck(red, points, rat)
 			if chk <= math.Max(realizeCancelTol, 10*info.Check) {
 				out, info.Removed, info.Check = red, n-red.N(), chk
@@ -304,33 +316,6 @@ func RealizeWithInfo(tf [][]*Rational, ts float64, tol float64) (*System, *Reali
 		info.Warning = fmt.Sprintf("the realization reproduces the transfer function only to %.1e (relative) at the check points; the denominator coefficients span a ratio of %.1e, too much for double precision: give the transfer function as a product of low-order sections (series connection) instead", info.Check, info.Spread)
 	}
 	return out, info, nil
-}
-
-// observablePart removes the unobservable part of (A, B, C) by the
-// staircase reduction of the dual pair (A^T, C^T). C is scaled by a power of
-// two to the size of A first so that one tolerance serves both.
-func observablePart(A, B, C, D *mat.Dense, tol float64, ts float64) *System {
-	na := mat.Norm(A, 2)
-	nc := mat.Norm(C, 2)
-	e := 0
-	if na > 0 && nc > 0 {
-		e = int(math.Round(math.Log2(na / nc)))
-	}
-	Cs := mat.DenseCopyOf(C)
-	Cs.Apply(func(_, _ int, v float64) float64 { return math.Ldexp(v, e) }, Cs)
-	abs := tol * math.Max(na, math.Ldexp(nc, e))
-	At, Ct, Bt := staircase(mat.DenseCopyOf(A.T()), mat.DenseCopyOf(Cs.T()), mat.DenseCopyOf(B.T()), abs)
-	_, m := B.Dims()
-	p, _ := C.Dims()
-	if At == nil {
-		s, _ := NewSystem(0, m, p, nil, nil, nil, D, ts)
-		return s
-	}
-	nr, _ := At.Dims()
-	Cr := mat.DenseCopyOf(Ct.T())
-	Cr.Apply(func(_, _ int, v float64) float64 { return math.Ldexp(v, -e) }, Cr)
-	s, _ := NewSystem(nr, m, p, mat.DenseCopyOf(At.T()), mat.DenseCopyOf(Bt.T()), Cr, D, ts)
-	return s
 }
 
 // checkPoints returns the points where a realization is compared with the
@@ -465,74 +450,6 @@ func balanceScale(A, B, C *mat.Dense) {
 			C.Set(j, i, C.At(j, i)*d[i])
 		}
 	}
-}
-
-// staircase returns the controllable part of (A, B, C) by the orthogonal
-// staircase reduction (Van Dooren 1981): the columns of B, then of each new
-// subdiagonal block of A, are compressed by an SVD, singular values at or
-// below tol counting as zero, until no new direction is reached. It returns
-// nil matrices when nothing is controllable.
-func staircase(A, B, C *mat.Dense, tol float64) (*mat.Dense, *mat.Dense, *mat.Dense) {
-	n, _ := A.Dims()
-	A, B, C = mat.DenseCopyOf(A), mat.DenseCopyOf(B), mat.DenseCopyOf(C)
-	k, kprev := 0, 0
-	first := true
-	for k < n {
-		var M mat.Matrix
-		if first {
-			M = B.Slice(k, n, 0, B.RawMatrix().Cols)
-		} else {
-			M = A.Slice(k, n, kprev, k)
-		}
-		var svd mat.SVD
-		if !svd.Factorize(M, mat.SVDFull) {
-			break
-		}
-		r := 0
-		for _, s := range svd.Values(nil) {
-			if s > tol {
-				r++
-			}
-		}
-		if r == 0 {
-			break
-		}
-		var U mat.Dense
-		svd.UTo(&U)
-		rows := func(X *mat.Dense) {
-			_, c := X.Dims()
-			sub := X.Slice(k, n, 0, c)
-			var t mat.Dense
-			t.Mul(U.T(), sub)
-			sub.(*mat.Dense).Copy(&t)
-		}
-		cols := func(X *mat.Dense) {
-			r, _ := X.Dims()
-			sub := X.Slice(0, r, k, n)
-			var t mat.Dense
-			t.Mul(sub, &U)
-			sub.(*mat.Dense).Copy(&t)
-		}
-		rows(A)
-		cols(A)
-		rows(B)
-		cols(C)
-		// Zero what the rank decision declared zero, so the form is exact.
-		if first {
-			zeroBlock(B, k+r, n, 0, B.RawMatrix().Cols)
-		} else {
-			zeroBlock(A, k+r, n, kprev, k)
-		}
-		first = false
-		kprev = k
-		k += r
-	}
-	if k == 0 {
-		return nil, nil, nil
-	}
-	_, mc := B.Dims()
-	pr, _ := C.Dims()
-	return mat.DenseCopyOf(A.Slice(0, k, 0, k)), mat.DenseCopyOf(B.Slice(0, k, 0, mc)), mat.DenseCopyOf(C.Slice(0, pr, 0, k))
 }
 
 func zeroBlock(X *mat.Dense, r0, r1, c0, c1 int) {

@@ -5,6 +5,7 @@ import (
 	"math/cmplx"
 	"sort"
 
+	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -408,6 +409,19 @@ func decisionEigen(A *mat.Dense) (*EigenStructure, *unitScaling, error) {
 	for k := range es.Values {
 		es.Right[k] = unitLargestReal(us.fromBalanced(es.Right[k], false))
 		es.Left[k] = unitLargestReal(us.fromBalanced(es.Left[k], true))
+	}
+	if lo, hi := floats.Min(us.S), floats.Max(us.S); hi > lo {
+		// Kept for the second opinion at the entered scale (see
+		// JordanCluster.Entered).
+		es.entered = A
+		es.enteredCond = make([]float64, len(es.Values))
+		for k := range es.Values {
+			var d complex128
+			for i, w := range es.Left[k] {
+				d += cmplx.Conj(w) * es.Right[k][i]
+			}
+			es.enteredCond[k] = 1 / cmplx.Abs(d)
+		}
 	}
 	return es, us, nil
 }

@@ -350,10 +350,20 @@ func Minimal(s *System, relTol float64) (*System, error) {
 		return NewSystemNamed(0, s.M(), s.P(), nil, nil, nil, s.D, s.Ts, nil, s.InputNames, s.OutputNames)
 	}
 	// The reachable part in the staircase coordinates x = diag(S) Z xs,
-	// with the input scaling undone.
+	// with the input scaling undone. When nothing is unreached the
+	// coordinates are kept: those of the balanced staircase of (A, B) can
+	// be far from A's own balance (a weakly reached state is scaled up),
+	// and rounding there would move a defective eigenvalue further than
+	// in the realization given.
+	keep := k == n
 	Ar := mat.DenseCopyOf(rs.A.Slice(0, k, 0, k))
+	if keep {
+		Ar = mat.DenseCopyOf(s.A)
+	}
 	var Br *mat.Dense
-	if rs.B != nil {
+	if keep && s.B != nil {
+		Br = mat.DenseCopyOf(s.B)
+	} else if rs.B != nil {
 		Br = mat.DenseCopyOf(rs.B.Slice(0, k, 0, s.M()))
 		for j, f := range ur.U {
 			for i := 0; i < k; i++ {
@@ -362,7 +372,9 @@ func Minimal(s *System, relTol float64) (*System, error) {
 		}
 	}
 	var Cr *mat.Dense
-	if s.C != nil {
+	if keep && s.C != nil {
+		Cr = mat.DenseCopyOf(s.C)
+	} else if s.C != nil {
 		SZ := mat.DenseCopyOf(rs.Z.Slice(0, n, 0, k))
 		for i := 0; i < n; i++ {
 			for j := 0; j < k; j++ {
@@ -391,6 +403,10 @@ func Minimal(s *System, relTol float64) (*System, error) {
 	q := os.Dim
 	if q == 0 {
 		return NewSystemNamed(0, s.M(), s.P(), nil, nil, nil, s.D, s.Ts, nil, s.InputNames, s.OutputNames)
+	}
+	if q == k {
+		// Nothing unseen either: no further change of coordinates.
+		return NewSystemNamed(q, s.M(), s.P(), Ar, Br, Cr, s.D, s.Ts, defaultNames("z", q), s.InputNames, s.OutputNames)
 	}
 	Z := os.Z.Slice(0, k, 0, q)
 	var A, B, C, tmp mat.Dense
