@@ -249,8 +249,8 @@ func renderStructure(v any, _ Options) Bundle {
 		rows = append(rows, []string{p.Name, strconv.Itoa(p.Dim), sxValues(p.Modes)})
 	}
 	gridTable(t, h, []string{"part", "states", "modes"}, rows, 0)
-	note(t, h, fmt.Sprintf("Orthogonal staircase forms decide every rank, reachability on (A, B) alone and observability on (A, C) alone, each pair balanced on its own (states, and inputs or outputs, scaled by powers of two, so a tolerance means the same in any units), at %s x the norm of [[A, B]] (or [[A], [C]]); a small kept value marks a weakly reached or seen direction (the mode table's PBH margins measure each mode); the Krylov matrix is not used. Reachable and unobservable subspaces intersected at principal-angle tolerance %s; Kalman transformation condition number %s.",
-		fmtNum(st.RelTol), fmtNum(st.AngleTol), fmtNum(st.Cond)))
+	note(t, h, fmt.Sprintf("Orthogonal staircase forms decide every rank, reachability on (A, B) alone and observability on (A, C) alone, each pair balanced on its own (states, and inputs or outputs, scaled by powers of two, so a tolerance means the same in any units), at %s x the norm of [[A, B]] (or [[A], [C]]); a small kept value marks a weakly reached or seen direction (the mode table's PBH margins measure each mode); the Krylov matrix is not used. Reachable and unobservable subspaces intersected at principal-angle tolerance %s%s; Kalman transformation condition number %s.",
+		fmtNum(st.RelTol), fmtNum(st.AngleTol), angleCloseNote(st.AngleClose), fmtNum(st.Cond)))
 	b := c.bundle()
 	parts := make([]any, 4)
 	for i, p := range st.Parts {
@@ -383,6 +383,14 @@ func sxMultipleJSON(m []lsys.MultipleValue) []any {
 
 // closeNote names the clusters whose call was within a factor 10 of the
 // clustering threshold.
+// angleCloseNote says when the size of the intersection is a close call.
+func angleCloseNote(r float64) string {
+	if r == 0 {
+		return ""
+	}
+	return fmt.Sprintf(" (a close call: a singular value of [R N] is %s x the tolerance, so another realization may split the parts otherwise)", fmtNum(r))
+}
+
 func closeNote(close []string) string {
 	if len(close) == 0 {
 		return ""

@@ -34,6 +34,12 @@ type Structure struct {
 	// tolerance (radians) on principal angles when intersecting the
 	// reachable and unobservable subspaces.
 	RelTol, AngleTol float64
+	// AngleClose, when not 0, is the ratio to AngleTol, between 0.1 and
+	// 10, of the singular value of [R N] nearest it (R, N orthonormal
+	// bases of the reachable and unobservable subspaces): the dimension of
+	// their intersection is a close call, which another realization may
+	// make otherwise (a multiple eigenvalue reached and seen in part).
+	AngleClose float64
 	// Cond is the condition number of the Kalman transformation.
 	Cond float64
 }
@@ -47,6 +53,8 @@ type Decomposition struct {
 	T      *mat.Dense // z = T x
 	Sizes  [4]int     // sizes of the four parts, in order
 	Cond   float64    // condition number of T (2-norm)
+
+	angleClose float64 // see Structure.AngleClose
 }
 
 var kalmanNames = [4]string{"reachable and observable", "reachable, not observable", "observable, not reachable", "neither reachable nor observable"}
@@ -99,6 +107,7 @@ func StructureOf(s *System, relTol float64) (*Structure, error) {
 		return nil, err
 	}
 	st.AngleTol = angTol
+	st.AngleClose = dec.angleClose
 	st.Cond = dec.Cond
 	off := 0
 	for i := 0; i < 4; i++ {
@@ -153,10 +162,19 @@ func kalman(s *System, rs, os *Staircase, relTol float64) (*Decomposition, float
 	R := rescaleBasis(rs.LeadingBasis(), us.S, true)
 	N := rescaleBasis(os.TrailingBasis(), us.S, true)
 	var V1, V2, V3, V4 *mat.Dense
+	angleClose := 0.0
 	if R != nil && N != nil {
 		_, r := R.Dims()
 		// Null vectors [a; b] of [R N] give R a = -N b in the intersection.
 		M := stHcat(n, R, N)
+		var svd mat.SVD
+		if svd.Factorize(M, mat.SVDNone) {
+			for _, v := range svd.Values(nil) {
+				if r := v / angTol; r >= 0.1 && r <= 10 && (angleClose == 0 || math.Abs(math.Log(r)) < math.Abs(math.Log(angleClose))) {
+					angleClose = r
+				}
+			}
+		}
 		null := stNullRight(M, angTol)
 		if null != nil {
 			var X mat.Dense
@@ -206,7 +224,7 @@ func kalman(s *System, rs, os *Staircase, relTol float64) (*Decomposition, float
 		return nil, angTol, err
 	}
 	sys.StateNames = kalmanStateNames(dims(V1), dims(V2), dims(V3), dims(V4))
-	return &Decomposition{From: s, System: sys, T: T, Sizes: [4]int{dims(V1), dims(V2), dims(V3), dims(V4)}, Cond: cond}, angTol, nil
+	return &Decomposition{From: s, System: sys, T: T, Sizes: [4]int{dims(V1), dims(V2), dims(V3), dims(V4)}, Cond: cond, angleClose: angleClose}, angTol, nil
 }
 
 func kalmanStateNames(n1, n2, n3, n4 int) []string {
