@@ -115,8 +115,17 @@ func Poles(s *System) ([]complex128, error) {
 	if es.decide != nil {
 		decide = es.decide
 	}
+	// A simple eigenvalue is accurate to about u ||A|| times its
+	// condition, so its boundary tolerance grows with it, as in the
+	// stability verdict (see JordanCluster.BoundaryTol); a cluster's mean
+	// keeps tol.
+	btol := make([]float64, len(vals))
 	for _, g := range clusterEigenvalues(vals, decide, normA, 1e-3*math.Max(normA, dlamchE), 0) {
+		for _, k := range g.idx {
+			btol[k] = tol
+		}
 		if len(g.idx) < 2 {
+			btol[g.idx[0]] = tol * math.Max(1, decide[g.idx[0]])
 			continue
 		}
 		var mean complex128
@@ -134,7 +143,7 @@ func Poles(s *System) ([]complex128, error) {
 	idx := orderEigenvalues(vals, s.Ts)
 	out := make([]complex128, len(idx))
 	for i, k := range idx {
-		out[i] = snapValue(vals[k], s.Ts, tol)
+		out[i] = snapBoundary(snapValue(vals[k], s.Ts, tol), s.Ts, btol[k])
 	}
 	return out, nil
 }
@@ -162,6 +171,21 @@ func snapValue(v complex128, ts, tol float64) complex128 {
 		re = 0
 	}
 	return complex(re, im)
+}
+
+// snapBoundary sets v exactly on the stability boundary (Re s = 0, or z =
+// 1 for a real z when ts > 0) when it is within tol of it.
+func snapBoundary(v complex128, ts, tol float64) complex128 {
+	if ts > 0 {
+		if imag(v) == 0 && math.Abs(real(v)-1) <= tol {
+			return 1
+		}
+		return v
+	}
+	if math.Abs(real(v)) <= tol {
+		return complex(0, imag(v))
+	}
+	return v
 }
 
 // orderEigenvalues returns the indices of vals sorted by natural frequency,

@@ -179,6 +179,7 @@ func RealizeWithInfo(tf [][]*Rational, ts float64, tol float64) (*System, *Reali
 		}
 	}
 	var As, Bs, Cs []*mat.Dense
+	var colDens [][]float64
 	ns := make([]int, m)
 	D := mat.NewDense(p, m, nil)
 	for j := 0; j < m; j++ {
@@ -203,6 +204,7 @@ func RealizeWithInfo(tf [][]*Rational, ts float64, tol float64) (*System, *Reali
 		for _, dd := range dens {
 			d = polyMul(d, dd)
 		}
+		colDens = append(colDens, d)
 		nj := len(d) - 1
 		ns[j] = nj
 		e := scaleExponent(d)
@@ -307,8 +309,21 @@ func RealizeWithInfo(tf [][]*Rational, ts float64, tol float64) (*System, *Reali
 			chk := realizeCheck(red, points, rat)
 			if chk <= math.Max(realizeCancelTol, 10*info.Check) {
 				out, info.Removed, info.Check = red, n-red.N(), chk
+				if w, err := closeCancellation(full); err != nil {
+					return nil, nil, err
+				} else if w != "" && info.Warning == "" {
+					info.Warning = w
+				}
 			} else {
 				info.Warning = fmt.Sprintf("the staircase (rank tolerance %.1e) would remove %d state(s), but that changes the transfer function by %.1e (relative) at the check points, more than %.0e: no pole-zero cancellation that close, so all %d states are kept (the realization may not be minimal)", tol, n-red.N(), chk, realizeCancelTol, n)
+			}
+		}
+	}
+	for j, d := range colDens {
+		if w := poleUncertainty(d, ts); w != "" && info.Warning == "" {
+			info.Warning = w
+			if m > 1 {
+				info.Warning = fmt.Sprintf("column %d: %s", j+1, w)
 			}
 		}
 	}
@@ -502,4 +517,124 @@ func polyEqual(a, b []float64) bool {
 		}
 	}
 	return true
+}
+
+// poleUncertainty says when the coefficients of the monic denominator d
+// (ascending) cannot fix its roots well enough for the verdicts made on
+// them. A cluster of m roots at l moves under relative coefficient errors
+// eps by about r = (eps sum |d_k| |l|^k / prod |l - mu|)^(1/m), the product
+// over the other roots (first-order root sensitivity; Wilkinson 1963,
+// Rounding Errors in Algebraic Processes, ch. 2), with eps = n u, the
+// rounding of forming or typing the n + 1 coefficients. When that disk
+// reaches the stability boundary, or another root, the realized model's
+// stability or multiplicities may not be the model's: the warning names the
+// pole and the figures. Sampled models with crowded poles near z = 1 are
+// the common case (their coefficients are nearly binomial).
+func poleUncertainty(d []float64, ts float64) string {
+	n := len(d) - 1
+	if n < 2 {
+		return ""
+	}
+	A := mat.NewDense(n, n, nil)
+	for k := 0; k+1 < n; k++ {
+		A.Set(k, k+1, 1)
+	}
+	for k := 0; k < n; k++ {
+		A.Set(n-1, k, -d[k])
+	}
+	sys, err := NewSystem(n, 0, 0, A, nil, nil, nil, ts)
+	if err != nil {
+		return ""
+	}
+	poles, err := Poles(sys)
+	if err != nil {
+		return ""
+	}
+	type cluster struct {
+		at complex128
+		m  int
+	}
+	var cs []cluster
+	for _, p := range poles {
+		found := false
+		for i := range cs {
+			if cs[i].at == p {
+				cs[i].m++
+				found = true
+			}
+		}
+		if !found {
+			cs = append(cs, cluster{p, 1})
+		}
+	}
+	eps := float64(n) * dlamchE
+	for i, c := range cs {
+		a := cmplx.Abs(c.at)
+		sum, pw := 0.0, 1.0
+		for _, dk := range d {
+			sum += math.Abs(dk) * pw
+			pw *= a
+		}
+		prod := 1.0
+		for k, o := range cs {
+			if k != i {
+				prod *= math.Pow(cmplx.Abs(c.at-o.at), float64(o.m))
+			}
+		}
+		if prod == 0 {
+			continue
+		}
+		r := math.Pow(eps*sum/prod, 1/float64(c.m))
+		dist := math.Abs(real(c.at))
+		where := "the imaginary axis"
+		if ts > 0 {
+			dist = math.Abs(a - 1)
+			where = "the unit circle"
+		}
+		what := ""
+		if dist > 0 && r >= dist {
+			what = fmt.Sprintf("%s (%.2g away)", where, dist)
+		}
+		for k, o := range cs {
+			if d := cmplx.Abs(c.at - o.at); k != i && what == "" && r >= d/2 {
+				what = fmt.Sprintf("the pole at %s (%.2g away)", fmtComplexShort(o.at), d)
+			}
+		}
+		if what != "" {
+			return fmt.Sprintf("the denominator's coefficients fix the pole at %s only to within %.2g (first-order root sensitivity to coefficient errors of %.1g relative), which reaches %s: this realization's stability or multiplicities may not be the model's. Give the transfer function as a product of low-order factors, or as matrices", fmtComplexShort(c.at), r, eps, what)
+		}
+	}
+	return ""
+}
+
+// fmtComplexShort writes v with 6 significant digits, a pair as a +- bj.
+func fmtComplexShort(v complex128) string {
+	if imag(v) == 0 {
+		return fmt.Sprintf("%.6g", real(v))
+	}
+	return fmt.Sprintf("%.6g +- %.6gj", real(v), math.Abs(imag(v)))
+}
+
+// closeCancellation names a pole that the reduction removed on a close call:
+// its PBH margin in the companion realization (Hautus 1969; see Modes) is
+// within a factor 10 of its tolerance, so a realization of the same model
+// in other coordinates (the matrices it came from) may keep it.
+func closeCancellation(full *System) (string, error) {
+	mt, err := Modes(full)
+	if err != nil {
+		return "", err
+	}
+	for _, m := range mt.Modes {
+		margin, tol, what := 0.0, 0.0, ""
+		switch {
+		case !m.Observable && m.ObserveClose:
+			margin, tol, what = m.ObserveMargin, m.ObserveTol, "seen"
+		case !m.Reachable && m.ReachClose:
+			margin, tol, what = m.ReachMargin, m.ReachTol, "reached"
+		default:
+			continue
+		}
+		return fmt.Sprintf("the pole at %s was cancelled against a zero on a close call: it is %s with a PBH margin of %.3g against a tolerance of %.3g, so a realization of the same model in other coordinates may keep it", fmtComplexShort(m.Eigenvalue), what, margin, tol), nil
+	}
+	return "", nil
 }
