@@ -521,8 +521,9 @@ func polyEqual(a, b []float64) bool {
 
 // poleUncertainty says when the coefficients of the monic denominator d
 // (ascending) cannot fix its roots well enough for the verdicts made on
-// them. A cluster of m roots at l moves under relative coefficient errors
-// eps by about r = (eps sum |d_k| |l|^k / prod |l - mu|)^(1/m), the product
+// them. A cluster of m roots at l moves under coefficient errors of eps
+// relative to e_k (the coefficients of prod(x + |mu|) over all roots, at
+// least |d_k|) by about r = (eps sum e_k |l|^k / prod |l - mu|)^(1/m), the product
 // over the other roots (first-order root sensitivity; Wilkinson 1963,
 // Rounding Errors in Algebraic Processes, ch. 2), with eps = n u, the
 // rounding of forming or typing the n + 1 coefficients. When that disk
@@ -568,11 +569,20 @@ func poleUncertainty(d []float64, ts float64) string {
 		}
 	}
 	eps := float64(n) * dlamchE
+	// Coefficients formed from roots (or typed from such a product) are
+	// accurate to eps relative to the coefficients of prod(x + |p_i|), not
+	// to their own size, which cancellation can make far smaller (Higham
+	// 2002, Accuracy and Stability of Numerical Algorithms, sec. 5.1).
+	abs := make([]complex128, len(poles))
+	for i, p := range poles {
+		abs[i] = complex(-cmplx.Abs(p), 0)
+	}
+	bound := polyFromRoots(abs)
 	for i, c := range cs {
 		a := cmplx.Abs(c.at)
 		sum, pw := 0.0, 1.0
-		for _, dk := range d {
-			sum += math.Abs(dk) * pw
+		for k, dk := range d {
+			sum += math.Max(math.Abs(dk), math.Abs(bound[k])) * pw
 			pw *= a
 		}
 		prod := 1.0

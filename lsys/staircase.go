@@ -236,7 +236,7 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 				// modes' later steps with it (one tolerance cannot
 				// split a staircase out of Krylov order): take the
 				// reached ones back from the uncontrollable block.
-				return absorbReached(st, must, near)
+				return absorbReached(A, B, dual, st, must, near)
 			}
 			next = st.Dropped * (1 - 1e-9)
 			lowered = true
@@ -261,9 +261,22 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 // Used when a step came out exactly zero by rounding (a weakly reached
 // Jordan chain), where lowering the tolerance cannot help, and when a raised
 // tolerance dropped reached modes' steps after an unreached mode's.
-func absorbReached(st *Staircase, must []complex128, near func(a, b complex128) bool) (*Staircase, error) {
+func absorbReached(A0, B0 *mat.Dense, dual bool, st *Staircase, must []complex128, near func(a, b complex128) bool) (*Staircase, error) {
 	n, _ := st.A.Dims()
 	k := st.Dim
+	// The staircase set every dropped block to exactly zero; after a raise
+	// those were couplings up to the raised tolerance, and the reached
+	// modes taken back must keep theirs: start again from Z^T A Z and
+	// Z^T B, and zero only what stays behind.
+	if dual {
+		A0, B0 = stTransposed(A0), stTransposed(B0)
+	}
+	var t0 mat.Dense
+	t0.Mul(st.Z.T(), A0)
+	st.A.Mul(&t0, st.Z)
+	if st.B != nil && B0 != nil {
+		st.B.Mul(st.Z.T(), B0)
+	}
 	sf, err := Schur(mat.DenseCopyOf(st.A.Slice(k, n, k, n)))
 	if err != nil {
 		return nil, err
@@ -296,6 +309,52 @@ func absorbReached(st *Staircase, must []complex128, near func(a, b complex128) 
 	tz.Mul(st.Z.Slice(0, n, k, n), sf.Z)
 	st.Z.Slice(0, n, k, n).(*mat.Dense).Copy(&tz)
 	st.Dim += add
+	if c := n - st.Dim; c > 0 {
+		// What stays behind should be exactly the unreached modes'
+		// part: the orthogonal complement of their left invariant
+		// subspace W (ordered Schur form of A^T) is invariant and, as
+		// the PBH test says, holds the range of B up to its margin. In
+		// coordinates [W^perp, W] the form is block triangular to
+		// rounding, with no coupling cut by a raised tolerance.
+		rest := make([]complex128, 0, c)
+		for _, i := range schurBlocks(sf.T) {
+			if i >= add {
+				rest = append(rest, schurBlockValue(sf.T, i))
+			}
+		}
+		if left, err := Schur(mat.DenseCopyOf(A0.T())); err == nil {
+			got, err := left.Reorder(func(v complex128) bool {
+				for _, r := range rest {
+					if near(v, r) || near(cmplx.Conj(v), r) {
+						return true
+					}
+				}
+				return false
+			})
+			if err == nil && got == c {
+				W := mat.DenseCopyOf(left.Z.Slice(0, n, 0, c))
+				Z := stHcat(n, stComplement(W, n), W)
+				var t mat.Dense
+				t.Mul(Z.T(), A0)
+				st.A.Mul(&t, Z)
+				if st.B != nil && B0 != nil {
+					st.B.Mul(Z.T(), B0)
+				}
+				st.Z = Z
+			}
+		}
+	}
+	for i := st.Dim; i < n; i++ {
+		for j := 0; j < st.Dim; j++ {
+			st.A.Set(i, j, 0)
+		}
+		if st.B != nil {
+			_, m := st.B.Dims()
+			for j := 0; j < m; j++ {
+				st.B.Set(i, j, 0)
+			}
+		}
+	}
 	st.Steps = append(st.Steps, add)
 	st.StepKept = append(st.StepKept, 0)
 	st.Absorbed = add

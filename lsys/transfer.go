@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"sort"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -104,8 +105,16 @@ func tfChannel(s *System, i, j int, relTol float64) (*Rational, error) {
 	if s.Ts > 0 {
 		radii = append(radii, 1.5)
 	}
-	var x, g complex128
-	best := -1.0
+	// Candidates by how well the evaluation resolves the value (see
+	// above); the gain is taken at the best one where it comes out real,
+	// as a real system's must: near a multiple pole known only to its
+	// cluster mean (its members split by rounding) the value is off, and
+	// the matched gain shows it by an imaginary part.
+	type cand struct {
+		x, g complex128
+		q    float64
+	}
+	var cands []cand
 	for _, rad := range radii {
 		for _, ang := range []float64{1.1, 0.7, 1.9, 2.6, 0.3} {
 			xc := cmplx.Rect(rad, ang)
@@ -123,29 +132,40 @@ func tfChannel(s *System, i, j int, relTol float64) (*Rational, error) {
 			if err != nil || math.IsNaN(real(gc)) || size == 0 {
 				continue
 			}
-			if q := cmplx.Abs(gc) / size; q > best {
-				best, x, g = q, xc, gc
+			if q := cmplx.Abs(gc) / size; q > 0 {
+				cands = append(cands, cand{xc, gc, q})
 			}
 		}
 	}
-	if best <= 0 {
+	if len(cands) == 0 {
 		return nil, fmt.Errorf("could not evaluate the channel away from its poles")
 	}
+	sort.SliceStable(cands, func(a, b int) bool { return cands[a].q > cands[b].q })
 	num := polyFromRoots(zs)
 	den := polyFromRoots(poles)
-	var nx, dx complex128 = 1, 1
-	for _, z := range zs {
-		nx *= x - z
+	var kc complex128
+	ok := false
+	for _, c := range cands {
+		var nx, dx complex128 = 1, 1
+		for _, z := range zs {
+			nx *= c.x - z
+		}
+		for _, p := range poles {
+			dx *= c.x - p
+		}
+		kc = c.g * dx / nx
+		if math.Abs(imag(kc)) <= 1e-6*cmplx.Abs(kc) {
+			ok = true
+			break
+		}
 	}
-	for _, p := range poles {
-		dx *= x - p
-	}
-	kc := g * dx / nx
 	k := real(kc)
-	if math.Abs(imag(kc)) > 1e-6*cmplx.Abs(kc) {
+	if !ok {
 		// The matched gain of a real system is real; a large imaginary
-		// part means the poles or zeros are too inaccurate to trust.
-		return nil, fmt.Errorf("the pole-zero-gain form does not reproduce the channel (gain %v); the channel is ill-conditioned", kc)
+		// part at every point means the poles or zeros are too
+		// inaccurate to trust.
+		kc0 := cands[0].g
+		return nil, fmt.Errorf("the pole-zero-gain form does not reproduce the channel (gain %v at the best point, value %v); the channel is ill-conditioned", kc, kc0)
 	}
 	for q := range num {
 		num[q] *= k
