@@ -569,6 +569,7 @@ func poleUncertainty(d []float64, ts float64) string {
 		}
 	}
 	eps := float64(n) * dlamchE
+	btol := boundaryTol(balanceEigen(A).A)
 	// Coefficients formed from roots (or typed from such a product) are
 	// accurate to eps relative to the coefficients of prod(x + |p_i|), not
 	// to their own size, which cancellation can make far smaller (Higham
@@ -602,7 +603,8 @@ func poleUncertainty(d []float64, ts float64) string {
 			where = "the unit circle"
 		}
 		what := ""
-		if dist > 0 && r >= dist {
+		// Within btol of the boundary the verdict is "on it" either way.
+		if r >= dist && r > btol {
 			what = fmt.Sprintf("%s (%.2g away)", where, dist)
 		}
 		for k, o := range cs {

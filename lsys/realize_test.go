@@ -372,3 +372,40 @@ func BenchmarkRealizeOrder20(b *testing.B) {
 		}
 	}
 }
+
+// TestRealizeWarnsWhenCoefficientsCannotFixPoles: Wilkinson's polynomial
+// prod (x - k), k = 1..20, is the classic case of roots that coefficients
+// cannot fix (Wilkinson 1963, Rounding Errors in Algebraic Processes,
+// ch. 2: a change of 2^-23 in the coefficient of x^19 turns the roots
+// 10..19 into five complex pairs). Realizing 1/prod(s + k) must say so; a
+// second-order entry and an undamped sampled pair exactly on the unit
+// circle must not.
+func TestRealizeWarnsWhenCoefficientsCannotFixPoles(t *testing.T) {
+	var roots []complex128
+	for k := 1; k <= 20; k++ {
+		roots = append(roots, complex(-float64(k), 0))
+	}
+	den := polyFromRoots(roots)
+	_, info, err := RealizeChecked([][]*Rational{{{Num: Poly{1}, Den: den}}}, 0, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(info.Warning, "fix the pole") {
+		t.Errorf("no warning for Wilkinson's polynomial: %q", info.Warning)
+	}
+	for _, c := range []struct {
+		den Poly
+		ts  float64
+	}{
+		{Poly{2, 3, 1}, 0},                    // (s + 1)(s + 2)
+		{Poly{1, -2 * math.Cos(0.3), 1}, 0.1}, // z = exp(+-0.3j), on the unit circle
+	} {
+		_, info, err := RealizeChecked([][]*Rational{{{Num: Poly{1}, Den: c.den, Ts: c.ts}}}, c.ts, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if info.Warning != "" {
+			t.Errorf("%v: unexpected warning %q", c.den, info.Warning)
+		}
+	}
+}
