@@ -234,7 +234,11 @@ func renderStructure(v any, _ Options) Bundle {
 		for i, v := range s.StepKept {
 			kept[i] = fmtNum(v)
 		}
-		return fmt.Sprintf("staircase steps %s, smallest kept singular value per step [%s]; rank tolerance %s, largest dropped %s", sxInts(s.Steps), strings.Join(kept, ", "), fmtNum(s.Tol), fmtNum(s.Dropped))
+		closeCall := ""
+		if r := s.Close(); r > 0 {
+			closeCall = fmt.Sprintf("; a close call: a step's singular value is %s x the rank tolerance, so another realization may find another dimension", fmtNum(r))
+		}
+		return fmt.Sprintf("staircase steps %s, smallest kept singular value per step [%s]; rank tolerance %s, largest dropped %s%s", sxInts(s.Steps), strings.Join(kept, ", "), fmtNum(s.Tol), fmtNum(s.Dropped), closeCall)
 	}
 	keyTable(t, h, [][2]string{
 		{"controllable", fmt.Sprintf("%s: %d of %d states reachable (%s)", sxYesNo(st.Controllable), st.Reach.Dim, n, margin(st.Reach))},

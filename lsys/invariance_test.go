@@ -314,7 +314,7 @@ func verdictsOf(s *System) (v verdicts, err error) {
 	if err != nil {
 		return v, err
 	}
-	v.close = v.close || str.AngleClose > 0
+	v.close = v.close || str.AngleClose > 0 || str.Reach.Close() > 0 || str.Observe.Close() > 0
 	fmt.Fprintf(&b, "structure reach %d observe %d parts", str.Reach.Dim, str.Observe.Dim)
 	for _, p := range str.Parts {
 		fmt.Fprintf(&b, " %d", p.Dim)

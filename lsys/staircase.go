@@ -253,6 +253,37 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 	return st, nil
 }
 
+// Close is the ratio to the starting rank tolerance (RaisedFrom when the
+// staircase was made to agree with the PBH test, else Tol), between 0.1 and
+// 10, of the kept or dropped singular value nearest it; 0 when none is that
+// near. Such a step is a close call: another realization of the same model
+// may keep or drop it, and with it the dimension of the subspace.
+func (st *Staircase) Close() float64 {
+	tol := st.Tol
+	if st.RaisedFrom > 0 {
+		tol = st.RaisedFrom
+	}
+	if tol <= 0 {
+		return 0
+	}
+	best := 0.0
+	consider := func(v float64) {
+		if r := v / tol; r >= 0.1 && r <= 10 && (best == 0 || math.Abs(math.Log(r)) < math.Abs(math.Log(best))) {
+			best = r
+		}
+	}
+	for i, v := range st.StepKept {
+		if st.Absorbed > 0 && i == len(st.StepKept)-1 {
+			continue // the absorbed step has no singular value
+		}
+		consider(v)
+	}
+	if st.Dropped > 0 {
+		consider(st.Dropped)
+	}
+	return best
+}
+
 // absorbReached takes into the reachable part of st the eigenvalues of its
 // uncontrollable block that match no mode in must (the modes the PBH test
 // finds unreached): the block's real Schur form is reordered to put them
