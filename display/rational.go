@@ -1,6 +1,7 @@
 package display
 
 import (
+	"html"
 	"math"
 	"strconv"
 	"strings"
@@ -16,7 +17,12 @@ import (
 func init() {
 	Register((*lsys.Rational)(nil), func(v any, _ Options) Bundle {
 		r := v.(*lsys.Rational)
-		b := NewBundle(r.String())
+		text := r.String()
+		if r.Note != "" {
+			// A comment, so the text still pastes into a cell.
+			text += "\n# note: " + r.Note
+		}
+		b := NewBundle(text)
 		tex := `$$` + latexPoly(r.Num, r.VarName())
 		if !(r.Den.Degree() == 0 && r.Den.Lead() == 1) {
 			tex = `$$\frac{` + latexPoly(r.Num, r.VarName()) + `}{` + latexPoly(r.Den, r.VarName()) + `}`
@@ -26,6 +32,9 @@ func init() {
 		}
 		b.Data[LaTeX] = tex + `$$`
 		b.Data[HTML] = rationalHTML(r)
+		if r.Note != "" {
+			b.Data[HTML] = b.Data[HTML].(string) + `<div class="lsys-note" style="color:#555;font-size:12px;margin:2px 0">note: ` + html.EscapeString(r.Note) + `</div>`
+		}
 		jsonPoly := func(p lsys.Poly) []any { // descending powers, as written
 			t := p.Trim()
 			out := make([]any, len(t))
@@ -36,6 +45,9 @@ func init() {
 		}
 		b.Data[JSON] = map[string]any{"variable": r.VarName(), "numerator": jsonPoly(r.Num),
 			"denominator": jsonPoly(r.Den), "sample_time": r.Ts}
+		if r.Note != "" {
+			b.Data[JSON].(map[string]any)["note"] = r.Note
+		}
 		return b
 	})
 }

@@ -21,6 +21,11 @@ type Poly []float64
 type Rational struct {
 	Num, Den Poly
 	Ts       float64
+	// Note, when not empty, says how far the coefficients can be trusted:
+	// set by TransferFunctions when the roots of the denominator it formed
+	// are not the poles it formed it from (see coefficientFidelity). It
+	// does not survive arithmetic.
+	Note string
 }
 
 // Trim drops trailing zero coefficients (the zero polynomial becomes Poly{}).

@@ -319,6 +319,13 @@ func RealizeWithInfo(tf [][]*Rational, ts float64, tol float64) (*System, *Reali
 			}
 		}
 	}
+	for _, row := range tf {
+		for _, r := range row {
+			if r.Note != "" && info.Warning == "" {
+				info.Warning = r.Note
+			}
+		}
+	}
 	for j, d := range colDens {
 		if w := poleUncertainty(d, ts); w != "" && info.Warning == "" {
 			info.Warning = w

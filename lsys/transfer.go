@@ -170,23 +170,97 @@ func tfChannel(s *System, i, j int, relTol float64) (*Rational, error) {
 	for q := range num {
 		num[q] *= k
 	}
-	tfCleanCoefficients(num)
-	tfCleanCoefficients(den)
-	return &Rational{Num: num, Den: den, Ts: s.Ts}, nil
+	tfCleanCoefficients(num, zs, k)
+	tfCleanCoefficients(den, poles, 1)
+	return &Rational{Num: num, Den: den, Ts: s.Ts, Note: coefficientFidelity(den, poles, s.Ts)}, nil
 }
 
-// TFCoefficientTol: a coefficient of a transfer-function polynomial below
-// TFCoefficientTol times the polynomial's largest coefficient is rounding
-// residue (1000 u, u the unit roundoff) and is set to exactly 0.
+// coefficientFidelity compares the roots of the monic denominator den with
+// the poles it was formed from (as multisets, nearest first) and says so
+// when one moved by more than 1e-6 of the largest pole magnitude, or when
+// the roots cross the stability boundary or merge: high-order polynomials
+// (a coefficient spread of 1e10 and more, poles crowded near z = 1) cannot
+// carry their roots, whatever the care in forming them.
+func coefficientFidelity(den Poly, poles []complex128, ts float64) string {
+	n := len(den) - 1
+	if n < 2 {
+		return ""
+	}
+	A := mat.NewDense(n, n, nil)
+	for k := 0; k+1 < n; k++ {
+		A.Set(k, k+1, 1)
+	}
+	for k := 0; k < n; k++ {
+		A.Set(n-1, k, -den[k])
+	}
+	sys, err := NewSystem(n, 0, 0, A, nil, nil, nil, ts)
+	if err != nil {
+		return ""
+	}
+	roots, err := Poles(sys)
+	if err != nil || len(roots) != len(poles) {
+		return ""
+	}
+	scale := 0.0
+	for _, p := range poles {
+		scale = math.Max(scale, cmplx.Abs(p))
+	}
+	used := make([]bool, len(roots))
+	worst, at := 0.0, complex128(0)
+	for _, p := range poles {
+		best, bi := math.Inf(1), -1
+		for i, r := range roots {
+			if d := cmplx.Abs(r - p); !used[i] && d < best {
+				best, bi = d, i
+			}
+		}
+		used[bi] = true
+		if best > worst {
+			worst, at = best, p
+		}
+	}
+	side := func(v complex128) int {
+		d := real(v)
+		if ts > 0 {
+			d = cmplx.Abs(v) - 1
+		}
+		switch {
+		case d > 0:
+			return 1
+		case d < 0:
+			return -1
+		}
+		return 0
+	}
+	var countP, countR [3]int
+	for i := range poles {
+		countP[side(poles[i])+1]++
+		countR[side(roots[i])+1]++
+	}
+	crossed := countP != countR
+	if worst <= 1e-6*math.Max(scale, dlamchE) && !crossed {
+		return ""
+	}
+	return fmt.Sprintf("the denominator's coefficients do not carry its poles: the pole at %s comes back %.2g away from them%s; use the poles and zeros, or the state-space model, for anything that depends on them", fmtComplexShort(at), worst, map[bool]string{true: ", and some come back on the other side of the stability boundary", false: ""}[crossed])
+}
+
+// TFCoefficientTol: a coefficient of a transfer-function polynomial formed
+// from roots r_i and gain k is rounding residue, and set to exactly 0, when
+// it is below TFCoefficientTol |k| e_j, e_j the coefficient of the same
+// power in prod(x + |r_i|): the forward error bound of forming it (Higham
+// 2002, Accuracy and Stability of Numerical Algorithms, sec. 5.1), 1000 u
+// with u the unit roundoff. Relative to the largest coefficient instead, a
+// high-order polynomial (coefficients spread over 1e13) lost its leading 1.
 const TFCoefficientTol = 1e3 * dlamchE
 
-func tfCleanCoefficients(p Poly) {
-	big := 0.0
-	for _, c := range p {
-		big = math.Max(big, math.Abs(c))
+func tfCleanCoefficients(p Poly, roots []complex128, k float64) {
+	abs := make([]complex128, len(roots))
+	for i, r := range roots {
+		abs[i] = complex(-cmplx.Abs(r), 0)
 	}
+	bound := polyFromRoots(abs)
 	for q, c := range p {
-		if math.Abs(c) <= TFCoefficientTol*big {
+		if q < len(bound) && math.Abs(c) <= TFCoefficientTol*math.Abs(k)*bound[q] {
 			p[q] = 0
 		}
 	}

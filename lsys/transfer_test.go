@@ -3,6 +3,7 @@ package lsys
 import (
 	"math"
 	"math/rand/v2"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
@@ -180,4 +181,55 @@ func TestTransferExactZerosAndDigits(t *testing.T) {
 	e1 := relCoeffs(t, "load num", tfl[0][0].Num, []float64{0.00122625, 3.90625e-6}, 1e-12)
 	e2 := relCoeffs(t, "load den", tfl[0][0].Den, den, 1e-12)
 	t.Logf("load position: worst relative coefficient error num %.2g, den %.2g", e1, e2)
+}
+
+// TestTransferCoefficientsOfWideSpectra: the denominator of a diagonal
+// system is prod (s + p_i) exactly (closed form). With poles 1 .. 1e5 its
+// coefficients span 1e15; the leading 1 must stay (a residue test relative
+// to the largest coefficient once dropped it). With poles 1 .. 20 the
+// coefficients cannot carry the roots (Wilkinson 1963, Rounding Errors in
+// Algebraic Processes, ch. 2), and the transfer function says so.
+func TestTransferCoefficientsOfWideSpectra(t *testing.T) {
+	diag := func(poles []float64) *System {
+		n := len(poles)
+		A := mat.NewDense(n, n, nil)
+		B := mat.NewDense(n, 1, nil)
+		C := mat.NewDense(1, n, nil)
+		for i, p := range poles {
+			A.Set(i, i, -p)
+			B.Set(i, 0, 1)
+			C.Set(0, i, 1)
+		}
+		s, err := NewSystem(n, 1, 1, A, B, C, nil, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return s
+	}
+	wide := []float64{1, 10, 100, 1e3, 1e4, 1e5}
+	tf, err := TransferFunctions(diag(wide), 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	den := tf[0][0].Den.Trim()
+	if len(den) != 7 || den[6] != 1 {
+		t.Fatalf("denominator %v, want degree 6 with leading 1", den)
+	}
+	if want := 1e15; math.Abs(den[0]-want) > 1e-12*want {
+		t.Errorf("constant coefficient %v, want %v", den[0], want)
+	}
+	if tf[0][0].Note != "" {
+		t.Errorf("well-separated poles got a note: %q", tf[0][0].Note)
+	}
+	var w []float64
+	for k := 1; k <= 20; k++ {
+		w = append(w, float64(k))
+	}
+	tf, err = TransferFunctions(diag(w), 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(tf[0][0].Note, "do not carry its poles") {
+		t.Errorf("no note for poles 1..20: %q", tf[0][0].Note)
+	}
 }
