@@ -36,6 +36,9 @@ type EigenStructure struct {
 	// JordanCluster.Entered.
 	entered     *mat.Dense
 	enteredCond []float64
+	// part[k], when set, is the strongly connected part of A whose block
+	// gave Values[k] (see partEigenvalues).
+	part []int
 }
 
 // Eigen computes the eigen-structure of the square matrix a by balancing,

@@ -46,6 +46,15 @@ type JordanCluster struct {
 	// far above its balanced size), so rounding in any computation that
 	// produced the matrix in those units can turn it. The display says so.
 	Entered string
+	// Coupled, when not 0, is the largest difference between members that
+	// come from different one-way coupled parts of A, in a cluster that is
+	// defective: the blocks exist only through the coupling between those
+	// parts, and their eigenvalues are not equal but Coupled apart, so in
+	// units that shrink the coupling to that size the cluster is
+	// semisimple. No change of units can tell such a coupling from rounding
+	// left by a change of coordinates; the call is close. Parts with
+	// exactly equal eigenvalues (identical stages in cascade) are not.
+	Coupled float64
 	// BoundaryTol = ZeroTol x max(1, condition) for a simple eigenvalue,
 	// ZeroTol for a cluster: a value closer than this to the stability
 	// boundary is on it.
@@ -56,7 +65,7 @@ type JordanCluster struct {
 
 // IsClose reports whether the call is close: near the clustering threshold,
 // or made otherwise at the entered scale.
-func (c JordanCluster) IsClose() bool { return c.Close > 0 || c.Entered != "" }
+func (c JordanCluster) IsClose() bool { return c.Close > 0 || c.Entered != "" || c.Coupled > 0 }
 
 // Defective reports whether the eigenvalue has fewer eigenvectors than its
 // multiplicity.
@@ -179,6 +188,15 @@ func jordanFrom(A *mat.Dense, es *EigenStructure, absTol, relTol, ts float64) (*
 				return nil, err
 			}
 			jc.Geometric = len(jc.Blocks)
+			if jc.Defective() && es.part != nil {
+				for a, i := range g.idx {
+					for _, j := range g.idx[a+1:] {
+						if es.part[i] != es.part[j] {
+							jc.Coupled = math.Max(jc.Coupled, cmplx.Abs(es.Values[i]-es.Values[j]))
+						}
+					}
+				}
+			}
 			if jc.Defective() {
 				// No eigenvector basis: the eigenvalue is infinitely
 				// sensitive (its perturbations grow like eps^(1/k)).

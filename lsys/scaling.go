@@ -454,7 +454,8 @@ func unitLargestReal(v []complex128) []complex128 {
 func partEigenvalues(us *unitScaling, es *EigenStructure) error {
 	var vals []complex128
 	var conds []float64
-	for _, idx := range us.Parts {
+	var partOf []int
+	for pi, idx := range us.Parts {
 		k := len(idx)
 		sub := mat.NewDense(k, k, nil)
 		for a, i := range idx {
@@ -468,6 +469,9 @@ func partEigenvalues(us *unitScaling, es *EigenStructure) error {
 		}
 		vals = append(vals, pe.Values...)
 		conds = append(conds, pe.Cond...)
+		for range pe.Values {
+			partOf = append(partOf, pi)
+		}
 	}
 	n := len(es.Values)
 	type pair struct {
@@ -491,12 +495,13 @@ func partEigenvalues(us *unitScaling, es *EigenStructure) error {
 	})
 	usedI, usedJ := make([]bool, n), make([]bool, n)
 	es.decide = make([]float64, n)
+	es.part = make([]int, n)
 	for _, p := range pairs {
 		if usedI[p.i] || usedJ[p.j] {
 			continue
 		}
 		usedI[p.i], usedJ[p.j] = true, true
-		es.Values[p.i], es.decide[p.i] = vals[p.j], conds[p.j]
+		es.Values[p.i], es.decide[p.i], es.part[p.i] = vals[p.j], conds[p.j], partOf[p.j]
 	}
 	return nil
 }

@@ -241,6 +241,23 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 			next = st.Dropped * (1 - 1e-9)
 			lowered = true
 		default:
+			if raised && k < n {
+				// The raise cut a step that may be a real coupling:
+				// rebuild what stays behind from the unreached modes'
+				// left invariant subspace.
+				A0, B0 := A, B
+				if dual {
+					A0, B0 = stTransposed(A), stTransposed(B)
+				}
+				var t0 mat.Dense
+				t0.Mul(st.Z.T(), A0)
+				st.A.Mul(&t0, st.Z)
+				if st.B != nil && B0 != nil {
+					st.B.Mul(st.Z.T(), B0)
+				}
+				leftComplement(A0, B0, st, blockValues(mat.DenseCopyOf(st.A.Slice(k, n, k, n))))
+				zeroBelow(st)
+			}
 			return st, nil
 		}
 		again, err := run(next / norm)
@@ -251,6 +268,108 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 		st.RaisedFrom = start
 	}
 	return st, nil
+}
+
+// leftComplement puts st in coordinates [W^perp, W], W an orthonormal basis
+// of the left invariant subspace of A0 (A0^T W = W S) for the eigenvalues
+// nearest to rest (Schur blocks of what stays behind, one value per pair):
+// W^perp is invariant and, as the PBH test says, holds the range of B0 up
+// to its margin, so the form is block triangular to rounding with no
+// coupling cut by a raised tolerance (a staircase raised to a kept value of
+// 0.04 cuts a real coupling and tilts the subspace by as much). Nothing
+// changes when the nearest eigenvalues do not make up n - Dim dimensions.
+// The caller zeroes what stays below the leading block.
+func leftComplement(A0, B0 *mat.Dense, st *Staircase, rest []complex128) {
+	n, _ := A0.Dims()
+	c := n - st.Dim
+	if c <= 0 || len(rest) == 0 {
+		return
+	}
+	left, err := Schur(mat.DenseCopyOf(A0.T()))
+	if err != nil {
+		return
+	}
+	type blk struct {
+		v    complex128
+		size int
+	}
+	var avail []blk
+	for _, i := range schurBlocks(left.T) {
+		size := 1
+		if i+1 < n && left.T.At(i+1, i) != 0 {
+			size = 2
+		}
+		avail = append(avail, blk{schurBlockValue(left.T, i), size})
+	}
+	chosen := map[complex128]int{}
+	used := make([]bool, len(avail))
+	for _, r := range rest {
+		size := 1
+		if imag(r) != 0 {
+			size = 2
+		}
+		best, bi := math.Inf(1), -1
+		for k, a := range avail {
+			if d := cmplx.Abs(a.v - r); !used[k] && a.size == size && d < best {
+				best, bi = d, k
+			}
+		}
+		if bi < 0 {
+			return
+		}
+		used[bi] = true
+		chosen[avail[bi].v]++
+	}
+	got, err := left.Reorder(func(v complex128) bool {
+		if chosen[v] > 0 {
+			chosen[v]--
+			return true
+		}
+		return false
+	})
+	if err != nil || got != c {
+		return
+	}
+	W := mat.DenseCopyOf(left.Z.Slice(0, n, 0, c))
+	Z := stHcat(n, stComplement(W, n), W)
+	var t mat.Dense
+	t.Mul(Z.T(), A0)
+	st.A.Mul(&t, Z)
+	if st.B != nil && B0 != nil {
+		st.B.Mul(Z.T(), B0)
+	}
+	st.Z = Z
+}
+
+// blockValues returns the eigenvalues of a, one per conjugate pair (the
+// one with nonnegative imaginary part), from its real Schur form.
+func blockValues(a *mat.Dense) []complex128 {
+	sf, err := Schur(a)
+	if err != nil {
+		return nil
+	}
+	var out []complex128
+	for _, i := range schurBlocks(sf.T) {
+		out = append(out, schurBlockValue(sf.T, i))
+	}
+	return out
+}
+
+// zeroBelow makes the blocks below the leading Dim rows of A (first Dim
+// columns) and of B exactly zero.
+func zeroBelow(st *Staircase) {
+	n, _ := st.A.Dims()
+	for i := st.Dim; i < n; i++ {
+		for j := 0; j < st.Dim; j++ {
+			st.A.Set(i, j, 0)
+		}
+		if st.B != nil {
+			_, m := st.B.Dims()
+			for j := 0; j < m; j++ {
+				st.B.Set(i, j, 0)
+			}
+		}
+	}
 }
 
 // Close is the ratio to the starting rank tolerance (RaisedFrom when the
@@ -340,52 +459,14 @@ func absorbReached(A0, B0 *mat.Dense, dual bool, st *Staircase, must []complex12
 	tz.Mul(st.Z.Slice(0, n, k, n), sf.Z)
 	st.Z.Slice(0, n, k, n).(*mat.Dense).Copy(&tz)
 	st.Dim += add
-	if c := n - st.Dim; c > 0 {
-		// What stays behind should be exactly the unreached modes'
-		// part: the orthogonal complement of their left invariant
-		// subspace W (ordered Schur form of A^T) is invariant and, as
-		// the PBH test says, holds the range of B up to its margin. In
-		// coordinates [W^perp, W] the form is block triangular to
-		// rounding, with no coupling cut by a raised tolerance.
-		rest := make([]complex128, 0, c)
-		for _, i := range schurBlocks(sf.T) {
-			if i >= add {
-				rest = append(rest, schurBlockValue(sf.T, i))
-			}
-		}
-		if left, err := Schur(mat.DenseCopyOf(A0.T())); err == nil {
-			got, err := left.Reorder(func(v complex128) bool {
-				for _, r := range rest {
-					if near(v, r) || near(cmplx.Conj(v), r) {
-						return true
-					}
-				}
-				return false
-			})
-			if err == nil && got == c {
-				W := mat.DenseCopyOf(left.Z.Slice(0, n, 0, c))
-				Z := stHcat(n, stComplement(W, n), W)
-				var t mat.Dense
-				t.Mul(Z.T(), A0)
-				st.A.Mul(&t, Z)
-				if st.B != nil && B0 != nil {
-					st.B.Mul(Z.T(), B0)
-				}
-				st.Z = Z
-			}
+	rest := make([]complex128, 0, n-st.Dim)
+	for _, i := range schurBlocks(sf.T) {
+		if i >= add {
+			rest = append(rest, schurBlockValue(sf.T, i))
 		}
 	}
-	for i := st.Dim; i < n; i++ {
-		for j := 0; j < st.Dim; j++ {
-			st.A.Set(i, j, 0)
-		}
-		if st.B != nil {
-			_, m := st.B.Dims()
-			for j := 0; j < m; j++ {
-				st.B.Set(i, j, 0)
-			}
-		}
-	}
+	leftComplement(A0, B0, st, rest)
+	zeroBelow(st)
 	st.Steps = append(st.Steps, add)
 	st.StepKept = append(st.StepKept, 0)
 	st.Absorbed = add
