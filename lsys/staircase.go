@@ -4,6 +4,7 @@ import (
 	"errors"
 	"math"
 	"math/cmplx"
+	"sort"
 
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/lapack/gonum"
@@ -236,7 +237,7 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 				// modes' later steps with it (one tolerance cannot
 				// split a staircase out of Krylov order): take the
 				// reached ones back from the uncontrollable block.
-				return absorbReached(A, B, dual, st, must, near)
+				return absorbReached(A, B, dual, st, must, near, relTol)
 			}
 			next = st.Dropped * (1 - 1e-9)
 			lowered = true
@@ -255,7 +256,7 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 				if st.B != nil && B0 != nil {
 					st.B.Mul(st.Z.T(), B0)
 				}
-				leftComplement(A0, B0, st, blockValues(mat.DenseCopyOf(st.A.Slice(k, n, k, n))))
+				leftComplement(A0, B0, st, blockValues(mat.DenseCopyOf(st.A.Slice(k, n, k, n))), relTol)
 				zeroBelow(st)
 			}
 			return st, nil
@@ -271,15 +272,20 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 }
 
 // leftComplement puts st in coordinates [W^perp, W], W an orthonormal basis
-// of the left invariant subspace of A0 (A0^T W = W S) for the eigenvalues
-// nearest to rest (Schur blocks of what stays behind, one value per pair):
+// of the left invariant subspace of A0 (A0^T W = W S) of the modes left
+// behind (rest: Schur blocks of what stays behind, one value per pair):
 // W^perp is invariant and, as the PBH test says, holds the range of B0 up
 // to its margin, so the form is block triangular to rounding with no
 // coupling cut by a raised tolerance (a staircase raised to a kept value of
-// 0.04 cuts a real coupling and tilts the subspace by as much). Nothing
-// changes when the nearest eigenvalues do not make up n - Dim dimensions.
-// The caller zeroes what stays below the leading block.
-func leftComplement(A0, B0 *mat.Dense, st *Staircase, rest []complex128) {
+// 0.04 cuts a real coupling and tilts the subspace by as much). The values
+// left behind are matched to clusters of A0's eigenvalues (members within
+// the clustering cap 1e-3 ||A||, see Jordan). A cluster left behind whole
+// gives its left invariant subspace Wc; one left behind in part (one
+// direction of a semisimple double, one rigid body of two) gives the part
+// of Wc that B0 does not reach: the unobservable subspace of the small
+// pair (S, (Wc^T B0)^T), S = Wc^T A0^T Wc, by its own staircase. Nothing
+// changes when the dimensions do not add up.
+func leftComplement(A0, B0 *mat.Dense, st *Staircase, rest []complex128, relTol float64) {
 	n, _ := A0.Dims()
 	c := n - st.Dim
 	if c <= 0 || len(rest) == 0 {
@@ -289,48 +295,98 @@ func leftComplement(A0, B0 *mat.Dense, st *Staircase, rest []complex128) {
 	if err != nil {
 		return
 	}
-	type blk struct {
-		v    complex128
-		size int
-	}
-	var avail []blk
-	for _, i := range schurBlocks(left.T) {
-		size := 1
-		if i+1 < n && left.T.At(i+1, i) != 0 {
-			size = 2
-		}
-		avail = append(avail, blk{schurBlockValue(left.T, i), size})
-	}
-	chosen := map[complex128]int{}
-	used := make([]bool, len(avail))
-	for _, r := range rest {
-		size := 1
-		if imag(r) != 0 {
-			size = 2
-		}
-		best, bi := math.Inf(1), -1
-		for k, a := range avail {
-			if d := cmplx.Abs(a.v - r); !used[k] && a.size == size && d < best {
-				best, bi = d, k
+	vals := left.Values // every eigenvalue, pairs as two
+	cap := 1e-3 * mat.Norm(A0, 2)
+	// Clusters of A0's eigenvalues by single linkage within cap.
+	cl := newUnionFind(len(vals))
+	for a := range vals {
+		for b := a + 1; b < len(vals); b++ {
+			if cmplx.Abs(vals[a]-vals[b]) <= cap {
+				cl.join(a, b)
 			}
 		}
-		if bi < 0 {
-			return
-		}
-		used[bi] = true
-		chosen[avail[bi].v]++
 	}
-	got, err := left.Reorder(func(v complex128) bool {
-		if chosen[v] > 0 {
-			chosen[v]--
-			return true
+	var want []complex128
+	for _, r := range rest {
+		want = append(want, r)
+		if imag(r) != 0 {
+			want = append(want, cmplx.Conj(r))
 		}
-		return false
-	})
-	if err != nil || got != c {
+	}
+	if len(want) != c {
 		return
 	}
-	W := mat.DenseCopyOf(left.Z.Slice(0, n, 0, c))
+	// Dimensions asked of each cluster: every value left behind goes to the
+	// cluster of the nearest eigenvalue, which must be within cap.
+	asked := map[int]int{}
+	for _, r := range want {
+		best, bi := math.Inf(1), -1
+		for q, v := range vals {
+			if d := cmplx.Abs(v - r); d < best {
+				best, bi = d, q
+			}
+		}
+		if bi < 0 || best > cap {
+			return
+		}
+		asked[cl.root(bi)]++
+	}
+	roots := make([]int, 0, len(asked))
+	for r := range asked {
+		roots = append(roots, r)
+	}
+	sort.Ints(roots)
+	var parts []*mat.Dense
+	for _, root := range roots {
+		size := 0
+		inCluster := func(v complex128) bool {
+			for q, w := range vals {
+				if cl.root(q) == root && (w == v || w == cmplx.Conj(v)) {
+					return true
+				}
+			}
+			return false
+		}
+		for q := range vals {
+			if cl.root(q) == root {
+				size++
+			}
+		}
+		sf := &SchurForm{T: mat.DenseCopyOf(left.T), Z: mat.DenseCopyOf(left.Z), Values: append([]complex128(nil), left.Values...)}
+		got, err := sf.Reorder(inCluster)
+		if err != nil || got != size {
+			return
+		}
+		Wc := mat.DenseCopyOf(sf.Z.Slice(0, n, 0, size))
+		q := asked[root]
+		if q == size {
+			parts = append(parts, Wc)
+			continue
+		}
+		if B0 == nil || q > size {
+			return
+		}
+		// The part of the cluster B0 leaves alone: x' = S x, y = G^T x,
+		// its unobservable subspace (S = Wc^T A0^T Wc, G = Wc^T B0).
+		var t, S, G mat.Dense
+		t.Mul(A0.T(), Wc)
+		S.Mul(Wc.T(), &t)
+		G.Mul(Wc.T(), B0)
+		ost, err := ObservabilityStaircase(&S, mat.DenseCopyOf(G.T()), relTol)
+		if err != nil || size-ost.Dim != q {
+			return
+		}
+		var U mat.Dense
+		U.Mul(Wc, ost.Z.Slice(0, size, ost.Dim, size))
+		parts = append(parts, mat.DenseCopyOf(&U))
+	}
+	W, _ := stOrth(stHcat(n, parts...), 1e-8)
+	if W == nil {
+		return
+	}
+	if _, k := W.Dims(); k != c {
+		return
+	}
 	Z := stHcat(n, stComplement(W, n), W)
 	var t mat.Dense
 	t.Mul(Z.T(), A0)
@@ -411,7 +467,7 @@ func (st *Staircase) Close() float64 {
 // Used when a step came out exactly zero by rounding (a weakly reached
 // Jordan chain), where lowering the tolerance cannot help, and when a raised
 // tolerance dropped reached modes' steps after an unreached mode's.
-func absorbReached(A0, B0 *mat.Dense, dual bool, st *Staircase, must []complex128, near func(a, b complex128) bool) (*Staircase, error) {
+func absorbReached(A0, B0 *mat.Dense, dual bool, st *Staircase, must []complex128, near func(a, b complex128) bool, relTol float64) (*Staircase, error) {
 	n, _ := st.A.Dims()
 	k := st.Dim
 	// The staircase set every dropped block to exactly zero; after a raise
@@ -465,7 +521,7 @@ func absorbReached(A0, B0 *mat.Dense, dual bool, st *Staircase, must []complex12
 			rest = append(rest, schurBlockValue(sf.T, i))
 		}
 	}
-	leftComplement(A0, B0, st, rest)
+	leftComplement(A0, B0, st, rest, relTol)
 	zeroBelow(st)
 	st.Steps = append(st.Steps, add)
 	st.StepKept = append(st.StepKept, 0)
