@@ -212,7 +212,7 @@ func renderJordan(v any, _ Options) Bundle {
 			close = append(close, fmt.Sprintf("%s (at the scale of A as entered, rounding could make it %s)", fmtComplex(c.Value, pair), c.Entered))
 		}
 		if c.Coupled > 0 {
-			close = append(close, fmt.Sprintf("%s (defective only through a one-way coupling between parts whose eigenvalues differ by %s: in units that shrink the coupling to that size it is semisimple)", fmtComplex(c.Value, pair), fmtNum(c.Coupled)))
+			close = append(close, fmt.Sprintf("%s (defective only through a one-way coupling between parts whose eigenvalues differ by %s: in units that shrink the coupling to that size it would be semisimple; if the parts are meant to be equal, the difference is rounding and the verdict stands)", fmtComplex(c.Value, pair), fmtNum(c.Coupled)))
 		}
 		ranks := "-"
 		if len(c.Ranks) > 0 {

@@ -55,6 +55,12 @@ type JordanCluster struct {
 	// left by a change of coordinates; the call is close. Parts with
 	// exactly equal eigenvalues (identical stages in cascade) are not.
 	Coupled float64
+	// OneWay reports a defective cluster whose members come from
+	// different one-way coupled parts of A (a cascade): its blocks exist
+	// through couplings whose size no change of units can tell, so an
+	// exact Jordan block as entered and the rounding of a semisimple pair
+	// look alike. Coupled > 0 says when that is a close call.
+	OneWay bool
 	// BoundaryTol = ZeroTol x max(1, condition) for a simple eigenvalue,
 	// ZeroTol for a cluster: a value closer than this to the stability
 	// boundary is on it.
@@ -192,6 +198,7 @@ func jordanFrom(A *mat.Dense, es *EigenStructure, absTol, relTol, ts float64) (*
 				for a, i := range g.idx {
 					for _, j := range g.idx[a+1:] {
 						if es.part[i] != es.part[j] {
+							jc.OneWay = true
 							jc.Coupled = math.Max(jc.Coupled, cmplx.Abs(es.Values[i]-es.Values[j]))
 						}
 					}

@@ -314,6 +314,9 @@ func RealizeWithInfo(tf [][]*Rational, ts float64, tol float64) (*System, *Reali
 				} else if w != "" && info.Warning == "" {
 					info.Warning = w
 				}
+				if p == 1 && m == 1 && info.Warning == "" {
+					info.Warning = approximateCancellation(full, red, ent[0][0].num, ent[0][0].den, ts)
+				}
 			} else {
 				info.Warning = fmt.Sprintf("the staircase (rank tolerance %.1e) would remove %d state(s), but that changes the transfer function by %.1e (relative) at the check points, more than %.0e: no pole-zero cancellation that close, so all %d states are kept (the realization may not be minimal)", tol, n-red.N(), chk, realizeCancelTol, n)
 			}
@@ -656,4 +659,120 @@ func closeCancellation(full *System) (string, error) {
 		return fmt.Sprintf("the pole at %s was cancelled against a zero on a close call: it is %s with a PBH margin of %.3g against a tolerance of %.3g, so a realization of the same model in other coordinates may keep it", fmtComplexShort(m.Eigenvalue), what, margin, tol), nil
 	}
 	return "", nil
+}
+
+// approximateCancellation names a pole that a single-input single-output
+// reduction removed although no zero sits on it within what rounding of
+// the coefficients explains (first-order root sensitivity of both
+// polynomials, as in poleUncertainty, times 10): a near cancellation, which
+// the rank tolerance decided and another realization of the same model
+// (the matrices it came from, where PBH margins are measured in other
+// coordinates) may keep.
+func approximateCancellation(full, red *System, num, den []float64, ts float64) string {
+	pf, err := Poles(full)
+	if err != nil {
+		return ""
+	}
+	pr, err := Poles(red)
+	if err != nil {
+		return ""
+	}
+	zs := polyRootsMonic(num, ts)
+	if len(zs) == 0 {
+		return ""
+	}
+	used := make([]bool, len(pf))
+	for _, r := range pr {
+		best, bi := math.Inf(1), -1
+		for i, p := range pf {
+			if d := cmplx.Abs(p - r); !used[i] && d < best {
+				best, bi = d, i
+			}
+		}
+		if bi >= 0 {
+			used[bi] = true
+		}
+	}
+	for i, p := range pf {
+		if used[i] || imag(p) < 0 {
+			continue
+		}
+		best, at := math.Inf(1), complex128(0)
+		for _, z := range zs {
+			if d := cmplx.Abs(z - p); d < best {
+				best, at = d, z
+			}
+		}
+		if best > 10*(rootRadius(den, p, pf)+rootRadius(num, at, zs)) {
+			return fmt.Sprintf("the pole at %s was cancelled against the zero at %s, %.2g away, more than rounding of the coefficients explains: an approximate cancellation decided by the rank tolerance, which the matrices it came from may not make", fmtComplexShort(p), fmtComplexShort(at), best)
+		}
+	}
+	return ""
+}
+
+// polyRootsMonic returns the roots of the polynomial p (ascending), as Poles
+// of its companion matrix (clustered as the mode table does).
+func polyRootsMonic(p []float64, ts float64) []complex128 {
+	p = polyTrim(p)
+	n := len(p) - 1
+	if n < 1 {
+		return nil
+	}
+	lead := p[n]
+	A := mat.NewDense(n, n, nil)
+	for k := 0; k+1 < n; k++ {
+		A.Set(k, k+1, 1)
+	}
+	for k := 0; k < n; k++ {
+		A.Set(n-1, k, -p[k]/lead)
+	}
+	sys, err := NewSystem(n, 0, 0, A, nil, nil, nil, ts)
+	if err != nil {
+		return nil
+	}
+	r, err := Poles(sys)
+	if err != nil {
+		return nil
+	}
+	return r
+}
+
+// rootRadius is the first-order movement of the root l of p (ascending)
+// under coefficient errors of n u relative to the coefficients of
+// prod(x + |r|) over all roots (see poleUncertainty); roots equal to l
+// are left out of the product, so a multiple root gets its own scale.
+func rootRadius(p []float64, l complex128, roots []complex128) float64 {
+	p = polyTrim(p)
+	n := len(p) - 1
+	if n < 1 {
+		return 0
+	}
+	lead := math.Abs(p[n])
+	abs := make([]complex128, len(roots))
+	for i, r := range roots {
+		abs[i] = complex(-cmplx.Abs(r), 0)
+	}
+	bound := polyFromRoots(abs)
+	a := cmplx.Abs(l)
+	sum, pw := 0.0, 1.0
+	for k, c := range p {
+		b := math.Abs(c) / lead
+		if k < len(bound) {
+			b = math.Max(b, math.Abs(bound[k]))
+		}
+		sum += b * pw
+		pw *= a
+	}
+	prod, mult := 1.0, 0
+	for _, r := range roots {
+		if d := cmplx.Abs(l - r); d > 0 {
+			prod *= d
+		} else {
+			mult++
+		}
+	}
+	if mult < 1 {
+		mult = 1
+	}
+	return math.Pow(float64(n)*dlamchE*sum/prod, 1/float64(mult))
 }

@@ -409,3 +409,27 @@ func TestRealizeWarnsWhenCoefficientsCannotFixPoles(t *testing.T) {
 		}
 	}
 }
+
+// TestRealizeSaysApproximateCancellations: (s + 1)/((s + 1)(s + 2)) is
+// 1/(s + 2) exactly (closed form) and cancels without a word; with the pole
+// at -1 - 1e-11 the cancellation is approximate, decided by the rank
+// tolerance, and the warning names it.
+func TestRealizeSaysApproximateCancellations(t *testing.T) {
+	for _, c := range []struct {
+		eps  float64
+		warn bool
+	}{{0, false}, {1e-11, true}} {
+		p := 1 + c.eps
+		den := Poly{2 * p, 2 + p, 1} // (s + p)(s + 2)
+		s, info, err := RealizeChecked([][]*Rational{{{Num: Poly{1, 1}, Den: den}}}, 0, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if s.N() != 1 {
+			t.Errorf("eps %g: %d states, want 1 (the pole at -1 cancelled)", c.eps, s.N())
+		}
+		if got := strings.Contains(info.Warning, "approximate cancellation"); got != c.warn {
+			t.Errorf("eps %g: warning %q", c.eps, info.Warning)
+		}
+	}
+}
