@@ -237,6 +237,9 @@ func renderStructure(v any, _ Options) Bundle {
 		for i, v := range s.StepKept {
 			kept[i] = fmtNum(v)
 		}
+		if s.Direct {
+			return fmt.Sprintf("the part the inputs leave alone of each mode the PBH test finds unreached, from its left invariant subspace; rank tolerance %s", fmtNum(s.Tol))
+		}
 		closeCall := ""
 		if r := s.Close(); r > 0 {
 			closeCall = fmt.Sprintf("; a close call: a step's singular value is %s x the rank tolerance, so another realization may find another dimension", fmtNum(r))

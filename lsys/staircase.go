@@ -46,6 +46,10 @@ type Staircase struct {
 	// or that was dropped for an unreached mode before them (see
 	// absorbReached); its StepKept is 0.
 	Absorbed int
+	// Direct, when set, says the split came from the left invariant
+	// subspaces of the modes the PBH test finds unreached, not from
+	// staircase steps (see unreachedDirect): Steps then holds Dim alone.
+	Direct bool
 	// Scale, when not nil, is the diagonal state scaling the staircase was
 	// computed in (see StaircasesOf): A, B and Z belong to the balanced
 	// system with x = diag(Scale) x~. Use LeadingBasis and TrailingBasis for
@@ -219,6 +223,10 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 		var next float64
 		switch {
 		case missing && !lowered:
+			if direct := unreachedDirect(A, B, dual, st, must, relTol); direct != nil {
+				direct.RaisedFrom = start
+				return direct, nil
+			}
 			next = math.Inf(1)
 			for _, v := range st.StepKept {
 				if v > st.Tol && v < next {
@@ -397,6 +405,114 @@ func leftComplement(A0, B0 *mat.Dense, st *Staircase, rest []complex128, relTol 
 	st.Z = Z
 }
 
+// unreachedDirect builds the staircase's split from the modes the PBH test
+// finds unreached, instead of raising the rank tolerance (one tolerance cuts
+// a staircase in Krylov order, so where it ends depends on the realization):
+// for each cluster of A's eigenvalues holding such a mode (members within
+// the clustering cap 1e-3 ||A||, see Jordan), Wc is its left invariant
+// subspace (ordered Schur form of A^T), and the part of it that B leaves
+// alone is the unobservable subspace of the small pair (S, (Wc^T B)^T),
+// S = Wc^T A^T Wc, by that pair's own staircase at the same relative
+// tolerance. W, their sum, is left invariant; its orthogonal complement is
+// the reachable subspace, invariant and holding the range of B up to the
+// PBH margins. nil when a cluster cannot be separated or the small pair
+// finds everything reached (the caller then raises the tolerance).
+func unreachedDirect(A, B *mat.Dense, dual bool, st *Staircase, must []complex128, relTol float64) *Staircase {
+	A0, B0 := A, B
+	if dual {
+		A0, B0 = stTransposed(A), stTransposed(B)
+	}
+	if B0 == nil {
+		return nil
+	}
+	n, _ := A0.Dims()
+	left, err := Schur(mat.DenseCopyOf(A0.T()))
+	if err != nil {
+		return nil
+	}
+	vals := left.Values
+	cap := 1e-3 * mat.Norm(A0, 2)
+	cl := newUnionFind(len(vals))
+	for a := range vals {
+		for b := a + 1; b < len(vals); b++ {
+			if cmplx.Abs(vals[a]-vals[b]) <= cap {
+				cl.join(a, b)
+			}
+		}
+	}
+	seen := map[int]bool{}
+	var roots []int
+	for _, lam := range must {
+		best, bi := math.Inf(1), -1
+		for q, v := range vals {
+			if d := cmplx.Abs(v - lam); d < best {
+				best, bi = d, q
+			}
+		}
+		if bi < 0 || best > cap {
+			return nil
+		}
+		if r := cl.root(bi); !seen[r] {
+			seen[r] = true
+			roots = append(roots, r)
+		}
+	}
+	sort.Ints(roots)
+	var parts []*mat.Dense
+	for _, root := range roots {
+		size := 0
+		for q := range vals {
+			if cl.root(q) == root {
+				size++
+			}
+		}
+		inCluster := func(v complex128) bool {
+			for q, w := range vals {
+				if cl.root(q) == root && (w == v || w == cmplx.Conj(v)) {
+					return true
+				}
+			}
+			return false
+		}
+		sf := &SchurForm{T: mat.DenseCopyOf(left.T), Z: mat.DenseCopyOf(left.Z), Values: append([]complex128(nil), left.Values...)}
+		got, err := sf.Reorder(inCluster)
+		if err != nil || got != size {
+			return nil
+		}
+		Wc := mat.DenseCopyOf(sf.Z.Slice(0, n, 0, size))
+		var t, S, G mat.Dense
+		t.Mul(A0.T(), Wc)
+		S.Mul(Wc.T(), &t)
+		G.Mul(Wc.T(), B0)
+		ost, err := ObservabilityStaircase(&S, mat.DenseCopyOf(G.T()), relTol)
+		if err != nil || ost.Dim == size {
+			return nil
+		}
+		var U mat.Dense
+		U.Mul(Wc, ost.Z.Slice(0, size, ost.Dim, size))
+		parts = append(parts, mat.DenseCopyOf(&U))
+	}
+	W, _ := stOrth(stHcat(n, parts...), 1e-8)
+	if W == nil {
+		return nil
+	}
+	_, c := W.Dims()
+	if c >= n {
+		return nil
+	}
+	Z := stHcat(n, stComplement(W, n), W)
+	out := &Staircase{Z: Z, Tol: st.Tol, Dim: n - c, Steps: []int{n - c}, StepKept: []float64{0}, Direct: true}
+	var tz mat.Dense
+	tz.Mul(Z.T(), A0)
+	out.A = mat.NewDense(n, n, nil)
+	out.A.Mul(&tz, Z)
+	var b mat.Dense
+	b.Mul(Z.T(), B0)
+	out.B = mat.DenseCopyOf(&b)
+	zeroBelow(out)
+	return out
+}
+
 // blockValues returns the eigenvalues of a, one per conjugate pair (the
 // one with nonnegative imaginary part), from its real Schur form.
 func blockValues(a *mat.Dense) []complex128 {
@@ -438,7 +554,7 @@ func (st *Staircase) Close() float64 {
 	if st.RaisedFrom > 0 {
 		tol = st.RaisedFrom
 	}
-	if tol <= 0 {
+	if tol <= 0 || st.Direct {
 		return 0
 	}
 	best := 0.0

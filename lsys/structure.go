@@ -501,6 +501,9 @@ func Unobservable(s *System, relTol float64) (*Subspace, error) {
 // absorbedNote says when the last step of a staircase came from the PBH
 // test (see absorbReached).
 func absorbedNote(st *Staircase) string {
+	if st.Direct {
+		return "; the split comes from the left invariant subspaces of the modes the PBH test finds unreached (the part of each cluster the inputs leave alone), not from staircase steps"
+	}
 	if st.Absorbed == 0 {
 		return ""
 	}
