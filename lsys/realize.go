@@ -546,19 +546,9 @@ func poleUncertainty(d []float64, ts float64) string {
 	if n < 2 {
 		return ""
 	}
-	A := mat.NewDense(n, n, nil)
-	for k := 0; k+1 < n; k++ {
-		A.Set(k, k+1, 1)
-	}
-	for k := 0; k < n; k++ {
-		A.Set(n-1, k, -d[k])
-	}
-	sys, err := NewSystem(n, 0, 0, A, nil, nil, nil, ts)
-	if err != nil {
-		return ""
-	}
-	poles, err := Poles(sys)
-	if err != nil {
+	A := companion(d)
+	poles := polyRootsMonic(d, ts)
+	if poles == nil {
 		return ""
 	}
 	type cluster struct {
@@ -718,15 +708,7 @@ func polyRootsMonic(p []float64, ts float64) []complex128 {
 	if n < 1 {
 		return nil
 	}
-	lead := p[n]
-	A := mat.NewDense(n, n, nil)
-	for k := 0; k+1 < n; k++ {
-		A.Set(k, k+1, 1)
-	}
-	for k := 0; k < n; k++ {
-		A.Set(n-1, k, -p[k]/lead)
-	}
-	sys, err := NewSystem(n, 0, 0, A, nil, nil, nil, ts)
+	sys, err := NewSystem(n, 0, 0, companion(p), nil, nil, nil, ts)
 	if err != nil {
 		return nil
 	}
@@ -735,6 +717,21 @@ func polyRootsMonic(p []float64, ts float64) []complex128 {
 		return nil
 	}
 	return r
+}
+
+// companion returns the companion matrix of the polynomial p (ascending,
+// degree n >= 1): ones above the diagonal, -p_k / p_n in the last row.
+func companion(p []float64) *mat.Dense {
+	n := len(p) - 1
+	lead := p[n]
+	A := mat.NewDense(n, n, nil)
+	for k := 0; k+1 < n; k++ {
+		A.Set(k, k+1, 1)
+	}
+	for k := 0; k < n; k++ {
+		A.Set(n-1, k, -p[k]/lead)
+	}
+	return A
 }
 
 // rootRadius is the first-order movement of the root l of p (ascending)

@@ -258,12 +258,7 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 				if dual {
 					A0, B0 = stTransposed(A), stTransposed(B)
 				}
-				var t0 mat.Dense
-				t0.Mul(st.Z.T(), A0)
-				st.A.Mul(&t0, st.Z)
-				if st.B != nil && B0 != nil {
-					st.B.Mul(st.Z.T(), B0)
-				}
+				retransform(A0, B0, st)
 				leftComplement(A0, B0, st, blockValues(mat.DenseCopyOf(st.A.Slice(k, n, k, n))), relTol)
 				zeroBelow(st)
 			}
@@ -279,144 +274,205 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 	return st, nil
 }
 
-// leftComplement puts st in coordinates [W^perp, W], W an orthonormal basis
-// of the left invariant subspace of A0 (A0^T W = W S) of the modes left
-// behind (rest: Schur blocks of what stays behind, one value per pair):
-// W^perp is invariant and, as the PBH test says, holds the range of B0 up
-// to its margin, so the form is block triangular to rounding with no
-// coupling cut by a raised tolerance (a staircase raised to a kept value of
-// 0.04 cuts a real coupling and tilts the subspace by as much). The values
-// left behind are matched to clusters of A0's eigenvalues (members within
-// the clustering cap 1e-3 ||A||, see Jordan). A cluster left behind whole
-// gives its left invariant subspace Wc; one left behind in part (one
-// direction of a semisimple double, one rigid body of two) gives the part
-// of Wc that B0 does not reach: the unobservable subspace of the small
-// pair (S, (Wc^T B0)^T), S = Wc^T A0^T Wc, by its own staircase. Nothing
-// changes when the dimensions do not add up.
+// leftClusters holds the left invariant subspaces of A's eigenvalue
+// clusters (members within the clustering cap 1e-3 ||A||, see Jordan), for
+// splitting off the part of a cluster that B leaves alone.
+type leftClusters struct {
+	A, B *mat.Dense   // the pair, in controllability orientation
+	left *SchurForm   // real Schur form of A^T
+	vals []complex128 // its eigenvalues, pairs as two
+	cl   unionFind
+	cap  float64
+}
+
+func newLeftClusters(A, B *mat.Dense) *leftClusters {
+	left, err := Schur(mat.DenseCopyOf(A.T()))
+	if err != nil {
+		return nil
+	}
+	lc := &leftClusters{A: A, B: B, left: left, vals: left.Values, cl: newUnionFind(len(left.Values)), cap: 1e-3 * mat.Norm(A, 2)}
+	for a := range lc.vals {
+		for b := a + 1; b < len(lc.vals); b++ {
+			if cmplx.Abs(lc.vals[a]-lc.vals[b]) <= lc.cap {
+				lc.cl.join(a, b)
+			}
+		}
+	}
+	return lc
+}
+
+// of returns the cluster of the eigenvalue nearest v, -1 when none is
+// within the cap.
+func (lc *leftClusters) of(v complex128) int {
+	best, bi := math.Inf(1), -1
+	for q, w := range lc.vals {
+		if d := cmplx.Abs(w - v); d < best {
+			best, bi = d, q
+		}
+	}
+	if bi < 0 || best > lc.cap {
+		return -1
+	}
+	return lc.cl.root(bi)
+}
+
+// size is the number of eigenvalues in the cluster.
+func (lc *leftClusters) size(root int) int {
+	k := 0
+	for q := range lc.vals {
+		if lc.cl.root(q) == root {
+			k++
+		}
+	}
+	return k
+}
+
+// basis is an orthonormal basis of the cluster's left invariant subspace
+// (ordered Schur form of A^T, Bai & Demmel 1993); nil when it cannot be
+// separated.
+func (lc *leftClusters) basis(root int) *mat.Dense {
+	n, _ := lc.A.Dims()
+	size := lc.size(root)
+	in := func(v complex128) bool {
+		for q, w := range lc.vals {
+			if lc.cl.root(q) == root && (w == v || w == cmplx.Conj(v)) {
+				return true
+			}
+		}
+		return false
+	}
+	sf := &SchurForm{T: mat.DenseCopyOf(lc.left.T), Z: mat.DenseCopyOf(lc.left.Z), Values: append([]complex128(nil), lc.left.Values...)}
+	if got, err := sf.Reorder(in); err != nil || got != size {
+		return nil
+	}
+	return mat.DenseCopyOf(sf.Z.Slice(0, n, 0, size))
+}
+
+// alone is the part of the cluster's left invariant subspace Wc that B
+// leaves alone: the unobservable subspace of the small pair (S, (Wc^T B)^T),
+// S = Wc^T A^T Wc, by its own staircase at relTol; nil when B reaches the
+// whole cluster or it cannot be computed.
+func (lc *leftClusters) alone(root int, relTol float64) *mat.Dense {
+	Wc := lc.basis(root)
+	if Wc == nil || lc.B == nil {
+		return nil
+	}
+	_, size := Wc.Dims()
+	var t, S, G mat.Dense
+	t.Mul(lc.A.T(), Wc)
+	S.Mul(Wc.T(), &t)
+	G.Mul(Wc.T(), lc.B)
+	ost, err := ObservabilityStaircase(&S, mat.DenseCopyOf(G.T()), relTol)
+	if err != nil || ost.Dim == size {
+		return nil
+	}
+	var U mat.Dense
+	U.Mul(Wc, ost.Z.Slice(0, size, ost.Dim, size))
+	return mat.DenseCopyOf(&U)
+}
+
+// splitOff puts st in coordinates [W^perp, W], W an orthonormal basis of
+// the sum of parts (left invariant, so W^perp is invariant), with Dim =
+// n - dim W; false when the parts do not make up want dimensions (want < 0:
+// any number below n).
+func splitOff(A0, B0 *mat.Dense, st *Staircase, parts []*mat.Dense, want int) bool {
+	n, _ := A0.Dims()
+	W, _ := stOrth(stHcat(n, parts...), 1e-8)
+	if W == nil {
+		return false
+	}
+	_, c := W.Dims()
+	if c >= n || want >= 0 && c != want {
+		return false
+	}
+	st.Z = stHcat(n, stComplement(W, n), W)
+	st.Dim = n - c
+	retransform(A0, B0, st)
+	return true
+}
+
+// retransform sets st.A = Z^T A0 Z and st.B = Z^T B0 from st.Z.
+func retransform(A0, B0 *mat.Dense, st *Staircase) {
+	n, _ := A0.Dims()
+	var t mat.Dense
+	t.Mul(st.Z.T(), A0)
+	if st.A == nil {
+		st.A = mat.NewDense(n, n, nil)
+	}
+	st.A.Mul(&t, st.Z)
+	if B0 != nil {
+		var b mat.Dense
+		b.Mul(st.Z.T(), B0)
+		st.B = mat.DenseCopyOf(&b)
+	}
+}
+
+// leftComplement puts st in coordinates [W^perp, W], W the left invariant
+// subspace of the modes left behind (rest: Schur blocks of what stays
+// behind, one value per pair): W^perp is invariant and, as the PBH test
+// says, holds the range of B0 up to its margin, so the form is block
+// triangular to rounding with no coupling cut by a raised tolerance (a
+// staircase raised to a kept value of 0.04 cuts a real coupling and tilts
+// the subspace by as much). A cluster left behind whole gives its whole
+// left invariant subspace; one left behind in part (one direction of a
+// semisimple double, one rigid body of two) the part B0 leaves alone.
+// Nothing changes when the dimensions do not add up.
 func leftComplement(A0, B0 *mat.Dense, st *Staircase, rest []complex128, relTol float64) {
 	n, _ := A0.Dims()
 	c := n - st.Dim
 	if c <= 0 || len(rest) == 0 {
 		return
 	}
-	left, err := Schur(mat.DenseCopyOf(A0.T()))
-	if err != nil {
+	lc := newLeftClusters(A0, B0)
+	if lc == nil {
 		return
 	}
-	vals := left.Values // every eigenvalue, pairs as two
-	cap := 1e-3 * mat.Norm(A0, 2)
-	// Clusters of A0's eigenvalues by single linkage within cap.
-	cl := newUnionFind(len(vals))
-	for a := range vals {
-		for b := a + 1; b < len(vals); b++ {
-			if cmplx.Abs(vals[a]-vals[b]) <= cap {
-				cl.join(a, b)
-			}
-		}
-	}
-	var want []complex128
-	for _, r := range rest {
-		want = append(want, r)
-		if imag(r) != 0 {
-			want = append(want, cmplx.Conj(r))
-		}
-	}
-	if len(want) != c {
-		return
-	}
-	// Dimensions asked of each cluster: every value left behind goes to the
-	// cluster of the nearest eigenvalue, which must be within cap.
 	asked := map[int]int{}
-	for _, r := range want {
-		best, bi := math.Inf(1), -1
-		for q, v := range vals {
-			if d := cmplx.Abs(v - r); d < best {
-				best, bi = d, q
-			}
-		}
-		if bi < 0 || best > cap {
+	var roots []int
+	for _, r := range rest {
+		root := lc.of(r)
+		if root < 0 {
 			return
 		}
-		asked[cl.root(bi)]++
-	}
-	roots := make([]int, 0, len(asked))
-	for r := range asked {
-		roots = append(roots, r)
+		if asked[root] == 0 {
+			roots = append(roots, root)
+		}
+		asked[root]++
+		if imag(r) != 0 {
+			asked[root]++
+		}
 	}
 	sort.Ints(roots)
 	var parts []*mat.Dense
 	for _, root := range roots {
-		size := 0
-		inCluster := func(v complex128) bool {
-			for q, w := range vals {
-				if cl.root(q) == root && (w == v || w == cmplx.Conj(v)) {
-					return true
-				}
-			}
-			return false
+		var U *mat.Dense
+		if asked[root] == lc.size(root) {
+			U = lc.basis(root)
+		} else {
+			U = lc.alone(root, relTol)
 		}
-		for q := range vals {
-			if cl.root(q) == root {
-				size++
-			}
-		}
-		sf := &SchurForm{T: mat.DenseCopyOf(left.T), Z: mat.DenseCopyOf(left.Z), Values: append([]complex128(nil), left.Values...)}
-		got, err := sf.Reorder(inCluster)
-		if err != nil || got != size {
+		if U == nil {
 			return
 		}
-		Wc := mat.DenseCopyOf(sf.Z.Slice(0, n, 0, size))
-		q := asked[root]
-		if q == size {
-			parts = append(parts, Wc)
-			continue
-		}
-		if B0 == nil || q > size {
+		if _, k := U.Dims(); k != asked[root] {
 			return
 		}
-		// The part of the cluster B0 leaves alone: x' = S x, y = G^T x,
-		// its unobservable subspace (S = Wc^T A0^T Wc, G = Wc^T B0).
-		var t, S, G mat.Dense
-		t.Mul(A0.T(), Wc)
-		S.Mul(Wc.T(), &t)
-		G.Mul(Wc.T(), B0)
-		ost, err := ObservabilityStaircase(&S, mat.DenseCopyOf(G.T()), relTol)
-		if err != nil || size-ost.Dim != q {
-			return
-		}
-		var U mat.Dense
-		U.Mul(Wc, ost.Z.Slice(0, size, ost.Dim, size))
-		parts = append(parts, mat.DenseCopyOf(&U))
+		parts = append(parts, U)
 	}
-	W, _ := stOrth(stHcat(n, parts...), 1e-8)
-	if W == nil {
-		return
+	dim := st.Dim
+	if !splitOff(A0, B0, st, parts, c) {
+		st.Dim = dim
 	}
-	if _, k := W.Dims(); k != c {
-		return
-	}
-	Z := stHcat(n, stComplement(W, n), W)
-	var t mat.Dense
-	t.Mul(Z.T(), A0)
-	st.A.Mul(&t, Z)
-	if st.B != nil && B0 != nil {
-		st.B.Mul(Z.T(), B0)
-	}
-	st.Z = Z
 }
 
 // unreachedDirect builds the staircase's split from the modes the PBH test
 // finds unreached, instead of raising the rank tolerance (one tolerance cuts
 // a staircase in Krylov order, so where it ends depends on the realization):
-// for each cluster of A's eigenvalues holding such a mode (members within
-// the clustering cap 1e-3 ||A||, see Jordan), Wc is its left invariant
-// subspace (ordered Schur form of A^T), and the part of it that B leaves
-// alone is the unobservable subspace of the small pair (S, (Wc^T B)^T),
-// S = Wc^T A^T Wc, by that pair's own staircase at the same relative
-// tolerance. W, their sum, is left invariant; its orthogonal complement is
-// the reachable subspace, invariant and holding the range of B up to the
-// PBH margins. nil when a cluster cannot be separated or the small pair
-// finds everything reached (the caller then raises the tolerance).
+// W is the sum, over the clusters holding such a mode, of the part of the
+// cluster's left invariant subspace that B leaves alone (leftClusters.alone);
+// its orthogonal complement is the reachable subspace, invariant and holding
+// the range of B up to the PBH margins. nil when a cluster cannot be
+// separated or B reaches it whole (the caller then raises the tolerance).
 func unreachedDirect(A, B *mat.Dense, dual bool, st *Staircase, must []complex128, relTol float64) *Staircase {
 	A0, B0 := A, B
 	if dual {
@@ -425,90 +481,36 @@ func unreachedDirect(A, B *mat.Dense, dual bool, st *Staircase, must []complex12
 	if B0 == nil {
 		return nil
 	}
-	n, _ := A0.Dims()
-	left, err := Schur(mat.DenseCopyOf(A0.T()))
-	if err != nil {
+	lc := newLeftClusters(A0, B0)
+	if lc == nil {
 		return nil
-	}
-	vals := left.Values
-	cap := 1e-3 * mat.Norm(A0, 2)
-	cl := newUnionFind(len(vals))
-	for a := range vals {
-		for b := a + 1; b < len(vals); b++ {
-			if cmplx.Abs(vals[a]-vals[b]) <= cap {
-				cl.join(a, b)
-			}
-		}
 	}
 	seen := map[int]bool{}
 	var roots []int
 	for _, lam := range must {
-		best, bi := math.Inf(1), -1
-		for q, v := range vals {
-			if d := cmplx.Abs(v - lam); d < best {
-				best, bi = d, q
-			}
-		}
-		if bi < 0 || best > cap {
+		root := lc.of(lam)
+		if root < 0 {
 			return nil
 		}
-		if r := cl.root(bi); !seen[r] {
-			seen[r] = true
-			roots = append(roots, r)
+		if !seen[root] {
+			seen[root] = true
+			roots = append(roots, root)
 		}
 	}
 	sort.Ints(roots)
 	var parts []*mat.Dense
 	for _, root := range roots {
-		size := 0
-		for q := range vals {
-			if cl.root(q) == root {
-				size++
-			}
-		}
-		inCluster := func(v complex128) bool {
-			for q, w := range vals {
-				if cl.root(q) == root && (w == v || w == cmplx.Conj(v)) {
-					return true
-				}
-			}
-			return false
-		}
-		sf := &SchurForm{T: mat.DenseCopyOf(left.T), Z: mat.DenseCopyOf(left.Z), Values: append([]complex128(nil), left.Values...)}
-		got, err := sf.Reorder(inCluster)
-		if err != nil || got != size {
+		U := lc.alone(root, relTol)
+		if U == nil {
 			return nil
 		}
-		Wc := mat.DenseCopyOf(sf.Z.Slice(0, n, 0, size))
-		var t, S, G mat.Dense
-		t.Mul(A0.T(), Wc)
-		S.Mul(Wc.T(), &t)
-		G.Mul(Wc.T(), B0)
-		ost, err := ObservabilityStaircase(&S, mat.DenseCopyOf(G.T()), relTol)
-		if err != nil || ost.Dim == size {
-			return nil
-		}
-		var U mat.Dense
-		U.Mul(Wc, ost.Z.Slice(0, size, ost.Dim, size))
-		parts = append(parts, mat.DenseCopyOf(&U))
+		parts = append(parts, U)
 	}
-	W, _ := stOrth(stHcat(n, parts...), 1e-8)
-	if W == nil {
+	out := &Staircase{Tol: st.Tol, Direct: true}
+	if !splitOff(A0, B0, out, parts, -1) {
 		return nil
 	}
-	_, c := W.Dims()
-	if c >= n {
-		return nil
-	}
-	Z := stHcat(n, stComplement(W, n), W)
-	out := &Staircase{Z: Z, Tol: st.Tol, Dim: n - c, Steps: []int{n - c}, StepKept: []float64{0}, Direct: true}
-	var tz mat.Dense
-	tz.Mul(Z.T(), A0)
-	out.A = mat.NewDense(n, n, nil)
-	out.A.Mul(&tz, Z)
-	var b mat.Dense
-	b.Mul(Z.T(), B0)
-	out.B = mat.DenseCopyOf(&b)
+	out.Steps, out.StepKept = []int{out.Dim}, []float64{0}
 	zeroBelow(out)
 	return out
 }
@@ -593,12 +595,7 @@ func absorbReached(A0, B0 *mat.Dense, dual bool, st *Staircase, must []complex12
 	if dual {
 		A0, B0 = stTransposed(A0), stTransposed(B0)
 	}
-	var t0 mat.Dense
-	t0.Mul(st.Z.T(), A0)
-	st.A.Mul(&t0, st.Z)
-	if st.B != nil && B0 != nil {
-		st.B.Mul(st.Z.T(), B0)
-	}
+	retransform(A0, B0, st)
 	sf, err := Schur(mat.DenseCopyOf(st.A.Slice(k, n, k, n)))
 	if err != nil {
 		return nil, err

@@ -182,23 +182,11 @@ func tfChannel(s *System, i, j int, relTol float64) (*Rational, error) {
 // (a coefficient spread of 1e10 and more, poles crowded near z = 1) cannot
 // carry their roots, whatever the care in forming them.
 func coefficientFidelity(den Poly, poles []complex128, ts float64) string {
-	n := len(den) - 1
-	if n < 2 {
+	if len(den)-1 < 2 {
 		return ""
 	}
-	A := mat.NewDense(n, n, nil)
-	for k := 0; k+1 < n; k++ {
-		A.Set(k, k+1, 1)
-	}
-	for k := 0; k < n; k++ {
-		A.Set(n-1, k, -den[k])
-	}
-	sys, err := NewSystem(n, 0, 0, A, nil, nil, nil, ts)
-	if err != nil {
-		return ""
-	}
-	roots, err := Poles(sys)
-	if err != nil || len(roots) != len(poles) {
+	roots := polyRootsMonic(den, ts)
+	if len(roots) != len(poles) {
 		return ""
 	}
 	scale := 0.0
