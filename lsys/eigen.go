@@ -146,7 +146,7 @@ func Poles(s *System) ([]complex128, error) {
 	idx := orderEigenvalues(vals, s.Ts)
 	out := make([]complex128, len(idx))
 	for i, k := range idx {
-		out[i] = snapBoundary(snapValue(vals[k], s.Ts, tol), s.Ts, btol[k])
+		out[i] = snapParts(vals[k], s.Ts, tol, btol[k])
 	}
 	return out, nil
 }
@@ -161,34 +161,23 @@ func boundaryTol(A *mat.Dense) float64 {
 
 // snapValue sets parts of v within tol of the boundary (Re s = 0, or z = 1
 // when ts > 0) or of the real axis exactly there.
-func snapValue(v complex128, ts, tol float64) complex128 {
+func snapValue(v complex128, ts, tol float64) complex128 { return snapParts(v, ts, tol, tol) }
+
+// snapParts is snapValue with one tolerance for the real axis (imTol) and
+// another for the stability boundary (boundTol).
+func snapParts(v complex128, ts, imTol, boundTol float64) complex128 {
 	re, im := real(v), imag(v)
-	if math.Abs(im) <= tol {
+	if math.Abs(im) <= imTol {
 		im = 0
 	}
 	if ts > 0 {
-		if im == 0 && math.Abs(re-1) <= tol {
+		if im == 0 && math.Abs(re-1) <= boundTol {
 			re = 1
 		}
-	} else if math.Abs(re) <= tol {
+	} else if math.Abs(re) <= boundTol {
 		re = 0
 	}
 	return complex(re, im)
-}
-
-// snapBoundary sets v exactly on the stability boundary (Re s = 0, or z =
-// 1 for a real z when ts > 0) when it is within tol of it.
-func snapBoundary(v complex128, ts, tol float64) complex128 {
-	if ts > 0 {
-		if imag(v) == 0 && math.Abs(real(v)-1) <= tol {
-			return 1
-		}
-		return v
-	}
-	if math.Abs(real(v)) <= tol {
-		return complex(0, imag(v))
-	}
-	return v
 }
 
 // orderEigenvalues returns the indices of vals sorted by natural frequency,

@@ -417,6 +417,12 @@ func TestVerdictsInvariant(t *testing.T) {
 		}
 	}
 	t.Logf("%d generated systems, each in 3 other realizations: %d changes of verdict in %d systems; %d differing realizations flagged as close calls; %d differing where one realization is an exact one-way coupling of equal parts", count, failed, systems, closeCalls, oneWay)
+	// A guard, not a reference: exemptions must stay rare, or close-call
+	// flags set too freely would let the test pass whatever the decisions
+	// do (1% measured at 20000 systems; the bound is common practice).
+	if f := float64(closeCalls+oneWay) / float64(3*count); f > 0.05 {
+		t.Errorf("%.1f%% of the realizations differ on exempted calls; close calls are flagged too freely", 100*f)
+	}
 }
 
 // TestUnitFreeRegressions: the decisions found wrong in other units or
@@ -570,6 +576,11 @@ func TestVerdictsSameWhateverTheEntry(t *testing.T) {
 		}
 	}
 	t.Logf("%d single-input single-output systems entered both ways: %d differ, %d close calls", tried, failed, closeCalls)
+	// A guard, not a reference, as in TestVerdictsInvariant (3.5% measured
+	// at 964 systems; the bound is common practice).
+	if tried > 0 && float64(closeCalls)/float64(tried) > 0.1 {
+		t.Errorf("%d of %d systems differ on calls said to be close: too many to trust the exemption", closeCalls, tried)
+	}
 }
 
 // entryVerdicts is verdictsOf without what depends on the coordinates

@@ -70,7 +70,8 @@ type JordanCluster struct {
 }
 
 // IsClose reports whether the call is close: near the clustering threshold,
-// or made otherwise at the entered scale.
+// made otherwise at the entered scale, or defective only through a one-way
+// coupling of parts whose eigenvalues differ.
 func (c JordanCluster) IsClose() bool { return c.Close > 0 || c.Entered != "" || c.Coupled > 0 }
 
 // Defective reports whether the eigenvalue has fewer eigenvectors than its
@@ -306,11 +307,6 @@ func clusterEigenvalues(vals []complex128, cond []float64, normA, capTol, absTol
 	}
 	tols := make([]float64, n)
 	near := make([]float64, n)
-	setNear := func(i int, r float64) {
-		if near[i] == 0 || math.Abs(math.Log(r)) < math.Abs(math.Log(near[i])) {
-			near[i] = r
-		}
-	}
 	for i := 0; i < n; i++ {
 		for j := i + 1; j < n; j++ {
 			t := pairTol(i, j)
@@ -323,10 +319,8 @@ func clusterEigenvalues(vals []complex128, cond []float64, normA, capTol, absTol
 			// The two members of a conjugate pair count too: whether
 			// they are one oscillatory mode or a double real (or
 			// defective) eigenvalue is the same call.
-			if t > 0 && d >= 0.1*t && d <= 10*t {
-				setNear(i, d/t)
-				setNear(j, d/t)
-			}
+			near[i] = nearerCall(near[i], d, t)
+			near[j] = nearerCall(near[j], d, t)
 		}
 	}
 	byRoot := map[int]*eigGroup{}

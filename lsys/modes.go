@@ -538,3 +538,16 @@ func pbhMarginNear(A, B *mat.Dense, lam complex128, rho float64, dual bool) floa
 func closeCall(margin, tol float64) bool {
 	return tol > 0 && margin >= 0.1*tol && margin <= 10*tol
 }
+
+// nearerCall returns whichever of best and v/tol is nearer 1, v/tol counting
+// only when closeCall(v, tol) (best 0: none yet): the closest of several
+// calls, for a display that names one.
+func nearerCall(best, v, tol float64) float64 {
+	if !closeCall(v, tol) {
+		return best
+	}
+	if r := v / tol; best == 0 || math.Abs(math.Log(r)) < math.Abs(math.Log(best)) {
+		return r
+	}
+	return best
+}

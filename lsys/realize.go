@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"slices"
 	"sort"
 
 	"gonum.org/v1/gonum/lapack"
@@ -551,52 +552,19 @@ func poleUncertainty(d []float64, ts float64) string {
 	if poles == nil {
 		return ""
 	}
-	type cluster struct {
-		at complex128
-		m  int
-	}
-	var cs []cluster
+	// Distinct values: Poles repeats a cluster's mean once per member.
+	var cs []complex128
 	for _, p := range poles {
-		found := false
-		for i := range cs {
-			if cs[i].at == p {
-				cs[i].m++
-				found = true
-			}
-		}
-		if !found {
-			cs = append(cs, cluster{p, 1})
+		if !slices.Contains(cs, p) {
+			cs = append(cs, p)
 		}
 	}
 	eps := float64(n) * dlamchE
 	btol := boundaryTol(balanceEigen(A).A)
-	// Coefficients formed from roots (or typed from such a product) are
-	// accurate to eps relative to the coefficients of prod(x + |p_i|), not
-	// to their own size, which cancellation can make far smaller (Higham
-	// 2002, Accuracy and Stability of Numerical Algorithms, sec. 5.1).
-	abs := make([]complex128, len(poles))
-	for i, p := range poles {
-		abs[i] = complex(-cmplx.Abs(p), 0)
-	}
-	bound := polyFromRoots(abs)
 	for i, c := range cs {
-		a := cmplx.Abs(c.at)
-		sum, pw := 0.0, 1.0
-		for k, dk := range d {
-			sum += math.Max(math.Abs(dk), math.Abs(bound[k])) * pw
-			pw *= a
-		}
-		prod := 1.0
-		for k, o := range cs {
-			if k != i {
-				prod *= math.Pow(cmplx.Abs(c.at-o.at), float64(o.m))
-			}
-		}
-		if prod == 0 {
-			continue
-		}
-		r := math.Pow(eps*sum/prod, 1/float64(c.m))
-		dist := math.Abs(real(c.at))
+		r := rootRadius(d, c, poles)
+		a := cmplx.Abs(c)
+		dist := math.Abs(real(c))
 		where := "the imaginary axis"
 		if ts > 0 {
 			dist = math.Abs(a - 1)
@@ -608,12 +576,12 @@ func poleUncertainty(d []float64, ts float64) string {
 			what = fmt.Sprintf("%s (%.2g away)", where, dist)
 		}
 		for k, o := range cs {
-			if d := cmplx.Abs(c.at - o.at); k != i && what == "" && r >= d/2 {
-				what = fmt.Sprintf("the pole at %s (%.2g away)", fmtComplexShort(o.at), d)
+			if d := cmplx.Abs(c - o); k != i && what == "" && r >= d/2 {
+				what = fmt.Sprintf("the pole at %s (%.2g away)", fmtComplexShort(o), d)
 			}
 		}
 		if what != "" {
-			return fmt.Sprintf("the denominator's coefficients fix the pole at %s only to within %.2g (first-order root sensitivity to coefficient errors of %.1g relative), which reaches %s: this realization's stability or multiplicities may not be the model's. Give the transfer function as a product of low-order factors, or as matrices", fmtComplexShort(c.at), r, eps, what)
+			return fmt.Sprintf("the denominator's coefficients fix the pole at %s only to within %.2g (first-order root sensitivity to coefficient errors of %.1g relative), which reaches %s: this realization's stability or multiplicities may not be the model's. Give the transfer function as a product of low-order factors, or as matrices", fmtComplexShort(c), r, eps, what)
 		}
 	}
 	return ""

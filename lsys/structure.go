@@ -170,9 +170,7 @@ func kalman(s *System, rs, os *Staircase, relTol float64) (*Decomposition, float
 		var svd mat.SVD
 		if svd.Factorize(M, mat.SVDNone) {
 			for _, v := range svd.Values(nil) {
-				if r := v / angTol; r >= 0.1 && r <= 10 && (angleClose == 0 || math.Abs(math.Log(r)) < math.Abs(math.Log(angleClose))) {
-					angleClose = r
-				}
+				angleClose = nearerCall(angleClose, v, angTol)
 			}
 		}
 		null := stNullRight(M, angTol)
@@ -507,7 +505,7 @@ func absorbedNote(st *Staircase) string {
 	if st.Absorbed == 0 {
 		return ""
 	}
-	return fmt.Sprintf("; the last %d directions (a reordered Schur block, no staircase step) belong to modes the PBH test finds reached that the staircase left behind a step of 0 or of an unreached mode", st.Absorbed)
+	return fmt.Sprintf("; the last %d directions (a reordered Schur block, no staircase step) belong to modes the PBH test finds reached that the staircase left behind a step rounding made exactly 0", st.Absorbed)
 }
 
 // eigOrdered returns the eigenvalues of a in mode-table order (values only:
