@@ -43,7 +43,8 @@ type Staircase struct {
 	// Absorbed, when not 0, is the size of the last step: directions of
 	// modes the PBH test finds reached that the staircase left in its
 	// uncontrollable block, behind a step that rounding made exactly zero
-	// (see absorbReached); its StepKept is 0.
+	// or that was dropped for an unreached mode before them (see
+	// absorbReached); its StepKept is 0.
 	Absorbed int
 	// Direct, when set, says the split came from the left invariant
 	// subspaces of the modes the PBH test finds unreached, not from
@@ -164,9 +165,11 @@ func pbhRefused(s *System, relTol float64) (unreached, unseen []complex128, err 
 // again (raised at most until a lowering is needed, so it ends). A missing
 // mode is first split off directly from the left invariant subspaces
 // (unreachedDirect): a raise drops every step after the weak one, reached
-// modes' steps too, at a place that depends on the realization. When the
-// step dropped is exactly 0, the reached modes are taken back from the
-// uncontrollable block (absorbReached). The PBH
+// modes' steps too, at a place that depends on the realization. When that
+// fails and a raise is needed, and when the step dropped is exactly 0, the
+// reached modes are taken back from the uncontrollable block
+// (absorbReached) and what stays behind is rebuilt from the unreached
+// modes' left invariant subspaces (leftComplement). The PBH
 // verdicts decide; the staircase supplies the subspaces. RaisedFrom records
 // the tolerance it started from.
 func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual bool) (*Staircase, error) {
@@ -197,7 +200,7 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 		return cmplx.Abs(a-b) <= math.Max(1e-4*math.Max(scale, cmplx.Abs(a)), 10*st.Tol)
 	}
 	start := st.Tol
-	lowered := false
+	lowered, raised := false, false
 	for iter := 0; iter < n; iter++ {
 		k := st.Dim
 		var rest []complex128
@@ -238,16 +241,31 @@ func agreeingStaircase(A, B *mat.Dense, relTol float64, must []complex128, dual 
 				return st, nil
 			}
 			next *= 1 + 1e-9
+			raised = true
 		case extra && !missing:
-			if st.Dropped == 0 {
-				// Rounding left an exact zero step: no tolerance
-				// reaches the modes the PBH test finds reached, so take
-				// them back from the uncontrollable block.
-				return absorbReached(st, must, near)
+			if st.Dropped == 0 || raised {
+				// Rounding left an exact zero step, or the raise that
+				// dropped an unreached mode's step dropped reached
+				// modes' later steps with it (one tolerance cannot
+				// split a staircase out of Krylov order): take the
+				// reached ones back from the uncontrollable block.
+				return absorbReached(A, B, dual, st, must, near, relTol)
 			}
 			next = st.Dropped * (1 - 1e-9)
 			lowered = true
 		default:
+			if raised && k < n {
+				// The raise cut a step that may be a real coupling:
+				// rebuild what stays behind from the unreached modes'
+				// left invariant subspace.
+				A0, B0 := A, B
+				if dual {
+					A0, B0 = stTransposed(A), stTransposed(B)
+				}
+				retransform(A0, B0, st)
+				leftComplement(A0, B0, st, blockValues(mat.DenseCopyOf(st.A.Slice(k, n, k, n))), relTol)
+				zeroBelow(st)
+			}
 			return st, nil
 		}
 		again, err := run(next / norm)
@@ -359,15 +377,16 @@ func (lc *leftClusters) alone(root int, relTol float64) *mat.Dense {
 
 // splitOff puts st in coordinates [W^perp, W], W an orthonormal basis of
 // the sum of parts (left invariant, so W^perp is invariant), with Dim =
-// n - dim W; false when W is empty or the whole space.
-func splitOff(A0, B0 *mat.Dense, st *Staircase, parts []*mat.Dense) bool {
+// n - dim W; false when the parts do not make up want dimensions (want < 0:
+// any number below n).
+func splitOff(A0, B0 *mat.Dense, st *Staircase, parts []*mat.Dense, want int) bool {
 	n, _ := A0.Dims()
 	W, _ := stOrth(stHcat(n, parts...), 1e-8)
 	if W == nil {
 		return false
 	}
 	_, c := W.Dims()
-	if c >= n {
+	if c >= n || want >= 0 && c != want {
 		return false
 	}
 	st.Z = stHcat(n, stComplement(W, n), W)
@@ -389,6 +408,64 @@ func retransform(A0, B0 *mat.Dense, st *Staircase) {
 		var b mat.Dense
 		b.Mul(st.Z.T(), B0)
 		st.B = mat.DenseCopyOf(&b)
+	}
+}
+
+// leftComplement puts st in coordinates [W^perp, W], W the left invariant
+// subspace of the modes left behind (rest: Schur blocks of what stays
+// behind, one value per pair): W^perp is invariant and, as the PBH test
+// says, holds the range of B0 up to its margin, so the form is block
+// triangular to rounding with no coupling cut by a raised tolerance (a
+// staircase raised to a kept value of 0.04 cuts a real coupling and tilts
+// the subspace by as much). A cluster left behind whole gives its whole
+// left invariant subspace; one left behind in part (one direction of a
+// semisimple double, one rigid body of two) the part B0 leaves alone.
+// Nothing changes when the dimensions do not add up.
+func leftComplement(A0, B0 *mat.Dense, st *Staircase, rest []complex128, relTol float64) {
+	n, _ := A0.Dims()
+	c := n - st.Dim
+	if c <= 0 || len(rest) == 0 {
+		return
+	}
+	lc := newLeftClusters(A0, B0)
+	if lc == nil {
+		return
+	}
+	asked := map[int]int{}
+	var roots []int
+	for _, r := range rest {
+		root := lc.of(r)
+		if root < 0 {
+			return
+		}
+		if asked[root] == 0 {
+			roots = append(roots, root)
+		}
+		asked[root]++
+		if imag(r) != 0 {
+			asked[root]++
+		}
+	}
+	sort.Ints(roots)
+	var parts []*mat.Dense
+	for _, root := range roots {
+		var U *mat.Dense
+		if asked[root] == lc.size(root) {
+			U = lc.basis(root)
+		} else {
+			U = lc.alone(root, relTol)
+		}
+		if U == nil {
+			return
+		}
+		if _, k := U.Dims(); k != asked[root] {
+			return
+		}
+		parts = append(parts, U)
+	}
+	dim := st.Dim
+	if !splitOff(A0, B0, st, parts, c) {
+		st.Dim = dim
 	}
 }
 
@@ -434,11 +511,25 @@ func unreachedDirect(A, B *mat.Dense, dual bool, st *Staircase, must []complex12
 		parts = append(parts, U)
 	}
 	out := &Staircase{Tol: st.Tol, Direct: true}
-	if !splitOff(A0, B0, out, parts) {
+	if !splitOff(A0, B0, out, parts, -1) {
 		return nil
 	}
 	out.Steps, out.StepKept = []int{out.Dim}, []float64{0}
 	zeroBelow(out)
+	return out
+}
+
+// blockValues returns the eigenvalues of a, one per conjugate pair (the
+// one with nonnegative imaginary part), from its real Schur form.
+func blockValues(a *mat.Dense) []complex128 {
+	sf, err := Schur(a)
+	if err != nil {
+		return nil
+	}
+	var out []complex128
+	for _, i := range schurBlocks(sf.T) {
+		out = append(out, schurBlockValue(sf.T, i))
+	}
 	return out
 }
 
@@ -492,10 +583,19 @@ func (st *Staircase) Close() float64 {
 // first (Bai & Demmel 1993), which keeps the form block triangular, so the
 // enlarged leading subspace is still invariant and holds the range of B.
 // Used when a step came out exactly zero by rounding (a weakly reached
-// Jordan chain), where lowering the tolerance cannot help.
-func absorbReached(st *Staircase, must []complex128, near func(a, b complex128) bool) (*Staircase, error) {
+// Jordan chain), where lowering the tolerance cannot help, and when a raised
+// tolerance dropped reached modes' steps after an unreached mode's.
+func absorbReached(A0, B0 *mat.Dense, dual bool, st *Staircase, must []complex128, near func(a, b complex128) bool, relTol float64) (*Staircase, error) {
 	n, _ := st.A.Dims()
 	k := st.Dim
+	// The staircase set every dropped block to exactly zero; after a raise
+	// those were couplings up to the raised tolerance, and the reached
+	// modes taken back must keep theirs: start again from Z^T A Z and
+	// Z^T B, and zero only what stays behind.
+	if dual {
+		A0, B0 = stTransposed(A0), stTransposed(B0)
+	}
+	retransform(A0, B0, st)
 	sf, err := Schur(mat.DenseCopyOf(st.A.Slice(k, n, k, n)))
 	if err != nil {
 		return nil, err
@@ -528,6 +628,14 @@ func absorbReached(st *Staircase, must []complex128, near func(a, b complex128) 
 	tz.Mul(st.Z.Slice(0, n, k, n), sf.Z)
 	st.Z.Slice(0, n, k, n).(*mat.Dense).Copy(&tz)
 	st.Dim += add
+	rest := make([]complex128, 0, n-st.Dim)
+	for _, i := range schurBlocks(sf.T) {
+		if i >= add {
+			rest = append(rest, schurBlockValue(sf.T, i))
+		}
+	}
+	leftComplement(A0, B0, st, rest, relTol)
+	zeroBelow(st)
 	st.Steps = append(st.Steps, add)
 	st.StepKept = append(st.StepKept, 0)
 	st.Absorbed = add
